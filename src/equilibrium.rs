@@ -1,0 +1,397 @@
+//! The result of a solve: pH, every species with its activity, family distributions,
+//! residuals and warnings.
+
+use crate::activity::ActivityModel;
+use crate::error::{Error, Result};
+use crate::quantity::Temperature;
+use crate::solve::{Evaluation, Point, SolverPath};
+use crate::system::{SpeciesKind, System};
+
+const LN10: f64 = std::f64::consts::LN_10;
+
+/// Something the caller should know about a result that is nevertheless returned.
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum Warning {
+    /// The ionic strength lies above the stated validity of the activity model.
+    IonicStrengthBeyondModel {
+        /// Ionic strength of the result, mol/kg.
+        ionic_strength_molal: f64,
+        /// The model's stated limit, mol/kg.
+        limit_molal: f64,
+        /// The model.
+        model: ActivityModel,
+    },
+    /// A family or complex was used away from 25 °C without enthalpy data: its 25 °C
+    /// constants were used unchanged.
+    NoEnthalpyData {
+        /// Family or complex name.
+        name: String,
+        /// The temperature of the system, °C.
+        temperature_celsius: f64,
+    },
+}
+
+impl std::fmt::Display for Warning {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Warning::IonicStrengthBeyondModel {
+                ionic_strength_molal,
+                limit_molal,
+                model,
+            } => write!(
+                f,
+                "ionic strength {ionic_strength_molal:.3} mol/kg is above the {} model's stated validity (about {limit_molal} mol/kg); activity coefficients are extrapolated",
+                model.name()
+            ),
+            Warning::NoEnthalpyData {
+                name,
+                temperature_celsius,
+            } => write!(
+                f,
+                "{name}: no enthalpy data, so its 25 °C constants were used unchanged at {temperature_celsius} °C"
+            ),
+        }
+    }
+}
+
+/// One species at equilibrium.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SpeciesState {
+    /// Display name.
+    pub name: String,
+    /// Charge number.
+    pub charge: i32,
+    /// Concentration, mol/kg of water.
+    pub molal: f64,
+    /// Concentration, mol/L (molal × water density; dilute-solution approximation).
+    pub molar: f64,
+    /// Activity coefficient γ (molal scale).
+    pub gamma: f64,
+    /// Activity, γ·m/(1 mol/kg).
+    pub activity: f64,
+}
+
+/// The distribution of one acid–base family.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FamilyState {
+    /// Family name.
+    pub name: String,
+    /// Total, mol/kg.
+    pub total_molal: f64,
+    /// Fraction of the total in each free form, indexed by bound protons (alpha fractions).
+    /// For a family with zero total, the fractions it would have at this pH and ionic
+    /// strength.
+    pub fractions: Vec<f64>,
+    /// Fraction of the total bound in complexes (0 without complexes).
+    pub complexed_fraction: f64,
+    /// Mean number of protons bound per free (uncomplexed) family unit.
+    pub mean_bound_protons: f64,
+}
+
+/// Residuals of the equations at the returned point.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Residuals {
+    /// Σ z·m, mol/kg.
+    pub charge_molal: f64,
+    /// Σ z·m divided by Σ |z|·m.
+    pub charge_relative: f64,
+    /// (Σ ν·m − total)/total for each component with a positive total: (name, value).
+    pub mass_relative: Vec<(String, f64)>,
+    /// (½ Σ z²·m − I)/I.
+    pub ionic_strength_relative: f64,
+}
+
+impl Residuals {
+    /// The largest relative residual of the charge and mass balances.
+    pub fn max_balance_relative(&self) -> f64 {
+        self.mass_relative
+            .iter()
+            .map(|(_, v)| v.abs())
+            .fold(self.charge_relative.abs(), f64::max)
+    }
+}
+
+/// The equilibrium state of a solution.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe, Temperature};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("acetic acid")?, Amount::molar(0.1))?;
+/// let eq = r.compile(&Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal))?.solve()?;
+/// assert!((eq.ph() - 2.88).abs() < 0.01);
+/// let acetate = eq.family("acetate").unwrap();
+/// assert!((acetate.fractions.iter().sum::<f64>() - 1.0).abs() < 1e-12);
+/// assert!(eq.residuals().max_balance_relative() < 1e-10);
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq)]
+pub struct Equilibrium {
+    ph: f64,
+    p_h_molal: f64,
+    poh: f64,
+    ionic_strength_molal: f64,
+    temperature: Temperature,
+    model: ActivityModel,
+    species: Vec<SpeciesState>,
+    families: Vec<FamilyState>,
+    free_molal: Vec<(String, f64)>,
+    residuals: Residuals,
+    iterations: usize,
+    path: SolverPath,
+    warnings: Vec<Warning>,
+    unknowns: Vec<f64>,
+    ln_i: f64,
+}
+
+impl Equilibrium {
+    pub(crate) fn build(sys: &System, point: Point, iterations: usize, path: SolverPath) -> Result<Self> {
+        let mut ev = Evaluation::new(sys.species.len());
+        let i = point.ln_i.exp();
+        ev.set_gamma(sys, i);
+        ev.set_conc(sys, &point);
+        let r = ev.scaled_residuals(sys, &point);
+        let rho = sys.water_density;
+        let species: Vec<SpeciesState> = sys
+            .species
+            .iter()
+            .enumerate()
+            .map(|(s, sp)| {
+                let g = ev.ln_gamma[s].exp();
+                SpeciesState {
+                    name: sp.name.clone(),
+                    charge: sp.charge,
+                    molal: ev.conc[s],
+                    molar: ev.conc[s] * rho,
+                    gamma: g,
+                    activity: g * ev.conc[s],
+                }
+            })
+            .collect();
+        let ph = -point.y[0] / LN10;
+        let h = species[0].molal;
+        let oh = species[1].activity;
+        let nc = sys.components.len();
+        let families = sys
+            .families
+            .iter()
+            .map(|fam| {
+                let total = sys.components[fam.component].total_molal;
+                let forms: Vec<f64> = fam.forms.iter().map(|&s| ev.conc[s]).collect();
+                let free: f64 = forms.iter().sum();
+                let (fractions, complexed) = if total > 0.0 {
+                    let fr: Vec<f64> = forms.iter().map(|c| c / total).collect();
+                    let complexed = (1.0 - fr.iter().sum::<f64>()).max(0.0);
+                    (fr, complexed)
+                } else {
+                    // The distribution this family would have: weights exp(ln K + j L − ln γ).
+                    let u: Vec<f64> = fam
+                        .forms
+                        .iter()
+                        .map(|&s| sys.ln_k[s] + sys.nu[s * nc] * point.y[0] - ev.ln_gamma[s])
+                        .collect();
+                    let umax = u.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+                    let e: Vec<f64> = u.iter().map(|x| (x - umax).exp()).collect();
+                    let sum: f64 = e.iter().sum();
+                    (e.iter().map(|x| x / sum).collect(), 0.0)
+                };
+                let mean = if free > 0.0 {
+                    forms.iter().enumerate().map(|(j, c)| j as f64 * c).sum::<f64>() / free
+                } else {
+                    fractions.iter().enumerate().map(|(j, a)| j as f64 * a).sum()
+                };
+                FamilyState {
+                    name: fam.protolyte.name().to_string(),
+                    total_molal: total,
+                    fractions,
+                    complexed_fraction: complexed,
+                    mean_bound_protons: mean,
+                }
+            })
+            .collect();
+        let free_molal = sys
+            .components
+            .iter()
+            .enumerate()
+            .skip(1)
+            .filter(|(_, c)| c.total_molal > 0.0)
+            .map(|(ci, c)| {
+                // The free component is its species with no H and only itself.
+                let s = sys.species.iter().enumerate().position(|(s, sp)| {
+                    !matches!(sp.kind, SpeciesKind::Complex)
+                        && sys.nu[s * nc + ci] == 1.0
+                        && sys.nu[s * nc] == 0.0
+                });
+                (c.name.clone(), s.map(|s| ev.conc[s]).unwrap_or(0.0))
+            })
+            .collect();
+        let residuals = Residuals {
+            charge_molal: r.charge_molal,
+            charge_relative: r.charge_relative(),
+            mass_relative: sys
+                .components
+                .iter()
+                .enumerate()
+                .skip(1)
+                .filter(|(_, c)| c.total_molal > 0.0)
+                .map(|(c, comp)| (comp.name.clone(), r.mass[c]))
+                .collect(),
+            ionic_strength_relative: if sys.model == ActivityModel::Ideal { 0.0 } else { r.ionic_strength },
+        };
+        let mut warnings = sys.compile_warnings.clone();
+        if let Some(limit) = sys.model.validity_limit_molal()
+            && i > limit
+        {
+            warnings.push(Warning::IonicStrengthBeyondModel {
+                ionic_strength_molal: i,
+                limit_molal: limit,
+                model: sys.model,
+            });
+        }
+        let eq = Equilibrium {
+            ph,
+            p_h_molal: -h.log10(),
+            poh: -oh.log10(),
+            ionic_strength_molal: i,
+            temperature: sys.temperature,
+            model: sys.model,
+            species,
+            families,
+            free_molal,
+            residuals,
+            iterations,
+            path,
+            warnings,
+            unknowns: point.y,
+            ln_i: point.ln_i,
+        };
+        eq.check_finite()?;
+        Ok(eq)
+    }
+
+    /// Refuses a result with a NaN or infinity anywhere a caller would read it.
+    fn check_finite(&self) -> Result<()> {
+        let ok = [self.ph, self.p_h_molal, self.poh, self.ionic_strength_molal]
+            .iter()
+            .all(|v| v.is_finite())
+            && self
+                .species
+                .iter()
+                .all(|s| s.molal.is_finite() && s.gamma.is_finite() && s.activity.is_finite())
+            && self
+                .families
+                .iter()
+                .all(|f| f.fractions.iter().all(|v| v.is_finite()) && f.mean_bound_protons.is_finite())
+            && self.residuals.charge_relative.is_finite()
+            && self.residuals.mass_relative.iter().all(|(_, v)| v.is_finite());
+        if ok {
+            Ok(())
+        } else {
+            Err(Error::NoConvergence {
+                path: self.path.name(),
+                iterations: self.iterations,
+                max_residual: f64::INFINITY,
+                worst_equation: "a non-finite value in the result".into(),
+                last_ph: if self.ph.is_finite() { self.ph } else { 0.0 },
+            })
+        }
+    }
+
+    /// pH = −log₁₀ a(H⁺) (molal scale).
+    pub fn ph(&self) -> f64 {
+        self.ph
+    }
+
+    /// p[H] = −log₁₀ of the H⁺ molality (mol/kg): the pH of concentration, without γ.
+    pub fn p_h_molal(&self) -> f64 {
+        self.p_h_molal
+    }
+
+    /// pOH = −log₁₀ a(OH⁻).
+    pub fn poh(&self) -> f64 {
+        self.poh
+    }
+
+    /// Ionic strength, mol/kg (solved self-consistently with the activity coefficients).
+    pub fn ionic_strength_molal(&self) -> f64 {
+        self.ionic_strength_molal
+    }
+
+    /// The temperature of the system.
+    pub fn temperature(&self) -> Temperature {
+        self.temperature
+    }
+
+    /// The activity model used.
+    pub fn activity_model(&self) -> ActivityModel {
+        self.model
+    }
+
+    /// Every species, in the system's species order (H⁺ and OH⁻ first).
+    pub fn species(&self) -> &[SpeciesState] {
+        &self.species
+    }
+
+    /// The species named `name`.
+    pub fn species_named(&self, name: &str) -> Option<&SpeciesState> {
+        self.species.iter().find(|s| s.name == name)
+    }
+
+    /// The distribution of every acid–base family.
+    pub fn families(&self) -> &[FamilyState] {
+        &self.families
+    }
+
+    /// The family named `name`.
+    pub fn family(&self, name: &str) -> Option<&FamilyState> {
+        self.families.iter().find(|f| f.name == name)
+    }
+
+    /// Free (uncomplexed, fully deprotonated) molality of each component with a positive total.
+    pub fn free_molal(&self) -> &[(String, f64)] {
+        &self.free_molal
+    }
+
+    /// Residuals of the charge, mass and ionic-strength equations at this result.
+    pub fn residuals(&self) -> &Residuals {
+        &self.residuals
+    }
+
+    /// Iterations spent (pH-equation evaluations on the fast path, Newton steps on the
+    /// general path).
+    pub fn iterations(&self) -> usize {
+        self.iterations
+    }
+
+    /// Which path solved it.
+    pub fn path(&self) -> SolverPath {
+        self.path
+    }
+
+    /// Warnings about the result.
+    pub fn warnings(&self) -> &[Warning] {
+        &self.warnings
+    }
+
+    /// ln a of each component (−∞ for components with zero total), H⁺ first.
+    pub(crate) fn unknowns(&self) -> &[f64] {
+        &self.unknowns
+    }
+
+    /// ln I.
+    pub(crate) fn ln_ionic_strength(&self) -> f64 {
+        self.ln_i
+    }
+
+    /// The solver's point, for warm starts and sensitivities.
+    pub(crate) fn point(&self) -> Point {
+        Point {
+            y: self.unknowns.clone(),
+            ln_i: self.ln_i,
+        }
+    }
+}

@@ -1,0 +1,133 @@
+//! The error type: every failure says what went wrong and where.
+
+use thiserror::Error;
+
+/// Everything that can go wrong in protolyte.
+///
+/// Each variant names the thing at fault (a reagent, a family, a field) so that a caller
+/// can show the message to a person as it is.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{Amount, Error};
+///
+/// let err = Amount::molar(-0.1).validate("sodium acetate").unwrap_err();
+/// assert!(matches!(err, Error::InvalidAmount { .. }));
+/// assert!(err.to_string().contains("sodium acetate"));
+/// ```
+#[derive(Debug, Clone, PartialEq, Error)]
+#[non_exhaustive]
+pub enum Error {
+    /// An amount, concentration, mass or volume was negative, NaN or infinite.
+    #[error("invalid amount for {what}: {value} {unit} (amounts must be finite and not negative)")]
+    InvalidAmount {
+        /// What the amount belongs to.
+        what: String,
+        /// The offending value.
+        value: f64,
+        /// Its unit.
+        unit: &'static str,
+    },
+    /// A parameter (pKa, enthalpy, ion size, log β, ...) was out of range or not finite.
+    #[error("invalid {parameter} for {what}: {value} ({reason})")]
+    InvalidParameter {
+        /// What the parameter belongs to.
+        what: String,
+        /// Which parameter.
+        parameter: &'static str,
+        /// The offending value.
+        value: f64,
+        /// Why it was refused.
+        reason: &'static str,
+    },
+    /// A name was looked up and not found.
+    #[error("unknown {kind} `{name}`{}", suggestion.as_ref().map(|s| format!(" (did you mean `{s}`?)")).unwrap_or_default())]
+    UnknownName {
+        /// What kind of thing was looked up ("protolyte", "reagent", "ion", ...).
+        kind: &'static str,
+        /// The name as given.
+        name: String,
+        /// The closest known name, if one is close.
+        suggestion: Option<String>,
+    },
+    /// Two definitions disagree, or one contradicts itself.
+    #[error("inconsistent definition of {name}: {reason}")]
+    InconsistentDefinition {
+        /// The thing defined.
+        name: String,
+        /// What is inconsistent.
+        reason: String,
+    },
+    /// A reagent's constituents do not add up to zero charge.
+    #[error("reagent `{reagent}` is not electroneutral: its constituents carry a net charge of {charge:+}")]
+    NotElectroneutral {
+        /// The reagent.
+        reagent: String,
+        /// The net charge of one formula unit.
+        charge: i64,
+    },
+    /// A condition lies outside the declared domain of the library.
+    #[error("{what} = {value} is outside the supported domain {domain}")]
+    OutOfDomain {
+        /// What is out of range.
+        what: &'static str,
+        /// The value given.
+        value: f64,
+        /// The supported range, in words.
+        domain: &'static str,
+    },
+    /// The solver did not converge; the diagnostics say how far it got.
+    #[error(
+        "no convergence on the {path} path after {iterations} iterations: largest scaled residual {max_residual:.3e} in the {worst_equation}; last pH estimate {last_ph:.4}"
+    )]
+    NoConvergence {
+        /// Which solver path gave up.
+        path: &'static str,
+        /// Iterations spent.
+        iterations: usize,
+        /// The largest scaled residual at the last iterate.
+        max_residual: f64,
+        /// The equation with that residual (e.g. "mass balance of phosphate").
+        worst_equation: String,
+        /// pH at the last iterate.
+        last_ph: f64,
+    },
+}
+
+/// `Result` with protolyte's [`Error`].
+pub type Result<T> = std::result::Result<T, Error>;
+
+/// Refuses a non-finite or negative amount.
+pub(crate) fn check_amount(what: &str, value: f64, unit: &'static str) -> Result<f64> {
+    if value.is_finite() && value >= 0.0 {
+        Ok(value)
+    } else {
+        Err(Error::InvalidAmount {
+            what: what.to_string(),
+            value,
+            unit,
+        })
+    }
+}
+
+/// Refuses a parameter that is not finite or lies outside `[lo, hi]`.
+pub(crate) fn check_parameter(
+    what: &str,
+    parameter: &'static str,
+    value: f64,
+    lo: f64,
+    hi: f64,
+    reason: &'static str,
+) -> Result<f64> {
+    if value.is_finite() && value >= lo && value <= hi {
+        Ok(value)
+    } else {
+        Err(Error::InvalidParameter {
+            what: what.to_string(),
+            parameter,
+            value,
+            reason,
+        })
+    }
+}

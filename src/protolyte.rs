@@ -1,0 +1,249 @@
+//! An acid–base family (a protolyte): HₙA and its n stepwise dissociations.
+
+use crate::error::{Error, Result, check_parameter};
+use crate::quantity::Temperature;
+use crate::vant_hoff;
+
+/// One stepwise dissociation Hₖ A → Hₖ₋₁A + H⁺, with optional thermodynamic data.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Step {
+    /// Thermodynamic pKa at 25 °C, infinite dilution.
+    pub pka: f64,
+    /// Standard enthalpy of dissociation ΔH°, kJ/mol.
+    pub dh_kj_per_mol: Option<f64>,
+    /// Standard heat-capacity change of dissociation ΔCp°, J/(mol·K).
+    pub dcp_j_per_mol_k: Option<f64>,
+}
+
+/// An acid–base family: a name, its stepwise pKa values (most protonated first) and the
+/// charge of its most protonated form.
+///
+/// The family's forms are indexed by the number of bound protons `j`, from 0 (fully
+/// deprotonated) to n (the most protonated form). Form `j` carries charge
+/// `charge_most_protonated − (n − j)`; so ammonium is `Protolyte::new("ammonia", &[9.245], 1)`
+/// and glycine (H₂Gly⁺ ⇌ HGly ⇌ Gly⁻) is `Protolyte::new("glycine", &[2.35, 9.78], 1)`.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::Protolyte;
+///
+/// let acid = Protolyte::new("lab acid X", &[3.1, 6.2], 0)?
+///     .with_enthalpies_kj_per_mol(&[-2.0, 1.5])?;
+/// assert_eq!(acid.steps().len(), 2);
+/// assert_eq!(acid.charge_of_form(0), -2);
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq)]
+pub struct Protolyte {
+    name: String,
+    formula: Option<String>,
+    charge_most_protonated: i32,
+    steps: Vec<Step>,
+    ion_size_angstrom: Option<f64>,
+    source: Option<String>,
+}
+
+/// Range accepted for a pKa (wider than the declared test domain −2..16).
+const PKA_RANGE: (f64, f64) = (-10.0, 25.0);
+
+impl Protolyte {
+    /// A family with stepwise `pkas` (most protonated first) at 25 °C, infinite dilution.
+    ///
+    /// Refuses an empty name, no steps or more than 12, a pKa outside −10..25 or not finite,
+    /// and a charge outside −10..10.
+    pub fn new(name: &str, pkas: &[f64], charge_most_protonated: i32) -> Result<Self> {
+        let name = name.trim();
+        if name.is_empty() {
+            return Err(Error::InconsistentDefinition {
+                name: "(unnamed protolyte)".into(),
+                reason: "a protolyte needs a name".into(),
+            });
+        }
+        if pkas.is_empty() || pkas.len() > 12 {
+            return Err(Error::InconsistentDefinition {
+                name: name.into(),
+                reason: format!("a protolyte needs 1 to 12 dissociation steps, got {}", pkas.len()),
+            });
+        }
+        if !(-10..=10).contains(&charge_most_protonated) {
+            return Err(Error::InconsistentDefinition {
+                name: name.into(),
+                reason: format!("charge of the most protonated form {charge_most_protonated} is outside −10..10"),
+            });
+        }
+        let mut steps = Vec::with_capacity(pkas.len());
+        for &p in pkas {
+            check_parameter(name, "pKa", p, PKA_RANGE.0, PKA_RANGE.1, "must be finite and within -10..25")?;
+            steps.push(Step {
+                pka: p,
+                dh_kj_per_mol: None,
+                dcp_j_per_mol_k: None,
+            });
+        }
+        Ok(Protolyte {
+            name: name.to_string(),
+            formula: None,
+            charge_most_protonated,
+            steps,
+            ion_size_angstrom: None,
+            source: None,
+        })
+    }
+
+    /// Sets the dissociation enthalpies ΔH° (kJ/mol), one per step.
+    pub fn with_enthalpies_kj_per_mol(mut self, dh: &[f64]) -> Result<Self> {
+        self.check_len(dh.len(), "enthalpies")?;
+        for (s, &h) in self.steps.iter_mut().zip(dh) {
+            check_parameter(&self.name, "ΔH° (kJ/mol)", h, -500.0, 500.0, "must be finite and within ±500")?;
+            s.dh_kj_per_mol = Some(h);
+        }
+        Ok(self)
+    }
+
+    /// Sets the dissociation heat-capacity changes ΔCp° (J/(mol·K)), one per step.
+    pub fn with_heat_capacities_j_per_mol_k(mut self, dcp: &[f64]) -> Result<Self> {
+        self.check_len(dcp.len(), "heat capacities")?;
+        for (s, &c) in self.steps.iter_mut().zip(dcp) {
+            check_parameter(&self.name, "ΔCp° (J/(mol·K))", c, -2000.0, 2000.0, "must be finite and within ±2000")?;
+            s.dcp_j_per_mol_k = Some(c);
+        }
+        Ok(self)
+    }
+
+    /// Sets the steps directly (used by the built-in data, which may lack some enthalpies).
+    pub(crate) fn with_steps(mut self, steps: Vec<Step>) -> Result<Self> {
+        self.check_len(steps.len(), "steps")?;
+        for s in &steps {
+            if let Some(h) = s.dh_kj_per_mol {
+                check_parameter(&self.name, "ΔH° (kJ/mol)", h, -500.0, 500.0, "must be finite and within ±500")?;
+            }
+            if let Some(c) = s.dcp_j_per_mol_k {
+                check_parameter(&self.name, "ΔCp° (J/(mol·K))", c, -2000.0, 2000.0, "must be finite and within ±2000")?;
+            }
+        }
+        self.steps = steps;
+        Ok(self)
+    }
+
+    /// Sets the ion-size parameter å (ångström) for the extended Debye–Hückel model.
+    pub fn with_ion_size_angstrom(mut self, a: f64) -> Result<Self> {
+        check_parameter(&self.name, "ion size (Å)", a, 0.5, 20.0, "must be within 0.5..20 Å")?;
+        self.ion_size_angstrom = Some(a);
+        Ok(self)
+    }
+
+    /// Sets the formula of the most protonated form, e.g. `"H3PO4"` (used for species names).
+    pub fn with_formula(mut self, formula: &str) -> Self {
+        self.formula = Some(formula.trim().to_string());
+        self
+    }
+
+    /// Records where the numbers come from.
+    pub fn with_source(mut self, source: &str) -> Self {
+        self.source = Some(source.to_string());
+        self
+    }
+
+    fn check_len(&self, len: usize, what: &str) -> Result<()> {
+        if len == self.steps.len() {
+            Ok(())
+        } else {
+            Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!("{len} {what} given for {} dissociation steps", self.steps.len()),
+            })
+        }
+    }
+
+    /// The family's name.
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+
+    /// The formula of the most protonated form, if known.
+    pub fn formula(&self) -> Option<&str> {
+        self.formula.as_deref()
+    }
+
+    /// The stepwise dissociations, most protonated first.
+    pub fn steps(&self) -> &[Step] {
+        &self.steps
+    }
+
+    /// The number of dissociable protons n.
+    pub fn proton_count(&self) -> usize {
+        self.steps.len()
+    }
+
+    /// Charge of the most protonated form.
+    pub fn charge_most_protonated(&self) -> i32 {
+        self.charge_most_protonated
+    }
+
+    /// Charge of the form with `protons` bound protons.
+    pub fn charge_of_form(&self, protons: usize) -> i32 {
+        self.charge_most_protonated - (self.steps.len() as i32 - protons as i32)
+    }
+
+    /// The ion-size parameter, if set.
+    pub fn ion_size_angstrom(&self) -> Option<f64> {
+        self.ion_size_angstrom
+    }
+
+    /// The published source of the numbers, if recorded.
+    pub fn source(&self) -> Option<&str> {
+        self.source.as_deref()
+    }
+
+    /// pKa of step `step` (0-based, most protonated first) at temperature `t`, by van't Hoff
+    /// from ΔH° and ΔCp° where known; without ΔH° the 25 °C value is returned unchanged.
+    ///
+    /// ```
+    /// use protolyte::{Protolyte, Temperature};
+    /// let p = Protolyte::new("x", &[7.0], 0)?.with_enthalpies_kj_per_mol(&[20.0])?;
+    /// assert!(p.pka_at(0, Temperature::celsius(37.0)) < 7.0);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn pka_at(&self, step: usize, t: Temperature) -> f64 {
+        let s = &self.steps[step.min(self.steps.len() - 1)];
+        match s.dh_kj_per_mol {
+            Some(dh) => -vant_hoff::log10_k_at(-s.pka, dh, s.dcp_j_per_mol_k.unwrap_or(0.0), t),
+            None => s.pka,
+        }
+    }
+
+    /// A display name for the form with `protons` bound protons: built from the formula when
+    /// it starts with Hₙ (e.g. "H2PO4-" from "H3PO4"), else "name(jH)".
+    pub fn form_name(&self, protons: usize) -> String {
+        let n = self.steps.len();
+        let z = self.charge_of_form(protons);
+        if let Some(f) = &self.formula {
+            let core = f.trim_end_matches(['+', '-']).trim_end_matches(|c: char| c.is_ascii_digit() && f.ends_with(['+', '-']));
+            let prefix = if n == 1 { "H".to_string() } else { format!("H{n}") };
+            if let Some(rest) = core.strip_prefix(&prefix)
+                && !rest.is_empty()
+                && !rest.starts_with(|c: char| c.is_ascii_digit())
+            {
+                let h = match protons {
+                    0 => String::new(),
+                    1 => "H".to_string(),
+                    k => format!("H{k}"),
+                };
+                return format!("{h}{rest}{}", charge_suffix(z));
+            }
+        }
+        format!("{}(H{protons}){}", self.name, charge_suffix(z))
+    }
+}
+
+/// "", "+", "2+", "-", "3-".
+pub(crate) fn charge_suffix(z: i32) -> String {
+    match z {
+        0 => String::new(),
+        1 => "+".into(),
+        -1 => "-".into(),
+        z if z > 0 => format!("{z}+"),
+        z => format!("{}-", -z),
+    }
+}

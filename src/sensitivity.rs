@@ -1,0 +1,247 @@
+//! Analytic sensitivities of an equilibrium by implicit differentiation.
+//!
+//! At a solution F(y, p) = 0 of the equations (charge balance, mass balances, ionic
+//! strength) in the unknowns y = (ln a of the components, ln I), a change of a parameter p
+//! (a total, a log K, an addition of strong base) moves the solution by
+//! dy/dp = −J⁻¹ ∂F/∂p, with J the analytic Jacobian ∂F/∂y. One LU factorisation serves
+//! every parameter. Buffer capacity, fitting Jacobians and uncertainty propagation are built
+//! on these numbers.
+
+use nalgebra::DMatrix;
+
+use crate::equilibrium::Equilibrium;
+use crate::error::{Error, Result};
+use crate::solve::newton::{active, jacobian};
+use crate::solve::{Evaluation, Point};
+use crate::system::System;
+
+const LN10: f64 = std::f64::consts::LN_10;
+
+/// A parameter of a system that a result can be differentiated by.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Parameter {
+    /// The total (mol/kg) of the component with this index (not 0, which is H⁺).
+    Total(usize),
+    /// log₁₀ K of the species with this index, at the system's temperature.
+    Log10K(usize),
+    /// An addition of strong base, as mol/kg of a monovalent inert cation with OH⁻ (what
+    /// buffer capacity is defined by).
+    StrongBase,
+}
+
+/// Derivatives of pH and of every species' log₁₀ molality by the system's parameters.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe, Temperature};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("acetic acid")?, Amount::molal(0.1))?
+///  .add(&cat.reagent("sodium acetate")?, Amount::molal(0.1))?;
+/// let sys = r.compile(&Conditions::new(Default::default(), ActivityModel::Ideal))?;
+/// let eq = sys.solve()?;
+/// let s = eq.sensitivities(&sys)?;
+/// // Buffer capacity of an equimolar acetate buffer: about 2.303·C/4 ≈ 0.115 mol/kg per pH.
+/// assert!((s.buffer_capacity_molal() - 0.115).abs() < 0.003);
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone)]
+pub struct Sensitivities {
+    /// Rows: active unknowns (ln a of active components, then ln I); columns: parameters in
+    /// the order totals (components 1..nc), log K (species 0..ns), strong base.
+    dy: DMatrix<f64>,
+    act: Vec<usize>,
+    nc: usize,
+    ns: usize,
+    nu: Vec<f64>,
+    dln_gamma_di: Vec<f64>,
+    ionic_strength: f64,
+    forms: Vec<Vec<usize>>,
+}
+
+impl Sensitivities {
+    /// The sensitivities of `eq`, a solution of `system`.
+    pub fn of(system: &System, eq: &Equilibrium) -> Result<Self> {
+        let sys = system;
+        let nc = sys.components.len();
+        let ns = sys.species.len();
+        if eq.unknowns().len() != nc {
+            return Err(Error::InconsistentDefinition {
+                name: "sensitivities".into(),
+                reason: "the equilibrium does not belong to this system".into(),
+            });
+        }
+        let p: Point = eq.point();
+        let i = p.ln_i.exp();
+        let mut ev = Evaluation::new(ns);
+        ev.set_gamma(sys, i);
+        ev.set_conc(sys, &p);
+        let act = active(sys);
+        let m = act.len() + 1;
+        let jac = jacobian(sys, &ev, &act, &p);
+        let np = (nc - 1) + ns + 1;
+        let mut dfdp = DMatrix::zeros(m, np);
+        // Coefficient of species s in equation row k.
+        let row = |s: usize, k: usize| -> f64 {
+            let z = f64::from(sys.species[s].charge);
+            if k == 0 {
+                z
+            } else if k == m - 1 {
+                0.5 * z * z
+            } else {
+                sys.nu[s * nc + act[k]]
+            }
+        };
+        for c in 1..nc {
+            let col = c - 1;
+            if let Some(k) = act.iter().position(|&a| a == c) {
+                dfdp[(k, col)] = -1.0;
+            } else {
+                // A component with zero total: an infinitesimal amount enters as its species
+                // with one unit of it, in proportion to exp(ln K + Σ ν ln a − ln γ).
+                let mut w: Vec<(usize, f64)> = Vec::new();
+                for s in 0..ns {
+                    if sys.nu[s * nc + c] != 1.0 || !(1..nc).all(|d| d == c || sys.nu[s * nc + d] == 0.0 || act.contains(&d)) {
+                        continue;
+                    }
+                    let mut u = sys.ln_k[s] - ev.ln_gamma[s];
+                    for &a in &act {
+                        let v = sys.nu[s * nc + a];
+                        if v != 0.0 {
+                            u += v * p.y[a];
+                        }
+                    }
+                    w.push((s, u));
+                }
+                let umax = w.iter().map(|x| x.1).fold(f64::NEG_INFINITY, f64::max);
+                let sum: f64 = w.iter().map(|x| (x.1 - umax).exp()).sum();
+                if sum > 0.0 {
+                    for (s, u) in w {
+                        let frac = (u - umax).exp() / sum;
+                        for k in 0..m {
+                            dfdp[(k, col)] += row(s, k) * frac;
+                        }
+                    }
+                }
+            }
+        }
+        for s in 0..ns {
+            let col = nc - 1 + s;
+            let c = ev.conc[s];
+            if c == 0.0 {
+                continue;
+            }
+            for k in 0..m {
+                dfdp[(k, col)] = row(s, k) * c * LN10;
+            }
+        }
+        dfdp[(0, np - 1)] = 1.0;
+        dfdp[(m - 1, np - 1)] = 0.5;
+        let lu = jac.lu();
+        let dy = lu.solve(&(-dfdp)).ok_or_else(|| Error::NoConvergence {
+            path: "sensitivity",
+            iterations: 0,
+            max_residual: f64::INFINITY,
+            worst_equation: "singular Jacobian at the solution".into(),
+            last_ph: eq.ph(),
+        })?;
+        if dy.iter().any(|v| !v.is_finite()) {
+            return Err(Error::NoConvergence {
+                path: "sensitivity",
+                iterations: 0,
+                max_residual: f64::INFINITY,
+                worst_equation: "non-finite derivative".into(),
+                last_ph: eq.ph(),
+            });
+        }
+        Ok(Sensitivities {
+            dy,
+            act,
+            nc,
+            ns,
+            nu: sys.nu.clone(),
+            dln_gamma_di: ev.dln_gamma_di.clone(),
+            ionic_strength: i,
+            forms: sys.families.iter().map(|f| f.forms.clone()).collect(),
+        })
+    }
+
+    fn column(&self, p: Parameter) -> Option<usize> {
+        match p {
+            Parameter::Total(c) if c >= 1 && c < self.nc => Some(c - 1),
+            Parameter::Log10K(s) if s < self.ns => Some(self.nc - 1 + s),
+            Parameter::StrongBase => Some(self.nc - 1 + self.ns),
+            _ => None,
+        }
+    }
+
+    /// d pH / d p. Zero for a parameter index out of range.
+    pub fn dph(&self, p: Parameter) -> f64 {
+        self.column(p).map(|col| -self.dy[(0, col)] / LN10).unwrap_or(0.0)
+    }
+
+    /// d log₁₀ m(species) / d p. Zero for an index out of range.
+    pub fn dlog10_molal(&self, species: usize, p: Parameter) -> f64 {
+        let Some(col) = self.column(p) else { return 0.0 };
+        if species >= self.ns {
+            return 0.0;
+        }
+        let m = self.act.len() + 1;
+        let mut d = 0.0;
+        for (k, &c) in self.act.iter().enumerate() {
+            d += self.nu[species * self.nc + c] * self.dy[(k, col)];
+        }
+        d -= self.dln_gamma_di[species] * self.ionic_strength * self.dy[(m - 1, col)];
+        let own = matches!(p, Parameter::Log10K(s) if s == species);
+        d / LN10 + if own { 1.0 } else { 0.0 }
+    }
+
+    /// d ln I / d p.
+    pub fn dln_ionic_strength(&self, p: Parameter) -> f64 {
+        let m = self.act.len() + 1;
+        self.column(p).map(|col| self.dy[(m - 1, col)]).unwrap_or(0.0)
+    }
+
+    /// d pH / d(total of component `component`, mol/kg).
+    pub fn dph_dtotal_molal(&self, component: usize) -> f64 {
+        self.dph(Parameter::Total(component))
+    }
+
+    /// d pH / d log₁₀ K of species `species`.
+    pub fn dph_dlog10k(&self, species: usize) -> f64 {
+        self.dph(Parameter::Log10K(species))
+    }
+
+    /// d pH / d(strong base added, mol/kg).
+    pub fn dph_dstrong_base_molal(&self) -> f64 {
+        self.dph(Parameter::StrongBase)
+    }
+
+    /// Buffer capacity β = dC(strong base)/dpH, mol/kg per pH unit.
+    pub fn buffer_capacity_molal(&self) -> f64 {
+        let d = self.dph_dstrong_base_molal();
+        if d > 0.0 { 1.0 / d } else { f64::INFINITY.min(f64::MAX) }
+    }
+
+    /// d pH / d pKa of step `step` (0-based, most protonated first) of family `family`.
+    ///
+    /// log β_j of the form with j protons is the sum of the last j stepwise pKa values, so
+    /// d/dpKaᵢ sums d/d log β_j over the forms whose β contains pKaᵢ.
+    pub fn dph_dpka(&self, family: usize, step: usize) -> f64 {
+        let Some(forms) = self.forms.get(family) else { return 0.0 };
+        let n = forms.len() - 1;
+        if step >= n {
+            return 0.0;
+        }
+        (n - step..=n).map(|j| self.dph_dlog10k(forms[j])).sum()
+    }
+}
+
+impl Equilibrium {
+    /// The analytic sensitivities of this result (see [`Sensitivities`]).
+    pub fn sensitivities(&self, system: &System) -> Result<Sensitivities> {
+        Sensitivities::of(system, self)
+    }
+}

@@ -1,0 +1,268 @@
+//! The solver: turns a [`System`] into an [`Equilibrium`].
+//!
+//! Unknowns are the natural logarithms of the component activities (ln a(H⁺) first) and
+//! ln I; equations are the charge balance, one mass balance per component with a positive
+//! total, and the definition of ionic strength, I = ½ Σ z²·m. Two paths solve them:
+//!
+//! - the **fast path** ([`fast`]), when no species couples two components: each family's
+//!   speciation is closed-form in a(H⁺) (alpha fractions), so the charge balance is one
+//!   monotone equation in ln a(H⁺), bracketed and solved by safeguarded Newton; the ionic
+//!   strength is iterated to self-consistency around it;
+//! - the **general path** ([`newton`]): damped Newton–Raphson on all unknowns with the
+//!   analytic Jacobian and an LU step (nalgebra), from a start given by the fast path on the
+//!   uncoupled part of the system and a few positive-continued-fraction sweeps.
+//!
+//! Both paths report the same residuals, computed here in [`Evaluation`].
+
+pub(crate) mod fast;
+pub(crate) mod newton;
+
+use crate::equilibrium::Equilibrium;
+use crate::error::Result;
+use crate::system::System;
+
+const LN10: f64 = std::f64::consts::LN_10;
+/// ln a(H⁺) bounds: pH from −4 to 20.
+pub(crate) const LN_AH_MIN: f64 = -20.0 * LN10;
+pub(crate) const LN_AH_MAX: f64 = 4.0 * LN10;
+/// Ionic-strength bounds (mol/kg) kept by the iterations.
+pub(crate) const I_MIN: f64 = 1e-14;
+pub(crate) const I_MAX: f64 = 50.0;
+
+/// Which algorithm produced an equilibrium.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum SolverPath {
+    /// One monotone equation in pH with alpha fractions (no coupling species).
+    Fast,
+    /// Newton–Raphson on all log activities and the ionic strength.
+    General,
+}
+
+impl SolverPath {
+    /// "fast" or "general".
+    pub fn name(self) -> &'static str {
+        match self {
+            SolverPath::Fast => "fast",
+            SolverPath::General => "general",
+        }
+    }
+}
+
+/// Which path to use.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub enum PathChoice {
+    /// The fast path when it applies, else the general path.
+    #[default]
+    Auto,
+    /// Always the general Newton path (useful to cross-check the fast path).
+    General,
+}
+
+/// Solver settings.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{Amount, Catalog, Conditions, PathChoice, Recipe, Solver, SolverPath};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("acetic acid")?, Amount::millimolar(1.0))?;
+/// let sys = r.compile(&Conditions::default())?;
+/// let fast = Solver::default().solve(&sys)?;
+/// let general = Solver::default().path(PathChoice::General).solve(&sys)?;
+/// assert_eq!(fast.path(), SolverPath::Fast);
+/// assert!((fast.ph() - general.ph()).abs() < 1e-9);
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Solver {
+    tolerance: f64,
+    max_iterations: usize,
+    path: PathChoice,
+}
+
+impl Default for Solver {
+    fn default() -> Self {
+        Solver {
+            tolerance: 1e-12,
+            max_iterations: 200,
+            path: PathChoice::Auto,
+        }
+    }
+}
+
+impl Solver {
+    /// The default solver: scaled residual tolerance 1e-12, 200 iterations, automatic path.
+    pub fn new() -> Self {
+        Solver::default()
+    }
+
+    /// Sets the largest accepted scaled residual (each balance divided by its own scale:
+    /// a mass balance by its total, the charge balance by Σ|z|·m). Clamped to 1e-15..1e-6.
+    pub fn tolerance(mut self, tol: f64) -> Self {
+        self.tolerance = if tol.is_finite() { tol.clamp(1e-15, 1e-6) } else { 1e-12 };
+        self
+    }
+
+    /// Sets the iteration budget of the general path (at least 10).
+    pub fn max_iterations(mut self, n: usize) -> Self {
+        self.max_iterations = n.max(10);
+        self
+    }
+
+    /// Chooses the path.
+    pub fn path(mut self, path: PathChoice) -> Self {
+        self.path = path;
+        self
+    }
+
+    /// Solves from a cold start.
+    pub fn solve(&self, system: &System) -> Result<Equilibrium> {
+        self.solve_inner(system, None)
+    }
+
+    /// Solves starting from a previous equilibrium of a similar system (same components,
+    /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
+    /// does not converge.
+    pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
+        if previous.unknowns().len() == system.components.len() {
+            if let Ok(eq) = self.solve_inner(system, Some(previous)) {
+                return Ok(eq);
+            }
+        }
+        self.solve_inner(system, None)
+    }
+
+    fn solve_inner(&self, system: &System, warm: Option<&Equilibrium>) -> Result<Equilibrium> {
+        let start = warm.map(|e| (e.unknowns(), e.ln_ionic_strength()));
+        if self.path == PathChoice::Auto && system.uncoupled() {
+            match fast::solve(system, start.map(|(y, li)| (y[0], li)), self.tolerance) {
+                Ok((point, iters)) => return Equilibrium::build(system, point, iters, SolverPath::Fast),
+                Err(_) => {
+                    // The ionic-strength iteration can stall at very high I; the general
+                    // path solves I inside Newton and is the fallback.
+                }
+            }
+        }
+        let (point, iters) = newton::solve(system, start, self.tolerance, self.max_iterations)?;
+        Equilibrium::build(system, point, iters, SolverPath::General)
+    }
+}
+
+/// A point in the unknowns: ln a for every component (−∞ for components with zero total)
+/// and ln I.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct Point {
+    pub y: Vec<f64>,
+    pub ln_i: f64,
+}
+
+/// Species concentrations and activity terms at a point.
+pub(crate) struct Evaluation {
+    /// Molality of each species.
+    pub conc: Vec<f64>,
+    /// ln γ of each species.
+    pub ln_gamma: Vec<f64>,
+    /// d ln γ / dI of each species.
+    pub dln_gamma_di: Vec<f64>,
+}
+
+impl Evaluation {
+    pub(crate) fn new(n_species: usize) -> Self {
+        Evaluation {
+            conc: vec![0.0; n_species],
+            ln_gamma: vec![0.0; n_species],
+            dln_gamma_di: vec![0.0; n_species],
+        }
+    }
+
+    /// Fills ln γ and its slope at ionic strength `i`.
+    pub(crate) fn set_gamma(&mut self, sys: &System, i: f64) {
+        for (s, sp) in sys.species.iter().enumerate() {
+            let (lg, d) = sys.model.log10_gamma_and_slope(sp.charge, sp.ion_size_angstrom, i, &sys.dh);
+            self.ln_gamma[s] = lg * LN10;
+            self.dln_gamma_di[s] = d * LN10;
+        }
+    }
+
+    /// Fills concentrations at `p` (γ must be set for exp(p.ln_i)).
+    pub(crate) fn set_conc(&mut self, sys: &System, p: &Point) {
+        let nc = sys.components.len();
+        for s in 0..sys.species.len() {
+            let row = &sys.nu[s * nc..(s + 1) * nc];
+            let mut ln_c = sys.ln_k[s] - self.ln_gamma[s];
+            for (c, &v) in row.iter().enumerate() {
+                if v != 0.0 {
+                    ln_c += v * p.y[c];
+                }
+            }
+            // −∞ (inactive component) gives exactly 0.
+            self.conc[s] = if ln_c.is_nan() { 0.0 } else { ln_c.min(700.0).exp() };
+        }
+    }
+
+    /// Scaled residuals: (charge balance / Σ|z|m, mass balances / totals (active only, in
+    /// component order), ionic-strength equation / I).
+    pub(crate) fn scaled_residuals(&self, sys: &System, p: &Point) -> Residuals {
+        let nc = sys.components.len();
+        let mut charge = 0.0;
+        let mut scale = 0.0;
+        let mut ionic = 0.0;
+        for (s, sp) in sys.species.iter().enumerate() {
+            let z = f64::from(sp.charge);
+            charge += z * self.conc[s];
+            scale += z.abs() * self.conc[s];
+            ionic += 0.5 * z * z * self.conc[s];
+        }
+        let mut mass = vec![0.0; nc];
+        for (c, comp) in sys.components.iter().enumerate().skip(1) {
+            if comp.total_molal > 0.0 {
+                let mut sum = 0.0;
+                for s in 0..sys.species.len() {
+                    sum += sys.nu[s * nc + c] * self.conc[s];
+                }
+                mass[c] = (sum - comp.total_molal) / comp.total_molal;
+            }
+        }
+        let i = p.ln_i.exp();
+        Residuals {
+            charge_molal: charge,
+            charge_scale: scale,
+            mass,
+            ionic_strength: (ionic - i) / i,
+        }
+    }
+}
+
+/// Residuals of one point (see [`Evaluation::scaled_residuals`]).
+#[derive(Debug, Clone)]
+pub(crate) struct Residuals {
+    pub charge_molal: f64,
+    pub charge_scale: f64,
+    pub mass: Vec<f64>,
+    pub ionic_strength: f64,
+}
+
+impl Residuals {
+    pub(crate) fn charge_relative(&self) -> f64 {
+        if self.charge_scale > 0.0 { self.charge_molal / self.charge_scale } else { 0.0 }
+    }
+
+    /// The largest |scaled residual| and the equation it belongs to.
+    pub(crate) fn worst(&self, sys: &System) -> (f64, String) {
+        let mut worst = (self.charge_relative().abs(), "charge balance".to_string());
+        for (c, &m) in self.mass.iter().enumerate() {
+            if m.abs() > worst.0 {
+                worst = (m.abs(), format!("mass balance of {}", sys.components[c].name));
+            }
+        }
+        if sys.model != crate::ActivityModel::Ideal && self.ionic_strength.abs() > worst.0 {
+            worst = (self.ionic_strength.abs(), "ionic-strength equation".into());
+        }
+        if worst.0.is_nan() {
+            worst.0 = f64::INFINITY;
+        }
+        worst
+    }
+}

@@ -1,0 +1,526 @@
+//! The compiled system: the tableau (components × species with stoichiometric coefficients
+//! and formation constants) at one temperature and activity model.
+//!
+//! Component 0 is always H⁺. Each acid–base family contributes one component (its fully
+//! deprotonated form) and one species per protonation state; each simple ion contributes a
+//! component and its free species; each complex one more species row. This is the tableau of
+//! F. M. M. Morel and J. G. Hering, *Principles and Applications of Aquatic Chemistry*
+//! (Wiley, 1993), ch. 2.
+
+use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants};
+use crate::complex::{Complex, ComplexPart};
+use crate::equilibrium::{Equilibrium, Warning};
+use crate::error::{Error, Result};
+use crate::ion::Ion;
+use crate::protolyte::Protolyte;
+use crate::quantity::Temperature;
+use crate::reagent::Constituent;
+use crate::recipe::Recipe;
+use crate::vant_hoff;
+use crate::water;
+
+/// Ion size of H⁺ and OH⁻ (Kielland, *J. Am. Chem. Soc.* 59 (1937) 1675; from memory).
+const ION_SIZE_H: f64 = 9.0;
+const ION_SIZE_OH: f64 = 3.5;
+
+/// The temperature and activity model a recipe is compiled for.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{ActivityModel, Conditions, Temperature};
+///
+/// let c = Conditions::new(Temperature::celsius(37.0), ActivityModel::ExtendedDebyeHuckel);
+/// assert_eq!(c.temperature.as_celsius(), 37.0);
+/// assert_eq!(Conditions::default().activity, ActivityModel::Davies);
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Conditions {
+    /// Temperature (0–100 °C).
+    pub temperature: Temperature,
+    /// Activity-coefficient model.
+    pub activity: ActivityModel,
+}
+
+impl Conditions {
+    /// Conditions at `temperature` with `activity`.
+    pub fn new(temperature: Temperature, activity: ActivityModel) -> Self {
+        Conditions { temperature, activity }
+    }
+}
+
+impl Default for Conditions {
+    /// 25 °C, Davies.
+    fn default() -> Self {
+        Conditions::new(Temperature::STANDARD, ActivityModel::Davies)
+    }
+}
+
+/// What a component stands for.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ComponentKind {
+    /// H⁺ (component 0); its equation is the charge balance.
+    Proton,
+    /// The fully deprotonated form of the family with this index in [`System::families`].
+    Family(usize),
+    /// A simple ion.
+    Ion(Ion),
+}
+
+/// A component of the tableau: a building block with a total amount.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Component {
+    /// Name (the family or ion name; "H+" for the proton).
+    pub name: String,
+    /// Charge of the component as a free species.
+    pub charge: i32,
+    /// Total amount, mol/kg of water (unused for H⁺).
+    pub total_molal: f64,
+    /// What it is.
+    pub kind: ComponentKind,
+}
+
+/// What a species is.
+#[derive(Debug, Clone, PartialEq)]
+pub enum SpeciesKind {
+    /// H⁺.
+    Proton,
+    /// OH⁻.
+    Hydroxide,
+    /// Family `family` (index into [`System::families`]) with `protons` bound protons.
+    Form {
+        /// Family index.
+        family: usize,
+        /// Bound protons.
+        protons: usize,
+    },
+    /// A free simple ion: component `component`.
+    FreeIon {
+        /// Component index.
+        component: usize,
+    },
+    /// A complex or ion pair.
+    Complex,
+}
+
+/// A species row of the tableau.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Species {
+    /// Display name.
+    pub name: String,
+    /// Charge number.
+    pub charge: i32,
+    /// log₁₀ of the formation constant from the components, at the system's temperature.
+    pub log10_k: f64,
+    /// Ion-size parameter used by the extended Debye–Hückel model, ångström.
+    pub ion_size_angstrom: f64,
+    /// What it is.
+    pub kind: SpeciesKind,
+}
+
+/// A family in the system: the protolyte, its component and its species (by bound protons).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Family {
+    /// The definition.
+    pub protolyte: Protolyte,
+    /// Its component index.
+    pub component: usize,
+    /// Species index of the form with `j` bound protons at position `j`.
+    pub forms: Vec<usize>,
+}
+
+/// The tableau at one temperature and activity model, ready to solve.
+///
+/// Build it with [`Recipe::compile`]; change totals with [`System::set_total_molal`] (for
+/// titrations and designs that re-solve one system many times).
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{Amount, Catalog, Conditions, Recipe};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("phosphoric acid")?, Amount::molar(0.01))?;
+/// let sys = r.compile(&Conditions::default())?;
+/// assert_eq!(sys.components()[0].name, "H+");
+/// // H+, OH-, and the four phosphate forms.
+/// assert_eq!(sys.species().len(), 6);
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq)]
+pub struct System {
+    pub(crate) temperature: Temperature,
+    pub(crate) model: ActivityModel,
+    pub(crate) dh: DebyeHuckelConstants,
+    pub(crate) water_density: f64,
+    pub(crate) log10_kw: f64,
+    pub(crate) components: Vec<Component>,
+    pub(crate) species: Vec<Species>,
+    pub(crate) families: Vec<Family>,
+    /// Stoichiometric coefficients, species-major: `nu[s * n_components + c]`.
+    pub(crate) nu: Vec<f64>,
+    /// Species that couple two or more non-H components, or hold one twice.
+    pub(crate) coupling: Vec<bool>,
+    /// The one non-H component of an uncoupled species (0 for H⁺ and OH⁻).
+    pub(crate) group: Vec<usize>,
+    /// ln K of each species (log₁₀ K × ln 10).
+    pub(crate) ln_k: Vec<f64>,
+    pub(crate) compile_warnings: Vec<Warning>,
+}
+
+impl System {
+    pub(crate) fn compile(recipe: &Recipe, conditions: &Conditions) -> Result<System> {
+        let t = conditions.temperature;
+        let tc = t.as_celsius();
+        if !(tc.is_finite() && (-1e-9..=100.0 + 1e-9).contains(&tc)) {
+            return Err(Error::OutOfDomain {
+                what: "temperature (°C)",
+                value: tc,
+                domain: "0..100 °C",
+            });
+        }
+        let water_density = water::density_kg_per_l(t);
+        let mut b = Builder {
+            components: vec![Component {
+                name: "H+".into(),
+                charge: 1,
+                total_molal: 0.0,
+                kind: ComponentKind::Proton,
+            }],
+            families: Vec::new(),
+        };
+        // Components and totals from the recipe.
+        for e in recipe.entries() {
+            let amount = e.amount.molal_value(water_density);
+            for (c, n) in e.reagent.parts() {
+                let add = amount * f64::from(*n);
+                match c {
+                    Constituent::Form { protolyte, .. } => {
+                        let idx = b.family_component(protolyte)?;
+                        b.components[idx].total_molal += add;
+                    }
+                    Constituent::Ion(ion) => {
+                        let idx = b.ion_component(ion)?;
+                        b.components[idx].total_molal += add;
+                    }
+                    Constituent::Proton | Constituent::Hydroxide => {}
+                }
+            }
+        }
+        let mut warnings = Vec::new();
+        let off_standard = (t.kelvin() - Temperature::STANDARD.kelvin()).abs() > 1e-6;
+        // Species rows.
+        let nc_guess = b.components.len();
+        let mut rows: Vec<(Species, Vec<(usize, f64)>)> = Vec::new();
+        rows.push((
+            Species {
+                name: "H+".into(),
+                charge: 1,
+                log10_k: 0.0,
+                ion_size_angstrom: ION_SIZE_H,
+                kind: SpeciesKind::Proton,
+            },
+            vec![(0, 1.0)],
+        ));
+        let log10_kw = water::log10_kw(t);
+        rows.push((
+            Species {
+                name: "OH-".into(),
+                charge: -1,
+                log10_k: log10_kw,
+                ion_size_angstrom: ION_SIZE_OH,
+                kind: SpeciesKind::Hydroxide,
+            },
+            vec![(0, -1.0)],
+        ));
+        for (fi, fam) in b.families.iter_mut().enumerate() {
+            let p = &fam.protolyte;
+            let n = p.proton_count();
+            if off_standard && p.steps().iter().any(|s| s.dh_kj_per_mol.is_none()) {
+                warnings.push(Warning::NoEnthalpyData {
+                    name: p.name().to_string(),
+                    temperature_celsius: tc,
+                });
+            }
+            let pkas: Vec<f64> = (0..n).map(|i| p.pka_at(i, t)).collect();
+            let size = p.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM);
+            fam.forms.clear();
+            for j in 0..=n {
+                // log β_j = Σ of the last j pKa values (protonation of the base j times).
+                let log_beta: f64 = pkas[n - j..].iter().sum();
+                fam.forms.push(rows.len());
+                rows.push((
+                    Species {
+                        name: p.form_name(j),
+                        charge: p.charge_of_form(j),
+                        log10_k: log_beta,
+                        ion_size_angstrom: size,
+                        kind: SpeciesKind::Form { family: fi, protons: j },
+                    },
+                    if j == 0 { vec![(fam.component, 1.0)] } else { vec![(fam.component, 1.0), (0, j as f64)] },
+                ));
+            }
+        }
+        for (ci, comp) in b.components.iter().enumerate() {
+            if let ComponentKind::Ion(ion) = &comp.kind {
+                rows.push((
+                    Species {
+                        name: ion.display_name().to_string(),
+                        charge: ion.charge(),
+                        log10_k: 0.0,
+                        ion_size_angstrom: ion.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
+                        kind: SpeciesKind::FreeIon { component: ci },
+                    },
+                    vec![(ci, 1.0)],
+                ));
+            }
+        }
+        for cx in recipe.complexes() {
+            let Some(stoich) = b.complex_stoichiometry(cx)? else {
+                continue; // a part is absent from the recipe
+            };
+            if off_standard && cx.dh_kj_per_mol().is_none() {
+                warnings.push(Warning::NoEnthalpyData {
+                    name: cx.name().to_string(),
+                    temperature_celsius: tc,
+                });
+            }
+            let lk = vant_hoff::log10_k_at(cx.log10_beta(), cx.dh_kj_per_mol().unwrap_or(0.0), 0.0, t);
+            rows.push((
+                Species {
+                    name: cx.name().to_string(),
+                    charge: cx.charge(),
+                    log10_k: lk,
+                    ion_size_angstrom: cx.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
+                    kind: SpeciesKind::Complex,
+                },
+                stoich,
+            ));
+        }
+        let nc = b.components.len();
+        debug_assert_eq!(nc, nc_guess);
+        let mut nu = vec![0.0; rows.len() * nc];
+        let mut coupling = Vec::with_capacity(rows.len());
+        let mut group = Vec::with_capacity(rows.len());
+        let mut species = Vec::with_capacity(rows.len());
+        for (s, (sp, st)) in rows.into_iter().enumerate() {
+            let mut heavy = 0.0;
+            let mut g = 0;
+            for (c, v) in st {
+                nu[s * nc + c] += v;
+                if c != 0 {
+                    heavy += v.abs();
+                    g = c;
+                }
+            }
+            coupling.push(heavy > 1.0);
+            group.push(g);
+            species.push(sp);
+        }
+        let ln_k = species.iter().map(|s| s.log10_k * std::f64::consts::LN_10).collect();
+        Ok(System {
+            temperature: t,
+            model: conditions.activity,
+            dh: DebyeHuckelConstants::at(t),
+            water_density,
+            log10_kw,
+            components: b.components,
+            species,
+            families: b.families,
+            nu,
+            coupling,
+            group,
+            ln_k,
+            compile_warnings: warnings,
+        })
+    }
+
+    /// Solves the system with the default [`Solver`](crate::Solver).
+    pub fn solve(&self) -> Result<Equilibrium> {
+        crate::solve::Solver::default().solve(self)
+    }
+
+    /// The temperature.
+    pub fn temperature(&self) -> Temperature {
+        self.temperature
+    }
+
+    /// The activity model.
+    pub fn activity_model(&self) -> ActivityModel {
+        self.model
+    }
+
+    /// The Debye–Hückel constants at the system's temperature.
+    pub fn debye_huckel(&self) -> DebyeHuckelConstants {
+        self.dh
+    }
+
+    /// Density of water at the system's temperature, kg/L (molar = molal × this).
+    pub fn water_density_kg_per_l(&self) -> f64 {
+        self.water_density
+    }
+
+    /// log₁₀ Kw at the system's temperature.
+    pub fn log10_kw(&self) -> f64 {
+        self.log10_kw
+    }
+
+    /// The components; index 0 is H⁺.
+    pub fn components(&self) -> &[Component] {
+        &self.components
+    }
+
+    /// The species rows.
+    pub fn species(&self) -> &[Species] {
+        &self.species
+    }
+
+    /// The acid–base families.
+    pub fn families(&self) -> &[Family] {
+        &self.families
+    }
+
+    /// Stoichiometric coefficient of component `component` in species `species`.
+    pub fn stoichiometry(&self, species: usize, component: usize) -> f64 {
+        self.nu[species * self.components.len() + component]
+    }
+
+    /// Index of the component named `name` (a family or an ion name, or "H+").
+    pub fn component_index(&self, name: &str) -> Option<usize> {
+        self.components.iter().position(|c| c.name == name)
+    }
+
+    /// Index of the species named `name`.
+    pub fn species_index(&self, name: &str) -> Option<usize> {
+        self.species.iter().position(|s| s.name == name)
+    }
+
+    /// Sets the total of component `index` (mol/kg). Refuses H⁺ (index 0), an index out of
+    /// range, and a negative or non-finite total.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("acetic acid")?, Amount::molal(0.1))?;
+    /// let mut sys = r.compile(&Conditions::default())?;
+    /// let i = sys.component_index("acetate").unwrap();
+    /// sys.set_total_molal(i, 0.01)?;
+    /// assert_eq!(sys.components()[i].total_molal, 0.01);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn set_total_molal(&mut self, index: usize, total: f64) -> Result<()> {
+        if index == 0 || index >= self.components.len() {
+            return Err(Error::InconsistentDefinition {
+                name: "system".into(),
+                reason: format!(
+                    "component index {index} cannot be set (1..{} are settable; 0 is H+)",
+                    self.components.len()
+                ),
+            });
+        }
+        let name = self.components[index].name.clone();
+        self.components[index].total_molal = crate::error::check_amount(&name, total, "mol/kg")?;
+        Ok(())
+    }
+
+    /// True when no active species couples two components (the fast path applies).
+    pub(crate) fn uncoupled(&self) -> bool {
+        let nc = self.components.len();
+        (0..self.species.len()).all(|s| !self.coupling[s] || !self.species_active(s, nc))
+    }
+
+    /// A species is active when every non-H component it needs has a positive total.
+    pub(crate) fn species_active(&self, s: usize, nc: usize) -> bool {
+        (1..nc).all(|c| self.nu[s * nc + c] == 0.0 || self.components[c].total_molal > 0.0)
+    }
+}
+
+struct Builder {
+    components: Vec<Component>,
+    families: Vec<Family>,
+}
+
+impl Builder {
+    fn family_component(&mut self, p: &Protolyte) -> Result<usize> {
+        if let Some(fi) = self.families.iter().position(|f| f.protolyte.name() == p.name()) {
+            let f = &self.families[fi];
+            if !same_family(&f.protolyte, p) {
+                return Err(Error::InconsistentDefinition {
+                    name: p.name().to_string(),
+                    reason: "two different definitions (pKa, charge or enthalpies) under one name".into(),
+                });
+            }
+            return Ok(f.component);
+        }
+        if self.components.iter().any(|c| c.name == p.name()) {
+            return Err(Error::InconsistentDefinition {
+                name: p.name().to_string(),
+                reason: "the name is used by both an ion and a protolyte".into(),
+            });
+        }
+        let idx = self.components.len();
+        self.components.push(Component {
+            name: p.name().to_string(),
+            charge: p.charge_of_form(0),
+            total_molal: 0.0,
+            kind: ComponentKind::Family(self.families.len()),
+        });
+        self.families.push(Family {
+            protolyte: p.clone(),
+            component: idx,
+            forms: Vec::new(),
+        });
+        Ok(idx)
+    }
+
+    fn ion_component(&mut self, ion: &Ion) -> Result<usize> {
+        if let Some(i) = self.components.iter().position(|c| c.name == ion.name()) {
+            return match &self.components[i].kind {
+                ComponentKind::Ion(existing) if existing.charge() == ion.charge() => Ok(i),
+                _ => Err(Error::InconsistentDefinition {
+                    name: ion.name().to_string(),
+                    reason: "two different definitions under one name".into(),
+                }),
+            };
+        }
+        self.components.push(Component {
+            name: ion.name().to_string(),
+            charge: ion.charge(),
+            total_molal: 0.0,
+            kind: ComponentKind::Ion(ion.clone()),
+        });
+        Ok(self.components.len() - 1)
+    }
+
+    /// The complex's row, or `None` when one of its parts is not in the recipe.
+    fn complex_stoichiometry(&self, cx: &Complex) -> Result<Option<Vec<(usize, f64)>>> {
+        let mut out = Vec::new();
+        for (part, n) in cx.parts() {
+            let idx = match part {
+                ComplexPart::Proton => Some(0),
+                ComplexPart::Base(p) => match self.families.iter().find(|f| f.protolyte.name() == p.name()) {
+                    Some(f) if same_family(&f.protolyte, p) => Some(f.component),
+                    Some(_) => {
+                        return Err(Error::InconsistentDefinition {
+                            name: cx.name().to_string(),
+                            reason: format!("its ligand `{}` differs from the recipe's definition", p.name()),
+                        });
+                    }
+                    None => None,
+                },
+                ComplexPart::Ion(ion) => self.components.iter().position(|c| c.name == ion.name()),
+            };
+            match idx {
+                Some(i) => out.push((i, f64::from(*n))),
+                None => return Ok(None),
+            }
+        }
+        Ok(Some(out))
+    }
+}
+
+fn same_family(a: &Protolyte, b: &Protolyte) -> bool {
+    a.charge_most_protonated() == b.charge_most_protonated() && a.steps() == b.steps()
+}

@@ -1,0 +1,60 @@
+//! Properties of liquid water at 1 atm, 0–100 °C: density, relative permittivity
+//! (dielectric constant) and the ion product Kw.
+//!
+//! Sources (equations entered from memory of the papers; the tests in `tests/water.rs`
+//! check them against published table values):
+//! - density: G. S. Kell, *J. Chem. Eng. Data* **20** (1975) 97–105, eq. for 0–150 °C at 1 atm;
+//! - relative permittivity: C. G. Malmberg and A. A. Maryott, *J. Res. Natl. Bur. Stand.*
+//!   **56** (1956) 1–8, 0–100 °C;
+//! - Kw: W. L. Marshall and E. U. Franck, *J. Phys. Chem. Ref. Data* **10** (1981) 295–304,
+//!   log Kw as a function of temperature and the density of water (molal scale).
+
+use crate::quantity::Temperature;
+
+/// Density of pure liquid water at 1 atm, in kg/L (Kell 1975).
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{Temperature, water};
+///
+/// let rho = water::density_kg_per_l(Temperature::celsius(25.0));
+/// assert!((rho - 0.99705).abs() < 5e-5);
+/// ```
+pub fn density_kg_per_l(t: Temperature) -> f64 {
+    let c = t.as_celsius();
+    let num = 999.83952 + c * (16.945176 + c * (-7.9870401e-3 + c * (-46.170461e-6 + c * (105.56302e-9 + c * -280.54253e-12))));
+    num / (1.0 + 16.879850e-3 * c) / 1000.0
+}
+
+/// Relative permittivity (dielectric constant) of water (Malmberg & Maryott 1956).
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{Temperature, water};
+///
+/// let eps = water::dielectric_constant(Temperature::celsius(25.0));
+/// assert!((eps - 78.30).abs() < 0.01);
+/// ```
+pub fn dielectric_constant(t: Temperature) -> f64 {
+    let c = t.as_celsius();
+    87.740 - 0.40008 * c + 9.398e-4 * c * c - 1.410e-6 * c * c * c
+}
+
+/// log₁₀ Kw, the ion product of water on the molal scale (Marshall & Franck 1981).
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{Temperature, water};
+///
+/// let pkw = -water::log10_kw(Temperature::celsius(25.0));
+/// assert!((pkw - 13.995).abs() < 0.002);
+/// ```
+pub fn log10_kw(t: Temperature) -> f64 {
+    let tk = t.kelvin();
+    let rho = density_kg_per_l(t); // g/cm³ equals kg/L
+    -4.098 - 3245.2 / tk + 2.2362e5 / (tk * tk) - 3.984e7 / (tk * tk * tk)
+        + (13.957 - 1262.3 / tk + 8.5641e5 / (tk * tk)) * rho.log10()
+}
