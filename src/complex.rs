@@ -54,8 +54,9 @@ pub struct Complex {
 impl Complex {
     /// A complex from its parts and overall formation constant log₁₀ β.
     ///
-    /// Refuses an empty name, a complex with fewer than two non-proton parts (a species of
-    /// one family alone belongs in the [`Protolyte`]), zero counts, non-proton parts with
+    /// Refuses an empty name, a complex with fewer than two non-proton parts unless it is
+    /// one simple ion with H⁺ gained or lost (a hydrolysis product such as CuOH⁺; a species
+    /// of one family alone belongs in the [`Protolyte`]), zero counts, non-proton parts with
     /// negative counts, and a log β that is not finite or beyond ±100.
     pub fn new(name: &str, parts: Vec<(ComplexPart, i32)>, log10_beta: f64) -> Result<Self> {
         let name = name.trim();
@@ -78,8 +79,12 @@ impl Complex {
                 heavy += n;
             }
         }
-        if heavy < 2 {
-            return Err(bad("a complex joins at least two non-proton parts".into()));
+        let protons: i32 = parts.iter().filter(|(p, _)| matches!(p, ComplexPart::Proton)).map(|(_, n)| n).sum();
+        let lone_ion = heavy == 1 && parts.iter().any(|(p, _)| matches!(p, ComplexPart::Ion(_)));
+        if heavy == 0 || (heavy == 1 && !(lone_ion && protons != 0)) {
+            return Err(bad(
+                "a complex joins at least two non-proton parts, or one ion with H⁺ gained or lost (hydrolysis); a family's own protonation belongs in its Protolyte".into(),
+            ));
         }
         check_parameter(name, "log β", log10_beta, -100.0, 100.0, "must be finite and within ±100")?;
         Ok(Complex {

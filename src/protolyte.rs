@@ -213,28 +213,70 @@ impl Protolyte {
         }
     }
 
-    /// A display name for the form with `protons` bound protons: built from the formula when
-    /// it starts with Hₙ (e.g. "H2PO4-" from "H3PO4"), else "name(jH)".
+    /// A display name for the form with `protons` bound protons, built from the formula of
+    /// the most protonated form where it shows where the protons sit: a leading Hₙ
+    /// ("H3PO4" → "H2PO4-") or a trailing ammonium NHₖ ("NH4+" → "NH3"). Otherwise
+    /// "name(Hj)" with the charge.
+    ///
+    /// ```
+    /// use protolyte::Protolyte;
+    /// let p = Protolyte::new("phosphate", &[2.1, 7.2, 12.3], 0)?.with_formula("H3PO4");
+    /// assert_eq!(p.form_name(1), "HPO42-");
+    /// let a = Protolyte::new("ammonia", &[9.2], 1)?.with_formula("NH4+");
+    /// assert_eq!(a.form_name(0), "NH3");
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
     pub fn form_name(&self, protons: usize) -> String {
         let n = self.steps.len();
-        let z = self.charge_of_form(protons);
-        if let Some(f) = &self.formula {
-            let core = f.trim_end_matches(['+', '-']).trim_end_matches(|c: char| c.is_ascii_digit() && f.ends_with(['+', '-']));
+        let suffix = charge_suffix(self.charge_of_form(protons));
+        if let Some(core) = self.formula.as_deref().and_then(|f| strip_charge(f, self.charge_most_protonated)) {
+            let lost = n - protons.min(n);
+            if let Some(stem) = ammonium_stem(core, n) {
+                let (stem, d) = stem;
+                let k = d - lost;
+                let h = match k {
+                    0 => String::new(),
+                    1 => "H".to_string(),
+                    k => format!("H{k}"),
+                };
+                return format!("{stem}N{h}{suffix}");
+            }
             let prefix = if n == 1 { "H".to_string() } else { format!("H{n}") };
             if let Some(rest) = core.strip_prefix(&prefix)
-                && !rest.is_empty()
-                && !rest.starts_with(|c: char| c.is_ascii_digit())
+                && rest.starts_with(|c: char| c.is_ascii_uppercase() || c == '(')
             {
                 let h = match protons {
                     0 => String::new(),
                     1 => "H".to_string(),
                     k => format!("H{k}"),
                 };
-                return format!("{h}{rest}{}", charge_suffix(z));
+                return format!("{h}{rest}{suffix}");
             }
         }
-        format!("{}(H{protons}){}", self.name, charge_suffix(z))
+        format!("{}(H{protons}){suffix}", self.name)
     }
+}
+
+/// The formula without its charge ("H6Y2+" with charge +2 → "H6Y"), or `None` when the
+/// written charge does not match.
+fn strip_charge(formula: &str, charge: i32) -> Option<&str> {
+    let f = formula.trim();
+    if charge == 0 {
+        return (!f.ends_with(['+', '-'])).then_some(f);
+    }
+    let sign = if charge > 0 { '+' } else { '-' };
+    let f = f.strip_suffix(sign)?;
+    let mag = charge.unsigned_abs();
+    if mag == 1 { Some(f) } else { f.strip_suffix(mag.to_string().as_str()) }
+}
+
+/// For "...NHₖ" with k ≥ n, the text before "N" and k.
+fn ammonium_stem(core: &str, n: usize) -> Option<(&str, usize)> {
+    let digits = core.len() - core.trim_end_matches(|c: char| c.is_ascii_digit()).len();
+    let (head, num) = core.split_at(core.len() - digits);
+    let stem = head.strip_suffix("NH")?;
+    let k: usize = if num.is_empty() { 1 } else { num.parse().ok()? };
+    (k >= n).then_some((stem, k))
 }
 
 /// "", "+", "2+", "-", "3-".

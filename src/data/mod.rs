@@ -248,7 +248,7 @@ impl Catalog {
 
     fn insert_protolyte(&mut self, p: Protolyte, synonyms: &[&str], source: &str, from_memory: bool) {
         let pk: Vec<String> = p.steps().iter().map(|s| format!("{}", s.pka)).collect();
-        let summary = format!("pKa {} (25 °C, I = 0); most protonated charge {:+}", pk.join(", "), p.charge_most_protonated());
+        let summary = format!("pKa {} (25 °C); most protonated charge {:+}", pk.join(", "), p.charge_most_protonated());
         let formula = p.formula().unwrap_or("").to_string();
         let name = p.name().to_string();
         self.protolytes.push(p);
@@ -306,7 +306,7 @@ impl Catalog {
     }
 
     fn insert_complex(&mut self, c: Complex, synonyms: &[&str], source: &str, from_memory: bool) {
-        let summary = format!("log β {} (25 °C, I = 0); charge {:+}", c.log10_beta(), c.charge());
+        let summary = format!("log β {} (25 °C); charge {:+}", c.log10_beta(), c.charge());
         let name = c.name().to_string();
         self.complexes.push(c);
         self.push_info(DataKind::Complex, &name, synonyms, "", summary, source, from_memory);

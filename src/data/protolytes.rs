@@ -9,8 +9,13 @@
 //! acids and chelating agents; the CRC Handbook of Chemistry and Physics tables "Dissociation
 //! constants of inorganic acids and bases" (after D. D. Perrin, 1982) and "... of organic acids
 //! and bases" for simple acids. Ion-size parameters å are those of J. Kielland, J. Am. Chem.
-//! Soc. 59 (1937) 1675; a family carries one å, taken for its most highly charged form that
-//! Kielland lists, or `None` when none of its forms is in his table.
+//! Soc. 59 (1937) 1675; a family carries one å, taken for the form that matters most in
+//! practice (usually the most highly charged form Kielland lists; a row comment says which),
+//! or `None` when none of its forms is in his table.
+//!
+//! Formulas of the most protonated forms put the dissociable hydrogens first (H2C2O4,
+//! H3C6H5O7, H2Gly+, H6Y2+ for EDTA) so that the name of every form can be built by taking
+//! hydrogens off; amino acids, buffers and chelating agents use their usual abbreviations.
 //!
 //! Zwitterionic sulfonate buffers (MES, MOPS, HEPES, ...) are entered with the single amine
 //! step that matters in water (HL± → L⁻ + H⁺); their sulfonic-acid protons are fully
@@ -20,32 +25,49 @@ use super::records::{FamilyRecord, StepRecord};
 
 /// A step with pKa, ΔH° and ΔCp°.
 const fn full(pka: f64, dh: f64, dcp: f64) -> StepRecord {
-    StepRecord { pka, dh_kj_per_mol: Some(dh), dcp_j_per_mol_k: Some(dcp) }
+    StepRecord {
+        pka,
+        dh_kj_per_mol: Some(dh),
+        dcp_j_per_mol_k: Some(dcp),
+    }
 }
 
 /// A step with pKa and ΔH° only.
 const fn with_dh(pka: f64, dh: f64) -> StepRecord {
-    StepRecord { pka, dh_kj_per_mol: Some(dh), dcp_j_per_mol_k: None }
+    StepRecord {
+        pka,
+        dh_kj_per_mol: Some(dh),
+        dcp_j_per_mol_k: None,
+    }
 }
 
 /// A step with pKa only.
 const fn pk(pka: f64) -> StepRecord {
-    StepRecord { pka, dh_kj_per_mol: None, dcp_j_per_mol_k: None }
+    StepRecord {
+        pka,
+        dh_kj_per_mol: None,
+        dcp_j_per_mol_k: None,
+    }
 }
 
-const GKL: &str = "R. N. Goldberg, N. Kishore, R. M. Lennen, J. Phys. Chem. Ref. Data 31 (2002) 231-370";
+const GKL: &str =
+    "R. N. Goldberg, N. Kishore, R. M. Lennen, J. Phys. Chem. Ref. Data 31 (2002) 231-370";
 const GKL_KIELLAND: &str = "R. N. Goldberg, N. Kishore, R. M. Lennen, J. Phys. Chem. Ref. Data 31 (2002) 231-370; \
      å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
-const MS: &str = "A. E. Martell, R. M. Smith, Critical Stability Constants, Vols. 1-6 (Plenum, 1974-1989)";
+const MS: &str =
+    "A. E. Martell, R. M. Smith, Critical Stability Constants, Vols. 1-6 (Plenum, 1974-1989)";
 const MS_KIELLAND: &str = "A. E. Martell, R. M. Smith, Critical Stability Constants, Vols. 1-6 (Plenum, 1974-1989); \
      å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
 const CRC_INORG_KIELLAND: &str = "CRC Handbook of Chemistry and Physics, 'Dissociation constants of inorganic acids and \
      bases' (after D. D. Perrin, Ionization Constants of Inorganic Acids and Bases in Aqueous Solution, 2nd ed., 1982); \
      å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
-const CRC_ORG: &str = "CRC Handbook of Chemistry and Physics, 'Dissociation constants of organic acids and bases'";
+const CRC_ORG: &str =
+    "CRC Handbook of Chemistry and Physics, 'Dissociation constants of organic acids and bases'";
 const CRC_ORG_KIELLAND: &str = "CRC Handbook of Chemistry and Physics, 'Dissociation constants of organic acids and \
      bases'; å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
 
+// Glycylglycine's pKa1 of 3.14 is a measured constant, not an approximation of π.
+#[allow(clippy::approx_constant)]
 pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // ------------------------------------------------------------------ inorganic acids
     // H2CO3* = CO2(aq) + H2CO3, the analytical convention of Harned & Davis (1943) used by
@@ -73,7 +95,13 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // å: Kielland gives 4.0 for HPO4^2- and PO4^3- (4.0-4.5 for H2PO4-).
     FamilyRecord {
         name: "phosphate",
-        synonyms: &["phosphoric acid", "orthophosphoric acid", "orthophosphate", "h3po4", "po4"],
+        synonyms: &[
+            "phosphoric acid",
+            "orthophosphoric acid",
+            "orthophosphate",
+            "h3po4",
+            "po4",
+        ],
         formula: "H3PO4",
         charge_most_protonated: 0,
         steps: &[
@@ -89,7 +117,14 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // which is sound below about 0.02 mol/kg total boron.
     FamilyRecord {
         name: "borate",
-        synonyms: &["boric acid", "orthoboric acid", "h3bo3", "b(oh)3", "b(oh)4-", "tetrahydroxyborate"],
+        synonyms: &[
+            "boric acid",
+            "orthoboric acid",
+            "h3bo3",
+            "b(oh)3",
+            "b(oh)4-",
+            "tetrahydroxyborate",
+        ],
         formula: "B(OH)3",
         charge_most_protonated: 0,
         steps: &[full(9.237, 13.8, -240.0)],
@@ -139,7 +174,12 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // (ΔfH°: HCN(aq) 107.1, CN- 150.6 kJ/mol).
     FamilyRecord {
         name: "cyanide",
-        synonyms: &["hydrocyanic acid", "hydrogen cyanide", "hcn", "prussic acid"],
+        synonyms: &[
+            "hydrocyanic acid",
+            "hydrogen cyanide",
+            "hcn",
+            "prussic acid",
+        ],
         formula: "HCN",
         charge_most_protonated: 0,
         steps: &[with_dh(9.21, 43.5)],
@@ -178,7 +218,14 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // HS- -17.6 kJ/mol). å: Kielland's 3.5 for HS-.
     FamilyRecord {
         name: "sulfide",
-        synonyms: &["hydrogen sulfide", "hydrogen sulphide", "h2s", "hydrosulfide", "bisulfide", "hs-"],
+        synonyms: &[
+            "hydrogen sulfide",
+            "hydrogen sulphide",
+            "h2s",
+            "hydrosulfide",
+            "bisulfide",
+            "hs-",
+        ],
         formula: "H2S",
         charge_most_protonated: 0,
         steps: &[with_dh(7.05, 22.1), pk(19.0)],
@@ -235,7 +282,12 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "ethanolamine",
-        synonyms: &["monoethanolamine", "2-aminoethanol", "ethanolammonium", "mea"],
+        synonyms: &[
+            "monoethanolamine",
+            "2-aminoethanol",
+            "ethanolammonium",
+            "mea",
+        ],
         formula: "HOCH2CH2NH3+",
         charge_most_protonated: 1,
         steps: &[full(9.498, 50.52, 26.0)],
@@ -266,7 +318,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "ethylenediamine",
         synonyms: &["en", "1,2-diaminoethane", "ethane-1,2-diamine"],
-        formula: "H3NCH2CH2NH3 2+",
+        formula: "H2en2+",
         charge_most_protonated: 2,
         steps: &[pk(6.85), pk(9.93)],
         ion_size_angstrom: None,
@@ -286,7 +338,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "imidazole",
         synonyms: &["imidazolium", "glyoxaline", "c3h4n2"],
-        formula: "C3H5N2+",
+        formula: "HIm+",
         charge_most_protonated: 1,
         steps: &[full(6.993, 36.64, -9.0)],
         ion_size_angstrom: None,
@@ -303,7 +355,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
             "tris(hydroxymethyl)aminomethane",
             "2-amino-2-(hydroxymethyl)propane-1,3-diol",
         ],
-        formula: "(HOCH2)3CNH3+",
+        formula: "HTris+",
         charge_most_protonated: 1,
         steps: &[full(8.072, 47.45, -59.0)],
         ion_size_angstrom: None,
@@ -318,7 +370,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
             "bis(2-hydroxyethyl)amino-tris(hydroxymethyl)methane",
             "2,2-bis(hydroxymethyl)-2,2',2''-nitrilotriethanol",
         ],
-        formula: "C8H20NO5+",
+        formula: "HBisTris+",
         charge_most_protonated: 1,
         steps: &[full(6.484, 28.34, 27.0)],
         ion_size_angstrom: None,
@@ -328,8 +380,12 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // ------------------------------------------------------------------ Good's buffers
     FamilyRecord {
         name: "mes",
-        synonyms: &["2-(n-morpholino)ethanesulfonic acid", "2-morpholinoethanesulfonic acid", "morpholineethanesulfonic acid"],
-        formula: "C6H13NO4S",
+        synonyms: &[
+            "2-(n-morpholino)ethanesulfonic acid",
+            "2-morpholinoethanesulfonic acid",
+            "morpholineethanesulfonic acid",
+        ],
+        formula: "HMES",
         charge_most_protonated: 0,
         steps: &[full(6.270, 14.8, 5.0)],
         ion_size_angstrom: None,
@@ -339,7 +395,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "aces",
         synonyms: &["n-(2-acetamido)-2-aminoethanesulfonic acid"],
-        formula: "C4H10N2O4S",
+        formula: "HACES",
         charge_most_protonated: 0,
         steps: &[full(6.847, 30.43, -49.0)],
         ion_size_angstrom: None,
@@ -351,8 +407,11 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // acid H2L is HL- + H+ in the reagent table. Valid above pH ~4.
     FamilyRecord {
         name: "pipes",
-        synonyms: &["piperazine-n,n'-bis(2-ethanesulfonic acid)", "1,4-piperazinediethanesulfonic acid"],
-        formula: "C8H17N2O6S2-",
+        synonyms: &[
+            "piperazine-n,n'-bis(2-ethanesulfonic acid)",
+            "1,4-piperazinediethanesulfonic acid",
+        ],
+        formula: "HPIPES-",
         charge_most_protonated: -1,
         steps: &[full(7.141, 11.2, 22.0)],
         ion_size_angstrom: None,
@@ -361,8 +420,11 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "mopso",
-        synonyms: &["3-morpholino-2-hydroxypropanesulfonic acid", "3-(n-morpholino)-2-hydroxypropanesulfonic acid"],
-        formula: "C7H15NO5S",
+        synonyms: &[
+            "3-morpholino-2-hydroxypropanesulfonic acid",
+            "3-(n-morpholino)-2-hydroxypropanesulfonic acid",
+        ],
+        formula: "HMOPSO",
         charge_most_protonated: 0,
         steps: &[with_dh(6.90, 25.0)],
         ion_size_angstrom: None,
@@ -372,7 +434,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "bes",
         synonyms: &["n,n-bis(2-hydroxyethyl)-2-aminoethanesulfonic acid"],
-        formula: "C6H15NO5S",
+        formula: "HBES",
         charge_most_protonated: 0,
         steps: &[full(7.187, 25.50, 2.0)],
         ion_size_angstrom: None,
@@ -381,8 +443,11 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "mops",
-        synonyms: &["3-(n-morpholino)propanesulfonic acid", "3-morpholinopropane-1-sulfonic acid"],
-        formula: "C7H15NO4S",
+        synonyms: &[
+            "3-(n-morpholino)propanesulfonic acid",
+            "3-morpholinopropane-1-sulfonic acid",
+        ],
+        formula: "HMOPS",
         charge_most_protonated: 0,
         steps: &[full(7.184, 21.1, 25.0)],
         ion_size_angstrom: None,
@@ -392,7 +457,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "tes",
         synonyms: &["n-[tris(hydroxymethyl)methyl]-2-aminoethanesulfonic acid"],
-        formula: "C6H15NO6S",
+        formula: "HTES",
         charge_most_protonated: 0,
         steps: &[full(7.550, 32.13, 0.0)],
         ion_size_angstrom: None,
@@ -407,7 +472,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
             "4-(2-hydroxyethyl)-1-piperazineethanesulfonic acid",
             "n-(2-hydroxyethyl)piperazine-n'-(2-ethanesulfonic acid)",
         ],
-        formula: "C8H18N2O4S",
+        formula: "HHEPES",
         charge_most_protonated: 0,
         steps: &[full(7.564, 20.4, 47.0)],
         ion_size_angstrom: None,
@@ -416,8 +481,11 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "epps",
-        synonyms: &["hepps", "4-(2-hydroxyethyl)-1-piperazinepropanesulfonic acid"],
-        formula: "C9H20N2O4S",
+        synonyms: &[
+            "hepps",
+            "4-(2-hydroxyethyl)-1-piperazinepropanesulfonic acid",
+        ],
+        formula: "HEPPS",
         charge_most_protonated: 0,
         steps: &[full(7.957, 21.3, 48.0)],
         ion_size_angstrom: None,
@@ -427,7 +495,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "taps",
         synonyms: &["n-[tris(hydroxymethyl)methyl]-3-aminopropanesulfonic acid"],
-        formula: "C7H17NO6S",
+        formula: "HTAPS",
         charge_most_protonated: 0,
         steps: &[with_dh(8.44, 40.4)],
         ion_size_angstrom: None,
@@ -436,8 +504,11 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "ches",
-        synonyms: &["2-(cyclohexylamino)ethanesulfonic acid", "n-cyclohexyl-2-aminoethanesulfonic acid"],
-        formula: "C8H17NO3S",
+        synonyms: &[
+            "2-(cyclohexylamino)ethanesulfonic acid",
+            "n-cyclohexyl-2-aminoethanesulfonic acid",
+        ],
+        formula: "HCHES",
         charge_most_protonated: 0,
         steps: &[full(9.394, 39.55, 9.0)],
         ion_size_angstrom: None,
@@ -446,8 +517,11 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "caps",
-        synonyms: &["3-(cyclohexylamino)-1-propanesulfonic acid", "n-cyclohexyl-3-aminopropanesulfonic acid"],
-        formula: "C9H19NO3S",
+        synonyms: &[
+            "3-(cyclohexylamino)-1-propanesulfonic acid",
+            "n-cyclohexyl-3-aminopropanesulfonic acid",
+        ],
+        formula: "HCAPS",
         charge_most_protonated: 0,
         steps: &[full(10.499, 48.1, 57.0)],
         ion_size_angstrom: None,
@@ -459,7 +533,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "tricine",
         synonyms: &["n-[tris(hydroxymethyl)methyl]glycine"],
-        formula: "C6H14NO5+",
+        formula: "H2Tricine+",
         charge_most_protonated: 1,
         steps: &[pk(2.023), full(8.135, 31.37, -53.0)],
         ion_size_angstrom: None,
@@ -469,7 +543,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "bicine",
         synonyms: &["n,n-bis(2-hydroxyethyl)glycine"],
-        formula: "C6H14NO4+",
+        formula: "H2Bicine+",
         charge_most_protonated: 1,
         steps: &[pk(2.0), full(8.334, 26.34, 0.0)],
         ion_size_angstrom: None,
@@ -479,7 +553,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "glycylglycine",
         synonyms: &["gly-gly", "glygly", "diglycine"],
-        formula: "H3NCH2CONHCH2COOH+",
+        formula: "H2GlyGly+",
         charge_most_protonated: 1,
         steps: &[pk(3.14), with_dh(8.26, 43.4)],
         ion_size_angstrom: None,
@@ -491,7 +565,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "glycine",
         synonyms: &["gly", "aminoacetic acid", "glycinate"],
-        formula: "H3NCH2COOH+",
+        formula: "H2Gly+",
         charge_most_protonated: 1,
         steps: &[full(2.351, 4.00, -139.0), full(9.780, 44.20, -57.0)],
         ion_size_angstrom: Some(4.5),
@@ -502,7 +576,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "alanine",
         synonyms: &["ala", "l-alanine", "alaninate"],
-        formula: "CH3CH(NH3)COOH+",
+        formula: "H2Ala+",
         charge_most_protonated: 1,
         steps: &[pk(2.348), pk(9.867)],
         ion_size_angstrom: None,
@@ -514,7 +588,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "histidine",
         synonyms: &["his", "l-histidine", "histidinate"],
-        formula: "C6H11N3O2 2+",
+        formula: "H3His2+",
         charge_most_protonated: 2,
         steps: &[pk(1.70), with_dh(6.07, 29.5), with_dh(9.34, 43.8)],
         ion_size_angstrom: None,
@@ -525,7 +599,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "glutamate",
         synonyms: &["glutamic acid", "glu", "l-glutamic acid", "l-glutamate"],
-        formula: "C5H10NO4+",
+        formula: "H3Glu+",
         charge_most_protonated: 1,
         steps: &[pk(2.16), pk(4.30), pk(9.96)],
         ion_size_angstrom: None,
@@ -536,7 +610,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "aspartate",
         synonyms: &["aspartic acid", "asp", "l-aspartic acid", "l-aspartate"],
-        formula: "C4H8NO4+",
+        formula: "H3Asp+",
         charge_most_protonated: 1,
         steps: &[pk(1.990), pk(3.900), pk(10.002)],
         ion_size_angstrom: None,
@@ -546,7 +620,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "lysine",
         synonyms: &["lys", "l-lysine", "lysinate"],
-        formula: "C6H16N2O2 2+",
+        formula: "H3Lys2+",
         charge_most_protonated: 2,
         steps: &[pk(2.16), pk(9.06), pk(10.54)],
         ion_size_angstrom: None,
@@ -558,7 +632,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "cysteine",
         synonyms: &["cys", "l-cysteine", "cysteinate"],
-        formula: "C3H8NO2S+",
+        formula: "H3Cys+",
         charge_most_protonated: 1,
         steps: &[pk(1.71), pk(8.36), pk(10.75)],
         ion_size_angstrom: None,
@@ -570,7 +644,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "arginine",
         synonyms: &["arg", "l-arginine", "argininate"],
-        formula: "C6H16N4O2 2+",
+        formula: "H3Arg2+",
         charge_most_protonated: 2,
         steps: &[pk(1.823), pk(8.991), pk(12.48)],
         ion_size_angstrom: None,
@@ -580,8 +654,16 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // ------------------------------------------------------------------ carboxylic acids
     FamilyRecord {
         name: "acetate",
-        synonyms: &["acetic acid", "ethanoic acid", "ethanoate", "ch3cooh", "ch3coo-", "hoac", "hac"],
-        formula: "CH3COOH",
+        synonyms: &[
+            "acetic acid",
+            "ethanoic acid",
+            "ethanoate",
+            "ch3cooh",
+            "ch3coo-",
+            "hoac",
+            "hac",
+        ],
+        formula: "HC2H3O2",
         charge_most_protonated: 0,
         steps: &[full(4.756, -0.41, -142.0)],
         ion_size_angstrom: Some(4.5),
@@ -590,8 +672,14 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "formate",
-        synonyms: &["formic acid", "methanoic acid", "methanoate", "hcooh", "hcoo-"],
-        formula: "HCOOH",
+        synonyms: &[
+            "formic acid",
+            "methanoic acid",
+            "methanoate",
+            "hcooh",
+            "hcoo-",
+        ],
+        formula: "HCHO2",
         charge_most_protonated: 0,
         steps: &[pk(3.75)],
         ion_size_angstrom: Some(3.5),
@@ -601,7 +689,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "propanoate",
         synonyms: &["propanoic acid", "propionic acid", "propionate"],
-        formula: "CH3CH2COOH",
+        formula: "HC3H5O2",
         charge_most_protonated: 0,
         steps: &[pk(4.87)],
         ion_size_angstrom: None,
@@ -611,7 +699,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "benzoate",
         synonyms: &["benzoic acid", "c6h5cooh"],
-        formula: "C6H5COOH",
+        formula: "HC7H5O2",
         charge_most_protonated: 0,
         steps: &[pk(4.204)],
         ion_size_angstrom: Some(6.0),
@@ -621,7 +709,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "lactate",
         synonyms: &["lactic acid", "2-hydroxypropanoic acid"],
-        formula: "CH3CH(OH)COOH",
+        formula: "HC3H5O3",
         charge_most_protonated: 0,
         steps: &[pk(3.86)],
         ion_size_angstrom: None,
@@ -631,7 +719,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "chloroacetate",
         synonyms: &["chloroacetic acid", "monochloroacetic acid", "clch2cooh"],
-        formula: "ClCH2COOH",
+        formula: "HC2H2ClO2",
         charge_most_protonated: 0,
         steps: &[pk(2.87)],
         ion_size_angstrom: Some(4.5),
@@ -642,7 +730,12 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // å: Kielland's 4.5 for (COO)2^2-.
     FamilyRecord {
         name: "oxalate",
-        synonyms: &["oxalic acid", "ethanedioic acid", "h2c2o4", "hydrogen oxalate"],
+        synonyms: &[
+            "oxalic acid",
+            "ethanedioic acid",
+            "h2c2o4",
+            "hydrogen oxalate",
+        ],
         formula: "H2C2O4",
         charge_most_protonated: 0,
         steps: &[pk(1.27), with_dh(4.266, -6.7)],
@@ -655,7 +748,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "malonate",
         synonyms: &["malonic acid", "propanedioic acid", "hydrogen malonate"],
-        formula: "CH2(COOH)2",
+        formula: "H2C3H2O4",
         charge_most_protonated: 0,
         steps: &[pk(2.847), pk(5.696)],
         ion_size_angstrom: Some(5.0),
@@ -666,7 +759,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "succinate",
         synonyms: &["succinic acid", "butanedioic acid", "hydrogen succinate"],
-        formula: "(CH2COOH)2",
+        formula: "H2C4H4O4",
         charge_most_protonated: 0,
         steps: &[full(4.207, 3.0, -121.0), full(5.636, -0.5, -217.0)],
         ion_size_angstrom: Some(5.0),
@@ -676,7 +769,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "maleate",
         synonyms: &["maleic acid", "cis-butenedioic acid", "hydrogen maleate"],
-        formula: "cis-HOOCCH=CHCOOH",
+        formula: "H2C4H2O4",
         charge_most_protonated: 0,
         steps: &[pk(1.92), pk(6.27)],
         ion_size_angstrom: None,
@@ -685,8 +778,12 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "fumarate",
-        synonyms: &["fumaric acid", "trans-butenedioic acid", "hydrogen fumarate"],
-        formula: "trans-HOOCCH=CHCOOH",
+        synonyms: &[
+            "fumaric acid",
+            "trans-butenedioic acid",
+            "hydrogen fumarate",
+        ],
+        formula: "H2C4H2O4",
         charge_most_protonated: 0,
         steps: &[pk(3.03), pk(4.44)],
         ion_size_angstrom: None,
@@ -696,8 +793,14 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // L-(+)-tartaric acid. å: Kielland's 5 for (CHOHCOO)2^2-.
     FamilyRecord {
         name: "tartrate",
-        synonyms: &["tartaric acid", "l-tartaric acid", "l-(+)-tartaric acid", "hydrogen tartrate", "bitartrate"],
-        formula: "(CHOHCOOH)2",
+        synonyms: &[
+            "tartaric acid",
+            "l-tartaric acid",
+            "l-(+)-tartaric acid",
+            "hydrogen tartrate",
+            "bitartrate",
+        ],
+        formula: "H2C4H4O6",
         charge_most_protonated: 0,
         steps: &[with_dh(3.036, 3.19), with_dh(4.366, 0.92)],
         ion_size_angstrom: Some(5.0),
@@ -707,8 +810,13 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // å: Kielland's 6 for C6H4(COO)2^2-.
     FamilyRecord {
         name: "phthalate",
-        synonyms: &["phthalic acid", "benzene-1,2-dicarboxylic acid", "hydrogen phthalate", "biphthalate"],
-        formula: "C6H4(COOH)2",
+        synonyms: &[
+            "phthalic acid",
+            "benzene-1,2-dicarboxylic acid",
+            "hydrogen phthalate",
+            "biphthalate",
+        ],
+        formula: "H2C8H4O4",
         charge_most_protonated: 0,
         steps: &[pk(2.950), with_dh(5.408, -2.17)],
         ion_size_angstrom: Some(6.0),
@@ -719,8 +827,13 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // trianion is used.
     FamilyRecord {
         name: "citrate",
-        synonyms: &["citric acid", "c6h8o7", "dihydrogen citrate", "hydrogen citrate"],
-        formula: "C6H8O7",
+        synonyms: &[
+            "citric acid",
+            "c6h8o7",
+            "dihydrogen citrate",
+            "hydrogen citrate",
+        ],
+        formula: "H3C6H5O7",
         charge_most_protonated: 0,
         steps: &[
             full(3.128, 4.07, -131.0),
@@ -756,7 +869,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     FamilyRecord {
         name: "nta",
         synonyms: &["nitrilotriacetic acid", "nitrilotriacetate", "h3nta"],
-        formula: "HN(CH2COOH)3+",
+        formula: "H4NTA+",
         charge_most_protonated: 1,
         steps: &[pk(1.0), pk(1.81), pk(2.52), pk(9.46)],
         ion_size_angstrom: None,

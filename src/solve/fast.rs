@@ -96,6 +96,10 @@ fn solve_l(sys: &System, ev: &Evaluation, l0: f64, w: &mut Scratch) -> Result<(f
             hi_ok = true;
         }
         let newton = if d > 0.0 && d.is_finite() { -f / d } else { f64::NAN };
+        if newton.abs() <= 1e-14 * l.abs().max(1.0) {
+            // The Newton correction is below round-off: f is zero to working precision.
+            return Ok((l, evals));
+        }
         let mut next = if newton.is_finite() {
             l + newton.clamp(-MAX_STEP, MAX_STEP)
         } else if f < 0.0 {
@@ -193,11 +197,13 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
     let (mut l, mut i) = match start {
         Some((l, li)) if l.is_finite() && li.is_finite() => (l, li.exp().clamp(I_MIN, I_MAX)),
         _ => {
-            // A first guess at I from the totals as if fully dissociated into their base
-            // forms and counter-ions: ½ Σ z² T.
+            // A first guess at I from the simple ions alone (strong electrolytes); the
+            // families' share follows from the first pH solve.
             let mut i0 = 1e-7;
             for c in sys.components.iter().skip(1) {
-                i0 += 0.5 * f64::from(c.charge * c.charge) * c.total_molal;
+                if matches!(c.kind, crate::system::ComponentKind::Ion(_)) {
+                    i0 += 0.5 * f64::from(c.charge * c.charge) * c.total_molal;
+                }
             }
             (-7.0 * LN10, i0.clamp(I_MIN, I_MAX))
         }
