@@ -85,31 +85,62 @@ impl ActivityModel {
         i_molal: f64,
         dh: &DebyeHuckelConstants,
     ) -> (f64, f64) {
+        GammaProfile::new(self, i_molal, dh).at(z, ion_size_angstrom)
+    }
+}
+
+/// The parts of a model's log₁₀ γ that depend on I only, computed once per ionic strength
+/// and then applied to each species' charge and size.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct GammaProfile {
+    model: ActivityModel,
+    a: f64,
+    b: f64,
+    sqrt_i: f64,
+    /// Davies: √I/(1+√I) − 0.3 I and its derivative by I.
+    davies: (f64, f64),
+}
+
+impl GammaProfile {
+    pub(crate) fn new(model: ActivityModel, i_molal: f64, dh: &DebyeHuckelConstants) -> Self {
+        let i = i_molal.max(0.0);
+        let s = i.sqrt();
+        let davies = if model == ActivityModel::Davies {
+            // d/dI [√I/(1+√I)] = 1 / (2 √I (1+√I)²)
+            let df = if s > 0.0 {
+                1.0 / (2.0 * s * (1.0 + s) * (1.0 + s)) - DAVIES_LINEAR_COEFFICIENT
+            } else {
+                0.0
+            };
+            (s / (1.0 + s) - DAVIES_LINEAR_COEFFICIENT * i, df)
+        } else {
+            (0.0, 0.0)
+        };
+        GammaProfile {
+            model,
+            a: dh.a,
+            b: dh.b,
+            sqrt_i: s,
+            davies,
+        }
+    }
+
+    /// log₁₀ γ and d log₁₀ γ / dI for charge `z` and ion size `size` (Å).
+    #[inline]
+    pub(crate) fn at(&self, z: i32, size: f64) -> (f64, f64) {
         if z == 0 {
             return (0.0, 0.0);
         }
-        let z2 = f64::from(z * z);
-        let i = i_molal.max(0.0);
-        let s = i.sqrt();
-        match self {
+        let az2 = -self.a * f64::from(z * z);
+        match self.model {
             ActivityModel::Ideal => (0.0, 0.0),
-            ActivityModel::Davies => {
-                let f = s / (1.0 + s) - DAVIES_LINEAR_COEFFICIENT * i;
-                // d/dI [√I/(1+√I)] = 1 / (2 √I (1+√I)²)
-                let df = if s > 0.0 {
-                    1.0 / (2.0 * s * (1.0 + s) * (1.0 + s)) - DAVIES_LINEAR_COEFFICIENT
-                } else {
-                    0.0
-                };
-                (-dh.a * z2 * f, -dh.a * z2 * df)
-            }
+            ActivityModel::Davies => (az2 * self.davies.0, az2 * self.davies.1),
             ActivityModel::ExtendedDebyeHuckel => {
-                let ba = dh.b * ion_size_angstrom;
-                let den = 1.0 + ba * s;
-                let f = s / den;
+                let s = self.sqrt_i;
+                let den = 1.0 + self.b * size * s;
                 // d/dI [√I/(1+bå√I)] = 1 / (2 √I (1+bå√I)²)
                 let df = if s > 0.0 { 1.0 / (2.0 * s * den * den) } else { 0.0 };
-                (-dh.a * z2 * f, -dh.a * z2 * df)
+                (az2 * s / den, az2 * df)
             }
         }
     }

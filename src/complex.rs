@@ -72,6 +72,9 @@ impl Complex {
             if *n == 0 {
                 return Err(bad("a part with count 0".into()));
             }
+            if matches!(p, ComplexPart::Proton) && n.abs() > 12 {
+                return Err(bad(format!("{n} protons gained or lost is outside −12..12")));
+            }
             if !matches!(p, ComplexPart::Proton) {
                 if *n < 0 {
                     return Err(bad("only H⁺ may have a negative count".into()));

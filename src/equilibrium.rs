@@ -1,11 +1,13 @@
 //! The result of a solve: pH, every species with its activity, family distributions,
 //! residuals and warnings.
 
+use std::sync::Arc;
+
 use crate::activity::ActivityModel;
 use crate::error::{Error, Result};
 use crate::quantity::Temperature;
 use crate::solve::{Evaluation, Point, SolverPath};
-use crate::system::{SpeciesKind, System};
+use crate::system::System;
 
 const LN10: f64 = std::f64::consts::LN_10;
 
@@ -59,7 +61,7 @@ impl std::fmt::Display for Warning {
 #[derive(Debug, Clone, PartialEq)]
 pub struct SpeciesState {
     /// Display name.
-    pub name: String,
+    pub name: Arc<str>,
     /// Charge number.
     pub charge: i32,
     /// Concentration, mol/kg of water.
@@ -76,7 +78,7 @@ pub struct SpeciesState {
 #[derive(Debug, Clone, PartialEq)]
 pub struct FamilyState {
     /// Family name.
-    pub name: String,
+    pub name: Arc<str>,
     /// Total, mol/kg.
     pub total_molal: f64,
     /// Fraction of the total in each free form, indexed by bound protons (alpha fractions).
@@ -97,7 +99,7 @@ pub struct Residuals {
     /// Σ z·m divided by Σ |z|·m.
     pub charge_relative: f64,
     /// (Σ ν·m − total)/total for each component with a positive total: (name, value).
-    pub mass_relative: Vec<(String, f64)>,
+    pub mass_relative: Vec<(Arc<str>, f64)>,
     /// (½ Σ z²·m − I)/I.
     pub ionic_strength_relative: f64,
 }
@@ -139,7 +141,7 @@ pub struct Equilibrium {
     model: ActivityModel,
     species: Vec<SpeciesState>,
     families: Vec<FamilyState>,
-    free_molal: Vec<(String, f64)>,
+    free_molal: Vec<(Arc<str>, f64)>,
     residuals: Residuals,
     iterations: usize,
     path: SolverPath,
@@ -149,11 +151,8 @@ pub struct Equilibrium {
 }
 
 impl Equilibrium {
-    pub(crate) fn build(sys: &System, point: Point, iterations: usize, path: SolverPath) -> Result<Self> {
-        let mut ev = Evaluation::new(sys.species.len());
+    pub(crate) fn build(sys: &System, point: Point, ev: Evaluation, iterations: usize, path: SolverPath) -> Result<Self> {
         let i = point.ln_i.exp();
-        ev.set_gamma(sys, i);
-        ev.set_conc(sys, &point);
         let r = ev.scaled_residuals(sys, &point);
         let rho = sys.water_density;
         let species: Vec<SpeciesState> = sys
@@ -179,14 +178,24 @@ impl Equilibrium {
         let families = sys
             .families
             .iter()
-            .map(|fam| {
+            .enumerate()
+            .map(|(fi, fam)| {
                 let total = sys.components[fam.component].total_molal;
-                let forms: Vec<f64> = fam.forms.iter().map(|&s| ev.conc[s]).collect();
-                let free: f64 = forms.iter().sum();
-                let (fractions, complexed) = if total > 0.0 {
-                    let fr: Vec<f64> = forms.iter().map(|c| c / total).collect();
-                    let complexed = (1.0 - fr.iter().sum::<f64>()).max(0.0);
-                    (fr, complexed)
+                let (fractions, complexed, mean) = if total > 0.0 {
+                    let mut free = 0.0;
+                    let mut bound = 0.0;
+                    let fr: Vec<f64> = fam
+                        .forms
+                        .iter()
+                        .enumerate()
+                        .map(|(j, &s)| {
+                            free += ev.conc[s];
+                            bound += j as f64 * ev.conc[s];
+                            ev.conc[s] / total
+                        })
+                        .collect();
+                    let complexed = (1.0 - free / total).max(0.0);
+                    (fr, complexed, if free > 0.0 { bound / free } else { 0.0 })
                 } else {
                     // The distribution this family would have: weights exp(ln K + j L − ln γ).
                     let u: Vec<f64> = fam
@@ -197,15 +206,12 @@ impl Equilibrium {
                     let umax = u.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
                     let e: Vec<f64> = u.iter().map(|x| (x - umax).exp()).collect();
                     let sum: f64 = e.iter().sum();
-                    (e.iter().map(|x| x / sum).collect(), 0.0)
-                };
-                let mean = if free > 0.0 {
-                    forms.iter().enumerate().map(|(j, c)| j as f64 * c).sum::<f64>() / free
-                } else {
-                    fractions.iter().enumerate().map(|(j, a)| j as f64 * a).sum()
+                    let fr: Vec<f64> = e.iter().map(|x| x / sum).collect();
+                    let mean = fr.iter().enumerate().map(|(j, a)| j as f64 * a).sum();
+                    (fr, 0.0, mean)
                 };
                 FamilyState {
-                    name: fam.protolyte.name().to_string(),
+                    name: sys.family_names[fi].clone(),
                     total_molal: total,
                     fractions,
                     complexed_fraction: complexed,
@@ -213,33 +219,18 @@ impl Equilibrium {
                 }
             })
             .collect();
-        let free_molal = sys
-            .components
-            .iter()
-            .enumerate()
-            .skip(1)
-            .filter(|(_, c)| c.total_molal > 0.0)
-            .map(|(ci, c)| {
-                // The free component is its species with no H and only itself.
-                let s = sys.species.iter().enumerate().position(|(s, sp)| {
-                    !matches!(sp.kind, SpeciesKind::Complex)
-                        && sys.nu[s * nc + ci] == 1.0
-                        && sys.nu[s * nc] == 0.0
-                });
-                (c.name.clone(), s.map(|s| ev.conc[s]).unwrap_or(0.0))
-            })
-            .collect();
+        let mut free_molal = Vec::new();
+        let mut mass_relative = Vec::new();
+        for (ci, c) in sys.components.iter().enumerate().skip(1) {
+            if c.total_molal > 0.0 {
+                free_molal.push((c.name.clone(), sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0)));
+                mass_relative.push((c.name.clone(), r.mass[ci]));
+            }
+        }
         let residuals = Residuals {
             charge_molal: r.charge_molal,
             charge_relative: r.charge_relative(),
-            mass_relative: sys
-                .components
-                .iter()
-                .enumerate()
-                .skip(1)
-                .filter(|(_, c)| c.total_molal > 0.0)
-                .map(|(c, comp)| (comp.name.clone(), r.mass[c]))
-                .collect(),
+            mass_relative,
             ionic_strength_relative: if sys.model == ActivityModel::Ideal { 0.0 } else { r.ionic_strength },
         };
         let mut warnings = sys.compile_warnings.clone();
@@ -338,7 +329,7 @@ impl Equilibrium {
 
     /// The species named `name`.
     pub fn species_named(&self, name: &str) -> Option<&SpeciesState> {
-        self.species.iter().find(|s| s.name == name)
+        self.species.iter().find(|s| &*s.name == name)
     }
 
     /// The distribution of every acid–base family.
@@ -348,11 +339,11 @@ impl Equilibrium {
 
     /// The family named `name`.
     pub fn family(&self, name: &str) -> Option<&FamilyState> {
-        self.families.iter().find(|f| f.name == name)
+        self.families.iter().find(|f| &*f.name == name)
     }
 
     /// Free (uncomplexed, fully deprotonated) molality of each component with a positive total.
-    pub fn free_molal(&self) -> &[(String, f64)] {
+    pub fn free_molal(&self) -> &[(Arc<str>, f64)] {
         &self.free_molal
     }
 

@@ -7,6 +7,8 @@
 //! F. M. M. Morel and J. G. Hering, *Principles and Applications of Aquatic Chemistry*
 //! (Wiley, 1993), ch. 2.
 
+use std::sync::Arc;
+
 use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants};
 use crate::complex::{Complex, ComplexPart};
 use crate::equilibrium::{Equilibrium, Warning};
@@ -71,7 +73,7 @@ pub enum ComponentKind {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Component {
     /// Name (the family or ion name; "H+" for the proton).
-    pub name: String,
+    pub name: Arc<str>,
     /// Charge of the component as a free species.
     pub charge: i32,
     /// Total amount, mol/kg of water (unused for H⁺).
@@ -107,7 +109,7 @@ pub enum SpeciesKind {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Species {
     /// Display name.
-    pub name: String,
+    pub name: Arc<str>,
     /// Charge number.
     pub charge: i32,
     /// log₁₀ of the formation constant from the components, at the system's temperature.
@@ -143,7 +145,7 @@ pub struct Family {
 /// let mut r = Recipe::new();
 /// r.add(&cat.reagent("phosphoric acid")?, Amount::molar(0.01))?;
 /// let sys = r.compile(&Conditions::default())?;
-/// assert_eq!(sys.components()[0].name, "H+");
+/// assert_eq!(&*sys.components()[0].name, "H+");
 /// // H+, OH-, and the four phosphate forms.
 /// assert_eq!(sys.species().len(), 6);
 /// # Ok::<(), protolyte::Error>(())
@@ -166,6 +168,21 @@ pub struct System {
     pub(crate) group: Vec<usize>,
     /// ln K of each species (log₁₀ K × ln 10).
     pub(crate) ln_k: Vec<f64>,
+    /// Sparse stoichiometry: the non-zero (component, ν) of species s are
+    /// `terms[term_start[s]..term_start[s + 1]]`.
+    pub(crate) term_start: Vec<usize>,
+    pub(crate) terms: Vec<(usize, f64)>,
+    /// Uncoupled species by their one non-H component (entry 0: species of H alone).
+    pub(crate) members: Vec<Vec<usize>>,
+    /// The free species of each component, where it has one.
+    pub(crate) free_species: Vec<Option<usize>>,
+    /// Names of the families, shared with results.
+    pub(crate) family_names: Vec<Arc<str>>,
+    /// ν(H⁺) of each species as an integer, and each species' charge as a float.
+    pub(crate) nu_h: Vec<i32>,
+    pub(crate) charge_f: Vec<f64>,
+    /// Largest ν(H⁺) and largest −ν(H⁺) over the uncoupled species (both ≥ 0).
+    pub(crate) nu_h_span: (usize, usize),
     pub(crate) compile_warnings: Vec<Warning>,
 }
 
@@ -252,7 +269,7 @@ impl System {
                 fam.forms.push(rows.len());
                 rows.push((
                     Species {
-                        name: p.form_name(j),
+                        name: p.form_name(j).into(),
                         charge: p.charge_of_form(j),
                         log10_k: log_beta,
                         ion_size_angstrom: size,
@@ -266,7 +283,7 @@ impl System {
             if let ComponentKind::Ion(ion) = &comp.kind {
                 rows.push((
                     Species {
-                        name: ion.display_name().to_string(),
+                        name: ion.display_name().into(),
                         charge: ion.charge(),
                         log10_k: 0.0,
                         ion_size_angstrom: ion.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
@@ -289,7 +306,7 @@ impl System {
             let lk = vant_hoff::log10_k_at(cx.log10_beta(), cx.dh_kj_per_mol().unwrap_or(0.0), 0.0, t);
             rows.push((
                 Species {
-                    name: cx.name().to_string(),
+                    name: cx.name().into(),
                     charge: cx.charge(),
                     log10_k: lk,
                     ion_size_angstrom: cx.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
@@ -319,6 +336,41 @@ impl System {
             species.push(sp);
         }
         let ln_k = species.iter().map(|s| s.log10_k * std::f64::consts::LN_10).collect();
+        let mut term_start = Vec::with_capacity(species.len() + 1);
+        let mut terms = Vec::new();
+        let mut members = vec![Vec::new(); nc];
+        for s in 0..species.len() {
+            term_start.push(terms.len());
+            for c in 0..nc {
+                if nu[s * nc + c] != 0.0 {
+                    terms.push((c, nu[s * nc + c]));
+                }
+            }
+            if !coupling[s] {
+                members[group[s]].push(s);
+            }
+        }
+        term_start.push(terms.len());
+        let free_species = (0..nc)
+            .map(|c| {
+                (c > 0)
+                    .then(|| {
+                        (0..species.len()).find(|&s| {
+                            !matches!(species[s].kind, SpeciesKind::Complex) && nu[s * nc + c] == 1.0 && nu[s * nc] == 0.0
+                        })
+                    })
+                    .flatten()
+            })
+            .collect();
+        let family_names = b.families.iter().map(|f| Arc::from(f.protolyte.name())).collect();
+        let species_len = species.len();
+        let nu_h: Vec<i32> = (0..species_len).map(|s| nu[s * nc].round() as i32).collect();
+        let unc = || (0..species_len).filter(|&s| !coupling[s]);
+        let nu_h_span = (
+            unc().map(|s| nu_h[s].max(0) as usize).max().unwrap_or(0),
+            unc().map(|s| (-nu_h[s]).max(0) as usize).max().unwrap_or(0),
+        );
+        let charge_f = species.iter().map(|s| f64::from(s.charge)).collect();
         Ok(System {
             temperature: t,
             model: conditions.activity,
@@ -332,6 +384,14 @@ impl System {
             coupling,
             group,
             ln_k,
+            term_start,
+            terms,
+            members,
+            free_species,
+            family_names,
+            nu_h_span,
+            nu_h,
+            charge_f,
             compile_warnings: warnings,
         })
     }
@@ -388,12 +448,12 @@ impl System {
 
     /// Index of the component named `name` (a family or an ion name, or "H+").
     pub fn component_index(&self, name: &str) -> Option<usize> {
-        self.components.iter().position(|c| c.name == name)
+        self.components.iter().position(|c| &*c.name == name)
     }
 
     /// Index of the species named `name`.
     pub fn species_index(&self, name: &str) -> Option<usize> {
-        self.species.iter().position(|s| s.name == name)
+        self.species.iter().position(|s| &*s.name == name)
     }
 
     /// Sets the total of component `index` (mol/kg). Refuses H⁺ (index 0), an index out of
@@ -422,6 +482,72 @@ impl System {
         }
         let name = self.components[index].name.clone();
         self.components[index].total_molal = crate::error::check_amount(&name, total, "mol/kg")?;
+        Ok(())
+    }
+
+    /// Sets log₁₀ K of species `species` (at the system's temperature). Refuses H⁺ (whose
+    /// constant is 1 by definition), an index out of range and a value that is not finite
+    /// or beyond ±300.
+    pub fn set_log10_k(&mut self, species: usize, log10_k: f64) -> Result<()> {
+        if species == 0 || species >= self.species.len() {
+            return Err(Error::InconsistentDefinition {
+                name: "system".into(),
+                reason: format!("species index {species} cannot be set (1..{} are settable)", self.species.len()),
+            });
+        }
+        let name = self.species[species].name.clone();
+        crate::error::check_parameter(&name, "log K", log10_k, -300.0, 300.0, "must be finite and within ±300")?;
+        if species == 1 {
+            self.log10_kw = log10_k;
+        }
+        self.species[species].log10_k = log10_k;
+        self.ln_k[species] = log10_k * std::f64::consts::LN_10;
+        Ok(())
+    }
+
+    /// The stepwise pKa of step `step` (0-based, most protonated first) of family `family`
+    /// at the system's temperature, as compiled (or as last set).
+    pub fn pka(&self, family: usize, step: usize) -> Option<f64> {
+        let f = self.families.get(family)?;
+        let n = f.forms.len() - 1;
+        if step >= n {
+            return None;
+        }
+        // log β of the form with j protons minus that with j − 1 is pKa of step n − j.
+        let j = n - step;
+        Some(self.species[f.forms[j]].log10_k - self.species[f.forms[j - 1]].log10_k)
+    }
+
+    /// Sets the stepwise pKa of step `step` of family `family` at the system's temperature
+    /// (for fitting and what-if studies): the formation constants of the forms are rebuilt.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("acetic acid")?, Amount::molal(0.01))?;
+    /// let mut sys = r.compile(&Conditions::default())?;
+    /// sys.set_pka(0, 0, 5.0)?;
+    /// assert!((sys.pka(0, 0).unwrap() - 5.0).abs() < 1e-12);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn set_pka(&mut self, family: usize, step: usize, pka: f64) -> Result<()> {
+        let Some(old) = self.pka(family, step) else {
+            return Err(Error::InconsistentDefinition {
+                name: "system".into(),
+                reason: format!("family {family} has no dissociation step {step}"),
+            });
+        };
+        let name = self.family_names[family].clone();
+        crate::error::check_parameter(&name, "pKa", pka, -10.0, 25.0, "must be finite and within -10..25")?;
+        let forms = self.families[family].forms.clone();
+        let n = forms.len() - 1;
+        // pKa of step i enters log β_j for every j ≥ n − i.
+        for &s in &forms[n - step..] {
+            let v = self.species[s].log10_k + (pka - old);
+            self.species[s].log10_k = v;
+            self.ln_k[s] = v * std::f64::consts::LN_10;
+        }
         Ok(())
     }
 
@@ -454,7 +580,7 @@ impl Builder {
             }
             return Ok(f.component);
         }
-        if self.components.iter().any(|c| c.name == p.name()) {
+        if self.components.iter().any(|c| &*c.name == p.name()) {
             return Err(Error::InconsistentDefinition {
                 name: p.name().to_string(),
                 reason: "the name is used by both an ion and a protolyte".into(),
@@ -462,7 +588,7 @@ impl Builder {
         }
         let idx = self.components.len();
         self.components.push(Component {
-            name: p.name().to_string(),
+            name: p.name().into(),
             charge: p.charge_of_form(0),
             total_molal: 0.0,
             kind: ComponentKind::Family(self.families.len()),
@@ -476,7 +602,7 @@ impl Builder {
     }
 
     fn ion_component(&mut self, ion: &Ion) -> Result<usize> {
-        if let Some(i) = self.components.iter().position(|c| c.name == ion.name()) {
+        if let Some(i) = self.components.iter().position(|c| &*c.name == ion.name()) {
             return match &self.components[i].kind {
                 ComponentKind::Ion(existing) if existing.charge() == ion.charge() => Ok(i),
                 _ => Err(Error::InconsistentDefinition {
@@ -486,7 +612,7 @@ impl Builder {
             };
         }
         self.components.push(Component {
-            name: ion.name().to_string(),
+            name: ion.name().into(),
             charge: ion.charge(),
             total_molal: 0.0,
             kind: ComponentKind::Ion(ion.clone()),
@@ -510,7 +636,7 @@ impl Builder {
                     }
                     None => None,
                 },
-                ComplexPart::Ion(ion) => self.components.iter().position(|c| c.name == ion.name()),
+                ComplexPart::Ion(ion) => self.components.iter().position(|c| &*c.name == ion.name()),
             };
             match idx {
                 Some(i) => out.push((i, f64::from(*n))),

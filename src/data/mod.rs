@@ -197,7 +197,8 @@ impl Catalog {
     ///
     /// ```
     /// use protolyte::Catalog;
-    /// let hits = Catalog::builtin().search("phosphate");
+    /// let cat = Catalog::builtin();
+    /// let hits = cat.search("phosphate");
     /// assert!(hits.iter().any(|h| h.name == "phosphate"));
     /// ```
     pub fn search(&self, query: &str) -> Vec<&DataInfo> {

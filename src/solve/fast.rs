@@ -7,143 +7,246 @@
 //! component c, and H⁺ and OH⁻ both add positive slope. It is bracketed and solved by Newton
 //! steps that fall back to bisection whenever they leave the bracket. The ionic strength is
 //! iterated to self-consistency around it (secant-accelerated fixed point).
+//!
+//! Evaluation cost: each species' weight exp(ln K − ln γ + ν·L) is kept as a coefficient
+//! taken at a reference L (normalised per component, so nothing overflows) times x^ν with
+//! x = exp(L − L_ref): one exponential per evaluation instead of one per species. The
+//! coefficients are retaken in log space whenever L strays far from the reference.
 
 use super::{Evaluation, I_MAX, I_MIN, LN_AH_MAX, LN_AH_MIN, Point};
 use crate::error::{Error, Result};
 use crate::system::System;
 
 const LN10: f64 = std::f64::consts::LN_10;
+/// How far (ln units) L may move from the reference before the coefficients are retaken.
+const RESCALE_SPAN: f64 = 20.0;
 
-/// Per-component sums of the alpha-fraction evaluation.
-struct Scratch {
-    umax: Vec<f64>,
-    s0: Vec<f64>,
-    sz: Vec<f64>,
-    sn: Vec<f64>,
-    szn: Vec<f64>,
+/// Largest |ν(H⁺)| of any species: families have at most 12 protons and complexes gain or
+/// lose at most 12 (both checked where they are defined).
+const NU_SPAN: usize = 12;
+
+/// Working state of the fast path for one system.
+pub(crate) struct Fast<'a> {
+    sys: &'a System,
+    pub(crate) ev: Evaluation,
+    /// Coefficient of each uncoupled species at `l_ref` (normalised per component).
+    e: Vec<f64>,
+    /// Per component: the log-scale taken out of its coefficients (`[..nc]`) and Σv at the
+    /// last evaluation (`[nc..]`).
+    m_s0: Vec<f64>,
+    l_ref: f64,
+    /// x^k for k = −12..=12 at index k + 12.
+    pw: [f64; 2 * NU_SPAN + 1],
 }
 
-/// Charge balance and its slope at L with fixed ln γ.
-fn charge(sys: &System, ev: &Evaluation, l: f64, w: &mut Scratch) -> (f64, f64) {
-    let nc = sys.components.len();
-    w.umax.iter_mut().for_each(|u| *u = f64::NEG_INFINITY);
-    w.s0.iter_mut().for_each(|u| *u = 0.0);
-    w.sz.iter_mut().for_each(|u| *u = 0.0);
-    w.sn.iter_mut().for_each(|u| *u = 0.0);
-    w.szn.iter_mut().for_each(|u| *u = 0.0);
-    let mut f = 0.0;
-    let mut df = 0.0;
-    for s in 0..sys.species.len() {
-        if sys.coupling[s] {
-            continue;
-        }
-        let g = sys.group[s];
-        let nh = sys.nu[s * nc];
-        let u = sys.ln_k[s] + nh * l - ev.ln_gamma[s];
-        if g == 0 {
-            let c = u.min(700.0).exp();
-            let z = f64::from(sys.species[s].charge);
-            f += z * c;
-            df += z * nh * c;
-        } else if sys.components[g].total_molal > 0.0 && u > w.umax[g] {
-            w.umax[g] = u;
+impl<'a> Fast<'a> {
+    pub(crate) fn new(sys: &'a System) -> Self {
+        let nc = sys.components.len();
+        let ns = sys.species.len();
+        Fast {
+            sys,
+            ev: Evaluation::new(ns),
+            e: vec![0.0; ns],
+            m_s0: vec![0.0; 2 * nc],
+            l_ref: f64::NAN,
+            pw: [1.0; 2 * NU_SPAN + 1],
         }
     }
-    for s in 0..sys.species.len() {
-        let g = sys.group[s];
-        if g == 0 || sys.coupling[s] || sys.components[g].total_molal <= 0.0 {
-            continue;
-        }
-        let nh = sys.nu[s * nc];
-        let z = f64::from(sys.species[s].charge);
-        let e = (sys.ln_k[s] + nh * l - ev.ln_gamma[s] - w.umax[g]).exp();
-        w.s0[g] += e;
-        w.sz[g] += z * e;
-        w.sn[g] += nh * e;
-        w.szn[g] += z * nh * e;
+
+    /// Components with a positive total (not H⁺).
+    fn active(&self) -> impl Iterator<Item = usize> + use<'a> {
+        let sys = self.sys;
+        (1..sys.components.len()).filter(move |&c| sys.components[c].total_molal > 0.0)
     }
-    for (g, comp) in sys.components.iter().enumerate().skip(1) {
-        let t = comp.total_molal;
-        if t > 0.0 {
-            let s0 = w.s0[g];
-            let mz = w.sz[g] / s0;
+
+    /// Retakes the coefficients at L (log space).
+    fn rescale(&mut self, l: f64) {
+        let sys = self.sys;
+        for &s in &sys.members[0] {
+            let b = sys.ln_k[s] - self.ev.ln_gamma[s] + f64::from(sys.nu_h[s]) * l;
+            self.e[s] = b.min(700.0).exp();
+        }
+        for g in self.active() {
+            let members = &sys.members[g];
+            let mut m = f64::NEG_INFINITY;
+            for &s in members {
+                let b = sys.ln_k[s] - self.ev.ln_gamma[s] + f64::from(sys.nu_h[s]) * l;
+                self.e[s] = b;
+                m = m.max(b);
+            }
+            for &s in members {
+                self.e[s] = (self.e[s] - m).exp();
+            }
+            self.m_s0[g] = m;
+        }
+        self.l_ref = l;
+    }
+
+    /// Fills the power table for L and returns false when it is out of safe range.
+    fn powers(&mut self, l: f64) -> bool {
+        let d = l - self.l_ref;
+        if !(d.abs() <= RESCALE_SPAN) {
+            return false;
+        }
+        let x = d.exp();
+        let ix = 1.0 / x;
+        let (up, down) = self.sys.nu_h_span;
+        for k in 1..=up.min(NU_SPAN) {
+            self.pw[NU_SPAN + k] = self.pw[NU_SPAN + k - 1] * x;
+        }
+        for k in 1..=down.min(NU_SPAN) {
+            self.pw[NU_SPAN - k] = self.pw[NU_SPAN - k + 1] * ix;
+        }
+        true
+    }
+
+    #[inline]
+    fn weight(&self, s: usize) -> f64 {
+        self.e[s] * self.pw[(self.sys.nu_h[s] + NU_SPAN as i32) as usize]
+    }
+
+    /// Charge balance and its slope at L with the current ln γ.
+    fn charge(&mut self, l: f64) -> (f64, f64) {
+        if !self.powers(l) {
+            self.rescale(l);
+            self.powers(l);
+        }
+        let (f, df, ok) = self.sums();
+        if ok {
+            return (f, df);
+        }
+        self.rescale(l);
+        self.powers(l);
+        let (f, df, _) = self.sums();
+        (f, df)
+    }
+
+    fn sums(&mut self) -> (f64, f64, bool) {
+        let sys = self.sys;
+        let nc = sys.components.len();
+        let mut f = 0.0;
+        let mut df = 0.0;
+        for &s in &sys.members[0] {
+            let v = self.weight(s);
+            f += sys.charge_f[s] * v;
+            df += sys.charge_f[s] * f64::from(sys.nu_h[s]) * v;
+        }
+        let mut ok = f.is_finite() && df.is_finite();
+        for g in self.active() {
+            let (mut s0, mut sz, mut sn, mut szn) = (0.0, 0.0, 0.0, 0.0);
+            for &s in &sys.members[g] {
+                let v = self.weight(s);
+                let nu = f64::from(sys.nu_h[s]);
+                let z = sys.charge_f[s];
+                s0 += v;
+                sz += z * v;
+                sn += nu * v;
+                szn += z * nu * v;
+            }
+            ok &= s0 > 1e-250 && s0 < 1e250;
+            let t = sys.components[g].total_molal;
+            let mz = sz / s0;
             f += t * mz;
-            df += t * (w.szn[g] / s0 - mz * w.sn[g] / s0);
+            df += t * (szn / s0 - mz * sn / s0);
+            self.m_s0[nc + g] = s0;
         }
+        (f, df, ok)
     }
-    (f, df)
-}
 
-/// Solves f(L) = 0 at fixed γ from `l0`. Returns L and the number of evaluations.
-fn solve_l(sys: &System, ev: &Evaluation, l0: f64, w: &mut Scratch) -> Result<(f64, usize)> {
-    const MAX_STEP: f64 = 3.0 * LN10;
-    let mut l = l0.clamp(LN_AH_MIN, LN_AH_MAX);
-    let (mut f, mut d) = charge(sys, ev, l, w);
-    let mut lo = LN_AH_MIN;
-    let mut hi = LN_AH_MAX;
-    let mut lo_ok = false;
-    let mut hi_ok = false;
-    let mut evals = 1;
-    for _ in 0..300 {
-        if f == 0.0 {
-            return Ok((l, evals));
-        }
-        if f < 0.0 {
-            lo = l;
-            lo_ok = true;
-        } else {
-            hi = l;
-            hi_ok = true;
-        }
-        let newton = if d > 0.0 && d.is_finite() { -f / d } else { f64::NAN };
-        if newton.abs() <= 1e-14 * l.abs().max(1.0) {
-            // The Newton correction is below round-off: f is zero to working precision.
-            return Ok((l, evals));
-        }
-        let mut next = if newton.is_finite() {
-            l + newton.clamp(-MAX_STEP, MAX_STEP)
-        } else if f < 0.0 {
-            l + MAX_STEP
-        } else {
-            l - MAX_STEP
-        };
-        let bisect = !(next > lo && next < hi);
-        if bisect {
-            next = if lo_ok && hi_ok {
-                0.5 * (lo + hi)
-            } else if f < 0.0 {
-                (l + MAX_STEP).min(LN_AH_MAX)
+    /// Solves f(L) = 0 at fixed γ from `l0`. Returns L and the number of evaluations.
+    fn solve_l(&mut self, l0: f64) -> Result<(f64, usize)> {
+        const MAX_STEP: f64 = 3.0 * LN10;
+        let mut l = l0.clamp(LN_AH_MIN, LN_AH_MAX);
+        let (mut f, mut d) = self.charge(l);
+        let mut lo = LN_AH_MIN;
+        let mut hi = LN_AH_MAX;
+        let mut lo_ok = false;
+        let mut hi_ok = false;
+        let mut evals = 1;
+        for _ in 0..300 {
+            if f == 0.0 {
+                return Ok((l, evals));
+            }
+            if f < 0.0 {
+                lo = l;
+                lo_ok = true;
             } else {
-                (l - MAX_STEP).max(LN_AH_MIN)
+                hi = l;
+                hi_ok = true;
+            }
+            let newton = if d > 0.0 && d.is_finite() { -f / d } else { f64::NAN };
+            if newton.abs() <= 1e-14 * l.abs().max(1.0) {
+                // The Newton correction is below round-off: f is zero to working precision.
+                return Ok((l, evals));
+            }
+            let mut next = if newton.is_finite() {
+                l + newton.clamp(-MAX_STEP, MAX_STEP)
+            } else if f < 0.0 {
+                l + MAX_STEP
+            } else {
+                l - MAX_STEP
             };
+            let bisect = !(next > lo && next < hi);
+            if bisect {
+                next = if lo_ok && hi_ok {
+                    0.5 * (lo + hi)
+                } else if f < 0.0 {
+                    (l + MAX_STEP).min(LN_AH_MAX)
+                } else {
+                    (l - MAX_STEP).max(LN_AH_MIN)
+                };
+            }
+            if next == l {
+                break;
+            }
+            let step = next - l;
+            l = next;
+            (f, d) = self.charge(l);
+            evals += 1;
+            if !bisect && step.abs() <= 1e-12 {
+                return Ok((l, evals));
+            }
+            if lo_ok && hi_ok && (hi - lo) <= 4.0 * f64::EPSILON * l.abs().max(1.0) {
+                return Ok((l, evals));
+            }
+            if (l <= LN_AH_MIN && f > 0.0) || (l >= LN_AH_MAX && f < 0.0) {
+                return Err(no_root(l, evals));
+            }
         }
-        if next == l {
-            break;
-        }
-        let step = next - l;
-        l = next;
-        (f, d) = charge(sys, ev, l, w);
-        evals += 1;
-        if !bisect && step.abs() <= 1e-12 {
-            return Ok((l, evals));
-        }
-        if lo_ok && hi_ok && (hi - lo) <= 4.0 * f64::EPSILON * l.abs().max(1.0) {
-            return Ok((l, evals));
-        }
-        let at_edge = (l <= LN_AH_MIN && f > 0.0) || (l >= LN_AH_MAX && f < 0.0);
-        if at_edge {
-            return Err(no_root(sys, l, evals));
-        }
+        if lo_ok && hi_ok { Ok((l, evals)) } else { Err(no_root(l, evals)) }
     }
-    if lo_ok && hi_ok {
-        Ok((l, evals))
-    } else {
-        Err(no_root(sys, l, evals))
+
+    /// Concentrations at L into `ev.conc`, the component activities into a point, and
+    /// I = ½ Σ z² m.
+    fn finish(&mut self, l: f64, ln_i: f64) -> (Point, f64) {
+        let sys = self.sys;
+        let nc = sys.components.len();
+        self.charge(l);
+        self.ev.conc.iter_mut().for_each(|c| *c = 0.0);
+        let mut y = vec![f64::NEG_INFINITY; nc];
+        y[0] = l;
+        let mut ionic = 0.0;
+        for &s in &sys.members[0] {
+            let c = self.weight(s);
+            self.ev.conc[s] = c;
+            ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * c;
+        }
+        for g in self.active() {
+            let t = sys.components[g].total_molal;
+            let s0 = self.m_s0[nc + g];
+            // Σ_s m_s = a_g · e^{m_g} · Σv = T, so ln a_g = ln T − m_g − ln Σv.
+            y[g] = t.ln() - self.m_s0[g] - s0.ln();
+            for &s in &sys.members[g] {
+                let c = t * self.weight(s) / s0;
+                self.ev.conc[s] = c;
+                ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * c;
+            }
+        }
+        (Point { y, ln_i }, ionic.clamp(I_MIN, I_MAX))
     }
 }
 
-fn no_root(sys: &System, l: f64, evals: usize) -> Error {
-    let _ = sys;
+fn no_root(l: f64, evals: usize) -> Error {
     Error::NoConvergence {
         path: "fast",
         iterations: evals,
@@ -153,47 +256,12 @@ fn no_root(sys: &System, l: f64, evals: usize) -> Error {
     }
 }
 
-/// Ionic strength from the concentrations at L (γ as set in `ev`), also filling the free
-/// component activities into `y`.
-fn finish(sys: &System, ev: &mut Evaluation, l: f64, ln_i: f64, w: &mut Scratch) -> Point {
-    let nc = sys.components.len();
-    charge(sys, ev, l, w);
-    let mut y = vec![f64::NEG_INFINITY; nc];
-    y[0] = l;
-    for (g, comp) in sys.components.iter().enumerate().skip(1) {
-        if comp.total_molal > 0.0 {
-            y[g] = comp.total_molal.ln() - w.umax[g] - w.s0[g].ln();
-        }
-    }
-    let p = Point { y, ln_i };
-    ev.set_conc(sys, &p);
-    p
-}
-
-fn ionic_strength(sys: &System, ev: &Evaluation) -> f64 {
-    let mut i = 0.0;
-    for (s, sp) in sys.species.iter().enumerate() {
-        if sys.coupling[s] {
-            continue;
-        }
-        let z = f64::from(sp.charge);
-        i += 0.5 * z * z * ev.conc[s];
-    }
-    i.clamp(I_MIN, I_MAX)
-}
-
-/// Solves an uncoupled system (species coupling two components are ignored, which is what
-/// the general path wants from its starting guess). `start` is (ln a(H⁺), ln I).
-pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result<(Point, usize)> {
-    let nc = sys.components.len();
-    let mut w = Scratch {
-        umax: vec![0.0; nc],
-        s0: vec![0.0; nc],
-        sz: vec![0.0; nc],
-        sn: vec![0.0; nc],
-        szn: vec![0.0; nc],
-    };
-    let mut ev = Evaluation::new(sys.species.len());
+/// Solves the uncoupled part of a system (species coupling two components are left out,
+/// which is what the general path wants from its starting guess). `start` is
+/// (ln a(H⁺), ln I); `tol` the relative ionic-strength tolerance. Returns the point, the
+/// evaluation at it and the number of pH-equation evaluations.
+pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result<(Point, Evaluation, usize)> {
+    let mut fast = Fast::new(sys);
     let (mut l, mut i) = match start {
         Some((l, li)) if l.is_finite() && li.is_finite() => (l, li.exp().clamp(I_MIN, I_MAX)),
         _ => {
@@ -212,19 +280,19 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
     let mut evals = 0;
     let mut prev: Option<(f64, f64)> = None; // (I, G(I) − I)
     for _ in 0..100 {
-        ev.set_gamma(sys, i);
-        let (ln_ah, n) = solve_l(sys, &ev, l, &mut w)?;
+        fast.ev.set_gamma(sys, i);
+        fast.rescale(l);
+        let (ln_ah, n) = fast.solve_l(l)?;
         evals += n;
         l = ln_ah;
-        let p = finish(sys, &mut ev, l, i.ln(), &mut w);
-        let g = ionic_strength(sys, &ev);
+        let (p, g) = fast.finish(l, i.ln());
         if ideal {
             // γ does not depend on I: report the I of the solution.
-            return Ok((Point { y: p.y, ln_i: g.ln() }, evals));
+            return Ok((Point { y: p.y, ln_i: g.ln() }, fast.ev, evals));
         }
         let h = g - i;
-        if h.abs() <= tol.min(1e-13) * i {
-            return Ok((p, evals));
+        if h.abs() <= tol * i {
+            return Ok((p, fast.ev, evals));
         }
         let mut next = g;
         if let Some((ip, hp)) = prev {

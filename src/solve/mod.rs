@@ -138,15 +138,15 @@ impl Solver {
         let start = warm.map(|e| (e.unknowns(), e.ln_ionic_strength()));
         if self.path == PathChoice::Auto && system.uncoupled() {
             match fast::solve(system, start.map(|(y, li)| (y[0], li)), self.tolerance) {
-                Ok((point, iters)) => return Equilibrium::build(system, point, iters, SolverPath::Fast),
+                Ok((point, ev, iters)) => return Equilibrium::build(system, point, ev, iters, SolverPath::Fast),
                 Err(_) => {
                     // The ionic-strength iteration can stall at very high I; the general
                     // path solves I inside Newton and is the fallback.
                 }
             }
         }
-        let (point, iters) = newton::solve(system, start, self.tolerance, self.max_iterations)?;
-        Equilibrium::build(system, point, iters, SolverPath::General)
+        let (point, ev, iters) = newton::solve(system, start, self.tolerance, self.max_iterations)?;
+        Equilibrium::build(system, point, ev, iters, SolverPath::General)
     }
 }
 
@@ -179,8 +179,9 @@ impl Evaluation {
 
     /// Fills ln γ and its slope at ionic strength `i`.
     pub(crate) fn set_gamma(&mut self, sys: &System, i: f64) {
+        let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
         for (s, sp) in sys.species.iter().enumerate() {
-            let (lg, d) = sys.model.log10_gamma_and_slope(sp.charge, sp.ion_size_angstrom, i, &sys.dh);
+            let (lg, d) = profile.at(sp.charge, sp.ion_size_angstrom);
             self.ln_gamma[s] = lg * LN10;
             self.dln_gamma_di[s] = d * LN10;
         }
@@ -188,14 +189,10 @@ impl Evaluation {
 
     /// Fills concentrations at `p` (γ must be set for exp(p.ln_i)).
     pub(crate) fn set_conc(&mut self, sys: &System, p: &Point) {
-        let nc = sys.components.len();
         for s in 0..sys.species.len() {
-            let row = &sys.nu[s * nc..(s + 1) * nc];
             let mut ln_c = sys.ln_k[s] - self.ln_gamma[s];
-            for (c, &v) in row.iter().enumerate() {
-                if v != 0.0 {
-                    ln_c += v * p.y[c];
-                }
+            for &(c, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
+                ln_c += v * p.y[c];
             }
             // −∞ (inactive component) gives exactly 0.
             self.conc[s] = if ln_c.is_nan() { 0.0 } else { ln_c.min(700.0).exp() };
@@ -209,21 +206,23 @@ impl Evaluation {
         let mut charge = 0.0;
         let mut scale = 0.0;
         let mut ionic = 0.0;
-        for (s, sp) in sys.species.iter().enumerate() {
-            let z = f64::from(sp.charge);
-            charge += z * self.conc[s];
-            scale += z.abs() * self.conc[s];
-            ionic += 0.5 * z * z * self.conc[s];
-        }
         let mut mass = vec![0.0; nc];
-        for (c, comp) in sys.components.iter().enumerate().skip(1) {
-            if comp.total_molal > 0.0 {
-                let mut sum = 0.0;
-                for s in 0..sys.species.len() {
-                    sum += sys.nu[s * nc + c] * self.conc[s];
-                }
-                mass[c] = (sum - comp.total_molal) / comp.total_molal;
+        for s in 0..sys.species.len() {
+            let c = self.conc[s];
+            let z = sys.charge_f[s];
+            charge += z * c;
+            scale += z.abs() * c;
+            ionic += 0.5 * z * z * c;
+            for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
+                mass[comp] += v * c;
             }
+        }
+        for (c, comp) in sys.components.iter().enumerate() {
+            mass[c] = if c > 0 && comp.total_molal > 0.0 {
+                (mass[c] - comp.total_molal) / comp.total_molal
+            } else {
+                0.0
+            };
         }
         let i = p.ln_i.exp();
         Residuals {

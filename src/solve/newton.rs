@@ -25,11 +25,14 @@ pub(crate) fn active(sys: &System) -> Vec<usize> {
 
 /// Unscaled residual vector F and the row scales, in the order (charge, active masses, I).
 pub(crate) fn residual(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> (DVector<f64>, DVector<f64>) {
-    let nc = sys.components.len();
     let m = act.len() + 1;
     let mut f = DVector::zeros(m);
     let mut scale = DVector::zeros(m);
     let i = p.ln_i.exp();
+    let mut pos = vec![usize::MAX; sys.components.len()];
+    for (k, &c) in act.iter().enumerate() {
+        pos[c] = k;
+    }
     for (s, sp) in sys.species.iter().enumerate() {
         let c = ev.conc[s];
         if c == 0.0 {
@@ -38,8 +41,10 @@ pub(crate) fn residual(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) 
         let z = f64::from(sp.charge);
         f[0] += z * c;
         scale[0] += z.abs() * c;
-        for (k, &comp) in act.iter().enumerate().skip(1) {
-            f[k] += sys.nu[s * nc + comp] * c;
+        for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
+            if comp != 0 && pos[comp] != usize::MAX {
+                f[pos[comp]] += v * c;
+            }
         }
         f[m - 1] += 0.5 * z * z * c;
     }
@@ -56,38 +61,47 @@ pub(crate) fn residual(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) 
 /// The analytic Jacobian of [`residual`] with respect to (ln a of the active components,
 /// ln I).
 pub(crate) fn jacobian(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> DMatrix<f64> {
-    let nc = sys.components.len();
     let m = act.len() + 1;
     let mut j = DMatrix::zeros(m, m);
     let i = p.ln_i.exp();
-    let mut row = vec![0.0; m];
-    let mut col = vec![0.0; m];
+    // Position of each component among the unknowns.
+    let mut pos = vec![usize::MAX; sys.components.len()];
+    for (k, &c) in act.iter().enumerate() {
+        pos[c] = k;
+    }
+    let mut idx: Vec<(usize, f64)> = Vec::with_capacity(8);
     for (s, sp) in sys.species.iter().enumerate() {
         let c = ev.conc[s];
         if c == 0.0 {
             continue;
         }
         let z = f64::from(sp.charge);
-        // Coefficients of species s in each equation ...
-        row[0] = z;
-        for (k, &comp) in act.iter().enumerate().skip(1) {
-            row[k] = sys.nu[s * nc + comp];
-        }
-        row[m - 1] = 0.5 * z * z;
-        // ... and d ln m_s / d unknown.
-        for (k, &comp) in act.iter().enumerate() {
-            col[k] = sys.nu[s * nc + comp];
-        }
-        col[m - 1] = -ev.dln_gamma_di[s] * i;
-        for a in 0..m {
-            if row[a] == 0.0 {
-                continue;
+        // d ln m_s / d unknown: ν for its components, −(d ln γ/dI)·I for ln I.
+        idx.clear();
+        for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
+            if pos[comp] != usize::MAX {
+                idx.push((pos[comp], v));
             }
-            let rc = row[a] * c;
-            for b in 0..m {
-                if col[b] != 0.0 {
-                    j[(a, b)] += rc * col[b];
-                }
+        }
+        let gi = -ev.dln_gamma_di[s] * i;
+        // Equations that species s enters, with its coefficient: charge (z), the mass
+        // balances of its components (ν), ionic strength (½z²).
+        let mut add_row = |row: usize, coef: f64| {
+            let rc = coef * c;
+            for &(k, v) in &idx {
+                j[(row, k)] += rc * v;
+            }
+            if gi != 0.0 {
+                j[(row, m - 1)] += rc * gi;
+            }
+        };
+        if z != 0.0 {
+            add_row(0, z);
+            add_row(m - 1, 0.5 * z * z);
+        }
+        for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
+            if comp != 0 && pos[comp] != usize::MAX {
+                add_row(pos[comp], v);
             }
         }
     }
@@ -119,11 +133,13 @@ fn evaluate(sys: &System, ev: &mut Evaluation, p: &Point) {
     ev.set_conc(sys, p);
 }
 
-/// Positive-continued-fraction sweeps on the component activities at fixed a(H⁺) and I.
+/// Positive-continued-fraction sweeps on the component activities at fixed a(H⁺) and I,
+/// Gauss–Seidel order (each component's update sees the previous ones), until every mass
+/// balance is within a factor e^0.1 or `sweeps` run out.
 fn pcf_sweeps(sys: &System, ev: &mut Evaluation, act: &[usize], p: &mut Point, sweeps: usize) {
     let nc = sys.components.len();
+    evaluate(sys, ev, p);
     for _ in 0..sweeps {
-        evaluate(sys, ev, p);
         let mut worst: f64 = 0.0;
         for &c in &act[1..] {
             let mut sum = 0.0;
@@ -138,17 +154,30 @@ fn pcf_sweeps(sys: &System, ev: &mut Evaluation, act: &[usize], p: &mut Point, s
             if sum > 0.0 {
                 let r = (sys.components[c].total_molal / sum).ln();
                 worst = worst.max(r.abs());
-                p.y[c] += r / nmax;
+                let dy = r / nmax;
+                p.y[c] += dy;
+                // Species holding c move by ν·dy; the others are unchanged.
+                for s in 0..sys.species.len() {
+                    let v = sys.nu[s * nc + c];
+                    if v != 0.0 {
+                        ev.conc[s] *= (v * dy).exp();
+                    }
+                }
             }
         }
-        if worst < 1e-3 {
+        if worst < 0.1 {
             break;
         }
     }
 }
 
 /// Solves the full system. `start` is a previous solution's (ln a, ln I).
-pub(crate) fn solve(sys: &System, start: Option<(&[f64], f64)>, tol: f64, max_iter: usize) -> Result<(Point, usize)> {
+pub(crate) fn solve(
+    sys: &System,
+    start: Option<(&[f64], f64)>,
+    tol: f64,
+    max_iter: usize,
+) -> Result<(Point, Evaluation, usize)> {
     let act = active(sys);
     let nc = sys.components.len();
     let mut ev = Evaluation::new(sys.species.len());
@@ -168,8 +197,8 @@ pub(crate) fn solve(sys: &System, start: Option<(&[f64], f64)>, tol: f64, max_it
             Point { y, ln_i: li }
         }
         _ => {
-            let (mut p, n) = match fast::solve(sys, None, 1e-10) {
-                Ok(r) => r,
+            let (mut p, n) = match fast::solve(sys, None, 1e-3) {
+                Ok((p, _, n)) => (p, n),
                 Err(_) => {
                     let mut y = vec![f64::NEG_INFINITY; nc];
                     y[0] = -7.0 * LN10;
@@ -180,7 +209,7 @@ pub(crate) fn solve(sys: &System, start: Option<(&[f64], f64)>, tol: f64, max_it
                 }
             };
             iters += n;
-            pcf_sweeps(sys, &mut ev, &act, &mut p, 60);
+            pcf_sweeps(sys, &mut ev, &act, &mut p, 4);
             p
         }
     };
@@ -192,7 +221,7 @@ pub(crate) fn solve(sys: &System, start: Option<(&[f64], f64)>, tol: f64, max_it
     let mut stalls = 0;
     while iters < max_iter {
         if max_scaled(&f, &scale, ideal) <= tol {
-            return Ok((p, iters));
+            return Ok((p, ev, iters));
         }
         iters += 1;
         let jac = jacobian(sys, &ev, &act, &p);
@@ -238,7 +267,7 @@ pub(crate) fn solve(sys: &System, start: Option<(&[f64], f64)>, tol: f64, max_it
             // residual is already small; otherwise take fraction sweeps and try again.
             evaluate(sys, &mut ev, &p);
             if max_scaled(&f, &scale, ideal) <= tol.max(1e-11) {
-                return Ok((p, iters));
+                return Ok((p, ev, iters));
             }
             stalls += 1;
             if stalls > 5 {
@@ -254,7 +283,7 @@ pub(crate) fn solve(sys: &System, start: Option<(&[f64], f64)>, tol: f64, max_it
     let r = ev.scaled_residuals(sys, &p);
     let (worst, eqn) = r.worst(sys);
     if worst <= tol.max(1e-11) {
-        return Ok((p, iters));
+        return Ok((p, ev, iters));
     }
     Err(Error::NoConvergence {
         path: "general",
