@@ -72,6 +72,7 @@
 #![deny(missing_docs)]
 
 pub mod activity;
+pub mod analysis;
 mod complex;
 pub mod data;
 mod equilibrium;
