@@ -138,12 +138,15 @@ impl Catalog {
 
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
         let key = normalize(name);
-        let mut idx = 0;
+        let entries = || self.info.iter().filter(|i| i.kind == kind);
+        if let Some(idx) = entries().position(|info| {
+            normalize(&info.name) == key || info.synonyms.iter().any(|s| normalize(s) == key)
+        }) {
+            return Ok(idx);
+        }
+        // Not found: suggest the closest name or synonym, if it is close.
         let mut best: Option<(usize, &str)> = None;
-        for info in self.info.iter().filter(|i| i.kind == kind) {
-            if normalize(&info.name) == key || info.synonyms.iter().any(|s| normalize(s) == key) {
-                return Ok(idx);
-            }
+        for info in entries() {
             let d = std::iter::once(info.name.as_str())
                 .chain(info.synonyms.iter().map(String::as_str))
                 .map(|n| levenshtein(&normalize(n), &key))
@@ -152,7 +155,6 @@ impl Catalog {
             if best.is_none_or(|(bd, _)| d < bd) {
                 best = Some((d, info.name.as_str()));
             }
-            idx += 1;
         }
         let limit = (key.chars().count() / 3).max(2);
         Err(Error::UnknownName {

@@ -62,7 +62,8 @@ pub(crate) fn residual(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) 
 /// ln I).
 pub(crate) fn jacobian(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> DMatrix<f64> {
     let m = act.len() + 1;
-    let mut j = DMatrix::zeros(m, m);
+    // Column-major m × m, filled through a flat buffer (entry (row, col) at col·m + row).
+    let mut j = vec![0.0; m * m];
     let i = p.ln_i.exp();
     // Position of each component among the unknowns.
     let mut pos = vec![usize::MAX; sys.components.len()];
@@ -70,43 +71,43 @@ pub(crate) fn jacobian(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) 
         pos[c] = k;
     }
     let mut idx: Vec<(usize, f64)> = Vec::with_capacity(8);
-    for (s, sp) in sys.species.iter().enumerate() {
+    let mut rows: Vec<(usize, f64)> = Vec::with_capacity(8);
+    for s in 0..sys.species.len() {
         let c = ev.conc[s];
         if c == 0.0 {
             continue;
         }
-        let z = f64::from(sp.charge);
+        let z = sys.charge_f[s];
         // d ln m_s / d unknown: ν for its components, −(d ln γ/dI)·I for ln I.
         idx.clear();
+        rows.clear();
         for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
-            if pos[comp] != usize::MAX {
-                idx.push((pos[comp], v));
+            let k = pos[comp];
+            if k != usize::MAX {
+                idx.push((k, v));
+                if comp != 0 {
+                    rows.push((k, v * c));
+                }
             }
         }
         let gi = -ev.dln_gamma_di[s] * i;
-        // Equations that species s enters, with its coefficient: charge (z), the mass
-        // balances of its components (ν), ionic strength (½z²).
-        let mut add_row = |row: usize, coef: f64| {
-            let rc = coef * c;
-            for &(k, v) in &idx {
-                j[(row, k)] += rc * v;
-            }
-            if gi != 0.0 {
-                j[(row, m - 1)] += rc * gi;
-            }
-        };
-        if z != 0.0 {
-            add_row(0, z);
-            add_row(m - 1, 0.5 * z * z);
+        if gi != 0.0 {
+            idx.push((m - 1, gi));
         }
-        for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
-            if comp != 0 && pos[comp] != usize::MAX {
-                add_row(pos[comp], v);
+        // Equations species s enters, with its coefficient: charge (z), the mass balances
+        // of its components (ν), ionic strength (½z²).
+        if z != 0.0 {
+            rows.push((0, z * c));
+            rows.push((m - 1, 0.5 * z * z * c));
+        }
+        for &(row, rc) in &rows {
+            for &(k, v) in &idx {
+                j[k * m + row] += rc * v;
             }
         }
     }
-    j[(m - 1, m - 1)] -= i;
-    j
+    j[(m - 1) * m + (m - 1)] -= i;
+    DMatrix::from_vec(m, m, j)
 }
 
 fn merit(f: &DVector<f64>, scale: &DVector<f64>) -> f64 {
@@ -197,7 +198,7 @@ pub(crate) fn solve(
             Point { y, ln_i: li }
         }
         _ => {
-            let (mut p, n) = match fast::solve(sys, None, 1e-3) {
+            let (mut p, n) = match fast::solve(sys, None, 1e-2) {
                 Ok((p, _, n)) => (p, n),
                 Err(_) => {
                     let mut y = vec![f64::NEG_INFINITY; nc];
