@@ -4,8 +4,7 @@
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use protolyte::{
-    ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, Recipe, Reagent, System,
-    Temperature,
+    ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, Reagent, Recipe, System, Temperature,
 };
 use std::hint::black_box;
 
@@ -13,35 +12,58 @@ fn system(items: &[(&str, f64)], complexes: &[Complex], model: ActivityModel) ->
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
     for (name, mm) in items {
-        r.add(&cat.reagent(name).expect("reagent"), Amount::millimolar(*mm)).expect("amount");
+        r.add(&cat.reagent(name).expect("reagent"), Amount::millimolar(*mm))
+            .expect("amount");
     }
     r.add_complexes(complexes);
-    r.compile(&Conditions::new(Temperature::celsius(25.0), model)).expect("compile")
+    r.compile(&Conditions::new(Temperature::celsius(25.0), model))
+        .expect("compile")
 }
 
 fn bench(c: &mut Criterion) {
     let cat = Catalog::builtin();
     let a = system(&[("acetic acid", 10.0)], &[], ActivityModel::Ideal);
-    c.bench_function("solve/a_monoprotic_ideal", |b| b.iter(|| black_box(&a).solve().expect("solve")));
+    c.bench_function("solve/a_monoprotic_ideal", |b| {
+        b.iter(|| black_box(&a).solve().expect("solve"))
+    });
     let a2 = system(&[("acetic acid", 10.0)], &[], ActivityModel::Davies);
-    c.bench_function("solve/a_monoprotic_davies", |b| b.iter(|| black_box(&a2).solve().expect("solve")));
+    c.bench_function("solve/a_monoprotic_davies", |b| {
+        b.iter(|| black_box(&a2).solve().expect("solve"))
+    });
 
     let bsys = system(
-        &[("acetic acid", 5.0), ("sodium dihydrogen phosphate", 3.0), ("ammonium chloride", 2.0), ("sodium hydroxide", 4.0)],
+        &[
+            ("acetic acid", 5.0),
+            ("sodium dihydrogen phosphate", 3.0),
+            ("ammonium chloride", 2.0),
+            ("sodium hydroxide", 4.0),
+        ],
         &[],
         ActivityModel::Davies,
     );
-    c.bench_function("solve/b_three_families_davies", |b| b.iter(|| black_box(&bsys).solve().expect("solve")));
+    c.bench_function("solve/b_three_families_davies", |b| {
+        b.iter(|| black_box(&bsys).solve().expect("solve"))
+    });
 
     // Eight families and one complex (calcium–EDTA).
     let calcium = cat.ion("calcium").expect("ion");
     let edta = cat.protolyte("edta").expect("edta");
-    let cay = Complex::new("CaY2-", vec![(ComplexPart::Ion(calcium.clone()), 1), (ComplexPart::Base(edta.clone()), 1)], 10.65)
-        .expect("complex");
+    let cay = Complex::new(
+        "CaY2-",
+        vec![
+            (ComplexPart::Ion(calcium.clone()), 1),
+            (ComplexPart::Base(edta.clone()), 1),
+        ],
+        10.65,
+    )
+    .expect("complex");
     let ca_salt = Reagent::new(
         "calcium chloride (bench)",
         None,
-        vec![(Constituent::Ion(calcium), 1), (Constituent::Ion(cat.ion("chloride").expect("cl")), 2)],
+        vec![
+            (Constituent::Ion(calcium), 1),
+            (Constituent::Ion(cat.ion("chloride").expect("cl")), 2),
+        ],
     )
     .expect("reagent");
     let mut r = Recipe::new();
@@ -56,15 +78,21 @@ fn bench(c: &mut Criterion) {
         ("disodium edta dihydrate", 0.5),
         ("sodium hydroxide", 6.0),
     ] {
-        r.add(&cat.reagent(name).expect(name), Amount::millimolar(mm)).expect("amount");
+        r.add(&cat.reagent(name).expect(name), Amount::millimolar(mm))
+            .expect("amount");
     }
     r.add(&ca_salt, Amount::millimolar(0.4)).expect("amount");
     r.add_complex(&cay);
     let csys = r
-        .compile(&Conditions::new(Temperature::celsius(25.0), ActivityModel::ExtendedDebyeHuckel))
+        .compile(&Conditions::new(
+            Temperature::celsius(25.0),
+            ActivityModel::ExtendedDebyeHuckel,
+        ))
         .expect("compile");
     assert_eq!(csys.families().len(), 8);
-    c.bench_function("solve/c_eight_families_complex_edh", |b| b.iter(|| black_box(&csys).solve().expect("solve")));
+    c.bench_function("solve/c_eight_families_complex_edh", |b| {
+        b.iter(|| black_box(&csys).solve().expect("solve"))
+    });
 }
 
 criterion_group!(benches, bench);

@@ -25,13 +25,20 @@ fn main() -> Result<(), protolyte::Error> {
     println!("Kestrel Bay hatchery: incubation make-up water at 12 °C (demo scenario)\n");
     let t = Temperature::celsius(12.0);
     let mut results = Vec::new();
-    for model in [ActivityModel::Ideal, ActivityModel::Davies, ActivityModel::ExtendedDebyeHuckel] {
+    for model in [
+        ActivityModel::Ideal,
+        ActivityModel::Davies,
+        ActivityModel::ExtendedDebyeHuckel,
+    ] {
         let system = blend.compile(&Conditions::new(t, model))?;
         let eq = system.solve()?;
         results.push((model, eq));
     }
 
-    println!("{:<24} {:>8} {:>8} {:>12} {:>10}", "activity model", "pH", "p[H]", "I (mol/kg)", "max resid");
+    println!(
+        "{:<24} {:>8} {:>8} {:>12} {:>10}",
+        "activity model", "pH", "p[H]", "I (mol/kg)", "max resid"
+    );
     for (model, eq) in &results {
         println!(
             "{:<24} {:>8.4} {:>8.4} {:>12.5} {:>10.1e}",
@@ -46,7 +53,10 @@ fn main() -> Result<(), protolyte::Error> {
     let (_, ideal) = &results[0];
     let (_, davies) = &results[1];
     println!("\nSpecies with and without activity corrections (Davies vs ideal):");
-    println!("{:<12} {:>4} {:>13} {:>13} {:>8} {:>13}", "species", "z", "ideal mol/kg", "Davies mol/kg", "γ", "activity");
+    println!(
+        "{:<12} {:>4} {:>13} {:>13} {:>8} {:>13}",
+        "species", "z", "ideal mol/kg", "Davies mol/kg", "γ", "activity"
+    );
     for (a, b) in ideal.species().iter().zip(davies.species()) {
         println!(
             "{:<12} {:>4} {:>13.4e} {:>13.4e} {:>8.4} {:>13.4e}",

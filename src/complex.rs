@@ -61,7 +61,11 @@ impl Complex {
     pub fn new(name: &str, parts: Vec<(ComplexPart, i32)>, log10_beta: f64) -> Result<Self> {
         let name = name.trim();
         let bad = |reason: String| Error::InconsistentDefinition {
-            name: if name.is_empty() { "(unnamed complex)".into() } else { name.into() },
+            name: if name.is_empty() {
+                "(unnamed complex)".into()
+            } else {
+                name.into()
+            },
             reason,
         };
         if name.is_empty() {
@@ -82,14 +86,25 @@ impl Complex {
                 heavy += n;
             }
         }
-        let protons: i32 = parts.iter().filter(|(p, _)| matches!(p, ComplexPart::Proton)).map(|(_, n)| n).sum();
+        let protons: i32 = parts
+            .iter()
+            .filter(|(p, _)| matches!(p, ComplexPart::Proton))
+            .map(|(_, n)| n)
+            .sum();
         let lone_ion = heavy == 1 && parts.iter().any(|(p, _)| matches!(p, ComplexPart::Ion(_)));
         if heavy == 0 || (heavy == 1 && !(lone_ion && protons != 0)) {
             return Err(bad(
                 "a complex joins at least two non-proton parts, or one ion with H⁺ gained or lost (hydrolysis); a family's own protonation belongs in its Protolyte".into(),
             ));
         }
-        check_parameter(name, "log β", log10_beta, -100.0, 100.0, "must be finite and within ±100")?;
+        check_parameter(
+            name,
+            "log β",
+            log10_beta,
+            -100.0,
+            100.0,
+            "must be finite and within ±100",
+        )?;
         Ok(Complex {
             name: name.to_string(),
             parts,
@@ -102,7 +117,14 @@ impl Complex {
 
     /// Sets the formation enthalpy ΔH° (kJ/mol) for the van't Hoff temperature correction.
     pub fn with_enthalpy_kj_per_mol(mut self, dh: f64) -> Result<Self> {
-        check_parameter(&self.name, "ΔH° (kJ/mol)", dh, -1000.0, 1000.0, "must be finite and within ±1000")?;
+        check_parameter(
+            &self.name,
+            "ΔH° (kJ/mol)",
+            dh,
+            -1000.0,
+            1000.0,
+            "must be finite and within ±1000",
+        )?;
         self.dh_kj_per_mol = Some(dh);
         Ok(self)
     }

@@ -151,7 +151,13 @@ pub struct Equilibrium {
 }
 
 impl Equilibrium {
-    pub(crate) fn build(sys: &System, point: Point, ev: Evaluation, iterations: usize, path: SolverPath) -> Result<Self> {
+    pub(crate) fn build(
+        sys: &System,
+        point: Point,
+        ev: Evaluation,
+        iterations: usize,
+        path: SolverPath,
+    ) -> Result<Self> {
         let i = point.ln_i.exp();
         let r = ev.scaled_residuals(sys, &point);
         let rho = sys.water_density;
@@ -231,7 +237,11 @@ impl Equilibrium {
             charge_molal: r.charge_molal,
             charge_relative: r.charge_relative(),
             mass_relative,
-            ionic_strength_relative: if sys.model == ActivityModel::Ideal { 0.0 } else { r.ionic_strength },
+            ionic_strength_relative: if sys.model == ActivityModel::Ideal {
+                0.0
+            } else {
+                r.ionic_strength
+            },
         };
         let mut warnings = sys.compile_warnings.clone();
         if let Some(limit) = sys.model.validity_limit_molal()

@@ -28,7 +28,11 @@ impl Ion {
         let name = name.trim();
         if name.is_empty() || charge == 0 || !(-6..=6).contains(&charge) {
             return Err(Error::InconsistentDefinition {
-                name: if name.is_empty() { "(unnamed ion)".into() } else { name.into() },
+                name: if name.is_empty() {
+                    "(unnamed ion)".into()
+                } else {
+                    name.into()
+                },
                 reason: format!("an ion needs a name and a charge in −6..6 other than 0 (got {charge})"),
             });
         }

@@ -74,7 +74,14 @@ impl Protolyte {
         }
         let mut steps = Vec::with_capacity(pkas.len());
         for &p in pkas {
-            check_parameter(name, "pKa", p, PKA_RANGE.0, PKA_RANGE.1, "must be finite and within -10..25")?;
+            check_parameter(
+                name,
+                "pKa",
+                p,
+                PKA_RANGE.0,
+                PKA_RANGE.1,
+                "must be finite and within -10..25",
+            )?;
             steps.push(Step {
                 pka: p,
                 dh_kj_per_mol: None,
@@ -95,7 +102,14 @@ impl Protolyte {
     pub fn with_enthalpies_kj_per_mol(mut self, dh: &[f64]) -> Result<Self> {
         self.check_len(dh.len(), "enthalpies")?;
         for (s, &h) in self.steps.iter_mut().zip(dh) {
-            check_parameter(&self.name, "ΔH° (kJ/mol)", h, -500.0, 500.0, "must be finite and within ±500")?;
+            check_parameter(
+                &self.name,
+                "ΔH° (kJ/mol)",
+                h,
+                -500.0,
+                500.0,
+                "must be finite and within ±500",
+            )?;
             s.dh_kj_per_mol = Some(h);
         }
         Ok(self)
@@ -105,7 +119,14 @@ impl Protolyte {
     pub fn with_heat_capacities_j_per_mol_k(mut self, dcp: &[f64]) -> Result<Self> {
         self.check_len(dcp.len(), "heat capacities")?;
         for (s, &c) in self.steps.iter_mut().zip(dcp) {
-            check_parameter(&self.name, "ΔCp° (J/(mol·K))", c, -2000.0, 2000.0, "must be finite and within ±2000")?;
+            check_parameter(
+                &self.name,
+                "ΔCp° (J/(mol·K))",
+                c,
+                -2000.0,
+                2000.0,
+                "must be finite and within ±2000",
+            )?;
             s.dcp_j_per_mol_k = Some(c);
         }
         Ok(self)
@@ -116,10 +137,24 @@ impl Protolyte {
         self.check_len(steps.len(), "steps")?;
         for s in &steps {
             if let Some(h) = s.dh_kj_per_mol {
-                check_parameter(&self.name, "ΔH° (kJ/mol)", h, -500.0, 500.0, "must be finite and within ±500")?;
+                check_parameter(
+                    &self.name,
+                    "ΔH° (kJ/mol)",
+                    h,
+                    -500.0,
+                    500.0,
+                    "must be finite and within ±500",
+                )?;
             }
             if let Some(c) = s.dcp_j_per_mol_k {
-                check_parameter(&self.name, "ΔCp° (J/(mol·K))", c, -2000.0, 2000.0, "must be finite and within ±2000")?;
+                check_parameter(
+                    &self.name,
+                    "ΔCp° (J/(mol·K))",
+                    c,
+                    -2000.0,
+                    2000.0,
+                    "must be finite and within ±2000",
+                )?;
             }
         }
         self.steps = steps;
@@ -229,7 +264,11 @@ impl Protolyte {
     pub fn form_name(&self, protons: usize) -> String {
         let n = self.steps.len();
         let suffix = charge_suffix(self.charge_of_form(protons));
-        if let Some(core) = self.formula.as_deref().and_then(|f| strip_charge(f, self.charge_most_protonated)) {
+        if let Some(core) = self
+            .formula
+            .as_deref()
+            .and_then(|f| strip_charge(f, self.charge_most_protonated))
+        {
             let lost = n - protons.min(n);
             if let Some(stem) = ammonium_stem(core, n) {
                 let (stem, d) = stem;
@@ -267,7 +306,11 @@ fn strip_charge(formula: &str, charge: i32) -> Option<&str> {
     let sign = if charge > 0 { '+' } else { '-' };
     let f = f.strip_suffix(sign)?;
     let mag = charge.unsigned_abs();
-    if mag == 1 { Some(f) } else { f.strip_suffix(mag.to_string().as_str()) }
+    if mag == 1 {
+        Some(f)
+    } else {
+        f.strip_suffix(mag.to_string().as_str())
+    }
 }
 
 /// For "...NHₖ" with k ≥ n, the text before "N" and k.

@@ -170,9 +170,7 @@ impl Volume {
 
     /// A volume in millilitres.
     pub fn milliliters(ml: f64) -> Self {
-        Volume {
-            liters: ml * 1e-3,
-        }
+        Volume { liters: ml * 1e-3 }
     }
 
     /// The volume in litres.

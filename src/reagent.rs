@@ -68,7 +68,11 @@ impl Reagent {
     pub fn new(name: &str, molar_mass_g_per_mol: Option<f64>, parts: Vec<(Constituent, u32)>) -> Result<Self> {
         let name = name.trim();
         let bad = |reason: String| Error::InconsistentDefinition {
-            name: if name.is_empty() { "(unnamed reagent)".into() } else { name.into() },
+            name: if name.is_empty() {
+                "(unnamed reagent)".into()
+            } else {
+                name.into()
+            },
             reason,
         };
         if name.is_empty() {
@@ -122,12 +126,13 @@ impl Reagent {
     /// ```
     pub fn neutral_form(protolyte: &Protolyte, molar_mass_g_per_mol: Option<f64>) -> Result<Self> {
         let n = protolyte.proton_count();
-        let protons = (0..=n).rev().find(|&j| protolyte.charge_of_form(j) == 0).ok_or_else(|| {
-            Error::NotElectroneutral {
+        let protons = (0..=n)
+            .rev()
+            .find(|&j| protolyte.charge_of_form(j) == 0)
+            .ok_or_else(|| Error::NotElectroneutral {
                 reagent: protolyte.name().to_string(),
                 charge: i64::from(protolyte.charge_most_protonated()),
-            }
-        })?;
+            })?;
         Reagent::new(
             protolyte.name(),
             molar_mass_g_per_mol,

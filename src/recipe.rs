@@ -69,10 +69,12 @@ impl Recipe {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn add_mass(&mut self, reagent: &Reagent, mass: Mass, final_volume: Volume) -> Result<&mut Self> {
-        let m = reagent.molar_mass_g_per_mol().ok_or_else(|| Error::InconsistentDefinition {
-            name: reagent.name().to_string(),
-            reason: "a mass was given but the reagent has no molar mass".into(),
-        })?;
+        let m = reagent
+            .molar_mass_g_per_mol()
+            .ok_or_else(|| Error::InconsistentDefinition {
+                name: reagent.name().to_string(),
+                reason: "a mass was given but the reagent has no molar mass".into(),
+            })?;
         let amount = Amount::from_mass(mass, m, final_volume).map_err(|e| rename(e, reagent.name()))?;
         self.add(reagent, amount)
     }
@@ -90,7 +92,13 @@ impl Recipe {
     /// assert!((r.entries()[0].amount.value() - 0.1).abs() < 1e-12);
     /// # Ok::<(), protolyte::Error>(())
     /// ```
-    pub fn add_stock(&mut self, reagent: &Reagent, stock: Amount, aliquot: Volume, final_volume: Volume) -> Result<&mut Self> {
+    pub fn add_stock(
+        &mut self,
+        reagent: &Reagent,
+        stock: Amount,
+        aliquot: Volume,
+        final_volume: Volume,
+    ) -> Result<&mut Self> {
         stock.validate(reagent.name())?;
         let v = crate::error::check_amount(reagent.name(), aliquot.liters_value(), "L")?;
         let vf = final_volume.positive("final volume")?;

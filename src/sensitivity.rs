@@ -103,7 +103,9 @@ impl Sensitivities {
                 // with one unit of it, in proportion to exp(ln K + Σ ν ln a − ln γ).
                 let mut w: Vec<(usize, f64)> = Vec::new();
                 for s in 0..ns {
-                    if sys.nu[s * nc + c] != 1.0 || !(1..nc).all(|d| d == c || sys.nu[s * nc + d] == 0.0 || act.contains(&d)) {
+                    if sys.nu[s * nc + c] != 1.0
+                        || !(1..nc).all(|d| d == c || sys.nu[s * nc + d] == 0.0 || act.contains(&d))
+                    {
                         continue;
                     }
                     let mut u = sys.ln_k[s] - ev.ln_gamma[s];
@@ -230,7 +232,9 @@ impl Sensitivities {
     /// log β_j of the form with j protons is the sum of the last j stepwise pKa values, so
     /// d/dpKaᵢ sums d/d log β_j over the forms whose β contains pKaᵢ.
     pub fn dph_dpka(&self, family: usize, step: usize) -> f64 {
-        let Some(forms) = self.forms.get(family) else { return 0.0 };
+        let Some(forms) = self.forms.get(family) else {
+            return 0.0;
+        };
         let n = forms.len() - 1;
         if step >= n {
             return 0.0;

@@ -275,7 +275,11 @@ impl System {
                         ion_size_angstrom: size,
                         kind: SpeciesKind::Form { family: fi, protons: j },
                     },
-                    if j == 0 { vec![(fam.component, 1.0)] } else { vec![(fam.component, 1.0), (0, j as f64)] },
+                    if j == 0 {
+                        vec![(fam.component, 1.0)]
+                    } else {
+                        vec![(fam.component, 1.0), (0, j as f64)]
+                    },
                 ));
             }
         }
@@ -356,7 +360,9 @@ impl System {
                 (c > 0)
                     .then(|| {
                         (0..species.len()).find(|&s| {
-                            !matches!(species[s].kind, SpeciesKind::Complex) && nu[s * nc + c] == 1.0 && nu[s * nc] == 0.0
+                            !matches!(species[s].kind, SpeciesKind::Complex)
+                                && nu[s * nc + c] == 1.0
+                                && nu[s * nc] == 0.0
                         })
                     })
                     .flatten()
@@ -492,7 +498,10 @@ impl System {
         if species == 0 || species >= self.species.len() {
             return Err(Error::InconsistentDefinition {
                 name: "system".into(),
-                reason: format!("species index {species} cannot be set (1..{} are settable)", self.species.len()),
+                reason: format!(
+                    "species index {species} cannot be set (1..{} are settable)",
+                    self.species.len()
+                ),
             });
         }
         let name = self.species[species].name.clone();

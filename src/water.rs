@@ -23,7 +23,8 @@ use crate::quantity::Temperature;
 /// ```
 pub fn density_kg_per_l(t: Temperature) -> f64 {
     let c = t.as_celsius();
-    let num = 999.83952 + c * (16.945176 + c * (-7.9870401e-3 + c * (-46.170461e-6 + c * (105.56302e-9 + c * -280.54253e-12))));
+    let num = 999.83952
+        + c * (16.945176 + c * (-7.9870401e-3 + c * (-46.170461e-6 + c * (105.56302e-9 + c * -280.54253e-12))));
     num / (1.0 + 16.879850e-3 * c) / 1000.0
 }
 

@@ -30,7 +30,8 @@ fn cubic_ph(ka: f64, kw: f64, ca: f64, cb: f64) -> f64 {
         .chain(reversed.as_ref().iter().map(|u| 1.0 / u))
         .filter(|r| r.is_finite() && *r > 0.0)
         .collect();
-    let resid = |h: f64| (((h + a2) * h + a1) * h + a0).abs() / (h * h * h + a2.abs() * h * h + a1.abs() * h + a0.abs());
+    let resid =
+        |h: f64| (((h + a2) * h + a1) * h + a0).abs() / (h * h * h + a2.abs() * h * h + a1.abs() * h + a0.abs());
     let mut h = candidates
         .iter()
         .copied()
@@ -53,7 +54,9 @@ fn solver_ph(pka: f64, ca: f64, cb: f64, t: f64) -> (f64, f64) {
     let acid = Protolyte::new("HA", &[pka], 0).unwrap();
     let mut r = common::one(&acid, 1, ca);
     r.add(&common::naoh(), Amount::molal(cb)).unwrap();
-    let sys = r.compile(&Conditions::new(Temperature::celsius(t), ActivityModel::Ideal)).unwrap();
+    let sys = r
+        .compile(&Conditions::new(Temperature::celsius(t), ActivityModel::Ideal))
+        .unwrap();
     let eq = sys.solve().unwrap();
     (eq.ph(), sys.log10_kw())
 }

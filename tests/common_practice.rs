@@ -41,7 +41,10 @@ fn dilute_half_neutralised_acid_deviates_from_pka_as_the_charge_balance_says() {
     let a = c / 2.0 + h - 10f64.powf(-13.995) / h;
     let expected = 4.756 + (a / (c - a)).log10();
     assert!(ph - 4.756 > 0.1, "deviation {} should be large", ph - 4.756);
-    assert!((ph - expected).abs() < 1e-6, "pH {ph} vs charge-balance form {expected}");
+    assert!(
+        (ph - expected).abs() < 1e-6,
+        "pH {ph} vs charge-balance form {expected}"
+    );
 }
 
 #[test]
@@ -96,6 +99,10 @@ fn equivalence_volume_is_moles_of_acidic_protons_over_titrant_concentration() {
             }
             v += 0.01;
         }
-        assert!((best.0 - expected).abs() < 0.1, "steepest point {} mL, expected {expected} mL", best.0);
+        assert!(
+            (best.0 - expected).abs() < 0.1,
+            "steepest point {} mL, expected {expected} mL",
+            best.0
+        );
     }
 }

@@ -4,8 +4,8 @@ mod common;
 
 use proptest::prelude::*;
 use protolyte::{
-    ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, Error, Ion, Mass, Protolyte, Reagent,
-    Recipe, Temperature, Volume,
+    ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, Error, Ion, Mass, Protolyte,
+    Reagent, Recipe, Temperature, Volume,
 };
 
 #[test]
@@ -41,7 +41,10 @@ fn unknown_names_suggest_the_closest_entry() {
         }
         other => panic!("unexpected {other:?}"),
     }
-    assert!(matches!(cat.protolyte("unobtainium"), Err(Error::UnknownName { suggestion: None, .. })));
+    assert!(matches!(
+        cat.protolyte("unobtainium"),
+        Err(Error::UnknownName { suggestion: None, .. })
+    ));
 }
 
 #[test]
@@ -52,13 +55,27 @@ fn two_definitions_under_one_name_are_inconsistent() {
     r.add(&common::salt(&a, 1), Amount::molal(0.01)).unwrap();
     r.add(&common::salt(&b, 1), Amount::molal(0.01)).unwrap();
     let err = r.compile(&Conditions::default()).unwrap_err();
-    assert!(matches!(err, Error::InconsistentDefinition { ref name, .. } if name == "acid Q"), "{err:?}");
+    assert!(
+        matches!(err, Error::InconsistentDefinition { ref name, .. } if name == "acid Q"),
+        "{err:?}"
+    );
 }
 
 #[test]
 fn reagents_must_be_electroneutral() {
     let p = Protolyte::new("acid Q", &[4.0], 0).unwrap();
-    let err = Reagent::new("half a salt", None, vec![(Constituent::Form { protolyte: p, protons: 0 }, 1)]).unwrap_err();
+    let err = Reagent::new(
+        "half a salt",
+        None,
+        vec![(
+            Constituent::Form {
+                protolyte: p,
+                protons: 0,
+            },
+            1,
+        )],
+    )
+    .unwrap_err();
     assert!(matches!(err, Error::NotElectroneutral { charge: -1, .. }), "{err:?}");
     assert!(err.to_string().contains("half a salt"));
 }
@@ -68,19 +85,40 @@ fn definitions_refuse_bad_parameters() {
     assert!(Protolyte::new("x", &[f64::NAN], 0).is_err());
     assert!(Protolyte::new("x", &[], 0).is_err());
     assert!(Protolyte::new("", &[4.0], 0).is_err());
-    assert!(Protolyte::new("x", &[4.0], 0).unwrap().with_enthalpies_kj_per_mol(&[1.0, 2.0]).is_err());
+    assert!(
+        Protolyte::new("x", &[4.0], 0)
+            .unwrap()
+            .with_enthalpies_kj_per_mol(&[1.0, 2.0])
+            .is_err()
+    );
     assert!(Ion::new("x", 0).is_err());
     let cu = Ion::new("copper", 2).unwrap();
     assert!(Complex::new("x", vec![(ComplexPart::Ion(cu.clone()), 1)], 3.0).is_err());
-    assert!(Complex::new("x", vec![(ComplexPart::Ion(cu.clone()), 1), (ComplexPart::Proton, -1)], f64::INFINITY).is_err());
-    assert!(Complex::new("CuOH+", vec![(ComplexPart::Ion(cu), 1), (ComplexPart::Proton, -1)], -8.0).is_ok());
+    assert!(
+        Complex::new(
+            "x",
+            vec![(ComplexPart::Ion(cu.clone()), 1), (ComplexPart::Proton, -1)],
+            f64::INFINITY
+        )
+        .is_err()
+    );
+    assert!(
+        Complex::new(
+            "CuOH+",
+            vec![(ComplexPart::Ion(cu), 1), (ComplexPart::Proton, -1)],
+            -8.0
+        )
+        .is_ok()
+    );
 }
 
 #[test]
 fn temperatures_outside_0_to_100_celsius_are_refused() {
     let r = common::one(&Protolyte::new("acid Q", &[4.0], 0).unwrap(), 1, 0.01);
     for t in [-5.0, 100.5, f64::NAN] {
-        let err = r.compile(&Conditions::new(Temperature::celsius(t), ActivityModel::Davies)).unwrap_err();
+        let err = r
+            .compile(&Conditions::new(Temperature::celsius(t), ActivityModel::Davies))
+            .unwrap_err();
         assert!(matches!(err, Error::OutOfDomain { .. }), "{err:?}");
     }
 }
@@ -98,9 +136,14 @@ fn davies_beyond_half_molal_warns() {
     // must carry a warning, not silence.
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
-    r.add(&cat.reagent("sodium chloride").unwrap(), Amount::molal(1.0)).unwrap();
+    r.add(&cat.reagent("sodium chloride").unwrap(), Amount::molal(1.0))
+        .unwrap();
     let eq = r.compile(&Conditions::default()).unwrap().solve().unwrap();
-    assert!(eq.warnings().iter().any(|w| matches!(w, protolyte::Warning::IonicStrengthBeyondModel { .. })));
+    assert!(
+        eq.warnings()
+            .iter()
+            .any(|w| matches!(w, protolyte::Warning::IonicStrengthBeyondModel { .. }))
+    );
 }
 
 fn any_f64() -> impl Strategy<Value = f64> {

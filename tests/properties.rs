@@ -6,7 +6,8 @@ mod common;
 
 use proptest::prelude::*;
 use protolyte::{
-    ActivityModel, Amount, Conditions, Equilibrium, Parameter, PathChoice, Protolyte, Recipe, Solver, System, Temperature,
+    ActivityModel, Amount, Conditions, Equilibrium, Parameter, PathChoice, Protolyte, Recipe, Solver, System,
+    Temperature,
 };
 
 #[derive(Debug, Clone)]
@@ -58,14 +59,18 @@ struct Case {
 }
 
 fn case() -> impl Strategy<Value = Case> {
-    (prop::collection::vec(family(), 1..=8), -10.0f64..0.3, 0.0f64..100.0, model()).prop_map(
-        |(families, log_base, t, model)| Case {
+    (
+        prop::collection::vec(family(), 1..=8),
+        -10.0f64..0.3,
+        0.0f64..100.0,
+        model(),
+    )
+        .prop_map(|(families, log_base, t, model)| Case {
             families,
             log_base,
             t,
             model,
-        },
-    )
+        })
 }
 
 fn recipe(c: &Case, extra_base: f64) -> Recipe {
@@ -75,9 +80,11 @@ fn recipe(c: &Case, extra_base: f64) -> Recipe {
             .unwrap()
             .with_enthalpies_kj_per_mol(&f.dh)
             .unwrap();
-        r.add(&common::salt(&p, f.protons), Amount::molal(10f64.powf(f.log_total))).unwrap();
+        r.add(&common::salt(&p, f.protons), Amount::molal(10f64.powf(f.log_total)))
+            .unwrap();
     }
-    r.add(&common::naoh(), Amount::molal(10f64.powf(c.log_base) + extra_base)).unwrap();
+    r.add(&common::naoh(), Amount::molal(10f64.powf(c.log_base) + extra_base))
+        .unwrap();
     r
 }
 
@@ -89,7 +96,11 @@ fn system(c: &Case, extra_base: f64) -> System {
 
 fn check_balances(eq: &Equilibrium) -> Result<(), TestCaseError> {
     let r = eq.residuals();
-    prop_assert!(r.charge_relative.abs() <= 1e-10, "charge residual {}", r.charge_relative);
+    prop_assert!(
+        r.charge_relative.abs() <= 1e-10,
+        "charge residual {}",
+        r.charge_relative
+    );
     for (name, v) in &r.mass_relative {
         prop_assert!(v.abs() <= 1e-10, "mass residual of {} = {}", name, v);
     }

@@ -139,9 +139,9 @@ impl Catalog {
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
         let key = normalize(name);
         let entries = || self.info.iter().filter(|i| i.kind == kind);
-        if let Some(idx) = entries().position(|info| {
-            normalize(&info.name) == key || info.synonyms.iter().any(|s| normalize(s) == key)
-        }) {
+        if let Some(idx) =
+            entries().position(|info| normalize(&info.name) == key || info.synonyms.iter().any(|s| normalize(s) == key))
+        {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close.
@@ -227,7 +227,16 @@ impl Catalog {
         Ok(())
     }
 
-    fn push_info(&mut self, kind: DataKind, name: &str, synonyms: &[&str], formula: &str, summary: String, source: &str, from_memory: bool) {
+    fn push_info(
+        &mut self,
+        kind: DataKind,
+        name: &str,
+        synonyms: &[&str],
+        formula: &str,
+        summary: String,
+        source: &str,
+        from_memory: bool,
+    ) {
         self.info.push(DataInfo {
             kind,
             name: name.to_string(),
@@ -251,11 +260,23 @@ impl Catalog {
 
     fn insert_protolyte(&mut self, p: Protolyte, synonyms: &[&str], source: &str, from_memory: bool) {
         let pk: Vec<String> = p.steps().iter().map(|s| format!("{}", s.pka)).collect();
-        let summary = format!("pKa {} (25 °C); most protonated charge {:+}", pk.join(", "), p.charge_most_protonated());
+        let summary = format!(
+            "pKa {} (25 °C); most protonated charge {:+}",
+            pk.join(", "),
+            p.charge_most_protonated()
+        );
         let formula = p.formula().unwrap_or("").to_string();
         let name = p.name().to_string();
         self.protolytes.push(p);
-        self.push_info(DataKind::Protolyte, &name, synonyms, &formula, summary, source, from_memory);
+        self.push_info(
+            DataKind::Protolyte,
+            &name,
+            synonyms,
+            &formula,
+            summary,
+            source,
+            from_memory,
+        );
         self.sort_info();
     }
 
@@ -349,10 +370,12 @@ fn build_builtin() -> Catalog {
         }
     }
     for r in ions::IONS {
-        let built = Ion::new(r.name, r.charge).map(|i| i.with_formula(r.formula)).and_then(|i| match r.ion_size_angstrom {
-            Some(a) => i.with_ion_size_angstrom(a),
-            None => Ok(i),
-        });
+        let built = Ion::new(r.name, r.charge)
+            .map(|i| i.with_formula(r.formula))
+            .and_then(|i| match r.ion_size_angstrom {
+                Some(a) => i.with_ion_size_angstrom(a),
+                None => Ok(i),
+            });
         match built {
             Ok(i) => cat.insert_ion(i, r.synonyms, r.source, r.from_memory),
             Err(e) => cat.problems.push(format!("ion {}: {e}", r.name)),

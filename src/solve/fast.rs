@@ -213,7 +213,11 @@ impl<'a> Fast<'a> {
                 return Err(no_root(l, evals));
             }
         }
-        if lo_ok && hi_ok { Ok((l, evals)) } else { Err(no_root(l, evals)) }
+        if lo_ok && hi_ok {
+            Ok((l, evals))
+        } else {
+            Err(no_root(l, evals))
+        }
     }
 
     /// Concentrations at L into `ev.conc`, the component activities into a point, and

@@ -245,7 +245,11 @@ pub(crate) struct Residuals {
 
 impl Residuals {
     pub(crate) fn charge_relative(&self) -> f64 {
-        if self.charge_scale > 0.0 { self.charge_molal / self.charge_scale } else { 0.0 }
+        if self.charge_scale > 0.0 {
+            self.charge_molal / self.charge_scale
+        } else {
+            0.0
+        }
     }
 
     /// The largest |scaled residual| and the equation it belongs to.

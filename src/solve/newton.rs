@@ -206,7 +206,13 @@ pub(crate) fn solve(
                     for &c in &act[1..] {
                         y[c] = sys.components[c].total_molal.ln();
                     }
-                    (Point { y, ln_i: (1e-3f64).ln() }, 0)
+                    (
+                        Point {
+                            y,
+                            ln_i: (1e-3f64).ln(),
+                        },
+                        0,
+                    )
                 }
             };
             iters += n;

@@ -14,18 +14,34 @@ pub fn chloride() -> Ion {
 
 /// NaOH as Na⁺ + OH⁻.
 pub fn naoh() -> Reagent {
-    Reagent::new("sodium hydroxide", None, vec![(Constituent::Ion(sodium()), 1), (Constituent::Hydroxide, 1)]).unwrap()
+    Reagent::new(
+        "sodium hydroxide",
+        None,
+        vec![(Constituent::Ion(sodium()), 1), (Constituent::Hydroxide, 1)],
+    )
+    .unwrap()
 }
 
 /// HCl as H⁺ + Cl⁻.
 pub fn hcl() -> Reagent {
-    Reagent::new("hydrochloric acid", None, vec![(Constituent::Proton, 1), (Constituent::Ion(chloride()), 1)]).unwrap()
+    Reagent::new(
+        "hydrochloric acid",
+        None,
+        vec![(Constituent::Proton, 1), (Constituent::Ion(chloride()), 1)],
+    )
+    .unwrap()
 }
 
 /// The form of `p` with `protons` bound, made neutral with Na⁺ or Cl⁻.
 pub fn salt(p: &Protolyte, protons: usize) -> Reagent {
     let z = p.charge_of_form(protons);
-    let mut parts = vec![(Constituent::Form { protolyte: p.clone(), protons }, 1)];
+    let mut parts = vec![(
+        Constituent::Form {
+            protolyte: p.clone(),
+            protons,
+        },
+        1,
+    )];
     if z < 0 {
         parts.push((Constituent::Ion(sodium()), (-z) as u32));
     } else if z > 0 {
