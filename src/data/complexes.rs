@@ -17,15 +17,14 @@
 use super::records::ComplexPartRecord::{Base, Ion, Proton};
 use super::records::ComplexRecord;
 
-const MS_I0: &str =
-    "A. E. Martell, R. M. Smith, Critical Stability Constants, Vol. 5 (Plenum, 1982), 25 °C, I = 0";
-const MS_I01: &str = "A. E. Martell, R. M. Smith, Critical Stability Constants, Vol. 1 (Plenum, 1974), 25 °C, I = 0.1 mol/L";
-const PLUMMER_BUSENBERG: &str =
-    "L. N. Plummer, E. Busenberg, Geochim. Cosmochim. Acta 46 (1982) 1011-1040";
-const NORDSTROM: &str = "D. K. Nordstrom et al., in Chemical Modeling of Aqueous Systems II, ACS Symp. Ser. 416 (1990) 398-413";
+const MS_I0: &str = "A. E. Martell, R. M. Smith, Critical Stability Constants, Vol. 5 (Plenum, 1982), 25 °C, I = 0";
+const MS_I01: &str =
+    "A. E. Martell, R. M. Smith, Critical Stability Constants, Vol. 1 (Plenum, 1974), 25 °C, I = 0.1 mol/L";
+const PLUMMER_BUSENBERG: &str = "L. N. Plummer, E. Busenberg, Geochim. Cosmochim. Acta 46 (1982) 1011-1040";
+const NORDSTROM: &str =
+    "D. K. Nordstrom et al., in Chemical Modeling of Aqueous Systems II, ACS Symp. Ser. 416 (1990) 398-413";
 const SIEBERT_HOSTETLER: &str = "R. M. Siebert, P. B. Hostetler, Am. J. Sci. 277 (1977) 697-715, as compiled by D. K. Nordstrom et al., ACS Symp. Ser. 416 (1990) 398-413";
-const BAES_MESMER: &str =
-    "C. F. Baes, R. E. Mesmer, The Hydrolysis of Cations (Wiley, 1976), 25 °C, I = 0";
+const BAES_MESMER: &str = "C. F. Baes, R. E. Mesmer, The Hydrolysis of Cations (Wiley, 1976), 25 °C, I = 0";
 
 pub(crate) const COMPLEXES: &[ComplexRecord] = &[
     // ------------------------------------------------------------------ ammine complexes (cumulative)

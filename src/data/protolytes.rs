@@ -50,19 +50,16 @@ const fn pk(pka: f64) -> StepRecord {
     }
 }
 
-const GKL: &str =
-    "R. N. Goldberg, N. Kishore, R. M. Lennen, J. Phys. Chem. Ref. Data 31 (2002) 231-370";
+const GKL: &str = "R. N. Goldberg, N. Kishore, R. M. Lennen, J. Phys. Chem. Ref. Data 31 (2002) 231-370";
 const GKL_KIELLAND: &str = "R. N. Goldberg, N. Kishore, R. M. Lennen, J. Phys. Chem. Ref. Data 31 (2002) 231-370; \
      å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
-const MS: &str =
-    "A. E. Martell, R. M. Smith, Critical Stability Constants, Vols. 1-6 (Plenum, 1974-1989)";
+const MS: &str = "A. E. Martell, R. M. Smith, Critical Stability Constants, Vols. 1-6 (Plenum, 1974-1989)";
 const MS_KIELLAND: &str = "A. E. Martell, R. M. Smith, Critical Stability Constants, Vols. 1-6 (Plenum, 1974-1989); \
      å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
 const CRC_INORG_KIELLAND: &str = "CRC Handbook of Chemistry and Physics, 'Dissociation constants of inorganic acids and \
      bases' (after D. D. Perrin, Ionization Constants of Inorganic Acids and Bases in Aqueous Solution, 2nd ed., 1982); \
      å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
-const CRC_ORG: &str =
-    "CRC Handbook of Chemistry and Physics, 'Dissociation constants of organic acids and bases'";
+const CRC_ORG: &str = "CRC Handbook of Chemistry and Physics, 'Dissociation constants of organic acids and bases'";
 const CRC_ORG_KIELLAND: &str = "CRC Handbook of Chemistry and Physics, 'Dissociation constants of organic acids and \
      bases'; å: J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675";
 
@@ -174,12 +171,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // (ΔfH°: HCN(aq) 107.1, CN- 150.6 kJ/mol).
     FamilyRecord {
         name: "cyanide",
-        synonyms: &[
-            "hydrocyanic acid",
-            "hydrogen cyanide",
-            "hcn",
-            "prussic acid",
-        ],
+        synonyms: &["hydrocyanic acid", "hydrogen cyanide", "hcn", "prussic acid"],
         formula: "HCN",
         charge_most_protonated: 0,
         steps: &[with_dh(9.21, 43.5)],
@@ -282,12 +274,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "ethanolamine",
-        synonyms: &[
-            "monoethanolamine",
-            "2-aminoethanol",
-            "ethanolammonium",
-            "mea",
-        ],
+        synonyms: &["monoethanolamine", "2-aminoethanol", "ethanolammonium", "mea"],
         formula: "HOCH2CH2NH3+",
         charge_most_protonated: 1,
         steps: &[full(9.498, 50.52, 26.0)],
@@ -481,10 +468,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "epps",
-        synonyms: &[
-            "hepps",
-            "4-(2-hydroxyethyl)-1-piperazinepropanesulfonic acid",
-        ],
+        synonyms: &["hepps", "4-(2-hydroxyethyl)-1-piperazinepropanesulfonic acid"],
         formula: "HEPPS",
         charge_most_protonated: 0,
         steps: &[full(7.957, 21.3, 48.0)],
@@ -672,13 +656,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "formate",
-        synonyms: &[
-            "formic acid",
-            "methanoic acid",
-            "methanoate",
-            "hcooh",
-            "hcoo-",
-        ],
+        synonyms: &["formic acid", "methanoic acid", "methanoate", "hcooh", "hcoo-"],
         formula: "HCHO2",
         charge_most_protonated: 0,
         steps: &[pk(3.75)],
@@ -730,12 +708,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // å: Kielland's 4.5 for (COO)2^2-.
     FamilyRecord {
         name: "oxalate",
-        synonyms: &[
-            "oxalic acid",
-            "ethanedioic acid",
-            "h2c2o4",
-            "hydrogen oxalate",
-        ],
+        synonyms: &["oxalic acid", "ethanedioic acid", "h2c2o4", "hydrogen oxalate"],
         formula: "H2C2O4",
         charge_most_protonated: 0,
         steps: &[pk(1.27), with_dh(4.266, -6.7)],
@@ -778,11 +751,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     },
     FamilyRecord {
         name: "fumarate",
-        synonyms: &[
-            "fumaric acid",
-            "trans-butenedioic acid",
-            "hydrogen fumarate",
-        ],
+        synonyms: &["fumaric acid", "trans-butenedioic acid", "hydrogen fumarate"],
         formula: "H2C4H2O4",
         charge_most_protonated: 0,
         steps: &[pk(3.03), pk(4.44)],
@@ -827,12 +796,7 @@ pub(crate) const FAMILIES: &[FamilyRecord] = &[
     // trianion is used.
     FamilyRecord {
         name: "citrate",
-        synonyms: &[
-            "citric acid",
-            "c6h8o7",
-            "dihydrogen citrate",
-            "hydrogen citrate",
-        ],
+        synonyms: &["citric acid", "c6h8o7", "dihydrogen citrate", "hydrogen citrate"],
         formula: "H3C6H5O7",
         charge_most_protonated: 0,
         steps: &[

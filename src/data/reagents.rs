@@ -370,11 +370,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "iron(ii) sulfate heptahydrate",
-        synonyms: &[
-            "feso4·7h2o",
-            "ferrous sulfate heptahydrate",
-            "green vitriol",
-        ],
+        synonyms: &["feso4·7h2o", "ferrous sulfate heptahydrate", "green vitriol"],
         formula: "FeSO4·7H2O",
         molar_mass_g_per_mol: 278.006,
         parts: &[(Ion("iron(ii)"), 1), (form("sulfate", 0), 1)],
@@ -382,18 +378,10 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "ammonium iron(ii) sulfate hexahydrate",
-        synonyms: &[
-            "mohr's salt",
-            "ferrous ammonium sulfate",
-            "(nh4)2fe(so4)2·6h2o",
-        ],
+        synonyms: &["mohr's salt", "ferrous ammonium sulfate", "(nh4)2fe(so4)2·6h2o"],
         formula: "(NH4)2Fe(SO4)2·6H2O",
         molar_mass_g_per_mol: 392.125,
-        parts: &[
-            (form("ammonia", 1), 2),
-            (Ion("iron(ii)"), 1),
-            (form("sulfate", 0), 2),
-        ],
+        parts: &[(form("ammonia", 1), 2), (Ion("iron(ii)"), 1), (form("sulfate", 0), 2)],
         source: ATOMIC_WEIGHTS,
     },
     ReagentRecord {
@@ -462,11 +450,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "sodium hydrogen sulfate",
-        synonyms: &[
-            "nahso4",
-            "sodium bisulfate",
-            "anhydrous sodium hydrogen sulfate",
-        ],
+        synonyms: &["nahso4", "sodium bisulfate", "anhydrous sodium hydrogen sulfate"],
         formula: "NaHSO4",
         molar_mass_g_per_mol: 120.054,
         parts: &[(Ion("sodium"), 1), (form("sulfate", 1), 1)],
@@ -675,17 +659,10 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     // KH3(C2O4)2 = K+ + H2C2O4 + HC2O4-.
     ReagentRecord {
         name: "potassium tetraoxalate dihydrate",
-        synonyms: &[
-            "potassium trihydrogen dioxalate dihydrate",
-            "kh3(c2o4)2·2h2o",
-        ],
+        synonyms: &["potassium trihydrogen dioxalate dihydrate", "kh3(c2o4)2·2h2o"],
         formula: "KH3(C2O4)2·2H2O",
         molar_mass_g_per_mol: 254.188,
-        parts: &[
-            (Ion("potassium"), 1),
-            (form("oxalate", 2), 1),
-            (form("oxalate", 1), 1),
-        ],
+        parts: &[(Ion("potassium"), 1), (form("oxalate", 2), 1), (form("oxalate", 1), 1)],
         source: ATOMIC_WEIGHTS,
     },
     ReagentRecord {
@@ -749,11 +726,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
         synonyms: &["rochelle salt", "seignette salt", "knac4h4o6·4h2o"],
         formula: "KNaC4H4O6·4H2O",
         molar_mass_g_per_mol: 282.218,
-        parts: &[
-            (Ion("potassium"), 1),
-            (Ion("sodium"), 1),
-            (form("tartrate", 0), 1),
-        ],
+        parts: &[(Ion("potassium"), 1), (Ion("sodium"), 1), (form("tartrate", 0), 1)],
         source: ATOMIC_WEIGHTS,
     },
     ReagentRecord {
@@ -766,12 +739,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "potassium hydrogen phthalate",
-        synonyms: &[
-            "khp",
-            "potassium biphthalate",
-            "potassium acid phthalate",
-            "khc8h4o4",
-        ],
+        synonyms: &["khp", "potassium biphthalate", "potassium acid phthalate", "khc8h4o4"],
         formula: "KHC8H4O4",
         molar_mass_g_per_mol: 204.222,
         parts: &[(Ion("potassium"), 1), (form("phthalate", 1), 1)],
@@ -803,11 +771,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "trisodium citrate dihydrate",
-        synonyms: &[
-            "sodium citrate dihydrate",
-            "sodium citrate",
-            "na3c6h5o7·2h2o",
-        ],
+        synonyms: &["sodium citrate dihydrate", "sodium citrate", "na3c6h5o7·2h2o"],
         formula: "Na3C6H5O7·2H2O",
         molar_mass_g_per_mol: 294.099,
         parts: &[(Ion("sodium"), 3), (form("citrate", 0), 1)],
@@ -906,11 +870,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "trisodium phosphate",
-        synonyms: &[
-            "na3po4",
-            "sodium phosphate tribasic",
-            "anhydrous trisodium phosphate",
-        ],
+        synonyms: &["na3po4", "sodium phosphate tribasic", "anhydrous trisodium phosphate"],
         formula: "Na3PO4",
         molar_mass_g_per_mol: 163.940,
         parts: &[(Ion("sodium"), 3), (form("phosphate", 0), 1)],
@@ -926,11 +886,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "potassium dihydrogen phosphate",
-        synonyms: &[
-            "kh2po4",
-            "monopotassium phosphate",
-            "potassium phosphate monobasic",
-        ],
+        synonyms: &["kh2po4", "monopotassium phosphate", "potassium phosphate monobasic"],
         formula: "KH2PO4",
         molar_mass_g_per_mol: 136.084,
         parts: &[(Ion("potassium"), 1), (form("phosphate", 2), 1)],
@@ -938,11 +894,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "dipotassium hydrogen phosphate",
-        synonyms: &[
-            "k2hpo4",
-            "dipotassium phosphate",
-            "potassium phosphate dibasic",
-        ],
+        synonyms: &["k2hpo4", "dipotassium phosphate", "potassium phosphate dibasic"],
         formula: "K2HPO4",
         molar_mass_g_per_mol: 174.174,
         parts: &[(Ion("potassium"), 2), (form("phosphate", 1), 1)],
@@ -1055,11 +1007,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
         ],
         formula: "Na2B4O7·10H2O",
         molar_mass_g_per_mol: 381.363,
-        parts: &[
-            (Ion("sodium"), 2),
-            (form("borate", 1), 2),
-            (form("borate", 0), 2),
-        ],
+        parts: &[(Ion("sodium"), 2), (form("borate", 1), 2), (form("borate", 0), 2)],
         source: ATOMIC_WEIGHTS,
     },
     // Takes up 7 H2O on dissolution to give the same species as borax.
@@ -1068,11 +1016,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
         synonyms: &["anhydrous borax", "disodium tetraborate", "na2b4o7"],
         formula: "Na2B4O7",
         molar_mass_g_per_mol: 201.213,
-        parts: &[
-            (Ion("sodium"), 2),
-            (form("borate", 1), 2),
-            (form("borate", 0), 2),
-        ],
+        parts: &[(Ion("sodium"), 2), (form("borate", 1), 2), (form("borate", 0), 2)],
         source: ATOMIC_WEIGHTS,
     },
     ReagentRecord {
@@ -1480,11 +1424,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "l-lysine monohydrochloride",
-        synonyms: &[
-            "lysine hydrochloride",
-            "lysine hcl",
-            "l-lysine hydrochloride",
-        ],
+        synonyms: &["lysine hydrochloride", "lysine hcl", "l-lysine hydrochloride"],
         formula: "C6H14N2O2·HCl",
         molar_mass_g_per_mol: 182.648,
         parts: &[(form("lysine", 2), 1), (Ion("chloride"), 1)],
@@ -1516,11 +1456,7 @@ pub(crate) const REAGENTS: &[ReagentRecord] = &[
     },
     ReagentRecord {
         name: "edta",
-        synonyms: &[
-            "edta free acid",
-            "ethylenediaminetetraacetic acid",
-            "h4edta",
-        ],
+        synonyms: &["edta free acid", "ethylenediaminetetraacetic acid", "h4edta"],
         formula: "C10H16N2O8",
         molar_mass_g_per_mol: 292.244,
         parts: &[(form("edta", 4), 1)],
