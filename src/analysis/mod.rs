@@ -6,4 +6,4 @@
 
 pub mod titration;
 
-pub use titration::{Titration, TitrationPoint};
+pub use titration::{Stepping, Titration, TitrationPoint};
