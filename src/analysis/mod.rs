@@ -4,6 +4,12 @@
 //! [`Solver`](crate::Solver) and reads derivatives from
 //! [`Sensitivities`](crate::Sensitivities).
 
+pub mod design;
+pub mod fit;
 pub mod titration;
+pub mod uncertainty;
 
-pub use titration::{Stepping, Titration, TitrationPoint};
+pub use titration::{Titration, TitrationPoint};
+pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};
+pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
+pub use uncertainty::{Input, PropagatedUncertainty, Propagation, SpeciesUncertainty};
