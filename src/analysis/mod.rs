@@ -9,7 +9,7 @@ pub mod fit;
 pub mod titration;
 pub mod uncertainty;
 
-pub use titration::{Titration, TitrationPoint};
+pub use titration::{Stepping, Titration, TitrationPoint};
 pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};
 pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
 pub use uncertainty::{Input, PropagatedUncertainty, Propagation, SpeciesUncertainty};
