@@ -21,6 +21,17 @@ const LN10: f64 = std::f64::consts::LN_10;
 /// How far (ln units) L may move from the reference before the coefficients are retaken.
 const RESCALE_SPAN: f64 = 20.0;
 
+/// The charge balance split into its positive part P = Σ_{z>0} z·m and negative part
+/// N = Σ_{z<0} |z|·m, with their derivatives by L = ln a(H⁺).
+#[derive(Debug, Default, Clone, Copy)]
+struct Balance {
+    pos: f64,
+    dpos: f64,
+    neg: f64,
+    dneg: f64,
+    ok: bool,
+}
+
 /// Largest |ν(H⁺)| of any species: families have at most 12 protons and complexes gain or
 /// lose at most 12 (both checked where they are defined).
 const NU_SPAN: usize = 12;
@@ -29,11 +40,12 @@ const NU_SPAN: usize = 12;
 pub(crate) struct Fast<'a> {
     sys: &'a System,
     pub(crate) ev: Evaluation,
-    /// Coefficient of each uncoupled species at `l_ref` (normalised per component).
-    e: Vec<f64>,
-    /// Per component: the log-scale taken out of its coefficients (`[..nc]`) and Σv at the
-    /// last evaluation (`[nc..]`).
-    m_s0: Vec<f64>,
+    /// One buffer: the coefficient of each uncoupled species at `l_ref` (normalised per
+    /// component) in `[..ns]`; per component, the log-scale taken out of its coefficients in
+    /// `[ns..ns + nc]` and Σv at the last evaluation in `[ns + nc..]`.
+    work: Vec<f64>,
+    ns: usize,
+    nc: usize,
     l_ref: f64,
     /// x^k for k = −12..=12 at index k + 12.
     pw: [f64; 2 * NU_SPAN + 1],
@@ -45,9 +57,10 @@ impl<'a> Fast<'a> {
         let ns = sys.species.len();
         Fast {
             sys,
-            ev: Evaluation::new(ns),
-            e: vec![0.0; ns],
-            m_s0: vec![0.0; 2 * nc],
+            ev: Evaluation::without_slopes(ns),
+            work: vec![0.0; ns + 2 * nc],
+            ns,
+            nc,
             l_ref: f64::NAN,
             pw: [1.0; 2 * NU_SPAN + 1],
         }
@@ -64,20 +77,20 @@ impl<'a> Fast<'a> {
         let sys = self.sys;
         for &s in &sys.members[0] {
             let b = sys.ln_k[s] - self.ev.ln_gamma[s] + f64::from(sys.nu_h[s]) * l;
-            self.e[s] = b.min(700.0).exp();
+            self.work[s] = b.min(700.0).exp();
         }
         for g in self.active() {
             let members = &sys.members[g];
             let mut m = f64::NEG_INFINITY;
             for &s in members {
                 let b = sys.ln_k[s] - self.ev.ln_gamma[s] + f64::from(sys.nu_h[s]) * l;
-                self.e[s] = b;
+                self.work[s] = b;
                 m = m.max(b);
             }
             for &s in members {
-                self.e[s] = (self.e[s] - m).exp();
+                self.work[s] = (self.work[s] - m).exp();
             }
-            self.m_s0[g] = m;
+            self.work[self.ns + g] = m;
         }
         self.l_ref = l;
     }
@@ -102,68 +115,91 @@ impl<'a> Fast<'a> {
 
     #[inline]
     fn weight(&self, s: usize) -> f64 {
-        self.e[s] * self.pw[(self.sys.nu_h[s] + NU_SPAN as i32) as usize]
+        self.work[s] * self.pw[(self.sys.nu_h[s] + NU_SPAN as i32) as usize]
     }
 
-    /// Charge balance and its slope at L with the current ln γ.
-    fn charge(&mut self, l: f64) -> (f64, f64) {
+    /// The charge balance at L with the current ln γ, split into its positive and negative
+    /// parts (see [`Balance`]).
+    fn charge(&mut self, l: f64) -> Balance {
         if !self.powers(l) {
             self.rescale(l);
             self.powers(l);
         }
-        let (f, df, ok) = self.sums();
-        if ok {
-            return (f, df);
+        let b = self.sums();
+        if b.ok {
+            return b;
         }
         self.rescale(l);
         self.powers(l);
-        let (f, df, _) = self.sums();
-        (f, df)
+        self.sums()
     }
 
-    fn sums(&mut self) -> (f64, f64, bool) {
+    fn sums(&mut self) -> Balance {
         let sys = self.sys;
         let nc = sys.components.len();
-        let mut f = 0.0;
-        let mut df = 0.0;
+        let mut b = Balance::default();
         for &s in &sys.members[0] {
             let v = self.weight(s);
-            f += sys.charge_f[s] * v;
-            df += sys.charge_f[s] * f64::from(sys.nu_h[s]) * v;
+            let z = sys.charge_f[s];
+            let d = z * f64::from(sys.nu_h[s]) * v;
+            if z > 0.0 {
+                b.pos += z * v;
+                b.dpos += d;
+            } else {
+                b.neg -= z * v;
+                b.dneg -= d;
+            }
         }
-        let mut ok = f.is_finite() && df.is_finite();
+        let mut ok = b.pos.is_finite() && b.neg.is_finite();
         for g in self.active() {
-            let (mut s0, mut sz, mut sn, mut szn) = (0.0, 0.0, 0.0, 0.0);
+            // Σv, Σν·v, and Σz·v, Σz·ν·v over the positive and over the negative species.
+            let (mut s0, mut sn, mut zp, mut znp, mut zm, mut znm) = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
             for &s in &sys.members[g] {
                 let v = self.weight(s);
                 let nu = f64::from(sys.nu_h[s]);
                 let z = sys.charge_f[s];
                 s0 += v;
-                sz += z * v;
                 sn += nu * v;
-                szn += z * nu * v;
+                if z > 0.0 {
+                    zp += z * v;
+                    znp += z * nu * v;
+                } else if z < 0.0 {
+                    zm -= z * v;
+                    znm -= z * nu * v;
+                }
             }
             ok &= s0 > 1e-250 && s0 < 1e250;
-            let t = sys.components[g].total_molal;
-            let mz = sz / s0;
-            f += t * mz;
-            df += t * (szn / s0 - mz * sn / s0);
-            self.m_s0[nc + g] = s0;
+            // m_s = T·v_s/Σv and dm_s/dL = m_s·(ν_s − ν̄).
+            let t = sys.components[g].total_molal / s0;
+            let nbar = sn / s0;
+            b.pos += t * zp;
+            b.dpos += t * (znp - zp * nbar);
+            b.neg += t * zm;
+            b.dneg += t * (znm - zm * nbar);
+            self.work[self.ns + nc + g] = s0;
         }
-        (f, df, ok)
+        b.ok = ok;
+        b
     }
 
-    /// Solves f(L) = 0 at fixed γ from `l0`. Returns L and the number of evaluations.
-    fn solve_l(&mut self, l0: f64) -> Result<(f64, usize)> {
-        const MAX_STEP: f64 = 3.0 * LN10;
+    /// Solves the charge balance at fixed γ from `l0`. Returns L and the number of
+    /// evaluations.
+    ///
+    /// Newton steps are taken on g(L) = ln P − ln N (P and N the positive and negative
+    /// charge, both > 0 since H⁺ and OH⁻ are always present), which stays nearly linear in L
+    /// over decades where P − N does not; the sign of P − N keeps a bracket, and a step that
+    /// leaves the bracket becomes a bisection.
+    fn solve_l(&mut self, l0: f64, accept: f64) -> Result<(f64, usize)> {
+        const MAX_STEP: f64 = 8.0 * LN10;
         let mut l = l0.clamp(LN_AH_MIN, LN_AH_MAX);
-        let (mut f, mut d) = self.charge(l);
+        let mut b = self.charge(l);
         let mut lo = LN_AH_MIN;
         let mut hi = LN_AH_MAX;
         let mut lo_ok = false;
         let mut hi_ok = false;
         let mut evals = 1;
         for _ in 0..300 {
+            let f = b.pos - b.neg;
             if f == 0.0 {
                 return Ok((l, evals));
             }
@@ -174,10 +210,24 @@ impl<'a> Fast<'a> {
                 hi = l;
                 hi_ok = true;
             }
-            let newton = if d > 0.0 && d.is_finite() { -f / d } else { f64::NAN };
+            let g = (b.pos / b.neg).ln();
+            let dg = b.dpos / b.pos - b.dneg / b.neg;
+            let newton = if dg > 0.0 && dg.is_finite() && g.is_finite() {
+                -g / dg
+            } else {
+                let df = b.dpos - b.dneg;
+                if df > 0.0 { -f / df } else { f64::NAN }
+            };
             if newton.abs() <= 1e-14 * l.abs().max(1.0) {
-                // The Newton correction is below round-off: f is zero to working precision.
+                // The Newton correction is below round-off: the balance holds to working
+                // precision.
                 return Ok((l, evals));
+            }
+            if newton.abs() <= accept.max(1e-8) && l + newton > lo && l + newton < hi {
+                // Newton converges quadratically here: after a correction of 1e-8 the error
+                // is of order 1e-16, below what one more evaluation could resolve. (A looser
+                // `accept` serves the early ionic-strength iterations, whose γ are still off.)
+                return Ok((l + newton, evals));
             }
             let mut next = if newton.is_finite() {
                 l + newton.clamp(-MAX_STEP, MAX_STEP)
@@ -201,7 +251,7 @@ impl<'a> Fast<'a> {
             }
             let step = next - l;
             l = next;
-            (f, d) = self.charge(l);
+            b = self.charge(l);
             evals += 1;
             if !bisect && step.abs() <= 1e-12 {
                 return Ok((l, evals));
@@ -209,6 +259,7 @@ impl<'a> Fast<'a> {
             if lo_ok && hi_ok && (hi - lo) <= 4.0 * f64::EPSILON * l.abs().max(1.0) {
                 return Ok((l, evals));
             }
+            let f = b.pos - b.neg;
             if (l <= LN_AH_MIN && f > 0.0) || (l >= LN_AH_MAX && f < 0.0) {
                 return Err(no_root(l, evals));
             }
@@ -237,9 +288,9 @@ impl<'a> Fast<'a> {
         }
         for g in self.active() {
             let t = sys.components[g].total_molal;
-            let s0 = self.m_s0[nc + g];
+            let s0 = self.work[self.ns + self.nc + g];
             // Σ_s m_s = a_g · e^{m_g} · Σv = T, so ln a_g = ln T − m_g − ln Σv.
-            y[g] = t.ln() - self.m_s0[g] - s0.ln();
+            y[g] = t.ln() - self.work[self.ns + g] - s0.ln();
             for &s in &sys.members[g] {
                 let c = t * self.weight(s) / s0;
                 self.ev.conc[s] = c;
@@ -283,10 +334,13 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
     let ideal = sys.model == crate::ActivityModel::Ideal;
     let mut evals = 0;
     let mut prev: Option<(f64, f64)> = None; // (I, G(I) − I)
+    // How closely L is solved at the current γ: loosely while I is still far off (the γ
+    // error then dominates), to round-off once it has settled.
+    let mut accept = if ideal { 0.0 } else { 1e-3 };
     for _ in 0..100 {
         fast.ev.set_gamma(sys, i);
         fast.rescale(l);
-        let (ln_ah, n) = fast.solve_l(l)?;
+        let (ln_ah, n) = fast.solve_l(l, accept)?;
         evals += n;
         l = ln_ah;
         let (p, g) = fast.finish(l, i.ln());
@@ -296,8 +350,14 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
         }
         let h = g - i;
         if h.abs() <= tol * i {
-            return Ok((p, fast.ev, evals));
+            if accept <= 1e-8 {
+                return Ok((p, fast.ev, evals));
+            }
+            // I has settled while L was solved loosely: solve L tightly at this I.
+            accept = 0.0;
+            continue;
         }
+        accept = (0.01 * (h / i).abs()).min(1e-3);
         let mut next = g;
         if let Some((ip, hp)) = prev {
             let den = h - hp;

@@ -177,13 +177,24 @@ impl Evaluation {
         }
     }
 
-    /// Fills ln γ and its slope at ionic strength `i`.
+    /// An evaluation that does not keep d ln γ/dI (the fast path does not need it).
+    pub(crate) fn without_slopes(n_species: usize) -> Self {
+        Evaluation {
+            conc: vec![0.0; n_species],
+            ln_gamma: vec![0.0; n_species],
+            dln_gamma_di: Vec::new(),
+        }
+    }
+
+    /// Fills ln γ and its slope at ionic strength `i` (the slope only where it is kept).
     pub(crate) fn set_gamma(&mut self, sys: &System, i: f64) {
         let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
         for (s, sp) in sys.species.iter().enumerate() {
             let (lg, d) = profile.at(sp.charge, sp.ion_size_angstrom);
             self.ln_gamma[s] = lg * LN10;
-            self.dln_gamma_di[s] = d * LN10;
+            if let Some(slot) = self.dln_gamma_di.get_mut(s) {
+                *slot = d * LN10;
+            }
         }
     }
 
