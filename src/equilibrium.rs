@@ -225,8 +225,9 @@ impl Equilibrium {
                 }
             })
             .collect();
-        let mut free_molal = Vec::new();
-        let mut mass_relative = Vec::new();
+        let n_active = sys.components.iter().skip(1).filter(|c| c.total_molal > 0.0).count();
+        let mut free_molal = Vec::with_capacity(n_active);
+        let mut mass_relative = Vec::with_capacity(n_active);
         for (ci, c) in sys.components.iter().enumerate().skip(1) {
             if c.total_molal > 0.0 {
                 free_molal.push((c.name.clone(), sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0)));

@@ -181,6 +181,8 @@ pub struct System {
     /// ν(H⁺) of each species as an integer, and each species' charge as a float.
     pub(crate) nu_h: Vec<i32>,
     pub(crate) charge_f: Vec<f64>,
+    /// Per species: (ν(H⁺) as a float, max(z, 0), max(−z, 0)) for the fast path's sums.
+    pub(crate) fast_coef: Vec<(f64, f64, f64)>,
     /// Largest ν(H⁺) and largest −ν(H⁺) over the uncoupled species (both ≥ 0).
     pub(crate) nu_h_span: (usize, usize),
     pub(crate) compile_warnings: Vec<Warning>,
@@ -371,6 +373,12 @@ impl System {
         let family_names = b.families.iter().map(|f| Arc::from(f.protolyte.name())).collect();
         let species_len = species.len();
         let nu_h: Vec<i32> = (0..species_len).map(|s| nu[s * nc].round() as i32).collect();
+        let fast_coef = (0..species_len)
+            .map(|s| {
+                let z = f64::from(species[s].charge);
+                (f64::from(nu_h[s]), z.max(0.0), (-z).max(0.0))
+            })
+            .collect();
         let unc = || (0..species_len).filter(|&s| !coupling[s]);
         let nu_h_span = (
             unc().map(|s| nu_h[s].max(0) as usize).max().unwrap_or(0),
@@ -396,6 +404,7 @@ impl System {
             free_species,
             family_names,
             nu_h_span,
+            fast_coef,
             nu_h,
             charge_f,
             compile_warnings: warnings,

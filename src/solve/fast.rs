@@ -46,6 +46,8 @@ pub(crate) struct Fast<'a> {
     work: Vec<f64>,
     ns: usize,
     nc: usize,
+    /// Under Davies: ln γ of a singly charged ion at the current I.
+    davies_unit: f64,
     l_ref: f64,
     /// x^k for k = −12..=12 at index k + 12.
     pw: [f64; 2 * NU_SPAN + 1],
@@ -61,6 +63,7 @@ impl<'a> Fast<'a> {
             work: vec![0.0; ns + 2 * nc],
             ns,
             nc,
+            davies_unit: 0.0,
             l_ref: f64::NAN,
             pw: [1.0; 2 * NU_SPAN + 1],
         }
@@ -93,6 +96,39 @@ impl<'a> Fast<'a> {
             self.work[self.ns + g] = m;
         }
         self.l_ref = l;
+    }
+
+    /// Moves to new activity coefficients at ionic strength `i` without retaking the
+    /// coefficients in log space: each one is multiplied by γ_old/γ_new. Under Davies, ln γ
+    /// is z² times one number, so the factors are integer powers of a single exponential.
+    fn update_gamma(&mut self, i: f64) {
+        let sys = self.sys;
+        if sys.model == crate::ActivityModel::Davies {
+            let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
+            let unit = profile.at(1, 0.0).0 * LN10; // ln γ of a singly charged ion
+            let old_unit = self.davies_unit;
+            let base = (old_unit - unit).exp();
+            for (s, sp) in sys.species.iter().enumerate() {
+                let z2 = sp.charge * sp.charge;
+                if z2 != 0 {
+                    self.ev.ln_gamma[s] = unit * f64::from(z2);
+                    self.work[s] *= base.powi(z2);
+                }
+            }
+            self.davies_unit = unit;
+        } else {
+            let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
+            for s in 0..sys.species.len() {
+                let old = self.ev.ln_gamma[s];
+                let sp = &sys.species[s];
+                let (lg, _) = profile.at(sp.charge, sp.ion_size_angstrom);
+                let new = lg * LN10;
+                self.ev.ln_gamma[s] = new;
+                if new != old {
+                    self.work[s] *= (old - new).exp();
+                }
+            }
+        }
     }
 
     /// Fills the power table for L and returns false when it is out of safe range.
@@ -156,17 +192,14 @@ impl<'a> Fast<'a> {
             let (mut s0, mut sn, mut zp, mut znp, mut zm, mut znm) = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
             for &s in &sys.members[g] {
                 let v = self.weight(s);
-                let nu = f64::from(sys.nu_h[s]);
-                let z = sys.charge_f[s];
+                let (nu, zpos, zneg) = sys.fast_coef[s];
+                let nv = nu * v;
                 s0 += v;
-                sn += nu * v;
-                if z > 0.0 {
-                    zp += z * v;
-                    znp += z * nu * v;
-                } else if z < 0.0 {
-                    zm -= z * v;
-                    znm -= z * nu * v;
-                }
+                sn += nv;
+                zp += zpos * v;
+                znp += zpos * nv;
+                zm += zneg * v;
+                znm += zneg * nv;
             }
             ok &= s0 > 1e-250 && s0 < 1e250;
             // m_s = T·v_s/Σv and dm_s/dL = m_s·(ν_s − ν̄).
@@ -337,9 +370,13 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
     // How closely L is solved at the current γ: loosely while I is still far off (the γ
     // error then dominates), to round-off once it has settled.
     let mut accept = if ideal { 0.0 } else { 1e-3 };
-    for _ in 0..100 {
-        fast.ev.set_gamma(sys, i);
-        fast.rescale(l);
+    fast.ev.set_gamma(sys, i);
+    fast.davies_unit = crate::activity::GammaProfile::new(sys.model, i, &sys.dh).at(1, 0.0).0 * LN10;
+    fast.rescale(l);
+    for iteration in 0..100 {
+        if iteration > 0 {
+            fast.update_gamma(i);
+        }
         let (ln_ah, n) = fast.solve_l(l, accept)?;
         evals += n;
         l = ln_ah;
