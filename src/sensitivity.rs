@@ -11,7 +11,7 @@ use nalgebra::DMatrix;
 
 use crate::equilibrium::Equilibrium;
 use crate::error::{Error, Result};
-use crate::solve::newton::{active, jacobian};
+use crate::solve::newton::{Layout, jacobian_in};
 use crate::solve::{Evaluation, Point};
 use crate::system::System;
 
@@ -78,9 +78,10 @@ impl Sensitivities {
         let mut ev = Evaluation::new(ns);
         ev.set_gamma(sys, i);
         ev.set_conc(sys, &p);
-        let act = active(sys);
+        let layout = Layout::new(sys);
+        let jac = jacobian_in(&ev, &layout, &p);
+        let act = layout.act;
         let m = act.len() + 1;
-        let jac = jacobian(sys, &ev, &act, &p);
         let np = (nc - 1) + ns + 1;
         let mut dfdp = DMatrix::zeros(m, np);
         // Coefficient of species s in equation row k.

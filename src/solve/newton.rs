@@ -23,32 +23,87 @@ pub(crate) fn active(sys: &System) -> Vec<usize> {
         .collect()
 }
 
+/// The sparsity of the equations for one set of active components, computed once a solve.
+///
+/// Unknowns: ln a of each active component (position k in `act`), then ln I (position
+/// m − 1). Equations: charge balance (row 0), the mass balance of each active non-H
+/// component (row k), ionic strength (row m − 1).
+pub(crate) struct Layout {
+    pub act: Vec<usize>,
+    /// Species whose components are all active (the others have zero concentration).
+    species: Vec<usize>,
+    /// Per listed species: (unknown, ν) for its active components.
+    col_start: Vec<usize>,
+    cols: Vec<(usize, f64)>,
+    /// Per listed species: (equation, coefficient) — z, ν, ½z².
+    row_start: Vec<usize>,
+    rows: Vec<(usize, f64)>,
+    /// Per active position k ≥ 1: (species, ν) with ν > 0, for the fraction sweeps.
+    incidence: Vec<Vec<(usize, f64)>>,
+}
+
+impl Layout {
+    pub(crate) fn new(sys: &System) -> Self {
+        let act = active(sys);
+        let m = act.len() + 1;
+        let mut pos = vec![usize::MAX; sys.components.len()];
+        for (k, &c) in act.iter().enumerate() {
+            pos[c] = k;
+        }
+        let mut layout = Layout {
+            species: Vec::with_capacity(sys.species.len()),
+            col_start: vec![0],
+            cols: Vec::new(),
+            row_start: vec![0],
+            rows: Vec::new(),
+            incidence: vec![Vec::new(); act.len()],
+            act,
+        };
+        'species: for s in 0..sys.species.len() {
+            let terms = &sys.terms[sys.term_start[s]..sys.term_start[s + 1]];
+            if terms.iter().any(|&(c, _)| pos[c] == usize::MAX) {
+                continue 'species;
+            }
+            let z = sys.charge_f[s];
+            for &(c, v) in terms {
+                layout.cols.push((pos[c], v));
+                if c != 0 {
+                    layout.rows.push((pos[c], v));
+                    if v > 0.0 {
+                        layout.incidence[pos[c]].push((layout.species.len(), v));
+                    }
+                }
+            }
+            if z != 0.0 {
+                layout.rows.push((0, z));
+                layout.rows.push((m - 1, 0.5 * z * z));
+            }
+            layout.species.push(s);
+            layout.col_start.push(layout.cols.len());
+            layout.row_start.push(layout.rows.len());
+        }
+        layout
+    }
+
+    fn m(&self) -> usize {
+        self.act.len() + 1
+    }
+}
+
 /// Unscaled residual vector F and the row scales, in the order (charge, active masses, I).
-pub(crate) fn residual(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> (DVector<f64>, DVector<f64>) {
-    let m = act.len() + 1;
+pub(crate) fn residual(sys: &System, ev: &Evaluation, lay: &Layout, p: &Point) -> (DVector<f64>, DVector<f64>) {
+    let m = lay.m();
     let mut f = DVector::zeros(m);
     let mut scale = DVector::zeros(m);
     let i = p.ln_i.exp();
-    let mut pos = vec![usize::MAX; sys.components.len()];
-    for (k, &c) in act.iter().enumerate() {
-        pos[c] = k;
-    }
-    for (s, sp) in sys.species.iter().enumerate() {
+    for (n, &s) in lay.species.iter().enumerate() {
         let c = ev.conc[s];
-        if c == 0.0 {
-            continue;
+        scale[0] += sys.charge_f[s].abs() * c;
+        for &(row, coef) in &lay.rows[lay.row_start[n]..lay.row_start[n + 1]] {
+            f[row] += coef * c;
         }
-        let z = f64::from(sp.charge);
-        f[0] += z * c;
-        scale[0] += z.abs() * c;
-        for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
-            if comp != 0 && pos[comp] != usize::MAX {
-                f[pos[comp]] += v * c;
-            }
-        }
-        f[m - 1] += 0.5 * z * z * c;
     }
-    for (k, &comp) in act.iter().enumerate().skip(1) {
+    for (k, &comp) in lay.act.iter().enumerate().skip(1) {
         let t = sys.components[comp].total_molal;
         f[k] -= t;
         scale[k] = t;
@@ -59,55 +114,38 @@ pub(crate) fn residual(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) 
 }
 
 /// The analytic Jacobian of [`residual`] with respect to (ln a of the active components,
-/// ln I).
-pub(crate) fn jacobian(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> DMatrix<f64> {
-    let m = act.len() + 1;
+/// ln I): ∂F_row/∂y_k = Σ_s coef(row, s)·m_s·∂ln m_s/∂y_k, with ∂ln m_s/∂ln a_c = ν(s, c) and
+/// ∂ln m_s/∂ln I = −(d ln γ_s/dI)·I.
+pub(crate) fn jacobian_in(ev: &Evaluation, lay: &Layout, p: &Point) -> DMatrix<f64> {
+    let m = lay.m();
     // Column-major m × m, filled through a flat buffer (entry (row, col) at col·m + row).
     let mut j = vec![0.0; m * m];
     let i = p.ln_i.exp();
-    // Position of each component among the unknowns.
-    let mut pos = vec![usize::MAX; sys.components.len()];
-    for (k, &c) in act.iter().enumerate() {
-        pos[c] = k;
-    }
-    let mut idx: Vec<(usize, f64)> = Vec::with_capacity(8);
-    let mut rows: Vec<(usize, f64)> = Vec::with_capacity(8);
-    for s in 0..sys.species.len() {
+    for (n, &s) in lay.species.iter().enumerate() {
         let c = ev.conc[s];
         if c == 0.0 {
             continue;
         }
-        let z = sys.charge_f[s];
-        // d ln m_s / d unknown: ν for its components, −(d ln γ/dI)·I for ln I.
-        idx.clear();
-        rows.clear();
-        for &(comp, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
-            let k = pos[comp];
-            if k != usize::MAX {
-                idx.push((k, v));
-                if comp != 0 {
-                    rows.push((k, v * c));
-                }
-            }
-        }
         let gi = -ev.dln_gamma_di[s] * i;
-        if gi != 0.0 {
-            idx.push((m - 1, gi));
-        }
-        // Equations species s enters, with its coefficient: charge (z), the mass balances
-        // of its components (ν), ionic strength (½z²).
-        if z != 0.0 {
-            rows.push((0, z * c));
-            rows.push((m - 1, 0.5 * z * z * c));
-        }
-        for &(row, rc) in &rows {
-            for &(k, v) in &idx {
+        let cols = &lay.cols[lay.col_start[n]..lay.col_start[n + 1]];
+        for &(row, coef) in &lay.rows[lay.row_start[n]..lay.row_start[n + 1]] {
+            let rc = coef * c;
+            for &(k, v) in cols {
                 j[k * m + row] += rc * v;
             }
+            j[(m - 1) * m + row] += rc * gi;
         }
     }
     j[(m - 1) * m + (m - 1)] -= i;
     DMatrix::from_vec(m, m, j)
+}
+
+/// The Jacobian for the active components `act` of `sys` (which must be those with a
+/// positive total, as [`active`] lists them).
+pub(crate) fn jacobian(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> DMatrix<f64> {
+    let lay = Layout::new(sys);
+    debug_assert_eq!(lay.act, act);
+    jacobian_in(ev, &lay, p)
 }
 
 fn merit(f: &DVector<f64>, scale: &DVector<f64>) -> f64 {
@@ -137,20 +175,17 @@ fn evaluate(sys: &System, ev: &mut Evaluation, p: &Point) {
 /// Positive-continued-fraction sweeps on the component activities at fixed a(H⁺) and I,
 /// Gauss–Seidel order (each component's update sees the previous ones), until every mass
 /// balance is within a factor e^0.1 or `sweeps` run out.
-fn pcf_sweeps(sys: &System, ev: &mut Evaluation, act: &[usize], p: &mut Point, sweeps: usize) {
-    let nc = sys.components.len();
+fn pcf_sweeps(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, sweeps: usize) {
     evaluate(sys, ev, p);
     for _ in 0..sweeps {
         let mut worst: f64 = 0.0;
-        for &c in &act[1..] {
+        for (k, &c) in lay.act.iter().enumerate().skip(1) {
+            let inc = &lay.incidence[k];
             let mut sum = 0.0;
             let mut nmax: f64 = 1.0;
-            for s in 0..sys.species.len() {
-                let v = sys.nu[s * nc + c];
-                if v > 0.0 {
-                    sum += v * ev.conc[s];
-                    nmax = nmax.max(v);
-                }
+            for &(n, v) in inc {
+                sum += v * ev.conc[lay.species[n]];
+                nmax = nmax.max(v);
             }
             if sum > 0.0 {
                 let r = (sys.components[c].total_molal / sum).ln();
@@ -158,11 +193,8 @@ fn pcf_sweeps(sys: &System, ev: &mut Evaluation, act: &[usize], p: &mut Point, s
                 let dy = r / nmax;
                 p.y[c] += dy;
                 // Species holding c move by ν·dy; the others are unchanged.
-                for s in 0..sys.species.len() {
-                    let v = sys.nu[s * nc + c];
-                    if v != 0.0 {
-                        ev.conc[s] *= (v * dy).exp();
-                    }
+                for &(n, v) in inc {
+                    ev.conc[lay.species[n]] *= (v * dy).exp();
                 }
             }
         }
@@ -179,7 +211,8 @@ pub(crate) fn solve(
     tol: f64,
     max_iter: usize,
 ) -> Result<(Point, Evaluation, usize)> {
-    let act = active(sys);
+    let lay = Layout::new(sys);
+    let act = &lay.act;
     let nc = sys.components.len();
     let mut ev = Evaluation::new(sys.species.len());
     let mut iters = 0;
@@ -216,13 +249,13 @@ pub(crate) fn solve(
                 }
             };
             iters += n;
-            pcf_sweeps(sys, &mut ev, &act, &mut p, 4);
+            pcf_sweeps(sys, &mut ev, &lay, &mut p, 4);
             p
         }
     };
     let ideal = sys.model == crate::ActivityModel::Ideal;
     evaluate(sys, &mut ev, &p);
-    let (mut f, mut scale) = residual(sys, &ev, &act, &p);
+    let (mut f, mut scale) = residual(sys, &ev, &lay, &p);
     let mut phi = merit(&f, &scale);
     let m = act.len() + 1;
     let mut stalls = 0;
@@ -231,12 +264,12 @@ pub(crate) fn solve(
             return Ok((p, ev, iters));
         }
         iters += 1;
-        let jac = jacobian(sys, &ev, &act, &p);
+        let jac = jacobian_in(&ev, &lay, &p);
         let Some(mut dx) = jac.lu().solve(&(-&f)) else {
             // Singular Jacobian: nudge with more fraction sweeps and go on.
-            pcf_sweeps(sys, &mut ev, &act, &mut p, 10);
+            pcf_sweeps(sys, &mut ev, &lay, &mut p, 10);
             evaluate(sys, &mut ev, &p);
-            (f, scale) = residual(sys, &ev, &act, &p);
+            (f, scale) = residual(sys, &ev, &lay, &p);
             phi = merit(&f, &scale);
             continue;
         };
@@ -257,7 +290,7 @@ pub(crate) fn solve(
             trial.y[0] = trial.y[0].clamp(LN_AH_MIN, LN_AH_MAX);
             trial.ln_i = (p.ln_i + alpha * dx[m - 1]).clamp(I_MIN.ln(), I_MAX.ln());
             evaluate(sys, &mut ev, &trial);
-            let (tf, ts) = residual(sys, &ev, &act, &trial);
+            let (tf, ts) = residual(sys, &ev, &lay, &trial);
             let tphi = merit(&tf, &ts);
             if tphi.is_finite() && tphi <= (1.0 - 1e-4 * alpha) * phi {
                 p.clone_from(&trial);
@@ -280,9 +313,9 @@ pub(crate) fn solve(
             if stalls > 5 {
                 break;
             }
-            pcf_sweeps(sys, &mut ev, &act, &mut p, 10);
+            pcf_sweeps(sys, &mut ev, &lay, &mut p, 10);
             evaluate(sys, &mut ev, &p);
-            (f, scale) = residual(sys, &ev, &act, &p);
+            (f, scale) = residual(sys, &ev, &lay, &p);
             phi = merit(&f, &scale);
         }
     }
