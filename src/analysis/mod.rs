@@ -4,12 +4,23 @@
 //! [`Solver`](crate::Solver) and reads derivatives from
 //! [`Sensitivities`](crate::Sensitivities).
 
+pub mod capacity;
 pub mod design;
+pub mod endpoints;
 pub mod fit;
+pub mod indicators;
+pub mod target;
 pub mod titration;
 pub mod uncertainty;
 
-pub use titration::{Stepping, Titration, TitrationPoint};
+pub use capacity::{CapacityCurve, CapacityPeak, CapacityPoint, capacity_along};
 pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};
+pub use endpoints::{
+    BreakFlag, DerivativeEndpoint, DeviationCause, EquivalencePoint, GranFit, GranFunction, HalfEquivalencePoint,
+    Inflection, StepRef, derivative_endpoints, gran_fit,
+};
 pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
+pub use indicators::{Indicator, indicators, indicators_within};
+pub use target::amount_for_ph;
+pub use titration::{Stepping, Titration, TitrationPoint};
 pub use uncertainty::{Input, PropagatedUncertainty, Propagation, SpeciesUncertainty};
