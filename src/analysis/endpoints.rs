@@ -97,6 +97,10 @@ pub struct EquivalencePoint {
     /// Indicators whose whole transition range lies inside the steep part, nearest to the
     /// equivalence pH first.
     pub indicators: Vec<Indicator>,
+    /// The indicator of the table whose range middle lies nearest the equivalence pH, with
+    /// its titration error: (v at pH = range middle − v_eq)/v_eq, when the curve reaches
+    /// that pH between zero and twice the equivalence volume.
+    pub nearest_indicator: Option<(Indicator, f64)>,
 }
 
 impl EquivalencePoint {
@@ -311,6 +315,13 @@ impl Titration {
             let ph = self.ph_at(Volume::liters(v))?;
             let before = self.ph_at(Volume::liters(v * (1.0 - f)))?;
             let after = self.ph_at(Volume::liters(v * (1.0 + f)))?;
+            let nearest = table
+                .iter()
+                .min_by(|a, b| (a.ph_mid() - ph).abs().total_cmp(&(b.ph_mid() - ph).abs()))
+                .and_then(|i| {
+                    let ve = self.volume_for_ph(i.ph_mid(), Volume::liters(2.0 * v)).ok()?;
+                    Some((*i, (ve.liters_value() - v) / v))
+                });
             out.push(EquivalencePoint {
                 volume_ml: v * 1e3,
                 ph,
@@ -320,6 +331,7 @@ impl Titration {
                 steep_ph: (before, after),
                 flags,
                 indicators: indicators_within(table, before, after, ph),
+                nearest_indicator: nearest,
             });
         }
         out.sort_by(|a, b| a.volume_ml.total_cmp(&b.volume_ml));
