@@ -364,3 +364,35 @@ proptest! {
         }
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(48))]
+
+    /// Any input, however odd, gives a recipe with finite numbers or an error; never a
+    /// panic or a NaN.
+    #[test]
+    fn no_panic_no_nan(ph in -5.0f64..20.0, c in -0.1f64..3.0, v in -1.0f64..5.0, t in -10.0f64..110.0,
+                       stock in 0.0f64..2.0, ionic in prop::option::of(-0.1f64..2.0), adjusted in any::<bool>()) {
+        let ingredients = if adjusted {
+            Ingredients::Adjusted {
+                buffer: vec![Stock::solid(&reagent("acetic acid"))],
+                adjuster: Stock::solution_molar(&reagent("sodium hydroxide"), stock),
+            }
+        } else {
+            Ingredients::AcidAndBase {
+                acid: Stock::solution_molar(&reagent("acetic acid"), stock),
+                base: Stock::solid(&reagent("sodium acetate")),
+            }
+        };
+        let mut spec = BufferSpec::new(ingredients, ph, Amount::molar(c), Conditions::new(Temperature::celsius(t), ActivityModel::Davies), Volume::liters(v));
+        if let Some(i) = ionic {
+            spec = spec.ionic_strength(Amount::molal(i), Stock::solid(&reagent("sodium chloride")));
+        }
+        if let Ok(r) = spec.design() {
+            prop_assert!(r.check_ph.is_finite() && r.ph_residual.abs() < 1e-6);
+            prop_assert!(r.lines.iter().all(|l| l.mol_per_l.is_finite()));
+            prop_assert!(r.buffer_capacity_mol_per_l.is_finite() && r.ionic_strength_molal.is_finite());
+            prop_assert!(r.dilution_shift.shift.is_finite());
+        }
+    }
+}

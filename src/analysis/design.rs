@@ -29,6 +29,20 @@ use crate::solve::Solver;
 use crate::system::{Conditions, System};
 
 /// A reagent as the person has it: a solid to weigh, or a stock solution to pipette.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::analysis::Stock;
+/// use protolyte::Catalog;
+///
+/// let cat = Catalog::builtin();
+/// let solid = Stock::solid(&cat.reagent("tris base")?);
+/// let acid = Stock::solution_molar(&cat.reagent("hydrochloric acid")?, 1.0);
+/// assert_eq!(solid.reagent().name(), "tris base");
+/// assert!(matches!(acid, Stock::Solution { mol_per_l, .. } if mol_per_l == 1.0));
+/// # Ok::<(), protolyte::Error>(())
+/// ```
 #[derive(Debug, Clone, PartialEq)]
 pub enum Stock {
     /// A solid (or pure liquid) weighed out; the reagent needs a molar mass.
@@ -90,6 +104,27 @@ impl Stock {
 }
 
 /// The stocks a buffer is made from.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::analysis::{BufferSpec, Ingredients, Measure, Role, Stock};
+/// use protolyte::{Amount, Catalog, Conditions, Volume};
+///
+/// let cat = Catalog::builtin();
+/// // Tris base titrated to pH 8.0 with 1 mol/L HCl: 50 mmol/L, 200 mL.
+/// let ingredients = Ingredients::Adjusted {
+///     buffer: vec![Stock::solid(&cat.reagent("tris base")?)],
+///     adjuster: Stock::solution_molar(&cat.reagent("hydrochloric acid")?, 1.0),
+/// };
+/// let r = BufferSpec::new(ingredients, 8.0, Amount::millimolar(50.0), Conditions::default(), Volume::milliliters(200.0))
+///     .design()?;
+/// let hcl = r.lines.iter().find(|l| l.role == Role::Adjuster).unwrap();
+/// let Measure::Volume(v) = hcl.measure else { unreachable!() };
+/// // Somewhat over half the tris is protonated at pH 8.0 (pKa 8.07, with activities).
+/// assert!(v.milliliters_value() > 5.0 && v.milliliters_value() < 8.0);
+/// # Ok::<(), protolyte::Error>(())
+/// ```
 #[derive(Debug, Clone, PartialEq)]
 pub enum Ingredients {
     /// The acidic and the basic form of the buffer (for example NaH₂PO₄ and Na₂HPO₄, or

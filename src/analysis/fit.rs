@@ -28,6 +28,15 @@ use crate::solve::Solver;
 use crate::system::System;
 
 /// Something to estimate.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::analysis::Unknown;
+///
+/// assert_eq!(Unknown::pka("acetate", 0).describe(), "pKa1 of acetate");
+/// assert_eq!(Unknown::AnalyteTotal("acetate".into()).describe(), "analyte total of acetate (mol/L)");
+/// ```
 #[derive(Debug, Clone, PartialEq)]
 pub enum Unknown {
     /// The analyte's total of the component named here (a family such as "acetate", or an

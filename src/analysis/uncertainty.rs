@@ -19,6 +19,15 @@ use crate::sensitivity::{Parameter, Sensitivities};
 use crate::system::System;
 
 /// An uncertain input of a system.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::analysis::Input;
+///
+/// assert_eq!(Input::pka("phosphate", 1).describe(), "pKa2 of phosphate");
+/// assert_eq!(Input::total("sodium"), Input::Total { component: "sodium".into() });
+/// ```
 #[derive(Debug, Clone, PartialEq)]
 pub enum Input {
     /// The stepwise pKa of step `step` (0-based, most protonated first) of the family named
