@@ -396,3 +396,31 @@ proptest! {
         }
     }
 }
+
+/// Several families titrated together (acetic, phosphoric and boric acid, each 40 mmol/L,
+/// brought up with sodium hydroxide: the mixture of H. T. S. Britton and R. A. Robinson,
+/// J. Chem. Soc. (1931) 1456, here a design of our own): a wide-range buffer whose pH rises
+/// steadily with the base, so every target in 3–10 is reachable, and each round trip holds.
+#[test]
+fn several_families_adjusted() {
+    for target in [3.0, 5.0, 7.0, 9.0, 10.0] {
+        let r = BufferSpec::new(
+            Ingredients::Adjusted {
+                buffer: vec![
+                    Stock::solution_molar(&reagent("acetic acid"), 1.0),
+                    Stock::solution_molar(&reagent("phosphoric acid"), 1.0),
+                    Stock::solid(&reagent("boric acid")),
+                ],
+                adjuster: Stock::solution_molar(&reagent("sodium hydroxide"), 1.0),
+            },
+            target,
+            Amount::millimolar(40.0),
+            Conditions::default(),
+            Volume::liters(1.0),
+        )
+        .design()
+        .unwrap();
+        assert!(r.ph_residual.abs() < 1e-6, "{target}: {}", r.ph_residual);
+        assert_eq!(r.lines.len(), 4);
+    }
+}

@@ -445,7 +445,7 @@ impl Titration {
             let (v, _) = golden_max(
                 |v| {
                     let eq = c.solve(v, last.as_ref())?;
-                    let d = c.dph_dv(&eq, v)?.abs();
+                    let d = c.dph_dv(&eq)?.abs();
                     last = Some(eq);
                     Ok(d)
                 },

@@ -128,6 +128,38 @@ impl FitReport {
     pub fn estimate(&self, unknown: &Unknown) -> Option<&Estimate> {
         self.estimates.iter().find(|e| &e.unknown == unknown)
     }
+
+    /// The covariance matrix of the estimates, s²·(JᵀJ)⁻¹ (standard errors times
+    /// correlations), in declaration order: what to hand on to an uncertainty propagation.
+    ///
+    /// ```
+    /// use nalgebra::DMatrix;
+    /// use protolyte::analysis::{Estimate, FitReport, Scope, Unknown};
+    ///
+    /// let e = |u: Unknown, se: f64| Estimate { unknown: u, scope: Scope::Shared, start: 0.0, value: 0.0, standard_error: se };
+    /// let report = FitReport {
+    ///     estimates: vec![e(Unknown::pka("acetate", 0), 0.01), e(Unknown::ElectrodeOffset, 0.002)],
+    ///     correlation: DMatrix::from_row_slice(2, 2, &[1.0, -0.5, -0.5, 1.0]),
+    ///     residuals: vec![],
+    ///     residual_sd: 0.005,
+    ///     degrees_of_freedom: 10,
+    ///     iterations: 4,
+    ///     converged: true,
+    /// };
+    /// let cov = report.covariance();
+    /// assert!((cov[(0, 1)] + 0.5 * 0.01 * 0.002).abs() < 1e-15);
+    /// ```
+    pub fn covariance(&self) -> DMatrix<f64> {
+        let p = self.estimates.len();
+        DMatrix::from_fn(p, p, |i, j| {
+            let c = self
+                .correlation
+                .get((i, j))
+                .copied()
+                .unwrap_or(if i == j { 1.0 } else { 0.0 });
+            c * self.estimates[i].standard_error * self.estimates[j].standard_error
+        })
+    }
 }
 
 #[derive(Debug, Clone)]

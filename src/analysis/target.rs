@@ -119,7 +119,7 @@ impl Titration {
         let root = monotone_root(
             |v| {
                 let eq = c.solve(v, last.as_ref())?;
-                let d = c.dph_dv(&eq, v)?;
+                let d = c.dph_dv(&eq)?;
                 let ph = eq.ph();
                 last = Some(eq);
                 Ok((ph, d))

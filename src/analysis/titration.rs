@@ -146,12 +146,15 @@ impl Stepping {
 pub(crate) struct Cursor<'a> {
     t: &'a Titration,
     pub(crate) sys: System,
+    /// dT/dv of each component at the last volume (reused buffer).
+    dt: Vec<f64>,
 }
 
 impl<'a> Cursor<'a> {
     pub(crate) fn new(t: &'a Titration) -> Self {
         Cursor {
             t,
+            dt: vec![0.0; t.system.components.len()],
             sys: t.system.clone(),
         }
     }
@@ -161,8 +164,14 @@ impl<'a> Cursor<'a> {
         let v = crate::error::check_amount("titrant volume", v_l, "L")?;
         let v0 = self.t.analyte_volume_l;
         for c in 1..self.sys.components.len() {
-            let t = (self.t.analyte_totals[c] * v0 + self.t.titrant_totals[c] * v) / (v0 + v);
-            self.sys.set_total_molal(c, t)?;
+            let (ta, tt) = (self.t.analyte_totals[c], self.t.titrant_totals[c]);
+            let t = (ta * v0 + tt * v) / (v0 + v);
+            if !(t.is_finite() && t >= 0.0) {
+                // Not reachable from validated totals and volumes; the setter names the fault.
+                self.sys.set_total_molal(c, t)?;
+            }
+            self.sys.components[c].total_molal = t;
+            self.dt[c] = (tt - t) / (v0 + v);
         }
         Ok(())
     }
@@ -176,15 +185,15 @@ impl<'a> Cursor<'a> {
         }
     }
 
-    /// dpH/dv (per litre) for `eq`, the solution at `v_l` (the last volume set).
-    pub(crate) fn dph_dv(&self, eq: &Equilibrium, v_l: f64) -> Result<f64> {
-        self.t.dph_dv(&self.sys, eq, v_l)
+    /// dpH/dv (per litre) for `eq`, the solution at the last volume set.
+    pub(crate) fn dph_dv(&self, eq: &Equilibrium) -> Result<f64> {
+        dph_along(&self.sys, eq, &self.dt)
     }
 
     /// The full point at `v_l`.
     pub(crate) fn point(&mut self, v_l: f64, previous: Option<&Equilibrium>) -> Result<TitrationPoint> {
         let eq = self.solve(v_l, previous)?;
-        let d = self.dph_dv(&eq, v_l)?;
+        let d = self.dph_dv(&eq)?;
         Ok(TitrationPoint {
             volume_ml: v_l * 1e3,
             ph: eq.ph(),
@@ -293,18 +302,6 @@ impl Titration {
     /// ```
     pub fn ph_at(&self, v: Volume) -> Result<f64> {
         Ok(Cursor::new(self).solve(v.liters_value(), None)?.ph())
-    }
-
-    /// dpH/dv (per litre of titrant) at volume `v_l` litres, for `eq`, a solution of `sys`
-    /// (the system at that volume).
-    pub(crate) fn dph_dv(&self, sys: &System, eq: &Equilibrium, v_l: f64) -> Result<f64> {
-        let v0 = self.analyte_volume_l;
-        let nc = sys.components.len();
-        let mut dt = vec![0.0; nc];
-        for (c, d) in dt.iter_mut().enumerate().skip(1) {
-            *d = (self.titrant_totals[c] - sys.components[c].total_molal) / (v0 + v_l);
-        }
-        dph_along(sys, eq, &dt)
     }
 
     /// The curve at the given volumes (any order; each point warm-starts from the previous).
