@@ -15,6 +15,7 @@ use crate::system::System;
 
 const LN10: f64 = std::f64::consts::LN_10;
 const MAX_STEP: f64 = 2.0 * LN10;
+const CONVEX_MAX_STEP: f64 = 10.0 * LN10;
 
 /// The active components: H⁺ and those with a positive total.
 pub(crate) fn active(sys: &System) -> Vec<usize> {
@@ -174,7 +175,7 @@ fn evaluate(sys: &System, ev: &mut Evaluation, p: &Point) {
 
 /// Positive-continued-fraction sweeps on the component activities at fixed a(H⁺) and I,
 /// Gauss–Seidel order (each component's update sees the previous ones), until every mass
-/// balance is within a factor e^0.1 or `sweeps` run out.
+/// balance is within a factor e or `sweeps` run out.
 fn pcf_sweeps(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, sweeps: usize) {
     evaluate(sys, ev, p);
     for _ in 0..sweeps {
@@ -198,10 +199,120 @@ fn pcf_sweeps(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, sw
                 }
             }
         }
-        if worst < 0.1 {
+        if worst < 1.0 {
             break;
         }
     }
+}
+
+/// Minimises, at fixed activity coefficients, the convex function
+///
+/// G(y) = Σ_s m_s(y) − Σ_k T_k·y_k,   m_s = exp(ln K_s − ln γ_s + Σ_k ν(s,k)·y_k),
+///
+/// over the log activities y of the active components, H⁺ included. Its gradient is the
+/// vector of mass-balance residuals and its Hessian Σ_s ν_s ν_sᵀ m_s is positive
+/// semi-definite, so Newton steps with backtracking on G converge from any start (the
+/// dual, Gibbs-energy view of the mass-action equations; W. R. Smith and R. W. Missen,
+/// *Chemical Reaction Equilibrium Analysis*, Wiley 1982). H⁺ gets a mass balance too, with
+/// total T_H = −Σ_c z_c·T_c: for electroneutral reagents this is the charge balance.
+///
+/// Returns the iterations used; stops when every scaled gradient entry is below `tol`.
+fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f64, max_iter: usize) -> usize {
+    let act = &lay.act;
+    let n = act.len();
+    let mut totals = vec![0.0; n];
+    for (k, &c) in act.iter().enumerate().skip(1) {
+        totals[k] = sys.components[c].total_molal;
+        totals[0] -= f64::from(sys.components[c].charge) * totals[k];
+    }
+    // G, its gradient, and the gradient scales (Σ_s |ν|·m_s) at the current concentrations.
+    let objective = |ev: &Evaluation, y: &[f64]| -> f64 {
+        let mut g = 0.0;
+        for &s in &lay.species {
+            g += ev.conc[s];
+        }
+        for (k, &c) in act.iter().enumerate() {
+            g -= totals[k] * y[c];
+        }
+        g
+    };
+    let gradient = |ev: &Evaluation| -> (DVector<f64>, DVector<f64>) {
+        let mut g = DVector::from_iterator(n, totals.iter().map(|t| -t));
+        let mut sc = DVector::zeros(n);
+        for (idx, &s) in lay.species.iter().enumerate() {
+            let m = ev.conc[s];
+            for &(k, v) in &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]] {
+                g[k] += v * m;
+                sc[k] += v.abs() * m;
+            }
+        }
+        (g, sc)
+    };
+    ev.set_conc(sys, p);
+    let mut value = objective(ev, &p.y);
+    let (mut grad, mut scale) = gradient(ev);
+    let mut iters = 0;
+    let mut trial = p.clone();
+    while iters < max_iter {
+        let worst = grad
+            .iter()
+            .zip(scale.iter())
+            .map(|(g, s)| if *s > 0.0 { (g / s).abs() } else { 0.0 })
+            .fold(0.0, f64::max);
+        if worst <= tol {
+            break;
+        }
+        iters += 1;
+        let mut h = DMatrix::zeros(n, n);
+        for (idx, &s) in lay.species.iter().enumerate() {
+            let m = ev.conc[s];
+            let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
+            for &(a, va) in cols {
+                for &(b, vb) in cols {
+                    h[(a, b)] += va * vb * m;
+                }
+            }
+        }
+        // A tiny ridge keeps the step defined where a component's species all vanish.
+        for k in 0..n {
+            h[(k, k)] += 1e-300 + 1e-14 * h[(k, k)];
+        }
+        let Some(mut d) = h.lu().solve(&(-&grad)) else { break };
+        let big = d.amax();
+        if !big.is_finite() {
+            break;
+        }
+        // G is convex and the line search guards every step, so a long step is safe.
+        if big > CONVEX_MAX_STEP {
+            d *= CONVEX_MAX_STEP / big;
+        }
+        let slope = grad.dot(&d);
+        if slope >= 0.0 {
+            break;
+        }
+        let mut alpha = 1.0;
+        let mut accepted = false;
+        for _ in 0..50 {
+            for (k, &c) in act.iter().enumerate() {
+                trial.y[c] = p.y[c] + alpha * d[k];
+            }
+            ev.set_conc(sys, &trial);
+            let v = objective(ev, &trial.y);
+            if v.is_finite() && v <= value + 1e-4 * alpha * slope {
+                value = v;
+                accepted = true;
+                break;
+            }
+            alpha *= 0.5;
+        }
+        if !accepted {
+            ev.set_conc(sys, p);
+            break;
+        }
+        p.y.clone_from(&trial.y);
+        (grad, scale) = gradient(ev);
+    }
+    iters
 }
 
 /// Solves the full system. `start` is a previous solution's (ln a, ln I).
@@ -231,7 +342,7 @@ pub(crate) fn solve(
             Point { y, ln_i: li }
         }
         _ => {
-            let (mut p, n) = match fast::solve(sys, None, 1e-2) {
+            let (p, n) = match fast::solve(sys, None, 1e-2) {
                 Ok((p, _, n)) => (p, n),
                 Err(_) => {
                     let mut y = vec![f64::NEG_INFINITY; nc];
@@ -249,18 +360,36 @@ pub(crate) fn solve(
                 }
             };
             iters += n;
-            pcf_sweeps(sys, &mut ev, &lay, &mut p, 4);
             p
         }
     };
     let ideal = sys.model == crate::ActivityModel::Ideal;
+    // Approach at the start's activity coefficients: fraction sweeps take the large jumps
+    // (a component far from its total moves by the whole log ratio at once), the convex
+    // phase converges from wherever they leave it; then the joint Newton on every unknown
+    // with I, quadratic from there.
+    pcf_sweeps(sys, &mut ev, &lay, &mut p, 30);
+    iters += convex_phase(sys, &mut ev, &lay, &mut p, 1e-6, 100);
+    if ideal {
+        // γ = 1: I is a by-product; start the joint Newton from the consistent value.
+        let mut ionic = 0.0;
+        for &s in &lay.species {
+            ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * ev.conc[s];
+        }
+        p.ln_i = ionic.clamp(I_MIN, I_MAX).ln();
+    }
     evaluate(sys, &mut ev, &p);
     let (mut f, mut scale) = residual(sys, &ev, &lay, &p);
     let mut phi = merit(&f, &scale);
     let m = act.len() + 1;
     let mut stalls = 0;
+    // The last accepted step (ln units): a solution within tolerance is polished by one more
+    // Newton step unless the previous step was already at round-off, because a balance
+    // scaled by large spectator totals can meet the tolerance while pH is still off in its
+    // ninth digit.
+    let mut last_step = f64::INFINITY;
     while iters < max_iter {
-        if max_scaled(&f, &scale, ideal) <= tol {
+        if max_scaled(&f, &scale, ideal) <= tol && last_step <= 1e-9 {
             return Ok((p, ev, iters));
         }
         iters += 1;
@@ -293,6 +422,7 @@ pub(crate) fn solve(
             let (tf, ts) = residual(sys, &ev, &lay, &trial);
             let tphi = merit(&tf, &ts);
             if tphi.is_finite() && tphi <= (1.0 - 1e-4 * alpha) * phi {
+                last_step = alpha * dx.amax();
                 p.clone_from(&trial);
                 f = tf;
                 scale = ts;
