@@ -60,6 +60,8 @@ pub struct DataInfo {
     pub source: String,
     /// True when the numbers were entered from memory of the source.
     pub from_memory: bool,
+    /// The name and synonyms normalised for lookup.
+    keys: Vec<String>,
 }
 
 /// Built-in and user-defined definitions, looked up by name or synonym (case-insensitive).
@@ -147,9 +149,10 @@ impl Catalog {
         // Not found: suggest the closest name or synonym, if it is close.
         let mut best: Option<(usize, &str)> = None;
         for info in entries() {
-            let d = std::iter::once(info.name.as_str())
-                .chain(info.synonyms.iter().map(String::as_str))
-                .map(|n| levenshtein(&normalize(n), &key))
+            let d = info
+                .keys
+                .iter()
+                .map(|n| levenshtein(n, &key))
                 .min()
                 .unwrap_or(usize::MAX);
             if best.is_none_or(|(bd, _)| d < bd) {
@@ -227,6 +230,7 @@ impl Catalog {
         Ok(())
     }
 
+    /// Records an entry's description; `provenance` is (source, entered from memory).
     fn push_info(
         &mut self,
         kind: DataKind,
@@ -234,17 +238,21 @@ impl Catalog {
         synonyms: &[&str],
         formula: &str,
         summary: String,
-        source: &str,
-        from_memory: bool,
+        provenance: (&str, bool),
     ) {
+        let keys = std::iter::once(name)
+            .chain(synonyms.iter().copied())
+            .map(normalize)
+            .collect();
         self.info.push(DataInfo {
             kind,
             name: name.to_string(),
             synonyms: synonyms.iter().map(|s| s.to_string()).collect(),
             formula: formula.to_string(),
             summary,
-            source: source.to_string(),
-            from_memory,
+            source: provenance.0.to_string(),
+            from_memory: provenance.1,
+            keys,
         });
     }
 
@@ -274,8 +282,7 @@ impl Catalog {
             synonyms,
             &formula,
             summary,
-            source,
-            from_memory,
+            (source, from_memory),
         );
         self.sort_info();
     }
@@ -294,7 +301,7 @@ impl Catalog {
         let name = ion.name().to_string();
         let formula = ion.display_name().to_string();
         self.ions.push(ion);
-        self.push_info(DataKind::Ion, &name, synonyms, &formula, summary, source, from_memory);
+        self.push_info(DataKind::Ion, &name, synonyms, &formula, summary, (source, from_memory));
         self.sort_info();
     }
 
@@ -315,7 +322,7 @@ impl Catalog {
         let name = r.name().to_string();
         let formula = r.formula().unwrap_or("").to_string();
         self.reagents.push(r);
-        self.push_info(DataKind::Reagent, &name, synonyms, &formula, summary, source, false);
+        self.push_info(DataKind::Reagent, &name, synonyms, &formula, summary, (source, false));
         self.sort_info();
     }
 
@@ -333,7 +340,7 @@ impl Catalog {
         let summary = format!("log β {} (25 °C); charge {:+}", c.log10_beta(), c.charge());
         let name = c.name().to_string();
         self.complexes.push(c);
-        self.push_info(DataKind::Complex, &name, synonyms, "", summary, source, from_memory);
+        self.push_info(DataKind::Complex, &name, synonyms, "", summary, (source, from_memory));
         self.sort_info();
     }
 

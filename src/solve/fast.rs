@@ -134,7 +134,7 @@ impl<'a> Fast<'a> {
     /// Fills the power table for L and returns false when it is out of safe range.
     fn powers(&mut self, l: f64) -> bool {
         let d = l - self.l_ref;
-        if !(d.abs() <= RESCALE_SPAN) {
+        if d.is_nan() || d.abs() > RESCALE_SPAN {
             return false;
         }
         let x = d.exp();

@@ -126,10 +126,10 @@ impl Solver {
     /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
     /// does not converge.
     pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
-        if previous.unknowns().len() == system.components.len() {
-            if let Ok(eq) = self.solve_inner(system, Some(previous)) {
-                return Ok(eq);
-            }
+        if previous.unknowns().len() == system.components.len()
+            && let Ok(eq) = self.solve_inner(system, Some(previous))
+        {
+            return Ok(eq);
         }
         self.solve_inner(system, None)
     }

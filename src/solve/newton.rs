@@ -330,13 +330,13 @@ pub(crate) fn solve(
     let mut p = match start {
         Some((y, li)) if y.len() == nc && li.is_finite() && y[0].is_finite() => {
             let mut y = y.to_vec();
-            for c in 1..nc {
-                if sys.components[c].total_molal > 0.0 {
-                    if !y[c].is_finite() {
-                        y[c] = sys.components[c].total_molal.ln();
+            for (yc, comp) in y.iter_mut().zip(&sys.components).skip(1) {
+                if comp.total_molal > 0.0 {
+                    if !yc.is_finite() {
+                        *yc = comp.total_molal.ln();
                     }
                 } else {
-                    y[c] = f64::NEG_INFINITY;
+                    *yc = f64::NEG_INFINITY;
                 }
             }
             Point { y, ln_i: li }
