@@ -308,7 +308,7 @@ impl Equilibrium {
         self.ph
     }
 
-    /// p[H] = −log₁₀ of the H⁺ molality (mol/kg): the pH of concentration, without γ.
+    /// p\[H\] = −log₁₀ of the H⁺ molality (mol/kg): the pH of concentration, without γ.
     pub fn p_h_molal(&self) -> f64 {
         self.p_h_molal
     }

@@ -95,7 +95,7 @@ pub enum Error {
     },
 }
 
-/// `Result` with protolyte's [`Error`].
+/// `Result` with protolyte's [`Error`](enum@Error).
 pub type Result<T> = std::result::Result<T, Error>;
 
 /// Refuses a non-finite or negative amount.

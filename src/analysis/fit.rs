@@ -5,7 +5,7 @@
 //! D. W. Marquardt, *J. SIAM* 11 (1963) 431): each step solves
 //! (JᵀJ + λ·diag JᵀJ) δ = Jᵀr with nalgebra's Cholesky factorisation, and λ falls after a
 //! step that lowers the sum of squares and rises after one that does not. The Jacobian is
-//! analytic: ∂pH/∂total and ∂pH/∂pKa come from the [`Sensitivities`] of each point, and
+//! analytic: ∂pH/∂total and ∂pH/∂pKa come from the [`Sensitivities`](crate::Sensitivities) of each point, and
 //! the chain rule through the exact dilution gives ∂T_c(v)/∂(analyte total) = V₀/(V₀ + v)
 //! and ∂T_c(v)/∂(titrant total) = v/(V₀ + v).
 //!

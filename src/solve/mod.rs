@@ -4,15 +4,15 @@
 //! ln I; equations are the charge balance, one mass balance per component with a positive
 //! total, and the definition of ionic strength, I = ½ Σ z²·m. Two paths solve them:
 //!
-//! - the **fast path** ([`fast`]), when no species couples two components: each family's
+//! - the **fast path**, when no species couples two components: each family's
 //!   speciation is closed-form in a(H⁺) (alpha fractions), so the charge balance is one
 //!   monotone equation in ln a(H⁺), bracketed and solved by safeguarded Newton; the ionic
 //!   strength is iterated to self-consistency around it;
-//! - the **general path** ([`newton`]): damped Newton–Raphson on all unknowns with the
+//! - the **general path**: damped Newton–Raphson on all unknowns with the
 //!   analytic Jacobian and an LU step (nalgebra), from a start given by the fast path on the
 //!   uncoupled part of the system and a few positive-continued-fraction sweeps.
 //!
-//! Both paths report the same residuals, computed here in [`Evaluation`].
+//! Both paths report the same residuals, computed by the same code.
 
 pub(crate) mod fast;
 pub(crate) mod newton;
