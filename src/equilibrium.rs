@@ -159,7 +159,14 @@ impl Equilibrium {
         path: SolverPath,
     ) -> Result<Self> {
         let i = point.ln_i.exp();
-        let r = ev.scaled_residuals(sys, &point);
+        // Charge balance, its scale and the ionic strength, over every species.
+        let (mut charge, mut charge_scale, mut ionic) = (0.0, 0.0, 0.0);
+        for (s, &m) in ev.conc.iter().enumerate() {
+            let z = sys.charge_f[s];
+            charge += z * m;
+            charge_scale += z.abs() * m;
+            ionic += 0.5 * z * z * m;
+        }
         let rho = sys.water_density;
         let species: Vec<SpeciesState> = sys
             .species
@@ -231,17 +238,23 @@ impl Equilibrium {
         for (ci, c) in sys.components.iter().enumerate().skip(1) {
             if c.total_molal > 0.0 {
                 free_molal.push((c.name.clone(), sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0)));
-                mass_relative.push((c.name.clone(), r.mass[ci]));
+                // Σ ν·m over the species holding component ci: its uncoupled members and
+                // any complex that contains it.
+                let mut held: f64 = sys.members[ci].iter().map(|&s| ev.conc[s]).sum();
+                for s in (0..sys.species.len()).filter(|&s| sys.coupling[s]) {
+                    held += sys.stoichiometry(s, ci) * ev.conc[s];
+                }
+                mass_relative.push((c.name.clone(), (held - c.total_molal) / c.total_molal));
             }
         }
         let residuals = Residuals {
-            charge_molal: r.charge_molal,
-            charge_relative: r.charge_relative(),
+            charge_molal: charge,
+            charge_relative: if charge_scale > 0.0 { charge / charge_scale } else { 0.0 },
             mass_relative,
             ionic_strength_relative: if sys.model == ActivityModel::Ideal {
                 0.0
             } else {
-                r.ionic_strength
+                (ionic - i) / i
             },
         };
         let mut warnings = sys.compile_warnings.clone();

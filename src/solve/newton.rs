@@ -303,6 +303,21 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
                 accepted = true;
                 break;
             }
+            // Near the minimum, G changes by less than its own round-off; a full step that
+            // shrinks the scaled gradient is then accepted on that evidence instead.
+            if alpha == 1.0 && worst < 1e-6 && v.is_finite() {
+                let (g1, s1) = gradient(ev);
+                let w1 = g1
+                    .iter()
+                    .zip(s1.iter())
+                    .map(|(g, s)| if *s > 0.0 { (g / s).abs() } else { 0.0 })
+                    .fold(0.0, f64::max);
+                if w1 < worst {
+                    value = v;
+                    accepted = true;
+                    break;
+                }
+            }
             alpha *= 0.5;
         }
         if !accepted {
@@ -313,6 +328,48 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
         (grad, scale) = gradient(ev);
     }
     iters
+}
+
+/// The fallback of the general path: the ionic strength iterated around full convex
+/// solves at fixed activity coefficients (secant-accelerated fixed point, as on the fast
+/// path). Slower than the joint Newton but it needs no merit function across unknowns of
+/// very different scales. Returns the iterations used, or `None` if I does not settle.
+fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f64) -> Option<usize> {
+    let ideal = sys.model == crate::ActivityModel::Ideal;
+    let mut iters = 0;
+    let mut i = p.ln_i.exp().clamp(I_MIN, I_MAX);
+    let mut prev: Option<(f64, f64)> = None;
+    for _ in 0..60 {
+        ev.set_gamma(sys, i);
+        p.ln_i = i.ln();
+        iters += convex_phase(sys, ev, lay, p, tol, 200);
+        let mut g = 0.0;
+        for &s in &lay.species {
+            g += 0.5 * sys.charge_f[s] * sys.charge_f[s] * ev.conc[s];
+        }
+        let g = g.clamp(I_MIN, I_MAX);
+        if ideal {
+            p.ln_i = g.ln();
+            return Some(iters);
+        }
+        let h = g - i;
+        if h.abs() <= tol * i {
+            return Some(iters);
+        }
+        let mut next = g;
+        if let Some((ip, hp)) = prev {
+            let den = h - hp;
+            if den != 0.0 && den.is_finite() {
+                let sec = i - h * (i - ip) / den;
+                if sec.is_finite() && sec > 0.5 * g.min(i) && sec < 2.0 * g.max(i) {
+                    next = sec;
+                }
+            }
+        }
+        prev = Some((i, h));
+        i = next.clamp(I_MIN, I_MAX);
+    }
+    None
 }
 
 /// Solves the full system. `start` is a previous solution's (ln a, ln I).
@@ -388,7 +445,11 @@ pub(crate) fn solve(
     // scaled by large spectator totals can meet the tolerance while pH is still off in its
     // ninth digit.
     let mut last_step = f64::INFINITY;
-    while iters < max_iter {
+    // The joint Newton converges in well under 40 steps when it converges at all; past
+    // that, hand over to the nested iteration below.
+    let joint_end = (iters + 40).min(max_iter);
+    let mut short_steps = 0;
+    while iters < joint_end {
         if max_scaled(&f, &scale, ideal) <= tol && last_step <= 1e-9 {
             return Ok((p, ev, iters));
         }
@@ -423,6 +484,8 @@ pub(crate) fn solve(
             let tphi = merit(&tf, &ts);
             if tphi.is_finite() && tphi <= (1.0 - 1e-4 * alpha) * phi {
                 last_step = alpha * dx.amax();
+                // Repeated heavy damping means the merit function is badly scaled here.
+                short_steps = if alpha < 1e-2 { short_steps + 1 } else { 0 };
                 p.clone_from(&trial);
                 f = tf;
                 scale = ts;
@@ -431,6 +494,9 @@ pub(crate) fn solve(
                 break;
             }
             alpha *= 0.5;
+        }
+        if short_steps >= 4 {
+            break;
         }
         if !accepted {
             // No decrease along the Newton direction: at round-off level we are done if the
@@ -448,6 +514,16 @@ pub(crate) fn solve(
             (f, scale) = residual(sys, &ev, &lay, &p);
             phi = merit(&f, &scale);
         }
+    }
+    evaluate(sys, &mut ev, &p);
+    let r = ev.scaled_residuals(sys, &p);
+    if r.worst(sys).0 <= tol.max(1e-11) {
+        return Ok((p, ev, iters));
+    }
+    // The joint Newton stalled (typically where pH is set by traces beside large totals that
+    // make its merit function badly scaled): finish with the nested iteration.
+    if let Some(n) = nested(sys, &mut ev, &lay, &mut p, tol) {
+        iters += n;
     }
     evaluate(sys, &mut ev, &p);
     let r = ev.scaled_residuals(sys, &p);
