@@ -78,6 +78,8 @@ pub mod data;
 mod equilibrium;
 mod error;
 mod ion;
+#[cfg(feature = "plot")]
+pub mod plot;
 mod protolyte;
 mod quantity;
 mod reagent;
