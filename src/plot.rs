@@ -211,6 +211,13 @@ struct LegendEntry {
     kind: LegendKind,
 }
 
+impl LegendEntry {
+    /// Room for the icon before the text.
+    fn icon_width(&self) -> i32 {
+        if matches!(self.kind, LegendKind::Note) { 0 } else { 30 }
+    }
+}
+
 #[derive(Clone, Copy)]
 enum LegendKind {
     Line,
@@ -218,6 +225,8 @@ enum LegendKind {
     Dot,
     Ring,
     Triangle,
+    /// Text only.
+    Note,
 }
 
 /// Draws the title (if any) and the legend entries into `area`, left to right, wrapping to a
@@ -239,7 +248,7 @@ fn header(
     let style = TextStyle::from((FONT, NOTE_PX).into_font()).color(&INK);
     let mut x = left;
     for e in entries {
-        let width = 30 + text_width(&e.text, NOTE_PX) + 18;
+        let width = e.icon_width() + text_width(&e.text, NOTE_PX) + 18;
         if x + width > w as i32 - 8 && x > left {
             x = left;
             y += NOTE_PX as i32 + 8;
@@ -266,6 +275,7 @@ fn header(
                     ShapeStyle::from(&e.colour).stroke_width(2),
                 ))
                 .map_err(drawing)?,
+            LegendKind::Note => {}
             LegendKind::Triangle => area
                 .draw(&Polygon::new(
                     vec![(x + 12, cy - 6), (x + 6, cy + 4), (x + 18, cy + 4)],
@@ -273,7 +283,7 @@ fn header(
                 ))
                 .map_err(drawing)?,
         }
-        area.draw(&Text::new(e.text.clone(), (x + 30, y), style.clone()))
+        area.draw(&Text::new(e.text.clone(), (x + e.icon_width(), y), style.clone()))
             .map_err(drawing)?;
         x += width;
     }
@@ -285,7 +295,7 @@ fn header_height(title: bool, entries: &[LegendEntry], width: u32, left: i32) ->
     let mut x = left;
     let mut rows = 1;
     for e in entries {
-        let w = 30 + text_width(&e.text, NOTE_PX) + 18;
+        let w = e.icon_width() + text_width(&e.text, NOTE_PX) + 18;
         if x + w > width as i32 - 8 && x > left {
             x = left;
             rows += 1;
@@ -968,7 +978,12 @@ pub fn distribution_svg(dist: &Distribution, options: &PlotOptions) -> PlotResul
                     .map_err(drawing)?;
             }
             if let Some(m) = options.mark_ph.filter(|m| m.is_finite() && *m >= x0 && *m <= x1) {
-                mark_line(&mut chart, m, 0.0, 1.02)?;
+                let mut series: Vec<(f64, f64)> = Vec::new();
+                for s in f.fractions.iter().chain(f.complexed.iter()) {
+                    series.extend(keep.iter().filter_map(|&i| s.get(i).map(|&v| (dist.ph[i], v))));
+                }
+                series.retain(|p| p.1.is_finite());
+                mark_line(&mut chart, m, 0.0, 1.02, &series)?;
             }
         }
         root.present().map_err(drawing)?;
@@ -985,6 +1000,7 @@ fn mark_line<DB: DrawingBackend>(
     ph: f64,
     y0: f64,
     y1: f64,
+    series: &[(f64, f64)],
 ) -> PlotResult<()> {
     chart
         .draw_series(DashedLineSeries::new(
@@ -997,19 +1013,42 @@ fn mark_line<DB: DrawingBackend>(
     let area = chart.plotting_area();
     let c = area.map_coordinate(&(ph, y1));
     let label = format!("pH {ph:.2}");
-    let (px_x, _) = area.get_pixel_range();
+    let (px_x, px_y) = area.get_pixel_range();
     let w = text_width(&label, NOTE_PX) + 8;
-    let x = if c.0 + 4 + w < px_x.end { c.0 + 4 } else { c.0 - 4 - w };
+    let h = NOTE_PX as i32 + 6;
+    let mut curves: Vec<(i32, i32)> = series.iter().map(|p| area.map_coordinate(p)).collect();
+    densify(&mut curves);
+    // Right of the line then left of it, at the top, the bottom, then half-way: the first box
+    // that covers no curve, else the first that fits.
+    let tops = [px_y.start + 4, px_y.end - 4 - h, (px_y.start + px_y.end - h) / 2];
+    let sides = [c.0 + 4, c.0 - 4 - w];
+    let fits = |x: i32| x >= px_x.start && x + w <= px_x.end;
+    let candidates: Vec<(i32, i32)> = tops
+        .iter()
+        .flat_map(|&y| sides.iter().map(move |&x| (x, y)))
+        .filter(|&(x, _)| fits(x))
+        .collect();
+    let clear = |&(x, y): &(i32, i32)| {
+        !curves
+            .iter()
+            .any(|p| p.0 >= x && p.0 <= x + w && p.1 >= y && p.1 <= y + h)
+    };
+    let (x, y) = candidates
+        .iter()
+        .copied()
+        .find(clear)
+        .or_else(|| candidates.first().copied())
+        .unwrap_or((c.0 + 4, px_y.start + 4));
     let plain = area.strip_coord_spec();
-    let x = x - px_x.start;
+    let (x, y) = (x - px_x.start, y - px_y.start);
     plain
         .draw(&Rectangle::new(
-            [(x, 4), (x + w, 8 + NOTE_PX as i32)],
+            [(x, y), (x + w, y + h)],
             ShapeStyle::from(&WHITE.mix(0.9)).filled(),
         ))
         .map_err(drawing)?;
     let style = TextStyle::from((FONT, NOTE_PX).into_font()).color(&MARK);
-    plain.draw(&Text::new(label, (x + 4, 6), style)).map_err(drawing)?;
+    plain.draw(&Text::new(label, (x + 4, y + 3), style)).map_err(drawing)?;
     Ok(())
 }
 
@@ -1094,7 +1133,7 @@ pub fn capacity_svg(points: &[CapacityPoint], peaks: &[CapacityPeak], options: &
                 sig3(data_max * scale)
             ),
             colour: colour(2),
-            kind: LegendKind::Dashed,
+            kind: LegendKind::Note,
         });
     }
     let left = 86;
@@ -1135,7 +1174,8 @@ pub fn capacity_svg(points: &[CapacityPoint], peaks: &[CapacityPeak], options: &
                 .map_err(drawing)?;
         }
         if let Some(m) = options.mark_ph.filter(|m| m.is_finite() && *m >= x0 && *m <= x1) {
-            mark_line(&mut chart, m, y0, y1)?;
+            let inside: Vec<(f64, f64)> = scaled.iter().copied().filter(|p| p.1 <= y1).collect();
+            mark_line(&mut chart, m, y0, y1, &inside)?;
         }
         let area = chart.plotting_area();
         let (px_x, px_y) = area.get_pixel_range();
