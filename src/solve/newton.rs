@@ -263,7 +263,7 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
             break;
         }
         iters += 1;
-        let mut h = DMatrix::zeros(n, n);
+        let mut h: DMatrix<f64> = DMatrix::zeros(n, n);
         for (idx, &s) in lay.species.iter().enumerate() {
             let m = ev.conc[s];
             let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
@@ -273,11 +273,24 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
                 }
             }
         }
-        // A tiny ridge keeps the step defined where a component's species all vanish.
-        for k in 0..n {
-            h[(k, k)] += 1e-300 + 1e-14 * h[(k, k)];
+        // Symmetric diagonal scaling (Jacobi) before the factorisation: components whose
+        // totals differ by many decades would otherwise lose their digits in the pivots of
+        // the large ones. A tiny ridge keeps the step defined where a component's species
+        // all vanish.
+        let d_inv: Vec<f64> = (0..n)
+            .map(|k| 1.0 / (h[(k, k)] * (1.0 + 1e-14) + 1e-300_f64).sqrt())
+            .collect();
+        for a in 0..n {
+            for b in 0..n {
+                h[(a, b)] *= d_inv[a] * d_inv[b];
+            }
+            h[(a, a)] += 1e-14;
         }
-        let Some(mut d) = h.lu().solve(&(-&grad)) else { break };
+        let rhs = DVector::from_iterator(n, (0..n).map(|k| -grad[k] * d_inv[k]));
+        let Some(mut d) = h.lu().solve(&rhs) else { break };
+        for k in 0..n {
+            d[k] *= d_inv[k];
+        }
         let big = d.amax();
         if !big.is_finite() {
             break;
@@ -290,6 +303,7 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
         if slope >= 0.0 {
             break;
         }
+        let mass_sum: f64 = lay.species.iter().map(|&s| ev.conc[s]).sum();
         let mut alpha = 1.0;
         let mut accepted = false;
         for _ in 0..50 {
@@ -303,9 +317,11 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
                 accepted = true;
                 break;
             }
-            // Near the minimum, G changes by less than its own round-off; a full step that
-            // shrinks the scaled gradient is then accepted on that evidence instead.
-            if alpha == 1.0 && worst < 1e-6 && v.is_finite() {
+            // Near the minimum, or where a trace component is off, G changes by less than
+            // its own round-off; a full step that leaves G unchanged to round-off and shrinks
+            // the scaled gradient is then accepted on that evidence instead.
+            let flat = (v - value).abs() <= 1e-12 * (value.abs() + mass_sum);
+            if alpha == 1.0 && flat && v.is_finite() {
                 let (g1, s1) = gradient(ev);
                 let w1 = g1
                     .iter()
