@@ -39,8 +39,10 @@ use std::path::Path;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use crate::analysis::{CapacityCurve, CapacityPeak, CapacityPoint, EquivalencePoint, TitrationPoint};
-use crate::{Amount, Conditions, Constituent, Ion, Reagent, Recipe, Solver};
+use crate::analysis::{
+    CapacityCurve, CapacityPeak, CapacityPoint, EquivalencePoint, Stepping, Titration, TitrationPoint,
+};
+use crate::{Amount, Conditions, Constituent, Ion, Reagent, Recipe, Solver, Volume};
 
 /// Why a plot could not be made or written.
 #[derive(Debug, thiserror::Error)]
@@ -1274,4 +1276,79 @@ fn sig3(v: f64) -> String {
     }
     let dec = (2 - mag).max(0) as usize;
     format!("{v:.dec$}")
+}
+
+// ---------------------------------------------------------------------------------------
+// One call from a titration or a recipe to a finished plot (for front-ends).
+
+/// Computes and draws a titration: an adaptive curve from zero to `end` (pH steps of at most
+/// 0.05, so the breaks are drawn densely) and the stoichiometric equivalence points.
+///
+/// ```
+/// use protolyte::analysis::Titration;
+/// use protolyte::plot::{PlotOptions, titration_plot};
+/// use protolyte::{Amount, Catalog, Conditions, Recipe, Volume};
+///
+/// let cat = Catalog::builtin();
+/// let mut base = Recipe::new();
+/// base.add(&cat.reagent("ammonia")?, Amount::molar(0.05))?;
+/// let mut acid = Recipe::new();
+/// acid.add(&cat.reagent("hydrochloric acid")?, Amount::molar(0.1))?;
+/// let t = Titration::new(&base, Volume::milliliters(20.0), &acid, &Conditions::default())?;
+/// let svg = titration_plot(&t, Volume::milliliters(15.0), &PlotOptions::new())?;
+/// assert!(svg.contains("EP1: 10.00 mL"));
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn titration_plot(titration: &Titration, end: Volume, options: &PlotOptions) -> PlotResult<String> {
+    let curve = titration.curve_adaptive(&Stepping::new(end).max_ph_step(0.05))?;
+    let eps = titration.equivalence_points()?;
+    titration_svg(&curve, &eps, options)
+}
+
+/// Computes and draws the distribution diagram of a recipe from pH 0 to 14 (141 points),
+/// marking the solution's own pH unless `options.mark_ph` is set.
+///
+/// ```
+/// use protolyte::plot::{PlotOptions, distribution_plot};
+/// use protolyte::{Amount, Catalog, Conditions, Recipe};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("sodium bicarbonate")?, Amount::millimolar(2.0))?;
+/// let svg = distribution_plot(&r, &Conditions::default(), &PlotOptions::new())?;
+/// assert!(svg.contains("HCO₃⁻") && svg.contains("pH 8."));
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn distribution_plot(recipe: &Recipe, conditions: &Conditions, options: &PlotOptions) -> PlotResult<String> {
+    let mut options = options.clone();
+    if options.mark_ph.is_none() {
+        options.mark_ph = Some(recipe.compile(conditions)?.solve()?.ph());
+    }
+    let d = distribution(recipe, conditions, 0.0, 14.0, 141)?;
+    distribution_svg(&d, &options)
+}
+
+/// Computes and draws the buffer capacity of a recipe from pH 1 to 13 (241 points) with its
+/// local maxima, marking the solution's own pH unless `options.mark_ph` is set.
+///
+/// ```
+/// use protolyte::plot::{PlotOptions, capacity_plot};
+/// use protolyte::{Amount, Catalog, Conditions, Recipe};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("acetic acid")?, Amount::millimolar(20.0))?;
+/// let svg = capacity_plot(&r, &Conditions::default(), &PlotOptions::new())?;
+/// assert!(svg.contains("local maximum"));
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn capacity_plot(recipe: &Recipe, conditions: &Conditions, options: &PlotOptions) -> PlotResult<String> {
+    let mut options = options.clone();
+    if options.mark_ph.is_none() {
+        options.mark_ph = Some(recipe.compile(conditions)?.solve()?.ph());
+    }
+    let c = CapacityCurve::new(recipe, conditions)?;
+    let sweep = c.sweep(1.0, 13.0, 241)?;
+    let peaks = c.peaks(1.0, 13.0)?;
+    capacity_svg(&sweep, &peaks, &options)
 }

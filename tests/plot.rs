@@ -337,3 +337,30 @@ fn size_options_are_honoured() {
     let svg = titration_svg(&curve, &eps, &PlotOptions::new().size(640, 400)).unwrap();
     assert!(svg.starts_with("<svg width=\"640\""));
 }
+
+#[test]
+fn one_call_plots_from_a_titration_or_a_recipe() {
+    let cat = Catalog::builtin();
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("acetic acid").unwrap(), Amount::millimolar(20.0))
+        .unwrap()
+        .add(&cat.reagent("sodium acetate").unwrap(), Amount::millimolar(20.0))
+        .unwrap();
+    let c = Conditions::default();
+    let own = r.compile(&c).unwrap().solve().unwrap().ph();
+    let svg = protolyte::plot::distribution_plot(&r, &c, &PlotOptions::new()).unwrap();
+    well_formed(&svg);
+    assert!(svg.contains(&format!("pH {own:.2}")), "the solution's own pH is marked");
+    let svg = protolyte::plot::capacity_plot(&r, &c, &PlotOptions::new().mark_ph(5.0)).unwrap();
+    well_formed(&svg);
+    assert!(svg.contains("pH 5.00"));
+    assert!(matches!(
+        protolyte::plot::capacity_plot(&r, &c, &PlotOptions::new().size(5000, 500)),
+        Err(PlotError::InvalidOption { .. })
+    ));
+    let (t, _) = diprotic_titration();
+    let svg = protolyte::plot::titration_plot(&t, Volume::milliliters(25.0), &PlotOptions::new()).unwrap();
+    well_formed(&svg);
+    all_finite(&svg);
+    assert!(svg.contains("EP1:") && svg.contains("EP2:"));
+}
