@@ -75,6 +75,8 @@ pub mod activity;
 pub mod analysis;
 mod complex;
 pub mod data;
+#[cfg(feature = "serde")]
+pub mod document;
 mod equilibrium;
 mod error;
 mod ion;

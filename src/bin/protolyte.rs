@@ -1,0 +1,614 @@
+//! `protolyte`: aqueous acid–base speciation from the command line.
+//!
+//! Subcommands: `solve`, `titrate`, `design`, `fit`, `batch`, `data`. Documents are JSON or
+//! TOML (see docs/recipe-format.md); exit codes are listed in docs/cli.md and under
+//! `protolyte --help`.
+
+use std::fs::File;
+use std::io::{self, BufRead, BufReader, BufWriter, IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::time::Instant;
+
+use clap::{Parser, Subcommand};
+use protolyte::analysis::TitrationPoint;
+use protolyte::document::batch::{self, BatchOptions};
+use protolyte::document::{
+    self, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
+    TitrationResult,
+};
+use protolyte::{Catalog, Error};
+
+/// Exit codes.
+const EXIT_OK: u8 = 0;
+const EXIT_BATCH_FAILURES: u8 = 1;
+// 2 is clap's: the command line itself is wrong.
+const EXIT_BAD_INPUT: u8 = 3;
+const EXIT_NO_CONVERGENCE: u8 = 4;
+const EXIT_OUTPUT: u8 = 5;
+
+const AFTER_HELP: &str = "\
+Exit codes:
+  0  success
+  1  batch: some lines failed (each has an error record in the output)
+  2  the command line is wrong (unknown option, missing argument)
+  3  the input file cannot be read or is not a valid document (message names file, line and column, or the field)
+  4  the solver did not converge or refused the chemistry
+  5  the output could not be written
+
+Documents are JSON or TOML; see docs/recipe-format.md.";
+
+#[derive(Parser)]
+#[command(name = "protolyte", version, about = "Aqueous acid–base speciation: pH and every species of a solution, titrations, buffer design, fits", after_help = AFTER_HELP)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Solve one recipe (`protolyte-recipe/1`): pH, ionic strength, every species and family.
+    Solve {
+        /// The recipe document (JSON or TOML), or `-` for standard input.
+        file: PathBuf,
+        /// Write the result as JSON instead of a table.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Simulate a titration (`protolyte-titration/1`): the curve as CSV, then its endpoints.
+    Titrate {
+        /// The titration request (JSON or TOML), or `-`.
+        file: PathBuf,
+        /// Write the curve and endpoints as JSON instead of CSV.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Design a buffer (`protolyte-design/1`): what to weigh or pipette, and the check solve.
+    Design {
+        /// The design request (JSON or TOML), or `-`.
+        file: PathBuf,
+        /// Write the result as JSON.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Fit measured titrations (`protolyte-fit/1`): estimates, standard errors, residuals.
+    Fit {
+        /// The fit request (JSON or TOML), or `-`.
+        file: PathBuf,
+        /// Write the report as JSON.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Solve many recipes: JSON Lines in (one recipe document per line), JSON Lines out, in
+    /// input order, in parallel.
+    Batch {
+        /// The JSON Lines file, or `-` for standard input.
+        file: PathBuf,
+        /// Write to this file instead of standard output.
+        #[arg(long, short)]
+        output: Option<PathBuf>,
+        /// Write every species and family in each record, not only the summary.
+        #[arg(long)]
+        full: bool,
+        /// No progress bar (it is shown only when standard error is a terminal).
+        #[arg(long)]
+        quiet: bool,
+    },
+    /// List or search the built-in catalogue (acid–base families, ions, reagents, complexes)
+    /// with the published source of each entry.
+    Data {
+        /// Part of a name, synonym or formula; without it, everything is listed.
+        query: Option<String>,
+        /// Write the entries as JSON.
+        #[arg(long)]
+        json: bool,
+    },
+}
+
+/// A failure that ends the program with an exit code.
+struct Failure {
+    code: u8,
+    message: String,
+}
+
+impl From<DocumentError> for Failure {
+    fn from(e: DocumentError) -> Self {
+        Failure {
+            code: EXIT_BAD_INPUT,
+            message: e.to_string(),
+        }
+    }
+}
+
+fn chem(file: &str, e: Error) -> Failure {
+    let code = if matches!(e, Error::NoConvergence { .. }) {
+        EXIT_NO_CONVERGENCE
+    } else {
+        EXIT_BAD_INPUT
+    };
+    Failure {
+        code,
+        message: format!("{file}: {e}"),
+    }
+}
+
+fn output_failure(e: io::Error) -> Failure {
+    Failure {
+        code: EXIT_OUTPUT,
+        message: format!("cannot write the output: {e}"),
+    }
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match run(cli.command) {
+        Ok(code) => ExitCode::from(code),
+        Err(f) => {
+            // A closed pipe (e.g. `| head`) is not worth a message.
+            eprintln!("protolyte: {}", f.message);
+            ExitCode::from(f.code)
+        }
+    }
+}
+
+fn display_name(p: &Path) -> String {
+    if p == Path::new("-") {
+        "<stdin>".into()
+    } else {
+        p.display().to_string()
+    }
+}
+
+fn run(cmd: Command) -> Result<u8, Failure> {
+    let stdout = io::stdout();
+    let mut out = BufWriter::new(stdout.lock());
+    let code = match cmd {
+        Command::Solve { file, json } => solve(&file, json, &mut out)?,
+        Command::Titrate { file, json } => titrate(&file, json, &mut out)?,
+        Command::Design { file, json } => design(&file, json, &mut out)?,
+        Command::Fit { file, json } => fit(&file, json, &mut out)?,
+        Command::Batch {
+            file,
+            output,
+            full,
+            quiet,
+        } => {
+            drop(out);
+            return run_batch(&file, output.as_deref(), full, quiet);
+        }
+        Command::Data { query, json } => data(query.as_deref(), json, &mut out)?,
+    };
+    out.flush().map_err(output_failure)?;
+    Ok(code)
+}
+
+fn write_json<T: serde::Serialize>(out: &mut impl Write, v: &T) -> Result<(), Failure> {
+    serde_json::to_writer_pretty(&mut *out, v).map_err(|e| output_failure(e.into()))?;
+    writeln!(out).map_err(output_failure)
+}
+
+fn solve(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+    let name = display_name(file);
+    let doc: RecipeDoc = document::load(file)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let (recipe, conditions) = doc.to_recipe(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let eq = recipe
+        .compile(&conditions)
+        .and_then(|s| s.solve())
+        .map_err(|e| chem(&name, e))?;
+    let result = SolveResult::from_equilibrium(&eq).named(doc.name.clone());
+    if json {
+        write_json(out, &result)?;
+    } else {
+        write_solve_table(out, &result).map_err(output_failure)?;
+    }
+    Ok(EXIT_OK)
+}
+
+fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
+    if let Some(n) = &r.name {
+        writeln!(out, "{n}")?;
+    }
+    let model = match r.activity {
+        document::ActivityDoc::Ideal => "ideal (no activity correction)",
+        document::ActivityDoc::Davies => "Davies",
+        document::ActivityDoc::ExtendedDebyeHuckel => "extended Debye–Hückel",
+    };
+    writeln!(
+        out,
+        "conditions        {:.2} °C, activity model: {model}",
+        r.temperature_celsius
+    )?;
+    writeln!(out, "pH                {:.4}", r.ph)?;
+    writeln!(out, "p[H] (molal)      {:.4}", r.p_h_molal)?;
+    writeln!(out, "pOH               {:.4}", r.poh)?;
+    writeln!(out, "ionic strength    {:.6} mol/kg", r.ionic_strength_mol_per_kg)?;
+    writeln!(
+        out,
+        "solver            {} path, {} iterations, largest balance residual {:.1e}",
+        r.path, r.iterations, r.residuals.max_balance_relative
+    )?;
+    writeln!(out)?;
+    writeln!(
+        out,
+        "{:<22} {:>6} {:>12} {:>12} {:>8} {:>12}",
+        "species", "charge", "mol/kg", "mol/L", "γ", "activity"
+    )?;
+    for s in &r.species {
+        writeln!(
+            out,
+            "{:<22} {:>+6} {:>12.4e} {:>12.4e} {:>8.4} {:>12.4e}",
+            s.name, s.charge, s.mol_per_kg, s.mol_per_l, s.gamma, s.activity
+        )?;
+    }
+    if !r.families.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "{:<22} {:>12} {:>10}  alpha fractions (0, 1, 2… protons bound)",
+            "family", "total mol/kg", "mean H+"
+        )?;
+        for f in &r.families {
+            let fr: Vec<String> = f.fractions.iter().map(|a| format!("{a:.4}")).collect();
+            let cx = if f.complexed_fraction > 0.0 {
+                format!("  complexed {:.4}", f.complexed_fraction)
+            } else {
+                String::new()
+            };
+            writeln!(
+                out,
+                "{:<22} {:>12.4e} {:>10.4}  {}{cx}",
+                f.name,
+                f.total_mol_per_kg,
+                f.mean_bound_protons,
+                fr.join("  ")
+            )?;
+        }
+    }
+    for w in &r.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
+    Ok(())
+}
+
+fn titrate(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+    let name = display_name(file);
+    let doc: TitrationDoc = document::load(file)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let t = doc.to_titration(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let curve: Vec<TitrationPoint> = match doc.uniform_points().map_err(|e| e.in_file(&name))? {
+        Some(n) => t.curve_uniform(doc.end_volume().map_err(|e| e.in_file(&name))?, n),
+        None => t.curve_adaptive(&doc.stepping().map_err(|e| e.in_file(&name))?),
+    }
+    .map_err(|e| chem(&name, e))?;
+    let eqs = t.equivalence_points().map_err(|e| chem(&name, e))?;
+    let halves = t.half_equivalence_points().map_err(|e| chem(&name, e))?;
+    let end = doc.end_volume_ml;
+    let result = TitrationResult {
+        format: document::RESULT_FORMAT.into(),
+        name: doc.name.clone(),
+        analyte_volume_ml: t.analyte_volume().milliliters_value(),
+        points: curve.iter().map(Into::into).collect(),
+        equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
+        half_equivalence_points: halves.iter().filter(|h| h.volume_ml <= end).map(Into::into).collect(),
+    };
+    if json {
+        write_json(out, &result)?;
+    } else {
+        write_titration_csv(out, &result).map_err(output_failure)?;
+    }
+    Ok(EXIT_OK)
+}
+
+fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<()> {
+    writeln!(out, "volume_ml,ph,dph_dv_per_ml,ionic_strength_mol_per_kg")?;
+    for p in &r.points {
+        writeln!(
+            out,
+            "{:.6},{:.6},{:.6e},{:.6e}",
+            p.volume_ml, p.ph, p.dph_dv_per_ml, p.ionic_strength_mol_per_kg
+        )?;
+    }
+    if let Some(n) = &r.name {
+        writeln!(out, "# {n}")?;
+    }
+    for (i, e) in r.equivalence_points.iter().enumerate() {
+        let step = e.completed_step.as_deref().unwrap_or("strong acid/base");
+        let flags = if e.flags.is_empty() {
+            "usable".to_string()
+        } else {
+            e.flags.join("; ")
+        };
+        let ind = match (&e.nearest_indicator, e.nearest_indicator_error) {
+            (Some(n), Some(err)) => format!("; nearest indicator {n} (titration error {:+.2} %)", err * 100.0),
+            (Some(n), None) => format!("; nearest indicator {n}"),
+            _ => String::new(),
+        };
+        writeln!(
+            out,
+            "# equivalence point {}: {:.4} mL, pH {:.3} ({step}); steep part pH {:.2}–{:.2}; {flags}{ind}",
+            i + 1,
+            e.volume_ml,
+            e.ph,
+            e.steep_ph[0],
+            e.steep_ph[1]
+        )?;
+    }
+    for h in &r.half_equivalence_points {
+        writeln!(
+            out,
+            "# half-equivalence {} pKa{}: {:.4} mL, pH {:.3}, pH − pKa {:+.3} (mainly {})",
+            h.family, h.step, h.volume_ml, h.ph, h.deviation, h.main_cause
+        )?;
+    }
+    Ok(())
+}
+
+fn design(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+    let name = display_name(file);
+    let doc: DesignDoc = document::load(file)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let spec = doc.to_spec(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
+    let r = spec.design().map_err(|e| chem(&name, e))?;
+    let mut result = DesignResult::from_recipe(&r, &conditions);
+    result.name = doc.name.clone();
+    if json {
+        write_json(out, &result)?;
+        return Ok(EXIT_OK);
+    }
+    let w = |out: &mut dyn Write| -> io::Result<()> {
+        if let Some(n) = &result.name {
+            writeln!(out, "{n}")?;
+        }
+        writeln!(
+            out,
+            "buffer for pH {:.3}, made up to {} mL with water",
+            result.target_ph, result.final_volume_ml
+        )?;
+        writeln!(out)?;
+        writeln!(out, "{:<40} {:<9} {:>12} {:>14}", "reagent", "role", "mol/L", "take")?;
+        for l in &result.lines {
+            let take = match (l.grams, l.milliliters) {
+                (Some(g), _) => format!("{g:.4} g"),
+                (_, Some(ml)) => format!("{ml:.3} mL"),
+                _ => "-".into(),
+            };
+            writeln!(
+                out,
+                "{:<40} {:<9} {:>12.6} {:>14}",
+                l.reagent, l.role, l.mol_per_l, take
+            )?;
+        }
+        writeln!(out)?;
+        writeln!(
+            out,
+            "check solve       pH {:.4} (check − target {:+.1e}), ionic strength {:.5} mol/kg, balance residual {:.1e}",
+            result.check_ph, result.ph_residual, result.ionic_strength_mol_per_kg, result.balance_residual
+        )?;
+        writeln!(
+            out,
+            "buffer capacity   {:.5} mol/L per pH",
+            result.buffer_capacity_mol_per_l
+        )?;
+        for s in &result.temperature_shifts {
+            writeln!(
+                out,
+                "at {:>5.1} °C       pH {:.3} ({:+.3})",
+                s.temperature_celsius, s.ph, s.shift
+            )?;
+        }
+        let d = &result.dilution_shift;
+        writeln!(
+            out,
+            "diluted {:.0}-fold   pH {:.3} ({:+.3})",
+            d.dilution_factor, d.ph, d.shift
+        )?;
+        for w in &result.warnings {
+            writeln!(out, "warning: {w}")?;
+        }
+        writeln!(
+            out,
+            "caution: a model result; measure the pH of what you make with a calibrated electrode."
+        )
+    };
+    w(out).map_err(output_failure)?;
+    Ok(EXIT_OK)
+}
+
+fn fit(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+    let name = display_name(file);
+    let doc: FitDoc = document::load(file)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let f = doc.to_fit(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let report = f.run().map_err(|e| chem(&name, e))?;
+    let mut result = FitResult::from(&report);
+    result.name = doc.name.clone();
+    if json {
+        write_json(out, &result)?;
+        return Ok(EXIT_OK);
+    }
+    let w = |out: &mut dyn Write| -> io::Result<()> {
+        if let Some(n) = &result.name {
+            writeln!(out, "{n}")?;
+        }
+        writeln!(
+            out,
+            "{:<44} {:>6} {:>14} {:>14} {:>14}",
+            "unknown", "curve", "start", "estimate", "std. error"
+        )?;
+        for e in &result.estimates {
+            let curve = e.curve.map(|c| c.to_string()).unwrap_or_else(|| "all".into());
+            let se = e
+                .standard_error
+                .map(|s| format!("{s:.4e}"))
+                .unwrap_or_else(|| "-".into());
+            writeln!(
+                out,
+                "{:<44} {:>6} {:>14.6} {:>14.6} {:>14}",
+                e.unknown, curve, e.start, e.value, se
+            )?;
+        }
+        writeln!(out)?;
+        let sd = result
+            .residual_sd
+            .map(|s| format!("{s:.4}"))
+            .unwrap_or_else(|| "-".into());
+        writeln!(
+            out,
+            "residual SD {sd} pH, {} degrees of freedom, {} iterations, {}",
+            result.degrees_of_freedom,
+            result.iterations,
+            if result.converged {
+                "converged"
+            } else {
+                "stopped on the iteration budget"
+            }
+        )?;
+        writeln!(out)?;
+        writeln!(out, "curve,point,volume_ml,measured_ph,residual_ph")?;
+        for (k, (c, res)) in doc.curves.iter().zip(&result.residuals).enumerate() {
+            for (i, (m, r)) in c.measured.iter().zip(res).enumerate() {
+                writeln!(out, "{},{},{},{},{:+.5}", k + 1, i + 1, m.volume_ml, m.ph, r)?;
+            }
+        }
+        Ok(())
+    };
+    w(out).map_err(output_failure)?;
+    Ok(EXIT_OK)
+}
+
+fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Result<u8, Failure> {
+    let name = display_name(file);
+    let unreadable = |e: io::Error| Failure {
+        code: EXIT_BAD_INPUT,
+        message: format!("{name}: cannot read: {e}"),
+    };
+    let (input, total): (Box<dyn BufRead>, Option<u64>) = if file == Path::new("-") {
+        (Box::new(BufReader::with_capacity(1 << 20, io::stdin())), None)
+    } else {
+        let f = File::open(file).map_err(unreadable)?;
+        let len = f.metadata().ok().map(|m| m.len());
+        (Box::new(BufReader::with_capacity(1 << 20, f)), len)
+    };
+    let sink: Box<dyn Write> = match output {
+        Some(p) => Box::new(File::create(p).map_err(|e| Failure {
+            code: EXIT_OUTPUT,
+            message: format!("{}: cannot create: {e}", p.display()),
+        })?),
+        None => Box::new(io::stdout().lock()),
+    };
+    let sink = BufWriter::with_capacity(1 << 20, sink);
+    let show = !quiet && io::stderr().is_terminal();
+    let start = Instant::now();
+    let progress = |bytes: u64, lines: usize| {
+        if show {
+            draw_bar(bytes, total, lines, start);
+        }
+    };
+    let summary = batch::run(
+        input,
+        sink,
+        &Catalog::builtin(),
+        &BatchOptions {
+            full,
+            ..Default::default()
+        },
+        progress,
+    )
+    .map_err(|e| {
+        // A read error names the input; anything else is the output's.
+        if e.kind() == io::ErrorKind::InvalidData || e.kind() == io::ErrorKind::UnexpectedEof {
+            unreadable(e)
+        } else {
+            output_failure(e)
+        }
+    })?;
+    if show {
+        let secs = start.elapsed().as_secs_f64();
+        eprintln!(
+            "\r{} records ({} failed) in {:.2} s, {:.0} records/s{}",
+            summary.records,
+            summary.failed,
+            secs,
+            summary.records as f64 / secs.max(1e-9),
+            " ".repeat(20)
+        );
+    }
+    if summary.failed > 0 {
+        if !show {
+            eprintln!(
+                "protolyte: {} of {} batch lines failed (see their error records)",
+                summary.failed, summary.records
+            );
+        }
+        Ok(EXIT_BATCH_FAILURES)
+    } else {
+        Ok(EXIT_OK)
+    }
+}
+
+fn draw_bar(bytes: u64, total: Option<u64>, lines: usize, start: Instant) {
+    let rate = lines as f64 / start.elapsed().as_secs_f64().max(1e-9);
+    let mut err = io::stderr().lock();
+    let _ = match total {
+        Some(t) if t > 0 => {
+            let f = (bytes as f64 / t as f64).clamp(0.0, 1.0);
+            let width = 30;
+            let filled = (f * width as f64).round() as usize;
+            write!(
+                err,
+                "\r[{}{}] {:>5.1} %  {lines} lines  {rate:.0}/s",
+                "#".repeat(filled),
+                "-".repeat(width - filled),
+                f * 100.0
+            )
+        }
+        _ => write!(err, "\r{lines} lines  {rate:.0}/s"),
+    };
+    let _ = err.flush();
+}
+
+fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+    let cat = Catalog::builtin();
+    let entries: Vec<&protolyte::DataInfo> = match query {
+        Some(q) => cat.search(q),
+        None => cat.entries().iter().collect(),
+    };
+    if json {
+        let v: Vec<serde_json::Value> = entries
+            .iter()
+            .map(|e| {
+                serde_json::json!({
+                    "kind": e.kind.name(),
+                    "name": e.name,
+                    "synonyms": e.synonyms,
+                    "formula": e.formula,
+                    "summary": e.summary,
+                    "source": e.source,
+                    "from_memory": e.from_memory,
+                })
+            })
+            .collect();
+        write_json(out, &v)?;
+        return Ok(EXIT_OK);
+    }
+    let w = |out: &mut dyn Write| -> io::Result<()> {
+        for e in &entries {
+            writeln!(out, "{:<9} {}  [{}]", e.kind.name(), e.name, e.formula)?;
+            writeln!(out, "          {}", e.summary)?;
+            if !e.synonyms.is_empty() {
+                writeln!(out, "          also: {}", e.synonyms.join(", "))?;
+            }
+            let memo = if e.from_memory {
+                " (entered from memory of the source)"
+            } else {
+                ""
+            };
+            writeln!(out, "          source: {}{memo}", e.source)?;
+        }
+        writeln!(out, "{} entries", entries.len())
+    };
+    w(out).map_err(output_failure)?;
+    Ok(EXIT_OK)
+}

@@ -1,0 +1,437 @@
+//! Batch runs (feature `cli`): JSON Lines of recipe documents in, JSON Lines of results out.
+//!
+//! The input is read in chunks of lines (constant memory whatever its length); each chunk is
+//! cut into blocks solved in parallel (rayon) and written back in input order. Within a
+//! block, recipes with the same reagent names, complexes and conditions share one compiled
+//! [`System`] (as a template): only the totals are reset from the amounts
+//! ([`System::set_total_molal`]), and each solve starts from
+//! the previous one of its kind in the block ([`Solver::solve_from`]).
+//! Blocks are fixed by line numbers, so the output does not depend on the thread schedule.
+//!
+//! Every non-blank input line gives one output line: a [`BatchRecord`] or, for a line that
+//! cannot be read or solved, a [`BatchErrorRecord`]; the other lines still run.
+
+use std::io::{self, BufRead, Write};
+
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+
+use super::input::{AmountForm, amount_of};
+use super::{DocumentError, RecipeDoc, SolveResult};
+use crate::{Catalog, Conditions, Constituent, Equilibrium, Error, Reagent, Solver, System};
+
+/// Lines per block (one rayon task, one warm-start chain).
+const BLOCK: usize = 1024;
+/// Compiled systems kept per block.
+const MAX_TEMPLATES: usize = 64;
+
+/// Options of a batch run.
+///
+/// ```
+/// use protolyte::document::batch::BatchOptions;
+/// let o = BatchOptions::default();
+/// assert!(!o.full);
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct BatchOptions {
+    /// Write the full result (every species and family) in each record.
+    pub full: bool,
+    /// Lines read per chunk (at least one block).
+    pub chunk_lines: usize,
+}
+
+impl Default for BatchOptions {
+    fn default() -> Self {
+        BatchOptions {
+            full: false,
+            chunk_lines: 16 * BLOCK,
+        }
+    }
+}
+
+/// The result record of one input line.
+///
+/// ```
+/// use protolyte::document::batch::BatchRecord;
+/// let r: BatchRecord = serde_json::from_str(
+///     r#"{"line":1,"ph":7.0,"p_h_molal":7.0,"ionic_strength_mol_per_kg":1e-7,"max_balance_residual":0.0}"#)?;
+/// assert_eq!(r.line, 1);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct BatchRecord {
+    /// Input line number, 1-based.
+    pub line: usize,
+    /// The recipe's `name`, when it had one.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// pH.
+    pub ph: f64,
+    /// −log₁₀ of the H⁺ molality.
+    pub p_h_molal: f64,
+    /// Ionic strength, mol/kg.
+    pub ionic_strength_mol_per_kg: f64,
+    /// Largest relative charge or mass-balance residual.
+    pub max_balance_residual: f64,
+    /// Warnings, as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
+    /// The full result (with `full`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub result: Option<SolveResult>,
+}
+
+/// The record of an input line that could not be read or solved.
+///
+/// ```
+/// use protolyte::document::batch::BatchErrorRecord;
+/// let r: BatchErrorRecord = serde_json::from_str(r#"{"line":3,"kind":"syntax","error":"column 7: expected value"}"#)?;
+/// assert_eq!(r.kind, "syntax");
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct BatchErrorRecord {
+    /// Input line number, 1-based.
+    pub line: usize,
+    /// The recipe's `name`, when it could be read.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// `"syntax"` (not JSON or wrong types), `"input"` (a refused field or name),
+    /// `"no-convergence"` or `"chemistry"` (another refusal by the solver).
+    pub kind: String,
+    /// The message.
+    pub error: String,
+}
+
+/// What a batch run did.
+///
+/// ```
+/// use protolyte::document::batch::BatchSummary;
+/// assert_eq!(BatchSummary::default().failed, 0);
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct BatchSummary {
+    /// Records written (non-blank input lines).
+    pub records: usize,
+    /// Of which error records.
+    pub failed: usize,
+}
+
+/// A compiled system re-used for recipes with the same names and conditions.
+struct Template {
+    temperature_bits: u64,
+    activity: Option<super::ActivityDoc>,
+    include_catalog: bool,
+    complexes: Vec<String>,
+    names: Vec<String>,
+    reagents: Vec<Reagent>,
+    /// (component, count) contributions of one unit of each line.
+    parts: Vec<Vec<(usize, f64)>>,
+    sys: System,
+    totals: Vec<f64>,
+    warm: Option<Equilibrium>,
+}
+
+impl Template {
+    fn matches(&self, doc: &RecipeDoc) -> bool {
+        self.temperature_bits == doc.temperature_celsius.unwrap_or(25.0).to_bits()
+            && self.activity.unwrap_or_default() == doc.activity.unwrap_or_default()
+            && self.include_catalog == doc.include_catalog_complexes
+            && self.complexes == doc.complexes
+            && self.names.len() == doc.reagents.len()
+            && self.names.iter().zip(&doc.reagents).all(|(a, b)| *a == b.reagent)
+    }
+
+    fn build(doc: &RecipeDoc, catalog: &Catalog) -> Result<(Template, Conditions), DocumentError> {
+        let (recipe, conditions) = doc.to_recipe(catalog)?;
+        let sys = recipe
+            .compile(&conditions)
+            .map_err(|e| super::field_error("reagents", e))?;
+        let reagents: Vec<Reagent> = recipe.entries().iter().map(|e| e.reagent.clone()).collect();
+        let parts = reagents
+            .iter()
+            .map(|r| {
+                r.parts()
+                    .iter()
+                    .filter_map(|(c, n)| {
+                        let name = match c {
+                            Constituent::Form { protolyte, .. } => protolyte.name(),
+                            Constituent::Ion(ion) => ion.name(),
+                            Constituent::Proton | Constituent::Hydroxide => return None,
+                        };
+                        sys.component_index(name).map(|i| (i, f64::from(*n)))
+                    })
+                    .collect()
+            })
+            .collect();
+        let totals = vec![0.0; sys.components().len()];
+        Ok((
+            Template {
+                temperature_bits: doc.temperature_celsius.unwrap_or(25.0).to_bits(),
+                activity: doc.activity,
+                include_catalog: doc.include_catalog_complexes,
+                complexes: doc.complexes.clone(),
+                names: doc.reagents.iter().map(|l| l.reagent.clone()).collect(),
+                reagents,
+                parts,
+                sys,
+                totals,
+                warm: None,
+            },
+            conditions,
+        ))
+    }
+
+    /// Sets the totals from the document's amounts (the same sums, in the same order, as
+    /// [`Recipe::compile`](crate::Recipe::compile)).
+    fn retotal(&mut self, doc: &RecipeDoc) -> Result<(), DocumentError> {
+        self.totals.iter_mut().for_each(|t| *t = 0.0);
+        let rho = self.sys.water_density_kg_per_l();
+        for (i, line) in doc.reagents.iter().enumerate() {
+            // The path is only formatted for an error message.
+            let path = || format!("reagents[{i}]");
+            let form: AmountForm = line.form("").map_err(|_| line.form(&path()).unwrap_err())?;
+            let amount = amount_of(form, &self.reagents[i]).map_err(|e| super::field_error(path(), e))?;
+            let m = amount.molal_value(rho);
+            for &(c, n) in &self.parts[i] {
+                self.totals[c] += m * n;
+            }
+        }
+        for c in 1..self.totals.len() {
+            self.sys
+                .set_total_molal(c, self.totals[c])
+                .map_err(|e| super::field_error("reagents", e))?;
+        }
+        Ok(())
+    }
+}
+
+/// Per-block state: compiled systems by names and conditions.
+struct Block<'a> {
+    catalog: &'a Catalog,
+    templates: Vec<Template>,
+    solver: Solver,
+}
+
+enum Failure {
+    Syntax(String),
+    Input(Option<String>, DocumentError),
+    Solve(Option<String>, Error),
+}
+
+impl Block<'_> {
+    /// Solves one line: its name, the template it used (to keep the result as the next warm
+    /// start) and the equilibrium.
+    fn solve_line(&mut self, text: &str) -> Result<(Option<String>, Option<usize>, Equilibrium), Failure> {
+        let doc: RecipeDoc = serde_json::from_str(text).map_err(|e| {
+            Failure::Syntax(format!(
+                "column {}: {}",
+                e.column().max(1),
+                super::strip_position(&e.to_string())
+            ))
+        })?;
+        let name = doc.name.clone();
+        doc.check_format(false).map_err(|e| Failure::Input(name.clone(), e))?;
+        if doc.definitions.as_ref().is_some_and(|d| !d.is_empty()) {
+            // Definitions of its own: compiled on its own.
+            let (recipe, conditions) = doc
+                .to_recipe(self.catalog)
+                .map_err(|e| Failure::Input(name.clone(), e))?;
+            let eq = recipe
+                .compile(&conditions)
+                .and_then(|s| self.solver.solve(&s))
+                .map_err(|e| Failure::Solve(name.clone(), e))?;
+            return Ok((name, None, eq));
+        }
+        let idx = match self.templates.iter().position(|t| t.matches(&doc)) {
+            Some(i) => i,
+            None => {
+                let (t, _) = Template::build(&doc, self.catalog).map_err(|e| Failure::Input(name.clone(), e))?;
+                if self.templates.len() >= MAX_TEMPLATES {
+                    self.templates.remove(0);
+                }
+                self.templates.push(t);
+                self.templates.len() - 1
+            }
+        };
+        let t = &mut self.templates[idx];
+        t.retotal(&doc).map_err(|e| Failure::Input(name.clone(), e))?;
+        let eq = match &t.warm {
+            Some(w) => self.solver.solve_from(&t.sys, w),
+            None => self.solver.solve(&t.sys),
+        }
+        .map_err(|e| Failure::Solve(name.clone(), e))?;
+        Ok((name, Some(idx), eq))
+    }
+
+    /// Solves one line and appends its record (with a newline) to `out`; true when it
+    /// failed.
+    fn run_line(&mut self, line_no: usize, text: &str, full: bool, out: &mut Vec<u8>) -> bool {
+        let failed = match self.solve_line(text) {
+            Ok((name, idx, eq)) => {
+                let warnings: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
+                let rec = BatchRecord {
+                    line: line_no,
+                    name,
+                    ph: eq.ph(),
+                    p_h_molal: eq.p_h_molal(),
+                    ionic_strength_mol_per_kg: eq.ionic_strength_molal(),
+                    max_balance_residual: eq.residuals().max_balance_relative(),
+                    warnings,
+                    result: full.then(|| SolveResult::from_equilibrium(&eq)),
+                };
+                write_record(out, &rec);
+                if let Some(t) = idx.and_then(|i| self.templates.get_mut(i)) {
+                    t.warm = Some(eq);
+                }
+                false
+            }
+            Err(f) => {
+                let (name, kind, error) = match f {
+                    Failure::Syntax(m) => (None, "syntax", m),
+                    Failure::Input(n, e) => (n, "input", e.to_string()),
+                    Failure::Solve(n, e) => {
+                        let kind = if matches!(e, Error::NoConvergence { .. }) {
+                            "no-convergence"
+                        } else {
+                            "chemistry"
+                        };
+                        (n, kind, e.to_string())
+                    }
+                };
+                let error = error.strip_prefix(": ").map(str::to_string).unwrap_or(error);
+                write_record(
+                    out,
+                    &BatchErrorRecord {
+                        line: line_no,
+                        name,
+                        kind: kind.into(),
+                        error,
+                    },
+                );
+                true
+            }
+        };
+        out.push(b'\n');
+        failed
+    }
+}
+
+fn write_record<T: Serialize>(out: &mut Vec<u8>, rec: &T) {
+    if serde_json::to_writer(&mut *out, rec).is_err() {
+        out.extend_from_slice(b"{\"kind\":\"internal\",\"error\":\"record could not be written\"}");
+    }
+}
+
+/// Runs a batch: reads JSON Lines of recipe documents from `input`, writes one JSON line per
+/// non-blank input line to `output`, in input order. `progress` is called after each chunk
+/// with the bytes and lines read so far. Only I/O errors stop the run; a bad line gives an
+/// error record.
+///
+/// ```
+/// use protolyte::Catalog;
+/// use protolyte::document::batch::{BatchOptions, run};
+///
+/// let input = concat!(
+///     r#"{"reagents": [{"reagent": "acetic acid", "millimolar": 10}]}"#, "\n",
+///     "not json\n",
+///     r#"{"reagents": [{"reagent": "acetic acid", "millimolar": 1}]}"#, "\n",
+/// );
+/// let mut out = Vec::new();
+/// let s = run(input.as_bytes(), &mut out, &Catalog::builtin(), &BatchOptions::default(), |_, _| {})?;
+/// assert_eq!((s.records, s.failed), (3, 1));
+/// let text = String::from_utf8(out).unwrap();
+/// let lines: Vec<&str> = text.lines().collect();
+/// assert!(lines[0].starts_with(r#"{"line":1,"ph":3.3"#));
+/// assert!(lines[1].contains(r#""kind":"syntax""#));
+/// assert!(lines[2].starts_with(r#"{"line":3,"#));
+/// # Ok::<(), std::io::Error>(())
+/// ```
+pub fn run<R: BufRead, W: Write>(
+    mut input: R,
+    mut output: W,
+    catalog: &Catalog,
+    options: &BatchOptions,
+    mut progress: impl FnMut(u64, usize),
+) -> io::Result<BatchSummary> {
+    let chunk = options.chunk_lines.max(BLOCK);
+    let mut lines: Vec<Vec<u8>> = Vec::with_capacity(chunk);
+    let mut summary = BatchSummary::default();
+    let mut first_line = 0usize;
+    let mut bytes = 0u64;
+    loop {
+        let mut n = 0;
+        let mut eof = false;
+        while n < chunk {
+            if lines.len() <= n {
+                lines.push(Vec::with_capacity(256));
+            }
+            let buf = &mut lines[n];
+            buf.clear();
+            let got = input.read_until(b'\n', buf)?;
+            if got == 0 {
+                eof = true;
+                break;
+            }
+            bytes += got as u64;
+            n += 1;
+        }
+        if n == 0 {
+            break;
+        }
+        let results: Vec<(Vec<u8>, usize, usize)> = lines[..n]
+            .par_chunks(BLOCK)
+            .enumerate()
+            .map(|(k, block_lines)| {
+                let mut block = Block {
+                    catalog,
+                    templates: Vec::new(),
+                    solver: Solver::default(),
+                };
+                let mut out = Vec::with_capacity(block_lines.len() * if options.full { 2048 } else { 160 });
+                let (mut records, mut failed) = (0, 0);
+                for (j, raw) in block_lines.iter().enumerate() {
+                    let line_no = first_line + k * BLOCK + j + 1;
+                    let text = match std::str::from_utf8(raw) {
+                        Ok(t) => t.trim(),
+                        Err(e) => {
+                            records += 1;
+                            failed += 1;
+                            write_record(
+                                &mut out,
+                                &BatchErrorRecord {
+                                    line: line_no,
+                                    name: None,
+                                    kind: "syntax".into(),
+                                    error: format!("not UTF-8 text: {e}"),
+                                },
+                            );
+                            out.push(b'\n');
+                            continue;
+                        }
+                    };
+                    if text.is_empty() {
+                        continue;
+                    }
+                    records += 1;
+                    if block.run_line(line_no, text, options.full, &mut out) {
+                        failed += 1;
+                    }
+                }
+                (out, records, failed)
+            })
+            .collect();
+        for (out, records, failed) in &results {
+            output.write_all(out)?;
+            summary.records += records;
+            summary.failed += failed;
+        }
+        first_line += n;
+        progress(bytes, first_line);
+        if eof {
+            break;
+        }
+    }
+    output.flush()?;
+    Ok(summary)
+}

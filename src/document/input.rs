@@ -1,0 +1,1261 @@
+//! Input documents: recipes, titration, design and fit requests, and user definitions.
+
+use std::borrow::Cow;
+
+use serde::{Deserialize, Serialize};
+
+use super::{DESIGN_FORMAT, DocumentError, FIT_FORMAT, RECIPE_FORMAT, TITRATION_FORMAT, check_format, field_error};
+use crate::analysis::{BufferSpec, Ingredients, Scope, Stepping, Stock, Titration, TitrationFit, Unknown};
+use crate::{
+    ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, Error, Ion, Mass, Protolyte,
+    Reagent, Recipe, Temperature, Volume,
+};
+
+/// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"` or
+/// `"extended-debye-huckel"`.
+///
+/// ```
+/// use protolyte::ActivityModel;
+/// use protolyte::document::ActivityDoc;
+/// assert_eq!(ActivityModel::from(ActivityDoc::Davies), ActivityModel::Davies);
+/// assert_eq!(ActivityDoc::from(ActivityModel::Ideal), ActivityDoc::Ideal);
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum ActivityDoc {
+    /// No activity correction (γ = 1).
+    Ideal,
+    /// Davies (the default).
+    #[default]
+    Davies,
+    /// Extended Debye–Hückel with per-ion sizes.
+    ExtendedDebyeHuckel,
+}
+
+impl From<ActivityDoc> for ActivityModel {
+    fn from(a: ActivityDoc) -> Self {
+        match a {
+            ActivityDoc::Ideal => ActivityModel::Ideal,
+            ActivityDoc::Davies => ActivityModel::Davies,
+            ActivityDoc::ExtendedDebyeHuckel => ActivityModel::ExtendedDebyeHuckel,
+        }
+    }
+}
+
+impl From<ActivityModel> for ActivityDoc {
+    fn from(a: ActivityModel) -> Self {
+        match a {
+            ActivityModel::Ideal => ActivityDoc::Ideal,
+            ActivityModel::Davies => ActivityDoc::Davies,
+            ActivityModel::ExtendedDebyeHuckel => ActivityDoc::ExtendedDebyeHuckel,
+        }
+    }
+}
+
+/// One line of a recipe: a reagent and exactly one way of giving its amount.
+///
+/// The amount forms: `molar` (mol/L of the final solution), `millimolar` (mmol/L), `molal`
+/// (mol/kg of water), `grams` with `final_volume_ml` (weighed and made up to volume), or
+/// `stock_molar` with `aliquot_ml` and `final_volume_ml` (a pipetted stock solution).
+///
+/// ```
+/// use protolyte::document::AmountLine;
+/// let line = AmountLine::millimolar("sodium acetate", 10.0);
+/// assert_eq!(line.millimolar, Some(10.0));
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct AmountLine {
+    /// The reagent's name or a synonym (catalogue or user definitions).
+    pub reagent: String,
+    /// mol/L of the final solution.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub molar: Option<f64>,
+    /// mmol/L of the final solution.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub millimolar: Option<f64>,
+    /// mol/kg of water.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub molal: Option<f64>,
+    /// Grams weighed (with `final_volume_ml`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub grams: Option<f64>,
+    /// Concentration of a stock solution, mol/L (with `aliquot_ml` and `final_volume_ml`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stock_molar: Option<f64>,
+    /// Volume of stock solution pipetted, mL.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub aliquot_ml: Option<f64>,
+    /// Volume the weighed mass or the aliquot is made up to, mL.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub final_volume_ml: Option<f64>,
+}
+
+/// The amount form of a line, once checked.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) enum AmountForm {
+    Plain(Amount),
+    Mass { grams: f64, final_l: f64 },
+    Stock { molar: f64, aliquot_l: f64, final_l: f64 },
+}
+
+impl AmountLine {
+    /// A line of `millimolar` mmol/L of `reagent`.
+    pub fn millimolar(reagent: &str, millimolar: f64) -> Self {
+        AmountLine {
+            reagent: reagent.into(),
+            millimolar: Some(millimolar),
+            ..Default::default()
+        }
+    }
+
+    /// Which amount form was given; `path` names the line in errors.
+    pub(crate) fn form(&self, path: &str) -> Result<AmountForm, DocumentError> {
+        let given = [
+            self.molar.is_some(),
+            self.millimolar.is_some(),
+            self.molal.is_some(),
+            self.grams.is_some(),
+            self.stock_molar.is_some(),
+        ]
+        .iter()
+        .filter(|b| **b)
+        .count();
+        if given != 1 {
+            return Err(field_error(
+                path,
+                format!(
+                    "`{}`: give exactly one amount: `molar`, `millimolar`, `molal`, `grams` (with `final_volume_ml`) or `stock_molar` (with `aliquot_ml` and `final_volume_ml`); {given} given",
+                    self.reagent
+                ),
+            ));
+        }
+        let need = |v: Option<f64>, name: &str| {
+            v.ok_or_else(|| field_error(format!("{path}.{name}"), format!("`{}`: missing", self.reagent)))
+        };
+        let stray = |v: Option<f64>, name: &str, why: &str| match v {
+            Some(_) => Err(field_error(format!("{path}.{name}"), format!("only used {why}"))),
+            None => Ok(()),
+        };
+        if let Some(g) = self.grams {
+            stray(self.aliquot_ml, "aliquot_ml", "with `stock_molar`")?;
+            let v = need(self.final_volume_ml, "final_volume_ml")?;
+            return Ok(AmountForm::Mass {
+                grams: g,
+                final_l: v * 1e-3,
+            });
+        }
+        if let Some(c) = self.stock_molar {
+            let a = need(self.aliquot_ml, "aliquot_ml")?;
+            let v = need(self.final_volume_ml, "final_volume_ml")?;
+            return Ok(AmountForm::Stock {
+                molar: c,
+                aliquot_l: a * 1e-3,
+                final_l: v * 1e-3,
+            });
+        }
+        stray(self.aliquot_ml, "aliquot_ml", "with `stock_molar`")?;
+        stray(self.final_volume_ml, "final_volume_ml", "with `grams` or `stock_molar`")?;
+        let a = match (self.molar, self.millimolar, self.molal) {
+            (Some(m), _, _) => Amount::molar(m),
+            (_, Some(m), _) => Amount::millimolar(m),
+            (_, _, Some(m)) => Amount::molal(m),
+            _ => unreachable_amount(),
+        };
+        Ok(AmountForm::Plain(a))
+    }
+
+    /// Adds the line to `recipe`, `reagent` being the resolved reagent.
+    pub(crate) fn add_to(&self, recipe: &mut Recipe, reagent: &Reagent, path: &str) -> Result<(), DocumentError> {
+        let amount = amount_of(self.form(path)?, reagent).map_err(|e| field_error(path, e))?;
+        recipe.add(reagent, amount).map_err(|e| field_error(path, e))?;
+        Ok(())
+    }
+}
+
+/// The amount of `reagent` a checked line gives, in the final solution (the checks of
+/// [`Recipe::add_mass`] and [`Recipe::add_stock`]).
+pub(crate) fn amount_of(form: AmountForm, reagent: &Reagent) -> Result<Amount, Error> {
+    let name = reagent.name();
+    match form {
+        AmountForm::Plain(a) => a.validate(name),
+        AmountForm::Mass { grams, final_l } => {
+            let m = reagent
+                .molar_mass_g_per_mol()
+                .ok_or_else(|| Error::InconsistentDefinition {
+                    name: name.to_string(),
+                    reason: "a mass was given but the reagent has no molar mass".into(),
+                })?;
+            crate::error::check_amount(&format!("mass of {name}"), grams, "g")?;
+            Amount::from_mass(Mass::grams(grams), m, Volume::liters(final_l))
+        }
+        AmountForm::Stock {
+            molar,
+            aliquot_l,
+            final_l,
+        } => {
+            Amount::molar(molar).validate(name)?;
+            let v = crate::error::check_amount(&format!("aliquot of {name}"), aliquot_l, "L")?;
+            let vf = Volume::liters(final_l).positive("final volume")?;
+            if v > vf {
+                return Err(Error::InconsistentDefinition {
+                    name: name.to_string(),
+                    reason: format!("aliquot {} mL is larger than the final volume {} mL", v * 1e3, vf * 1e3),
+                });
+            }
+            Ok(Amount::molar(molar).scaled(v / vf))
+        }
+    }
+}
+
+/// Exactly one form was counted above, so this is never reached; kept total for safety.
+fn unreachable_amount() -> Amount {
+    Amount::molar(0.0)
+}
+
+/// A user's acid–base family.
+///
+/// ```
+/// use protolyte::document::ProtolyteDef;
+/// let d: ProtolyteDef = serde_json::from_str(r#"{"name": "dye X", "pka": [6.8], "charge_most_protonated": 0}"#)?;
+/// assert_eq!(d.pka, vec![6.8]);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ProtolyteDef {
+    /// Name (also the name of its neutral most protonated form as a reagent, when that form
+    /// is neutral).
+    pub name: String,
+    /// Stepwise pKa values at 25 °C, infinite dilution, most protonated first.
+    pub pka: Vec<f64>,
+    /// Charge of the most protonated form.
+    pub charge_most_protonated: i32,
+    /// ΔH° of each step, kJ/mol.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub enthalpies_kj_per_mol: Option<Vec<f64>>,
+    /// Ion-size parameter, ångström.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ion_size_angstrom: Option<f64>,
+    /// Molar mass of the neutral most protonated form, g/mol (lets you weigh it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub molar_mass_g_per_mol: Option<f64>,
+    /// Other names.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub synonyms: Vec<String>,
+    /// Where the numbers come from.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+}
+
+/// A user's simple ion.
+///
+/// ```
+/// use protolyte::document::IonDef;
+/// let d: IonDef = serde_json::from_str(r#"{"name": "lanthanum", "charge": 3}"#)?;
+/// assert_eq!(d.charge, 3);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct IonDef {
+    /// Name.
+    pub name: String,
+    /// Charge number.
+    pub charge: i32,
+    /// Ion-size parameter, ångström.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ion_size_angstrom: Option<f64>,
+    /// Formula with charge, e.g. `"La+3"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub formula: Option<String>,
+    /// Other names.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub synonyms: Vec<String>,
+}
+
+/// One constituent of a user's reagent: a family form (`protolyte` with `protons` bound), an
+/// `ion`, or `proton` / `hydroxide` (strong acids and bases); `count` per formula unit.
+///
+/// ```
+/// use protolyte::document::ReagentPartDef;
+/// let p: ReagentPartDef = serde_json::from_str(r#"{"ion": "sodium", "count": 2}"#)?;
+/// assert_eq!(p.count, 2);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ReagentPartDef {
+    /// A family, in the form with `protons` bound protons.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub protolyte: Option<String>,
+    /// Bound protons of the family form.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub protons: Option<usize>,
+    /// A simple ion.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ion: Option<String>,
+    /// A hydrogen ion (strong acid).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub proton: bool,
+    /// A hydroxide ion (strong base).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub hydroxide: bool,
+    /// How many per formula unit (default 1).
+    #[serde(default = "one_u32")]
+    pub count: u32,
+}
+
+fn one_u32() -> u32 {
+    1
+}
+
+fn one_i32() -> i32 {
+    1
+}
+
+/// A user's reagent: constituents that add up to zero charge.
+///
+/// ```
+/// use protolyte::document::ReagentDef;
+/// let d: ReagentDef = serde_json::from_str(r#"{"name": "sodium dye X",
+///   "parts": [{"ion": "sodium"}, {"protolyte": "dye X", "protons": 0}]}"#)?;
+/// assert_eq!(d.parts.len(), 2);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ReagentDef {
+    /// Name.
+    pub name: String,
+    /// Molar mass, g/mol (needed to weigh it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub molar_mass_g_per_mol: Option<f64>,
+    /// Formula as on the bottle.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub formula: Option<String>,
+    /// Constituents.
+    pub parts: Vec<ReagentPartDef>,
+    /// Other names.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub synonyms: Vec<String>,
+}
+
+/// One part of a user's complex: the fully deprotonated `base` of a family, an `ion`, or
+/// `protons` gained (negative: lost, for hydroxo complexes); `count` per complex.
+///
+/// ```
+/// use protolyte::document::ComplexPartDef;
+/// let p: ComplexPartDef = serde_json::from_str(r#"{"base": "edta"}"#)?;
+/// assert_eq!(p.count, 1);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ComplexPartDef {
+    /// A family's fully deprotonated form.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub base: Option<String>,
+    /// A simple ion.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ion: Option<String>,
+    /// Protons gained (negative: lost). Used alone, without `count`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub protons: Option<i32>,
+    /// How many (default 1).
+    #[serde(default = "one_i32")]
+    pub count: i32,
+}
+
+/// A user's complex or ion pair.
+///
+/// ```
+/// use protolyte::document::ComplexDef;
+/// let d: ComplexDef = serde_json::from_str(r#"{"name": "LaY-", "log_beta": 15.5,
+///   "parts": [{"ion": "lanthanum"}, {"base": "edta"}]}"#)?;
+/// assert_eq!(d.log_beta, 15.5);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ComplexDef {
+    /// Name.
+    pub name: String,
+    /// log₁₀ β from the parts at 25 °C, infinite dilution.
+    pub log_beta: f64,
+    /// Parts.
+    pub parts: Vec<ComplexPartDef>,
+    /// ΔH° of formation, kJ/mol.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub enthalpy_kj_per_mol: Option<f64>,
+    /// Ion-size parameter, ångström.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ion_size_angstrom: Option<f64>,
+    /// Where the number comes from.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+}
+
+/// User definitions that go beside the built-in catalogue for one document.
+///
+/// ```
+/// use protolyte::document::DefinitionsDoc;
+/// assert!(DefinitionsDoc::default().is_empty());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DefinitionsDoc {
+    /// Acid–base families.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub protolytes: Vec<ProtolyteDef>,
+    /// Simple ions.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub ions: Vec<IonDef>,
+    /// Reagents.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub reagents: Vec<ReagentDef>,
+    /// Complexes (always considered where their parts are present).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub complexes: Vec<ComplexDef>,
+}
+
+impl DefinitionsDoc {
+    /// True when nothing is defined.
+    pub fn is_empty(&self) -> bool {
+        self.protolytes.is_empty() && self.ions.is_empty() && self.reagents.is_empty() && self.complexes.is_empty()
+    }
+
+    /// Adds the definitions to `cat`; returns the user's complexes.
+    fn apply(&self, cat: &mut Catalog) -> Result<Vec<Complex>, DocumentError> {
+        for (i, d) in self.protolytes.iter().enumerate() {
+            let path = format!("definitions.protolytes[{i}]");
+            let p = (|| -> Result<Protolyte, Error> {
+                let mut p = Protolyte::new(&d.name, &d.pka, d.charge_most_protonated)?;
+                if let Some(h) = &d.enthalpies_kj_per_mol {
+                    p = p.with_enthalpies_kj_per_mol(h)?;
+                }
+                if let Some(a) = d.ion_size_angstrom {
+                    p = p.with_ion_size_angstrom(a)?;
+                }
+                if let Some(s) = &d.source {
+                    p = p.with_source(s);
+                }
+                Ok(p)
+            })()
+            .map_err(|e| field_error(&path, e))?;
+            let syn: Vec<&str> = d.synonyms.iter().map(String::as_str).collect();
+            cat.add_protolyte(p.clone(), &syn).map_err(|e| field_error(&path, e))?;
+            // Its neutral form as a reagent of the same name, when there is one.
+            if let Ok(r) = Reagent::neutral_form(&p, d.molar_mass_g_per_mol) {
+                let _ = cat.add_reagent(r, &syn);
+            }
+        }
+        for (i, d) in self.ions.iter().enumerate() {
+            let path = format!("definitions.ions[{i}]");
+            let ion = (|| -> Result<Ion, Error> {
+                let mut ion = Ion::new(&d.name, d.charge)?;
+                if let Some(a) = d.ion_size_angstrom {
+                    ion = ion.with_ion_size_angstrom(a)?;
+                }
+                if let Some(f) = &d.formula {
+                    ion = ion.with_formula(f);
+                }
+                Ok(ion)
+            })()
+            .map_err(|e| field_error(&path, e))?;
+            let syn: Vec<&str> = d.synonyms.iter().map(String::as_str).collect();
+            cat.add_ion(ion, &syn).map_err(|e| field_error(&path, e))?;
+        }
+        for (i, d) in self.reagents.iter().enumerate() {
+            let path = format!("definitions.reagents[{i}]");
+            let mut parts = Vec::with_capacity(d.parts.len());
+            for (k, p) in d.parts.iter().enumerate() {
+                let ppath = format!("{path}.parts[{k}]");
+                let c = match (&p.protolyte, &p.ion, p.proton, p.hydroxide) {
+                    (Some(f), None, false, false) => Constituent::Form {
+                        protolyte: cat
+                            .protolyte(f)
+                            .map_err(|e| field_error(format!("{ppath}.protolyte"), e))?,
+                        protons: p.protons.ok_or_else(|| {
+                            field_error(format!("{ppath}.protons"), "missing: how many protons the form holds")
+                        })?,
+                    },
+                    (None, Some(n), false, false) => {
+                        Constituent::Ion(cat.ion(n).map_err(|e| field_error(format!("{ppath}.ion"), e))?)
+                    }
+                    (None, None, true, false) => Constituent::Proton,
+                    (None, None, false, true) => Constituent::Hydroxide,
+                    _ => {
+                        return Err(field_error(
+                            ppath,
+                            "give exactly one of `protolyte` (with `protons`), `ion`, `proton: true` or `hydroxide: true`",
+                        ));
+                    }
+                };
+                parts.push((c, p.count));
+            }
+            let mut r = Reagent::new(&d.name, d.molar_mass_g_per_mol, parts).map_err(|e| field_error(&path, e))?;
+            if let Some(f) = &d.formula {
+                r = r.with_formula(f);
+            }
+            let syn: Vec<&str> = d.synonyms.iter().map(String::as_str).collect();
+            cat.add_reagent(r, &syn).map_err(|e| field_error(&path, e))?;
+        }
+        let mut out = Vec::new();
+        for (i, d) in self.complexes.iter().enumerate() {
+            let path = format!("definitions.complexes[{i}]");
+            let mut parts = Vec::with_capacity(d.parts.len());
+            for (k, p) in d.parts.iter().enumerate() {
+                let ppath = format!("{path}.parts[{k}]");
+                let part = match (&p.base, &p.ion, p.protons) {
+                    (Some(b), None, None) => (
+                        ComplexPart::Base(cat.protolyte(b).map_err(|e| field_error(format!("{ppath}.base"), e))?),
+                        p.count,
+                    ),
+                    (None, Some(n), None) => (
+                        ComplexPart::Ion(cat.ion(n).map_err(|e| field_error(format!("{ppath}.ion"), e))?),
+                        p.count,
+                    ),
+                    (None, None, Some(h)) => (ComplexPart::Proton, h),
+                    _ => {
+                        return Err(field_error(
+                            ppath,
+                            "give exactly one of `base`, `ion` or `protons` (signed)",
+                        ));
+                    }
+                };
+                parts.push(part);
+            }
+            let c = (|| -> Result<Complex, Error> {
+                let mut c = Complex::new(&d.name, parts, d.log_beta)?;
+                if let Some(h) = d.enthalpy_kj_per_mol {
+                    c = c.with_enthalpy_kj_per_mol(h)?;
+                }
+                if let Some(a) = d.ion_size_angstrom {
+                    c = c.with_ion_size_angstrom(a)?;
+                }
+                if let Some(s) = &d.source {
+                    c = c.with_source(s);
+                }
+                Ok(c)
+            })()
+            .map_err(|e| field_error(&path, e))?;
+            cat.add_complex(c.clone(), &[]).map_err(|e| field_error(&path, e))?;
+            out.push(c);
+        }
+        Ok(out)
+    }
+}
+
+/// The catalogue a document is read against: `base` plus the document's definitions.
+fn catalog_with<'a>(
+    base: &'a Catalog,
+    defs: Option<&DefinitionsDoc>,
+) -> Result<(Cow<'a, Catalog>, Vec<Complex>), DocumentError> {
+    match defs {
+        Some(d) if !d.is_empty() => {
+            let mut cat = base.clone();
+            let complexes = d.apply(&mut cat)?;
+            Ok((Cow::Owned(cat), complexes))
+        }
+        _ => Ok((Cow::Borrowed(base), Vec::new())),
+    }
+}
+
+/// The conditions of a document.
+fn conditions_of(temperature_celsius: Option<f64>, activity: Option<ActivityDoc>) -> Result<Conditions, DocumentError> {
+    let t = temperature_celsius.unwrap_or(25.0);
+    if !(t.is_finite() && (0.0..=100.0).contains(&t)) {
+        return Err(field_error(
+            "temperature_celsius",
+            format!("{t} °C is outside the supported domain 0..100 °C"),
+        ));
+    }
+    Ok(Conditions::new(
+        Temperature::celsius(t),
+        activity.unwrap_or_default().into(),
+    ))
+}
+
+/// The complexes a document asks for: named ones, the user's, and optionally the whole
+/// catalogue's.
+fn complexes_of(
+    cat: &Catalog,
+    names: &[String],
+    include_catalog: bool,
+    user: &[Complex],
+) -> Result<Vec<Complex>, DocumentError> {
+    let mut out: Vec<Complex> = user.to_vec();
+    for (i, n) in names.iter().enumerate() {
+        out.push(cat.complex(n).map_err(|e| field_error(format!("complexes[{i}]"), e))?);
+    }
+    if include_catalog {
+        out.extend(cat.complexes().iter().cloned());
+    }
+    Ok(out)
+}
+
+/// Builds a recipe from lines; `prefix` is the path of the line list.
+fn recipe_of(
+    cat: &Catalog,
+    lines: &[AmountLine],
+    complexes: &[Complex],
+    prefix: &str,
+) -> Result<Recipe, DocumentError> {
+    let mut recipe = Recipe::new();
+    for (i, line) in lines.iter().enumerate() {
+        let path = format!("{prefix}[{i}]");
+        let reagent = cat
+            .reagent(&line.reagent)
+            .map_err(|e| field_error(format!("{path}.reagent"), e))?;
+        line.add_to(&mut recipe, &reagent, &path)?;
+    }
+    recipe.add_complexes(complexes);
+    Ok(recipe)
+}
+
+/// A recipe document: what was put into one solution, and the conditions.
+///
+/// ```
+/// use protolyte::{Catalog, Conditions};
+/// use protolyte::document::{AmountLine, RecipeDoc};
+///
+/// let mut doc = RecipeDoc::new();
+/// doc.reagents.push(AmountLine::millimolar("acetic acid", 10.0));
+/// let (recipe, conditions) = doc.to_recipe(&Catalog::builtin())?;
+/// assert_eq!(recipe.entries().len(), 1);
+/// assert_eq!(conditions, Conditions::default());
+/// let back = RecipeDoc::from_recipe(&recipe, &conditions);
+/// assert_eq!(back.to_recipe(&Catalog::builtin())?.0, recipe);
+/// # Ok::<(), protolyte::document::DocumentError>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RecipeDoc {
+    /// `"protolyte-recipe/1"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub format: Option<String>,
+    /// A label of your own, echoed in the result.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// Temperature, °C (default 25).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_celsius: Option<f64>,
+    /// Activity model (default Davies).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub activity: Option<ActivityDoc>,
+    /// The recipe's lines.
+    #[serde(default)]
+    pub reagents: Vec<AmountLine>,
+    /// Complexes to consider, by name (catalogue or user definitions).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub complexes: Vec<String>,
+    /// Consider every complex of the catalogue whose parts are present (default false).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub include_catalog_complexes: bool,
+    /// Your own protolytes, ions, reagents and complexes.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub definitions: Option<DefinitionsDoc>,
+}
+
+impl RecipeDoc {
+    /// An empty recipe document with the current format tag.
+    pub fn new() -> Self {
+        RecipeDoc {
+            format: Some(RECIPE_FORMAT.into()),
+            ..Default::default()
+        }
+    }
+
+    /// Checks the format tag (`required`: refuse a document without one).
+    pub fn check_format(&self, required: bool) -> Result<(), DocumentError> {
+        check_format(self.format.as_deref(), RECIPE_FORMAT, required)
+    }
+
+    /// The conditions (temperature and activity model).
+    pub fn conditions(&self) -> Result<Conditions, DocumentError> {
+        conditions_of(self.temperature_celsius, self.activity)
+    }
+
+    /// The recipe and its conditions, names resolved in `catalog` plus the document's own
+    /// definitions.
+    pub fn to_recipe(&self, catalog: &Catalog) -> Result<(Recipe, Conditions), DocumentError> {
+        check_format(self.format.as_deref(), RECIPE_FORMAT, false)?;
+        let conditions = self.conditions()?;
+        let (cat, user) = catalog_with(catalog, self.definitions.as_ref())?;
+        let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
+        let recipe = recipe_of(&cat, &self.reagents, &complexes, "reagents")?;
+        Ok((recipe, conditions))
+    }
+
+    /// A document for `recipe` at `conditions`: one line per entry (molar or molal), the
+    /// complexes by name. Reagents and complexes are named, not defined: the document reads
+    /// back against a catalogue that knows them.
+    pub fn from_recipe(recipe: &Recipe, conditions: &Conditions) -> Self {
+        RecipeDoc {
+            format: Some(RECIPE_FORMAT.into()),
+            name: None,
+            temperature_celsius: Some(conditions.temperature.as_celsius()),
+            activity: Some(conditions.activity.into()),
+            reagents: lines_of(recipe),
+            complexes: recipe.complexes().iter().map(|c| c.name().to_string()).collect(),
+            include_catalog_complexes: false,
+            definitions: None,
+        }
+    }
+}
+
+fn lines_of(recipe: &Recipe) -> Vec<AmountLine> {
+    recipe
+        .entries()
+        .iter()
+        .map(|e| {
+            let mut l = AmountLine {
+                reagent: e.reagent.name().to_string(),
+                ..Default::default()
+            };
+            match e.amount {
+                Amount::Molar(v) => l.molar = Some(v),
+                Amount::Molal(v) => l.molal = Some(v),
+            }
+            l
+        })
+        .collect()
+}
+
+/// A solution in a titration: its lines and, for the analyte, its volume.
+///
+/// ```
+/// use protolyte::document::{AmountLine, SolutionDoc};
+/// let s = SolutionDoc { volume_ml: Some(25.0), reagents: vec![AmountLine::millimolar("acetic acid", 100.0)] };
+/// assert_eq!(s.reagents.len(), 1);
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SolutionDoc {
+    /// Volume, mL (the analyte's volume before titration; unused for the titrant).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub volume_ml: Option<f64>,
+    /// What is in it.
+    pub reagents: Vec<AmountLine>,
+}
+
+/// A titration request: analyte, titrant, conditions and how far to titrate.
+///
+/// ```
+/// use protolyte::Catalog;
+/// use protolyte::document::{TitrationDoc, parse};
+/// let doc: TitrationDoc = parse(r#"{
+///   "format": "protolyte-titration/1",
+///   "analyte": { "volume_ml": 25, "reagents": [{ "reagent": "acetic acid", "molar": 0.1 }] },
+///   "titrant": { "reagents": [{ "reagent": "sodium hydroxide", "molar": 0.1 }] },
+///   "end_volume_ml": 40
+/// }"#, "t.json")?;
+/// let t = doc.to_titration(&Catalog::builtin())?;
+/// assert!((t.analyte_volume().milliliters_value() - 25.0).abs() < 1e-12);
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TitrationDoc {
+    /// `"protolyte-titration/1"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub format: Option<String>,
+    /// A label of your own.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// Temperature, °C (default 25).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_celsius: Option<f64>,
+    /// Activity model (default Davies).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub activity: Option<ActivityDoc>,
+    /// The solution titrated (with `volume_ml`).
+    pub analyte: SolutionDoc,
+    /// The solution added from the burette.
+    pub titrant: SolutionDoc,
+    /// Titrate from 0 to this volume of titrant, mL.
+    pub end_volume_ml: f64,
+    /// Evenly spaced points (with the ends); without it the steps adapt to the curve.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub points: Option<usize>,
+    /// Largest pH change per adaptive step (default 0.05).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_ph_step: Option<f64>,
+    /// Complexes to consider, by name.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub complexes: Vec<String>,
+    /// Consider every complex of the catalogue whose parts are present.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub include_catalog_complexes: bool,
+    /// Your own definitions.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub definitions: Option<DefinitionsDoc>,
+}
+
+/// Builds a titration from two solution documents.
+fn titration_of(
+    cat: &Catalog,
+    analyte: &SolutionDoc,
+    titrant: &SolutionDoc,
+    complexes: &[Complex],
+    conditions: &Conditions,
+    prefix: &str,
+) -> Result<Titration, DocumentError> {
+    let a = recipe_of(cat, &analyte.reagents, complexes, &format!("{prefix}analyte.reagents"))?;
+    let t = recipe_of(cat, &titrant.reagents, complexes, &format!("{prefix}titrant.reagents"))?;
+    let v = analyte
+        .volume_ml
+        .ok_or_else(|| field_error(format!("{prefix}analyte.volume_ml"), "missing: the analyte's volume"))?;
+    if !(v.is_finite() && v > 0.0) {
+        return Err(field_error(
+            format!("{prefix}analyte.volume_ml"),
+            format!("{v} mL: must be positive"),
+        ));
+    }
+    Titration::new(&a, Volume::milliliters(v), &t, conditions).map_err(|e| field_error(format!("{prefix}analyte"), e))
+}
+
+impl TitrationDoc {
+    /// Checks the format tag (`required`: refuse a document without one).
+    pub fn check_format(&self, required: bool) -> Result<(), DocumentError> {
+        check_format(self.format.as_deref(), TITRATION_FORMAT, required)
+    }
+
+    /// The conditions (temperature and activity model).
+    pub fn conditions(&self) -> Result<Conditions, DocumentError> {
+        conditions_of(self.temperature_celsius, self.activity)
+    }
+
+    /// The titration, names resolved in `catalog` plus the document's definitions.
+    pub fn to_titration(&self, catalog: &Catalog) -> Result<Titration, DocumentError> {
+        check_format(self.format.as_deref(), TITRATION_FORMAT, false)?;
+        let conditions = self.conditions()?;
+        let (cat, user) = catalog_with(catalog, self.definitions.as_ref())?;
+        let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
+        titration_of(&cat, &self.analyte, &self.titrant, &complexes, &conditions, "")
+    }
+
+    /// The end volume, checked.
+    pub fn end_volume(&self) -> Result<Volume, DocumentError> {
+        let v = self.end_volume_ml;
+        if v.is_finite() && v > 0.0 && v <= 1e7 {
+            Ok(Volume::milliliters(v))
+        } else {
+            Err(field_error(
+                "end_volume_ml",
+                format!("{v} mL: must be positive and finite"),
+            ))
+        }
+    }
+
+    /// The adaptive stepping asked for (used when `points` is absent).
+    pub fn stepping(&self) -> Result<Stepping, DocumentError> {
+        let mut s = Stepping::new(self.end_volume()?);
+        if let Some(d) = self.max_ph_step {
+            if !(d.is_finite() && d > 0.0) {
+                return Err(field_error("max_ph_step", format!("{d}: must be positive")));
+            }
+            s = s.max_ph_step(d);
+        }
+        Ok(s)
+    }
+
+    /// The number of evenly spaced points, checked (2..=100 000).
+    pub fn uniform_points(&self) -> Result<Option<usize>, DocumentError> {
+        match self.points {
+            Some(n) if !(2..=100_000).contains(&n) => Err(field_error("points", format!("{n}: must be 2..100000"))),
+            p => Ok(p),
+        }
+    }
+}
+
+/// A stock as a design request gives it: a solid (no `stock_molar`) or a stock solution.
+///
+/// ```
+/// use protolyte::document::StockDoc;
+/// let s: StockDoc = serde_json::from_str(r#"{"reagent": "hydrochloric acid", "stock_molar": 1.0}"#)?;
+/// assert_eq!(s.stock_molar, Some(1.0));
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct StockDoc {
+    /// The reagent.
+    pub reagent: String,
+    /// Concentration of the stock solution, mol/L; absent for a solid to weigh.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stock_molar: Option<f64>,
+}
+
+impl StockDoc {
+    fn to_stock(&self, cat: &Catalog, path: &str) -> Result<Stock, DocumentError> {
+        let r = cat
+            .reagent(&self.reagent)
+            .map_err(|e| field_error(format!("{path}.reagent"), e))?;
+        Ok(match self.stock_molar {
+            Some(c) => Stock::solution_molar(&r, c),
+            None => Stock::solid(&r),
+        })
+    }
+}
+
+/// A target ionic strength, made up with a neutral salt.
+///
+/// ```
+/// use protolyte::document::IonicStrengthDoc;
+/// let i: IonicStrengthDoc = serde_json::from_str(r#"{"molar": 0.15, "salt": {"reagent": "sodium chloride"}}"#)?;
+/// assert_eq!(i.molar, Some(0.15));
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct IonicStrengthDoc {
+    /// Target, mol/L.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub molar: Option<f64>,
+    /// Target, mol/kg.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub molal: Option<f64>,
+    /// The salt.
+    pub salt: StockDoc,
+}
+
+/// A buffer design request: the buffer system, target pH, concentration, volume and stocks.
+///
+/// Give either `acid` and `base` (both forms at hand), or `buffer` substances and an
+/// `adjuster` (a strong acid or base that brings them to the target pH).
+///
+/// ```
+/// use protolyte::Catalog;
+/// use protolyte::document::{DesignDoc, parse};
+/// let doc: DesignDoc = parse(r#"{
+///   "format": "protolyte-design/1",
+///   "target_ph": 7.0, "buffer_millimolar": 100, "final_volume_ml": 1000,
+///   "acid": { "reagent": "sodium dihydrogen phosphate" },
+///   "base": { "reagent": "disodium hydrogen phosphate" }
+/// }"#, "d.json")?;
+/// let r = doc.to_spec(&Catalog::builtin())?.design()?;
+/// assert!(r.ph_residual.abs() < 1e-6);
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DesignDoc {
+    /// `"protolyte-design/1"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub format: Option<String>,
+    /// A label of your own.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// Temperature of preparation, °C (default 25).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_celsius: Option<f64>,
+    /// Activity model (default Davies).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub activity: Option<ActivityDoc>,
+    /// The pH to reach.
+    pub target_ph: f64,
+    /// Buffer concentration, mol/L.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub buffer_molar: Option<f64>,
+    /// Buffer concentration, mmol/L.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub buffer_millimolar: Option<f64>,
+    /// Buffer concentration, mol/kg.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub buffer_molal: Option<f64>,
+    /// Make up to this volume, mL.
+    pub final_volume_ml: f64,
+    /// The acidic form (with `base`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub acid: Option<StockDoc>,
+    /// The basic form (with `acid`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub base: Option<StockDoc>,
+    /// Buffer substances (with `adjuster`).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub buffer: Vec<StockDoc>,
+    /// The strong acid or base (with `buffer`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub adjuster: Option<StockDoc>,
+    /// Make the ionic strength up to a target with a neutral salt.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ionic_strength: Option<IonicStrengthDoc>,
+    /// Also report the pH at these temperatures, °C.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub compare_at_celsius: Vec<f64>,
+    /// Your own definitions.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub definitions: Option<DefinitionsDoc>,
+}
+
+impl DesignDoc {
+    /// Checks the format tag (`required`: refuse a document without one).
+    pub fn check_format(&self, required: bool) -> Result<(), DocumentError> {
+        check_format(self.format.as_deref(), DESIGN_FORMAT, required)
+    }
+
+    /// The conditions (temperature and activity model).
+    pub fn conditions(&self) -> Result<Conditions, DocumentError> {
+        conditions_of(self.temperature_celsius, self.activity)
+    }
+
+    /// The design specification, names resolved in `catalog` plus the document's definitions.
+    pub fn to_spec(&self, catalog: &Catalog) -> Result<BufferSpec, DocumentError> {
+        check_format(self.format.as_deref(), DESIGN_FORMAT, false)?;
+        let conditions = self.conditions()?;
+        let (cat, _) = catalog_with(catalog, self.definitions.as_ref())?;
+        let ingredients = match (&self.acid, &self.base, self.buffer.is_empty(), &self.adjuster) {
+            (Some(a), Some(b), true, None) => Ingredients::AcidAndBase {
+                acid: a.to_stock(&cat, "acid")?,
+                base: b.to_stock(&cat, "base")?,
+            },
+            (None, None, false, Some(adj)) => Ingredients::Adjusted {
+                buffer: self
+                    .buffer
+                    .iter()
+                    .enumerate()
+                    .map(|(i, s)| s.to_stock(&cat, &format!("buffer[{i}]")))
+                    .collect::<Result<_, _>>()?,
+                adjuster: adj.to_stock(&cat, "adjuster")?,
+            },
+            _ => {
+                return Err(field_error(
+                    "acid",
+                    "give either `acid` and `base`, or `buffer` (a list) and `adjuster`",
+                ));
+            }
+        };
+        let buffer = match (self.buffer_molar, self.buffer_millimolar, self.buffer_molal) {
+            (Some(m), None, None) => Amount::molar(m),
+            (None, Some(m), None) => Amount::millimolar(m),
+            (None, None, Some(m)) => Amount::molal(m),
+            _ => {
+                return Err(field_error(
+                    "buffer_molar",
+                    "give exactly one of `buffer_molar`, `buffer_millimolar` or `buffer_molal`",
+                ));
+            }
+        };
+        let v = self.final_volume_ml;
+        if !(v.is_finite() && v > 0.0) {
+            return Err(field_error("final_volume_ml", format!("{v} mL: must be positive")));
+        }
+        let mut spec = BufferSpec::new(ingredients, self.target_ph, buffer, conditions, Volume::milliliters(v));
+        if let Some(i) = &self.ionic_strength {
+            let target = match (i.molar, i.molal) {
+                (Some(m), None) => Amount::molar(m),
+                (None, Some(m)) => Amount::molal(m),
+                _ => return Err(field_error("ionic_strength", "give exactly one of `molar` or `molal`")),
+            };
+            spec = spec.ionic_strength(target, i.salt.to_stock(&cat, "ionic_strength.salt")?);
+        }
+        if !self.compare_at_celsius.is_empty() {
+            let mut ts = Vec::with_capacity(self.compare_at_celsius.len());
+            for (k, &t) in self.compare_at_celsius.iter().enumerate() {
+                if !(t.is_finite() && (0.0..=100.0).contains(&t)) {
+                    return Err(field_error(
+                        format!("compare_at_celsius[{k}]"),
+                        format!("{t} °C: outside 0..100 °C"),
+                    ));
+                }
+                ts.push(Temperature::celsius(t));
+            }
+            spec = spec.compare_at(&ts);
+        }
+        Ok(spec)
+    }
+}
+
+/// One measured point of a titration: titrant volume and pH read.
+///
+/// ```
+/// use protolyte::document::MeasuredPoint;
+/// let p: MeasuredPoint = serde_json::from_str(r#"{"volume_ml": 5.0, "ph": 4.1}"#)?;
+/// assert_eq!(p.ph, 4.1);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MeasuredPoint {
+    /// Titrant added, mL.
+    pub volume_ml: f64,
+    /// pH read.
+    pub ph: f64,
+}
+
+/// One measured titration curve of a fit request: the model's solutions and the data.
+///
+/// ```
+/// use protolyte::document::FitCurveDoc;
+/// let c = FitCurveDoc::default();
+/// assert!(c.measured.is_empty());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FitCurveDoc {
+    /// The analyte as believed (its values start the fit), with `volume_ml`.
+    pub analyte: SolutionDoc,
+    /// The titrant as believed.
+    pub titrant: SolutionDoc,
+    /// The measured points.
+    pub measured: Vec<MeasuredPoint>,
+}
+
+/// Something to estimate: exactly one of `analyte_total` (a component name, mol/L),
+/// `titrant_total`, `pka_of` (a family, with `step`, 1 = pKa1) or `electrode_offset: true`;
+/// `curve` (1-based) makes it belong to one curve, otherwise it is shared; `start` sets the
+/// starting value.
+///
+/// ```
+/// use protolyte::document::UnknownDoc;
+/// let u: UnknownDoc = serde_json::from_str(r#"{"pka_of": "acetate", "step": 1}"#)?;
+/// assert_eq!(u.step, Some(1));
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct UnknownDoc {
+    /// A component's total in the analyte, mol/L.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub analyte_total: Option<String>,
+    /// A component's total in the titrant, mol/L.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub titrant_total: Option<String>,
+    /// A family whose pKa is estimated (with `step`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pka_of: Option<String>,
+    /// Which pKa, 1-based (1 = pKa1).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub step: Option<usize>,
+    /// The electrode's offset (measured = model + offset).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub electrode_offset: bool,
+    /// The curve it belongs to, 1-based; absent: shared by all curves.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub curve: Option<usize>,
+    /// Starting value (default: the model's own value).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub start: Option<f64>,
+}
+
+impl UnknownDoc {
+    fn to_unknown(&self, path: &str) -> Result<(Unknown, Scope), DocumentError> {
+        let u = match (
+            &self.analyte_total,
+            &self.titrant_total,
+            &self.pka_of,
+            self.electrode_offset,
+        ) {
+            (Some(c), None, None, false) => Unknown::AnalyteTotal(c.clone()),
+            (None, Some(c), None, false) => Unknown::TitrantTotal(c.clone()),
+            (None, None, Some(f), false) => {
+                let s = self
+                    .step
+                    .filter(|&s| s >= 1)
+                    .ok_or_else(|| field_error(format!("{path}.step"), "missing or 0: which pKa, 1 = pKa1"))?;
+                Unknown::pka(f, s - 1)
+            }
+            (None, None, None, true) => Unknown::ElectrodeOffset,
+            _ => {
+                return Err(field_error(
+                    path,
+                    "give exactly one of `analyte_total`, `titrant_total`, `pka_of` (with `step`) or `electrode_offset: true`",
+                ));
+            }
+        };
+        let scope = match self.curve {
+            None => Scope::Shared,
+            Some(k) if k >= 1 => Scope::Curve(k - 1),
+            Some(_) => return Err(field_error(format!("{path}.curve"), "curves are numbered from 1")),
+        };
+        Ok((u, scope))
+    }
+}
+
+/// A fit request: measured titrations, the model, and the unknowns to estimate.
+///
+/// ```
+/// use protolyte::document::FitDoc;
+/// let d = FitDoc::default();
+/// assert!(d.curves.is_empty());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FitDoc {
+    /// `"protolyte-fit/1"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub format: Option<String>,
+    /// A label of your own.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// Temperature, °C (default 25).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_celsius: Option<f64>,
+    /// Activity model (default Davies).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub activity: Option<ActivityDoc>,
+    /// The measured curves.
+    pub curves: Vec<FitCurveDoc>,
+    /// What to estimate.
+    pub estimate: Vec<UnknownDoc>,
+    /// Iteration budget (default 100).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_iterations: Option<usize>,
+    /// Complexes to consider, by name.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub complexes: Vec<String>,
+    /// Consider every complex of the catalogue whose parts are present.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub include_catalog_complexes: bool,
+    /// Your own definitions.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub definitions: Option<DefinitionsDoc>,
+}
+
+impl FitDoc {
+    /// Checks the format tag (`required`: refuse a document without one).
+    pub fn check_format(&self, required: bool) -> Result<(), DocumentError> {
+        check_format(self.format.as_deref(), FIT_FORMAT, required)
+    }
+
+    /// The fit, ready to run, names resolved in `catalog` plus the document's definitions.
+    pub fn to_fit(&self, catalog: &Catalog) -> Result<TitrationFit, DocumentError> {
+        check_format(self.format.as_deref(), FIT_FORMAT, false)?;
+        let conditions = conditions_of(self.temperature_celsius, self.activity)?;
+        let (cat, user) = catalog_with(catalog, self.definitions.as_ref())?;
+        let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
+        let mut fit = TitrationFit::new();
+        if let Some(n) = self.max_iterations {
+            fit = fit.max_iterations(n.min(100_000));
+        }
+        if self.curves.is_empty() {
+            return Err(field_error("curves", "at least one measured curve is needed"));
+        }
+        for (k, c) in self.curves.iter().enumerate() {
+            let prefix = format!("curves[{k}].");
+            let t = titration_of(&cat, &c.analyte, &c.titrant, &complexes, &conditions, &prefix)?;
+            let data: Vec<(Volume, f64)> = c
+                .measured
+                .iter()
+                .map(|p| (Volume::milliliters(p.volume_ml), p.ph))
+                .collect();
+            fit.add_curve(t, &data)
+                .map_err(|e| field_error(format!("{prefix}measured"), e))?;
+        }
+        if self.estimate.is_empty() {
+            return Err(field_error("estimate", "name at least one unknown to estimate"));
+        }
+        for (i, u) in self.estimate.iter().enumerate() {
+            let path = format!("estimate[{i}]");
+            let (unknown, scope) = u.to_unknown(&path)?;
+            let r = match u.start {
+                Some(s) => fit.estimate_from(unknown, scope, s).map(|_| ()),
+                None => fit.estimate(unknown, scope).map(|_| ()),
+            };
+            r.map_err(|e| field_error(&path, e))?;
+        }
+        Ok(fit)
+    }
+}

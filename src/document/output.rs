@@ -1,0 +1,599 @@
+//! Result documents: plain serde structures built from the library's results. No field ever
+//! holds NaN or infinity: a value that is not finite is written as `null`.
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+use super::input::{ActivityDoc, RecipeDoc};
+use super::{RESULT_FORMAT, finite};
+use crate::analysis::{
+    BreakFlag, BufferRecipe, DeviationCause, EquivalencePoint, FitReport, HalfEquivalencePoint, Measure, PhShift, Role,
+    Scope, TitrationPoint,
+};
+use crate::{Conditions, Equilibrium, Warning};
+
+fn result_format() -> String {
+    RESULT_FORMAT.into()
+}
+
+/// One species at equilibrium.
+///
+/// ```
+/// use protolyte::document::SpeciesResult;
+/// let s: SpeciesResult = serde_json::from_str(
+///     r#"{"name":"H+","charge":1,"mol_per_kg":1e-7,"mol_per_l":1e-7,"gamma":1.0,"activity":1e-7}"#)?;
+/// assert_eq!(s.charge, 1);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SpeciesResult {
+    /// Name.
+    pub name: String,
+    /// Charge number.
+    pub charge: i32,
+    /// Concentration, mol/kg of water.
+    pub mol_per_kg: f64,
+    /// Concentration, mol/L.
+    pub mol_per_l: f64,
+    /// Activity coefficient.
+    pub gamma: f64,
+    /// Activity.
+    pub activity: f64,
+}
+
+/// The distribution of one acid–base family.
+///
+/// ```
+/// use protolyte::document::FamilyResult;
+/// let f = FamilyResult { name: "acetate".into(), total_mol_per_kg: 0.01, fractions: vec![0.5, 0.5],
+///     complexed_fraction: 0.0, mean_bound_protons: 0.5 };
+/// assert_eq!(f.fractions.len(), 2);
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FamilyResult {
+    /// Family name.
+    pub name: String,
+    /// Total, mol/kg.
+    pub total_mol_per_kg: f64,
+    /// Alpha fractions by bound protons (0 = fully deprotonated first).
+    pub fractions: Vec<f64>,
+    /// Fraction bound in complexes.
+    pub complexed_fraction: f64,
+    /// Mean bound protons per free family unit.
+    pub mean_bound_protons: f64,
+}
+
+/// Residuals of the balances at the result.
+///
+/// ```
+/// use protolyte::document::ResidualsResult;
+/// let r = ResidualsResult::default();
+/// assert_eq!(r.max_balance_relative, 0.0);
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct ResidualsResult {
+    /// Charge balance, relative to Σ|z|·m.
+    pub charge_relative: f64,
+    /// Each mass balance, relative to its total, by component.
+    pub mass_relative: BTreeMap<String, f64>,
+    /// Ionic-strength equation, relative.
+    pub ionic_strength_relative: f64,
+    /// The largest relative charge or mass-balance residual.
+    pub max_balance_relative: f64,
+}
+
+/// The result of solving one recipe.
+///
+/// ```
+/// use protolyte::{Amount, Catalog, Conditions, Recipe};
+/// use protolyte::document::SolveResult;
+/// let mut r = Recipe::new();
+/// r.add(&Catalog::builtin().reagent("acetic acid")?, Amount::millimolar(10.0))?;
+/// let eq = r.compile(&Conditions::default())?.solve()?;
+/// let doc = SolveResult::from_equilibrium(&eq);
+/// let json = serde_json::to_string(&doc).unwrap();
+/// let back: SolveResult = serde_json::from_str(&json).unwrap();
+/// assert_eq!(back, doc);
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SolveResult {
+    /// `"protolyte-result/1"`.
+    #[serde(default = "result_format")]
+    pub format: String,
+    /// The recipe's label, when it had one.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// Temperature, °C.
+    pub temperature_celsius: f64,
+    /// Activity model.
+    pub activity: ActivityDoc,
+    /// pH = −log₁₀ a(H⁺).
+    pub ph: f64,
+    /// −log₁₀ of the H⁺ molality.
+    pub p_h_molal: f64,
+    /// pOH = −log₁₀ a(OH⁻).
+    pub poh: f64,
+    /// Ionic strength, mol/kg.
+    pub ionic_strength_mol_per_kg: f64,
+    /// Solver path (`"fast"` or `"general"`).
+    pub path: String,
+    /// Iterations.
+    pub iterations: usize,
+    /// Every species.
+    pub species: Vec<SpeciesResult>,
+    /// Every family's distribution.
+    pub families: Vec<FamilyResult>,
+    /// Balance residuals.
+    pub residuals: ResidualsResult,
+    /// Warnings, as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
+}
+
+fn warnings(w: &[Warning]) -> Vec<String> {
+    w.iter().map(|w| w.to_string()).collect()
+}
+
+impl SolveResult {
+    /// The document of `eq`.
+    pub fn from_equilibrium(eq: &Equilibrium) -> Self {
+        let r = eq.residuals();
+        SolveResult {
+            format: result_format(),
+            name: None,
+            temperature_celsius: eq.temperature().as_celsius(),
+            activity: eq.activity_model().into(),
+            ph: eq.ph(),
+            p_h_molal: eq.p_h_molal(),
+            poh: eq.poh(),
+            ionic_strength_mol_per_kg: eq.ionic_strength_molal(),
+            path: eq.path().name().into(),
+            iterations: eq.iterations(),
+            species: eq
+                .species()
+                .iter()
+                .map(|s| SpeciesResult {
+                    name: s.name.to_string(),
+                    charge: s.charge,
+                    mol_per_kg: s.molal,
+                    mol_per_l: s.molar,
+                    gamma: s.gamma,
+                    activity: s.activity,
+                })
+                .collect(),
+            families: eq
+                .families()
+                .iter()
+                .map(|f| FamilyResult {
+                    name: f.name.to_string(),
+                    total_mol_per_kg: f.total_molal,
+                    fractions: f.fractions.clone(),
+                    complexed_fraction: f.complexed_fraction,
+                    mean_bound_protons: f.mean_bound_protons,
+                })
+                .collect(),
+            residuals: ResidualsResult {
+                charge_relative: r.charge_relative,
+                mass_relative: r.mass_relative.iter().map(|(n, v)| (n.to_string(), *v)).collect(),
+                ionic_strength_relative: finite(r.ionic_strength_relative).unwrap_or(0.0),
+                max_balance_relative: r.max_balance_relative(),
+            },
+            warnings: warnings(eq.warnings()),
+        }
+    }
+
+    /// The same result with the recipe's label.
+    pub fn named(mut self, name: Option<String>) -> Self {
+        self.name = name;
+        self
+    }
+}
+
+/// One point of a titration curve.
+///
+/// ```
+/// use protolyte::document::TitrationPointResult;
+/// let p = TitrationPointResult { volume_ml: 1.0, ph: 3.0, dph_dv_per_ml: 0.1, ionic_strength_mol_per_kg: 0.01 };
+/// assert_eq!(p.ph, 3.0);
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct TitrationPointResult {
+    /// Titrant added, mL.
+    pub volume_ml: f64,
+    /// pH.
+    pub ph: f64,
+    /// dpH/dV, per mL.
+    pub dph_dv_per_ml: f64,
+    /// Ionic strength, mol/kg.
+    pub ionic_strength_mol_per_kg: f64,
+}
+
+impl From<&TitrationPoint> for TitrationPointResult {
+    fn from(p: &TitrationPoint) -> Self {
+        TitrationPointResult {
+            volume_ml: p.volume_ml,
+            ph: p.ph,
+            dph_dv_per_ml: finite(p.dph_dv_per_ml).unwrap_or(0.0),
+            ionic_strength_mol_per_kg: p.equilibrium.ionic_strength_molal(),
+        }
+    }
+}
+
+/// A stoichiometric equivalence point.
+///
+/// ```
+/// use protolyte::document::EquivalenceResult;
+/// let e = EquivalenceResult::default();
+/// assert!(e.flags.is_empty());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct EquivalenceResult {
+    /// Titrant volume, mL.
+    pub volume_ml: f64,
+    /// pH there.
+    pub ph: f64,
+    /// The step completed there, as "family pKaN".
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub completed_step: Option<String>,
+    /// pH at the start and the end of the steep part.
+    pub steep_ph: [f64; 2],
+    /// Why the break may not be usable (empty when usable).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub flags: Vec<String>,
+    /// Indicators whose range lies inside the steep part.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub indicators: Vec<String>,
+    /// The indicator whose range middle is nearest the equivalence pH.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub nearest_indicator: Option<String>,
+    /// Its titration error, relative.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub nearest_indicator_error: Option<f64>,
+}
+
+fn flag_text(f: &BreakFlag) -> String {
+    match f {
+        BreakFlag::StepsMerge { delta_pka } => format!("steps merge (ΔpKa {delta_pka:.2})"),
+        BreakFlag::StepsClose { delta_pka } => format!("steps close (ΔpKa {delta_pka:.2}): weak break"),
+        BreakFlag::WeakStep { c_k } => format!("weak step (C·K {c_k:.1e}): no sharp endpoint"),
+    }
+}
+
+impl From<&EquivalencePoint> for EquivalenceResult {
+    fn from(e: &EquivalencePoint) -> Self {
+        EquivalenceResult {
+            volume_ml: e.volume_ml,
+            ph: e.ph,
+            completed_step: e.completed.as_ref().map(|s| format!("{} pKa{}", s.family, s.step + 1)),
+            steep_ph: [e.steep_ph.0, e.steep_ph.1],
+            flags: e.flags.iter().map(flag_text).collect(),
+            indicators: e.indicators.iter().map(|i| i.name.to_string()).collect(),
+            nearest_indicator: e.nearest_indicator.as_ref().map(|(i, _)| i.name.to_string()),
+            nearest_indicator_error: e.nearest_indicator.as_ref().and_then(|(_, x)| finite(*x)),
+        }
+    }
+}
+
+/// A half-equivalence point and why its pH differs from pKa.
+///
+/// ```
+/// use protolyte::document::HalfEquivalenceResult;
+/// let h = HalfEquivalenceResult::default();
+/// assert_eq!(h.step, 0);
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct HalfEquivalenceResult {
+    /// Family.
+    pub family: String,
+    /// Step, 1-based (1 = pKa1).
+    pub step: usize,
+    /// pKa at the temperature (infinite dilution).
+    pub pka: f64,
+    /// Titrant volume, mL.
+    pub volume_ml: f64,
+    /// pH there.
+    pub ph: f64,
+    /// pH − pKa.
+    pub deviation: f64,
+    /// Share from activity coefficients.
+    pub activity_part: f64,
+    /// Share from overlapping steps.
+    pub overlap_part: f64,
+    /// Share from free H⁺ and OH⁻.
+    pub water_part: f64,
+    /// The largest share: "activity", "overlapping steps" or "water and dilution".
+    pub main_cause: String,
+}
+
+impl From<&HalfEquivalencePoint> for HalfEquivalenceResult {
+    fn from(h: &HalfEquivalencePoint) -> Self {
+        HalfEquivalenceResult {
+            family: h.step.family.clone(),
+            step: h.step.step + 1,
+            pka: h.step.pka,
+            volume_ml: h.volume_ml,
+            ph: h.ph,
+            deviation: h.deviation,
+            activity_part: h.activity_part,
+            overlap_part: h.overlap_part,
+            water_part: h.water_part,
+            main_cause: match h.main_cause {
+                DeviationCause::Activity => "activity",
+                DeviationCause::OverlappingSteps => "overlapping steps",
+                DeviationCause::WaterAndDilution => "water and dilution",
+            }
+            .into(),
+        }
+    }
+}
+
+/// A titration curve with its endpoints.
+///
+/// ```
+/// use protolyte::document::TitrationResult;
+/// let t = TitrationResult::default();
+/// assert!(t.points.is_empty());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct TitrationResult {
+    /// `"protolyte-result/1"`.
+    #[serde(default = "result_format")]
+    pub format: String,
+    /// The request's label.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// Analyte volume, mL.
+    pub analyte_volume_ml: f64,
+    /// The curve.
+    pub points: Vec<TitrationPointResult>,
+    /// Stoichiometric equivalence points.
+    pub equivalence_points: Vec<EquivalenceResult>,
+    /// Half-equivalence points.
+    pub half_equivalence_points: Vec<HalfEquivalenceResult>,
+}
+
+/// One line of a designed buffer recipe.
+///
+/// ```
+/// use protolyte::document::DesignLineResult;
+/// let l = DesignLineResult::default();
+/// assert!(l.grams.is_none());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct DesignLineResult {
+    /// Reagent.
+    pub reagent: String,
+    /// "acid", "base", "buffer", "adjuster" or "salt".
+    pub role: String,
+    /// Concentration in the finished buffer, mol/L.
+    pub mol_per_l: f64,
+    /// Grams to weigh (a solid).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub grams: Option<f64>,
+    /// Millilitres of stock to pipette (a solution).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub milliliters: Option<f64>,
+}
+
+/// The pH of the finished buffer under other conditions.
+///
+/// ```
+/// use protolyte::document::PhShiftResult;
+/// assert_eq!(PhShiftResult::default().shift, 0.0);
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
+pub struct PhShiftResult {
+    /// Temperature, °C.
+    pub temperature_celsius: f64,
+    /// Dilution factor (1 = as made).
+    pub dilution_factor: f64,
+    /// pH there.
+    pub ph: f64,
+    /// Change from the check pH.
+    pub shift: f64,
+}
+
+impl From<&PhShift> for PhShiftResult {
+    fn from(s: &PhShift) -> Self {
+        PhShiftResult {
+            temperature_celsius: s.temperature.as_celsius(),
+            dilution_factor: s.dilution_factor,
+            ph: s.ph,
+            shift: s.shift,
+        }
+    }
+}
+
+/// A designed buffer: what to take, and the check solve of the finished recipe.
+///
+/// ```
+/// use protolyte::document::DesignResult;
+/// let d = DesignResult::default();
+/// assert!(d.lines.is_empty());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct DesignResult {
+    /// `"protolyte-result/1"`.
+    #[serde(default = "result_format")]
+    pub format: String,
+    /// The request's label.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// What to take.
+    pub lines: Vec<DesignLineResult>,
+    /// Make up to this volume with water, mL.
+    pub final_volume_ml: f64,
+    /// Target pH.
+    pub target_ph: f64,
+    /// pH of the check solve.
+    pub check_ph: f64,
+    /// check − target.
+    pub ph_residual: f64,
+    /// Largest balance residual of the check solve.
+    pub balance_residual: f64,
+    /// Ionic strength, mol/kg.
+    pub ionic_strength_mol_per_kg: f64,
+    /// Buffer capacity, mol/L per pH.
+    pub buffer_capacity_mol_per_l: f64,
+    /// pH at other temperatures.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub temperature_shifts: Vec<PhShiftResult>,
+    /// pH after ten-fold dilution.
+    pub dilution_shift: PhShiftResult,
+    /// Warnings of the check solve.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
+    /// The finished recipe as a recipe document (feed it to `solve`).
+    pub recipe: RecipeDoc,
+    /// The check solve in full, when it was run.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub check: Option<SolveResult>,
+}
+
+impl DesignResult {
+    /// The document of `r`, designed at `conditions`; the check solve is re-run to report
+    /// every species.
+    pub fn from_recipe(r: &BufferRecipe, conditions: &Conditions) -> Self {
+        let check = r
+            .recipe
+            .compile(conditions)
+            .and_then(|s| s.solve())
+            .ok()
+            .map(|eq| SolveResult::from_equilibrium(&eq));
+        DesignResult {
+            format: result_format(),
+            name: None,
+            lines: r
+                .lines
+                .iter()
+                .map(|l| {
+                    let (grams, milliliters) = match l.measure {
+                        Measure::Mass(m) => (Some(m.grams_value()), None),
+                        Measure::Volume(v) => (None, Some(v.milliliters_value())),
+                    };
+                    DesignLineResult {
+                        reagent: l.reagent.clone(),
+                        role: match l.role {
+                            Role::Acid => "acid",
+                            Role::Base => "base",
+                            Role::Buffer => "buffer",
+                            Role::Adjuster => "adjuster",
+                            Role::Salt => "salt",
+                        }
+                        .into(),
+                        mol_per_l: l.mol_per_l,
+                        grams,
+                        milliliters,
+                    }
+                })
+                .collect(),
+            final_volume_ml: r.final_volume.milliliters_value(),
+            target_ph: r.target_ph,
+            check_ph: r.check_ph,
+            ph_residual: r.ph_residual,
+            balance_residual: r.balance_residual,
+            ionic_strength_mol_per_kg: r.ionic_strength_molal,
+            buffer_capacity_mol_per_l: finite(r.buffer_capacity_mol_per_l).unwrap_or(0.0),
+            temperature_shifts: r.temperature_shifts.iter().map(PhShiftResult::from).collect(),
+            dilution_shift: (&r.dilution_shift).into(),
+            warnings: warnings(&r.warnings),
+            recipe: RecipeDoc::from_recipe(&r.recipe, conditions),
+            check,
+        }
+    }
+}
+
+/// One estimated unknown.
+///
+/// ```
+/// use protolyte::document::EstimateResult;
+/// assert!(EstimateResult::default().standard_error.is_none());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct EstimateResult {
+    /// What was estimated.
+    pub unknown: String,
+    /// Its curve (1-based), absent when shared.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub curve: Option<usize>,
+    /// Starting value.
+    pub start: f64,
+    /// Estimate.
+    pub value: f64,
+    /// Standard error (absent when it could not be computed).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub standard_error: Option<f64>,
+}
+
+/// A fit report.
+///
+/// ```
+/// use protolyte::document::FitResult;
+/// assert!(FitResult::default().estimates.is_empty());
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct FitResult {
+    /// `"protolyte-result/1"`.
+    #[serde(default = "result_format")]
+    pub format: String,
+    /// The request's label.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub name: Option<String>,
+    /// Estimates, in the order asked for.
+    pub estimates: Vec<EstimateResult>,
+    /// Correlation matrix of the estimates (rows in the same order; `null` where undefined).
+    pub correlation: Vec<Vec<Option<f64>>>,
+    /// measured − model pH, per curve and point.
+    pub residuals: Vec<Vec<f64>>,
+    /// Residual standard deviation, pH (absent without degrees of freedom).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub residual_sd: Option<f64>,
+    /// Degrees of freedom.
+    pub degrees_of_freedom: usize,
+    /// Iterations.
+    pub iterations: usize,
+    /// True when the fit stopped on convergence rather than the iteration budget.
+    pub converged: bool,
+}
+
+impl From<&FitReport> for FitResult {
+    fn from(f: &FitReport) -> Self {
+        let n = f.correlation.nrows();
+        FitResult {
+            format: result_format(),
+            name: None,
+            estimates: f
+                .estimates
+                .iter()
+                .map(|e| EstimateResult {
+                    unknown: e.unknown.describe(),
+                    curve: match e.scope {
+                        Scope::Shared => None,
+                        Scope::Curve(k) => Some(k + 1),
+                    },
+                    start: e.start,
+                    value: e.value,
+                    standard_error: finite(e.standard_error),
+                })
+                .collect(),
+            correlation: (0..n)
+                .map(|i| {
+                    (0..f.correlation.ncols())
+                        .map(|j| finite(f.correlation[(i, j)]))
+                        .collect()
+                })
+                .collect(),
+            residuals: f
+                .residuals
+                .iter()
+                .map(|c| c.iter().map(|r| finite(*r).unwrap_or(0.0)).collect())
+                .collect(),
+            residual_sd: finite(f.residual_sd),
+            degrees_of_freedom: f.degrees_of_freedom,
+            iterations: f.iterations,
+            converged: f.converged,
+        }
+    }
+}

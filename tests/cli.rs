@@ -1,0 +1,226 @@
+//! End-to-end tests of the `protolyte` program: outputs and exit codes.
+#![cfg(feature = "cli")]
+
+use std::io::Write;
+use std::process::{Command, Output, Stdio};
+
+use protolyte::document::batch::{BatchErrorRecord, BatchRecord};
+use protolyte::document::{DesignResult, FitResult, SolveResult, TitrationResult};
+
+fn protolyte(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_protolyte"))
+        .args(args)
+        .output()
+        .expect("run protolyte")
+}
+
+fn with_stdin(args: &[&str], input: &str) -> Output {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_protolyte"))
+        .args(args)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("run protolyte");
+    child.stdin.take().unwrap().write_all(input.as_bytes()).unwrap();
+    child.wait_with_output().unwrap()
+}
+
+fn stdout(o: &Output) -> String {
+    String::from_utf8(o.stdout.clone()).unwrap()
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8(o.stderr.clone()).unwrap()
+}
+
+fn temp_file(name: &str, text: &str) -> std::path::PathBuf {
+    let dir = std::env::temp_dir().join(format!("protolyte-cli-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+#[test]
+fn solve_prints_a_table() {
+    let o = protolyte(&["solve", "examples/hatchery_makeup.json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("pH "), "{out}");
+    assert!(out.contains("HCO3-"));
+    assert!(out.contains("carbonate"));
+}
+
+#[test]
+fn solve_json_and_stdin_and_toml_agree() {
+    let o = protolyte(&["solve", "--json", "examples/hatchery_makeup.json"]);
+    assert_eq!(o.status.code(), Some(0));
+    let a: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
+    let text = std::fs::read_to_string("examples/hatchery_makeup.json").unwrap();
+    let o = with_stdin(&["solve", "--json", "-"], &text);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let b: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert_eq!(a, b);
+    // Carbonate-buffered water near neutral (common practice).
+    assert!(a.ph > 6.5 && a.ph < 8.5);
+    let o = protolyte(&["solve", "--json", "examples/pool_water.toml"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let pool: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert!(pool.species.iter().any(|s| s.name.starts_with("CaHCO3")));
+}
+
+#[test]
+fn bad_json_exits_3_with_line_and_column() {
+    let p = temp_file(
+        "bad.json",
+        "{\n  \"format\": \"protolyte-recipe/1\",\n  \"reagents\": [\n    { \"reagent\": \"acetic acid\" \"molar\": 0.1 }\n  ]\n}\n",
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    let err = stderr(&o);
+    assert!(err.contains("bad.json:4:"), "{err}");
+    // A refused field is named.
+    let p = temp_file(
+        "field.json",
+        r#"{"format": "protolyte-recipe/1", "reagents": [{"reagent": "acetic acid", "molar": -1}]}"#,
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("field `reagents[0]`"), "{}", stderr(&o));
+    // A document without its format tag is refused.
+    let p = temp_file("noformat.json", r#"{"reagents": []}"#);
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("format"));
+}
+
+#[test]
+fn unreadable_file_exits_3_and_usage_errors_exit_2() {
+    let o = protolyte(&["solve", "no/such/file.json"]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("no/such/file.json"));
+    assert_eq!(protolyte(&["solve"]).status.code(), Some(2));
+    assert_eq!(protolyte(&["frobnicate"]).status.code(), Some(2));
+    assert_eq!(protolyte(&["solve", "--colour", "x.json"]).status.code(), Some(2));
+}
+
+#[test]
+fn titrate_writes_csv_with_endpoints() {
+    let o = protolyte(&["titrate", "examples/soft_drink_acidity.json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    let mut lines = out.lines();
+    assert_eq!(
+        lines.next(),
+        Some("volume_ml,ph,dph_dv_per_ml,ionic_strength_mol_per_kg")
+    );
+    let rows: Vec<&str> = out.lines().skip(1).filter(|l| !l.starts_with('#')).collect();
+    assert!(rows.len() > 50);
+    assert!(rows.iter().all(|r| r.split(',').count() == 4 && !r.contains("NaN")));
+    assert!(out.contains("# equivalence point 1:"));
+    assert!(out.contains("# half-equivalence phosphate pKa1"));
+}
+
+#[test]
+fn titrate_json_has_curve_and_endpoints() {
+    let o = protolyte(&["titrate", "--json", "examples/soft_drink_acidity.json"]);
+    assert_eq!(o.status.code(), Some(0));
+    let t: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert!(t.points.windows(2).all(|w| w[1].volume_ml > w[0].volume_ml));
+    assert!(!t.equivalence_points.is_empty());
+    // The pH rises as base is added (common practice).
+    assert!(t.points.last().unwrap().ph > t.points[0].ph + 5.0);
+}
+
+#[test]
+fn design_gives_the_recipe_and_check_solve() {
+    let o = protolyte(&["design", "examples/tris_buffer_design.json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("tris base") && out.contains(" g") && out.contains(" mL"));
+    assert!(out.contains("check solve"));
+    let o = protolyte(&["design", "--json", "examples/tris_buffer_design.json"]);
+    let d: DesignResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert!(d.ph_residual.abs() < 1e-6);
+    assert!((d.check.unwrap().ph - 8.0).abs() < 1e-6);
+    // Tris buffers lose about 0.03 pH per °C on warming (common practice).
+    let warm = d
+        .temperature_shifts
+        .iter()
+        .find(|s| s.temperature_celsius > 30.0)
+        .unwrap();
+    assert!(warm.shift < -0.2);
+}
+
+#[test]
+fn fit_reports_estimates_and_residuals() {
+    let o = protolyte(&["fit", "examples/vinegar_fit.json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("analyte total of acetate"));
+    assert!(out.contains("curve,point,volume_ml,measured_ph,residual_ph"));
+    let o = protolyte(&["fit", "--json", "examples/vinegar_fit.json"]);
+    let f: FitResult = serde_json::from_str(&stdout(&o)).unwrap();
+    // The invented data were made with 0.0987 mol/L and a +0.02 pH offset (examples/vinegar_fit.json).
+    let c = &f.estimates[0];
+    assert!(
+        (c.value - 0.0987).abs() < 3.0 * c.standard_error.unwrap() + 1e-4,
+        "{c:?}"
+    );
+    let off = &f.estimates[1];
+    assert!((off.value - 0.02).abs() < 0.005, "{off:?}");
+}
+
+#[test]
+fn batch_with_a_bad_line_gives_an_error_record_and_exit_1() {
+    let good = std::fs::read_to_string("examples/buffer_screen.jsonl").unwrap();
+    let mut lines: Vec<&str> = good.lines().collect();
+    lines.insert(2, "{\"reagents\": [{\"reagent\": \"acetic acid\", \"molar\": 0.1},]}");
+    let input = lines.join("\n") + "\n";
+    let o = with_stdin(&["batch", "-"], &input);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let out = stdout(&o);
+    let recs: Vec<&str> = out.lines().collect();
+    assert_eq!(recs.len(), lines.len());
+    let e: BatchErrorRecord = serde_json::from_str(recs[2]).unwrap();
+    assert_eq!(e.line, 3);
+    assert_eq!(e.kind, "syntax");
+    assert!(e.error.contains("column"), "{}", e.error);
+    for (i, r) in recs.iter().enumerate().filter(|(i, _)| *i != 2) {
+        let r: BatchRecord = serde_json::from_str(r).unwrap();
+        assert_eq!(r.line, i + 1);
+    }
+    assert!(stderr(&o).contains("1 of 6 batch lines failed"));
+    // The shipped batch runs clean, to a file.
+    let dir = std::env::temp_dir().join(format!("protolyte-cli-out-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let out_path = dir.join("out.jsonl");
+    let o = protolyte(&[
+        "batch",
+        "examples/buffer_screen.jsonl",
+        "-o",
+        out_path.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    // No progress bar when standard error is not a terminal.
+    assert!(stderr(&o).is_empty());
+    let text = std::fs::read_to_string(&out_path).unwrap();
+    assert_eq!(text.lines().count(), 5);
+}
+
+#[test]
+fn data_lists_and_searches_with_sources() {
+    let o = protolyte(&["data", "phosphate"]);
+    assert_eq!(o.status.code(), Some(0));
+    let out = stdout(&o);
+    assert!(out.contains("protolyte phosphate"));
+    assert!(out.contains("source:"));
+    let o = protolyte(&["data", "--json"]);
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    assert!(all.len() > 200);
+    assert!(all.iter().all(|e| !e["source"].as_str().unwrap().is_empty()));
+    let o = protolyte(&["data", "no such thing at all"]);
+    assert_eq!(o.status.code(), Some(0));
+    assert!(stdout(&o).contains("0 entries"));
+}

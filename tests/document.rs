@@ -1,0 +1,338 @@
+//! The document format: round trips, TOML, errors that name the place, the shipped example
+//! documents, and batch runs against single solves.
+#![cfg(feature = "serde")]
+
+use protolyte::document::{
+    self, AmountLine, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
+};
+use protolyte::{Amount, Catalog};
+
+fn cat() -> Catalog {
+    Catalog::builtin()
+}
+
+fn solve_doc(doc: &RecipeDoc) -> protolyte::Equilibrium {
+    let (recipe, conditions) = doc.to_recipe(&cat()).expect("recipe");
+    recipe.compile(&conditions).expect("compile").solve().expect("solve")
+}
+
+const BUFFER_JSON: &str = r#"{
+  "format": "protolyte-recipe/1",
+  "name": "acetate buffer",
+  "temperature_celsius": 25,
+  "activity": "davies",
+  "reagents": [
+    { "reagent": "acetic acid", "millimolar": 20 },
+    { "reagent": "sodium acetate", "molar": 0.01 },
+    { "reagent": "sodium chloride", "grams": 0.5844, "final_volume_ml": 100 }
+  ]
+}"#;
+
+const BUFFER_TOML: &str = r#"
+format = "protolyte-recipe/1"
+name = "acetate buffer"
+temperature_celsius = 25.0
+activity = "davies"
+
+[[reagents]]
+reagent = "acetic acid"
+millimolar = 20.0
+
+[[reagents]]
+reagent = "sodium acetate"
+molar = 0.01
+
+[[reagents]]
+reagent = "sodium chloride"
+grams = 0.5844
+final_volume_ml = 100.0
+"#;
+
+#[test]
+fn json_recipe_round_trips() {
+    let doc: RecipeDoc = document::parse(BUFFER_JSON, "buffer.json").unwrap();
+    let text = serde_json::to_string_pretty(&doc).unwrap();
+    let back: RecipeDoc = document::parse(&text, "again.json").unwrap();
+    assert_eq!(back, doc);
+    // Document → recipe → document → recipe gives the same recipe.
+    let (recipe, conditions) = doc.to_recipe(&cat()).unwrap();
+    let again = RecipeDoc::from_recipe(&recipe, &conditions);
+    let (recipe2, conditions2) = again.to_recipe(&cat()).unwrap();
+    assert_eq!(recipe2, recipe);
+    assert_eq!(conditions2, conditions);
+}
+
+#[test]
+fn toml_and_json_give_the_same_recipe() {
+    let j: RecipeDoc = document::parse(BUFFER_JSON, "b.json").unwrap();
+    let t: RecipeDoc = document::parse(BUFFER_TOML, "b.toml").unwrap();
+    assert_eq!(j, t);
+    let ph = solve_doc(&t).ph();
+    // With Davies activities the 2:1 acetate buffer reads below pKa − log 2 = 4.455
+    // (pKa 4.756, Goldberg et al. 2002; the activity shift is common practice).
+    assert!(ph > 4.1 && ph < 4.455, "pH {ph}");
+}
+
+#[test]
+fn amount_forms_agree() {
+    // 0.5844 g NaCl (58.44 g/mol, IUPAC atomic weights) in 100 mL is 0.1 mol/L; 10 mL of a
+    // 1 mol/L stock made up to 100 mL is 0.1 mol/L (common practice).
+    let forms = [
+        r#"{"reagent": "sodium chloride", "molar": 0.1}"#,
+        r#"{"reagent": "sodium chloride", "millimolar": 100}"#,
+        r#"{"reagent": "sodium chloride", "grams": 0.58443, "final_volume_ml": 100}"#,
+        r#"{"reagent": "sodium chloride", "stock_molar": 1.0, "aliquot_ml": 10, "final_volume_ml": 100}"#,
+    ];
+    for f in forms {
+        let line: AmountLine = serde_json::from_str(f).unwrap();
+        let doc = RecipeDoc {
+            reagents: vec![line],
+            ..RecipeDoc::new()
+        };
+        let (recipe, _) = doc.to_recipe(&cat()).unwrap();
+        let v = recipe.entries()[0].amount.value();
+        assert!((v - 0.1).abs() < 1e-4, "{f}: {v}");
+    }
+    // The molal form stays molal.
+    let line: AmountLine = serde_json::from_str(r#"{"reagent": "sodium chloride", "molal": 0.1}"#).unwrap();
+    let doc = RecipeDoc {
+        reagents: vec![line],
+        ..RecipeDoc::new()
+    };
+    assert_eq!(doc.to_recipe(&cat()).unwrap().0.entries()[0].amount, Amount::molal(0.1));
+}
+
+#[test]
+fn bad_json_names_file_line_and_column() {
+    let text = "{\n  \"format\": \"protolyte-recipe/1\",\n  \"reagents\": [\n    { \"reagent\": \"acetic acid\", \"millimolar\": 2o }\n  ]\n}";
+    let err = document::parse::<RecipeDoc>(text, "broken.json").unwrap_err();
+    match &err {
+        DocumentError::Syntax { file, line, column, .. } => {
+            assert_eq!(file, "broken.json");
+            assert_eq!(*line, 4);
+            assert!(*column > 30, "column {column}");
+        }
+        other => panic!("{other:?}"),
+    }
+    assert!(err.to_string().starts_with("broken.json:4:"));
+    // An unknown field is refused with its position.
+    let err = document::parse::<RecipeDoc>("{\"reagnets\": []}", "typo.json").unwrap_err();
+    assert!(err.to_string().contains("unknown field `reagnets`"), "{err}");
+}
+
+#[test]
+fn bad_toml_names_line_and_column() {
+    let text = "format = \"protolyte-recipe/1\"\n[[reagents]]\nreagent = \"acetic acid\"\nmillimolar = \"lots\"\n";
+    let err = document::parse::<RecipeDoc>(text, "broken.toml").unwrap_err();
+    assert!(matches!(err, DocumentError::Syntax { line: 4, .. }), "{err:?}");
+}
+
+#[test]
+fn refused_fields_are_named() {
+    let field = |json: &str| -> (String, String) {
+        let doc: RecipeDoc = document::parse(json, "x.json").unwrap();
+        match doc.to_recipe(&cat()).unwrap_err() {
+            DocumentError::Field { field, message, .. } => (field, message),
+            other => panic!("{other:?}"),
+        }
+    };
+    let (f, m) = field(
+        r#"{"reagents": [{"reagent": "acetic acid", "molar": 0.1}, {"reagent": "sodium acetat", "molar": 0.1}]}"#,
+    );
+    assert_eq!(f, "reagents[1].reagent");
+    assert!(m.contains("did you mean `sodium acetate`"), "{m}");
+    let (f, m) = field(r#"{"reagents": [{"reagent": "acetic acid", "molar": 0.1, "millimolar": 3}]}"#);
+    assert_eq!(f, "reagents[0]");
+    assert!(m.contains("exactly one amount"), "{m}");
+    let (f, m) = field(r#"{"reagents": [{"reagent": "acetic acid", "molar": -0.1}]}"#);
+    assert_eq!(f, "reagents[0]");
+    assert!(m.contains("acetic acid"), "{m}");
+    let (f, _) = field(r#"{"reagents": [{"reagent": "sodium chloride", "grams": 1.0}]}"#);
+    assert_eq!(f, "reagents[0].final_volume_ml");
+    let (f, _) = field(r#"{"temperature_celsius": 150, "reagents": []}"#);
+    assert_eq!(f, "temperature_celsius");
+    let (f, m) = field(r#"{"format": "protolyte-recipe/9", "reagents": []}"#);
+    assert_eq!(f, "format");
+    assert!(m.contains("not supported"), "{m}");
+    // A missing format tag is refused where it is required.
+    let doc: RecipeDoc = document::parse(r#"{"reagents": []}"#, "x.json").unwrap();
+    assert!(doc.check_format(true).is_err());
+    assert!(doc.check_format(false).is_ok());
+}
+
+#[test]
+fn user_definitions_are_used() {
+    let doc: RecipeDoc = document::load("examples/indicator_dye.json").unwrap();
+    let eq = solve_doc(&doc);
+    let dye = eq.family("dye X").expect("the user's family");
+    // pH above the dye's pKa 6.8: most of it is deprotonated (common practice).
+    assert!(eq.ph() > 6.8 && dye.fractions[0] > 0.5);
+    // A user complex joins the system.
+    let json = r#"{
+      "definitions": {
+        "ions": [{"name": "metal M", "charge": 2}],
+        "reagents": [{"name": "M chloride", "parts": [{"ion": "metal M"}, {"ion": "chloride", "count": 2}]}],
+        "complexes": [{"name": "M-acetate+", "log_beta": 1.5, "parts": [{"ion": "metal M"}, {"base": "acetate"}]}]
+      },
+      "reagents": [{"reagent": "M chloride", "millimolar": 10}, {"reagent": "sodium acetate", "millimolar": 10}]
+    }"#;
+    let doc: RecipeDoc = document::parse(json, "m.json").unwrap();
+    let eq = solve_doc(&doc);
+    assert!(eq.species_named("M-acetate+").unwrap().molal > 0.0);
+}
+
+#[test]
+fn solve_result_round_trips_without_nan() {
+    let doc: RecipeDoc = document::load("examples/pool_water.toml").unwrap();
+    let eq = solve_doc(&doc);
+    let r = SolveResult::from_equilibrium(&eq);
+    let text = serde_json::to_string(&r).unwrap();
+    assert!(!text.contains("NaN") && !text.contains("null"));
+    let back: SolveResult = serde_json::from_str(&text).unwrap();
+    assert_eq!(back, r);
+    assert_eq!(back.species.len(), eq.species().len());
+}
+
+/// Every shipped example document parses and runs, by its format tag.
+#[test]
+fn example_documents_all_run() {
+    let mut seen = 0;
+    for entry in std::fs::read_dir("examples").unwrap() {
+        let path = entry.unwrap().path();
+        let ext = path.extension().and_then(|e| e.to_str()).unwrap_or("");
+        if ext != "json" && ext != "toml" {
+            continue;
+        }
+        let text = std::fs::read_to_string(&path).unwrap();
+        let name = path.display().to_string();
+        let value: serde_json::Value = if ext == "json" {
+            serde_json::from_str(&text).unwrap()
+        } else {
+            let t: toml::Value = toml::from_str(&text).unwrap();
+            serde_json::to_value(t).unwrap()
+        };
+        let format = value["format"].as_str().unwrap_or_else(|| panic!("{name}: no format"));
+        match format {
+            "protolyte-recipe/1" => {
+                let d: RecipeDoc = document::load(&path).unwrap();
+                d.check_format(true).unwrap();
+                let eq = solve_doc(&d);
+                assert!(eq.residuals().max_balance_relative() < 1e-9, "{name}");
+            }
+            "protolyte-titration/1" => {
+                let d: TitrationDoc = document::load(&path).unwrap();
+                let t = d.to_titration(&cat()).unwrap();
+                let curve = t.curve_adaptive(&d.stepping().unwrap()).unwrap();
+                assert!(curve.len() > 10, "{name}");
+                assert!(!t.equivalence_points().unwrap().is_empty(), "{name}");
+            }
+            "protolyte-design/1" => {
+                let d: DesignDoc = document::load(&path).unwrap();
+                let r = d.to_spec(&cat()).unwrap().design().unwrap();
+                assert!(r.ph_residual.abs() < 1e-6, "{name}");
+                let doc = DesignResult::from_recipe(&r, &d.conditions().unwrap());
+                // The designed recipe, written as a recipe document, solves to the target.
+                let eq = solve_doc(&doc.recipe);
+                assert!((eq.ph() - r.target_ph).abs() < 1e-6, "{name}");
+            }
+            "protolyte-fit/1" => {
+                let d: FitDoc = document::load(&path).unwrap();
+                let report = d.to_fit(&cat()).unwrap().run().unwrap();
+                assert!(report.converged, "{name}");
+                let r = FitResult::from(&report);
+                assert!(r.estimates.iter().all(|e| e.standard_error.is_some()), "{name}");
+            }
+            other => panic!("{name}: unknown format {other}"),
+        }
+        seen += 1;
+    }
+    assert!(seen >= 5, "only {seen} example documents");
+}
+
+#[cfg(feature = "cli")]
+mod batch {
+    use super::*;
+    use protolyte::document::batch::{BatchErrorRecord, BatchOptions, BatchRecord, run};
+    use protolyte::{Conditions, Recipe};
+
+    fn line(i: usize) -> String {
+        let a = 1.0 + (i % 17) as f64;
+        let b = 1.0 + (i % 11) as f64;
+        format!(
+            r#"{{"name":"r{i}","reagents":[{{"reagent":"acetic acid","millimolar":{a}}},{{"reagent":"sodium acetate","millimolar":{b}}},{{"reagent":"ammonium chloride","millimolar":2}}]}}"#
+        )
+    }
+
+    #[test]
+    fn batch_keeps_order_matches_single_solves_and_survives_bad_lines() {
+        let n = 3000;
+        let mut input = String::new();
+        for i in 0..n {
+            if i == 1234 {
+                input.push_str("{\"reagents\": [ oops ]}\n");
+            } else if i == 2000 {
+                input.push_str(r#"{"reagents": [{"reagent": "unobtainium", "molar": 1}]}"#);
+                input.push('\n');
+            } else {
+                input.push_str(&line(i));
+                input.push('\n');
+            }
+        }
+        let opts = BatchOptions {
+            full: false,
+            chunk_lines: 1024,
+        };
+        let mut out = Vec::new();
+        let s = run(input.as_bytes(), &mut out, &cat(), &opts, |_, _| {}).unwrap();
+        assert_eq!((s.records, s.failed), (n, 2));
+        let text = String::from_utf8(out.clone()).unwrap();
+        let lines: Vec<&str> = text.lines().collect();
+        assert_eq!(lines.len(), n);
+        for (i, l) in lines.iter().enumerate() {
+            if i == 1234 || i == 2000 {
+                let e: BatchErrorRecord = serde_json::from_str(l).unwrap();
+                assert_eq!(e.line, i + 1);
+                assert_eq!(e.kind, if i == 1234 { "syntax" } else { "input" });
+                continue;
+            }
+            let r: BatchRecord = serde_json::from_str(l).unwrap();
+            assert_eq!(r.line, i + 1);
+            assert_eq!(r.name.as_deref(), Some(format!("r{i}").as_str()));
+            if i % 97 == 0 {
+                // The same recipe solved on its own, from a cold start.
+                let doc: RecipeDoc = serde_json::from_str(&line(i)).unwrap();
+                let ph = solve_doc(&doc).ph();
+                assert!((r.ph - ph).abs() < 1e-9, "line {}: {} vs {ph}", i + 1, r.ph);
+            }
+        }
+        // The output does not depend on the thread schedule.
+        let mut again = Vec::new();
+        run(input.as_bytes(), &mut again, &cat(), &opts, |_, _| {}).unwrap();
+        assert_eq!(again, out);
+    }
+
+    #[test]
+    fn full_records_carry_the_whole_result() {
+        let input = format!("{}\n\n{}\n", line(1), line(2));
+        let mut out = Vec::new();
+        let opts = BatchOptions {
+            full: true,
+            ..Default::default()
+        };
+        let s = run(input.as_bytes(), &mut out, &cat(), &opts, |_, _| {}).unwrap();
+        // The blank line gives no record; line numbers still count it.
+        assert_eq!(s.records, 2);
+        let text = String::from_utf8(out).unwrap();
+        let recs: Vec<BatchRecord> = text.lines().map(|l| serde_json::from_str(l).unwrap()).collect();
+        assert_eq!(recs[1].line, 3);
+        let full = recs[0].result.as_ref().unwrap();
+        assert_eq!(full.families.len(), 2);
+        // The batch record agrees with the single solve's document.
+        let eq = solve_doc(&serde_json::from_str(&line(1)).unwrap());
+        assert!((full.ph - eq.ph()).abs() < 1e-9);
+        let mut r = Recipe::new();
+        r.add(&cat().reagent("acetic acid").unwrap(), Amount::millimolar(2.0))
+            .unwrap();
+        assert!(r.compile(&Conditions::default()).is_ok());
+    }
+}
