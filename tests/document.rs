@@ -336,3 +336,31 @@ mod batch {
         assert!(r.compile(&Conditions::default()).is_ok());
     }
 }
+
+/// The JSON Schema parses and knows every top-level field the example documents use.
+#[test]
+fn schema_knows_the_example_fields() {
+    let schema: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string("schema/recipe.schema.json").unwrap()).unwrap();
+    for entry in std::fs::read_dir("examples").unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().and_then(|e| e.to_str()) != Some("json") {
+            continue;
+        }
+        let doc: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&path).unwrap()).unwrap();
+        let kind = doc["format"]
+            .as_str()
+            .unwrap()
+            .trim_start_matches("protolyte-")
+            .trim_end_matches("/1");
+        let props = &schema["$defs"][kind]["properties"];
+        assert!(props.is_object(), "{kind}");
+        for key in doc.as_object().unwrap().keys() {
+            assert!(
+                props.get(key).is_some(),
+                "{}: `{key}` not in the schema",
+                path.display()
+            );
+        }
+    }
+}
