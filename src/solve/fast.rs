@@ -305,32 +305,57 @@ impl<'a> Fast<'a> {
     }
 
     /// Concentrations at L into `ev.conc`, the component activities into a point, and
-    /// I = ½ Σ z² m.
-    fn finish(&mut self, l: f64, ln_i: f64) -> (Point, f64) {
+    /// G = ½ Σ z² m with its total derivative dG/dI along the solution curve L(I) of the charge
+    /// balance (implicit differentiation: dL/dI = −(∂f/∂I)/(∂f/∂L)), for Newton steps on I.
+    fn finish(&mut self, l: f64, i: f64) -> (Point, f64, f64) {
         let sys = self.sys;
         let nc = sys.components.len();
-        self.charge(l);
+        let b = self.charge(l);
+        let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
+        let slope = |s: usize| profile.at(sys.species[s].charge, sys.species[s].ion_size_angstrom).1 * LN10;
         self.ev.conc.iter_mut().for_each(|c| *c = 0.0);
         let mut y = vec![f64::NEG_INFINITY; nc];
         y[0] = l;
-        let mut ionic = 0.0;
+        let (mut ionic, mut df_di, mut dg_dl, mut dg_di) = (0.0, 0.0, 0.0, 0.0);
         for &s in &sys.members[0] {
             let c = self.weight(s);
             self.ev.conc[s] = c;
-            ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * c;
+            let (nu, z, gs) = (f64::from(sys.nu_h[s]), sys.charge_f[s], slope(s));
+            ionic += 0.5 * z * z * c;
+            df_di -= z * gs * c;
+            dg_dl += 0.5 * z * z * nu * c;
+            dg_di -= 0.5 * z * z * gs * c;
         }
         for g in self.active() {
             let t = sys.components[g].total_molal;
             let s0 = self.work[self.ns + self.nc + g];
             // Σ_s m_s = a_g · e^{m_g} · Σv = T, so ln a_g = ln T − m_g − ln Σv.
             y[g] = t.ln() - self.work[self.ns + g] - s0.ln();
+            let (mut sz, mut sg, mut szg, mut sz2, mut sz2nu, mut snu, mut sz2g) = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
             for &s in &sys.members[g] {
-                let c = t * self.weight(s) / s0;
-                self.ev.conc[s] = c;
-                ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * c;
+                let w = self.weight(s) / s0;
+                self.ev.conc[s] = t * w;
+                let (nu, z, gs) = (f64::from(sys.nu_h[s]), sys.charge_f[s], slope(s));
+                sz += z * w;
+                sg += gs * w;
+                szg += z * gs * w;
+                sz2 += z * z * w;
+                sz2nu += z * z * nu * w;
+                snu += nu * w;
+                sz2g += z * z * gs * w;
             }
+            ionic += 0.5 * t * sz2;
+            df_di -= t * (szg - sz * sg);
+            dg_dl += 0.5 * t * (sz2nu - sz2 * snu);
+            dg_di -= 0.5 * t * (sz2g - sz2 * sg);
         }
-        (Point { y, ln_i }, ionic.clamp(I_MIN, I_MAX))
+        let df_dl = b.dpos - b.dneg;
+        let total = if df_dl > 0.0 {
+            dg_di - dg_dl * df_di / df_dl
+        } else {
+            f64::NAN
+        };
+        (Point { y, ln_i: i.ln() }, ionic.clamp(I_MIN, I_MAX), total)
     }
 }
 
@@ -366,7 +391,6 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
     };
     let ideal = sys.model == crate::ActivityModel::Ideal;
     let mut evals = 0;
-    let mut prev: Option<(f64, f64)> = None; // (I, G(I) − I)
     // How closely L is solved at the current γ: loosely while I is still far off (the γ
     // error then dominates), to round-off once it has settled.
     let mut accept = if ideal { 0.0 } else { 1e-3 };
@@ -380,7 +404,7 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
         let (ln_ah, n) = fast.solve_l(l, accept)?;
         evals += n;
         l = ln_ah;
-        let (p, g) = fast.finish(l, i.ln());
+        let (p, g, dg) = fast.finish(l, i);
         if ideal {
             // γ does not depend on I: report the I of the solution.
             return Ok((Point { y: p.y, ln_i: g.ln() }, fast.ev, evals));
@@ -395,17 +419,14 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
             continue;
         }
         accept = (0.01 * (h / i).abs()).min(1e-3);
-        let mut next = g;
-        if let Some((ip, hp)) = prev {
-            let den = h - hp;
-            if den != 0.0 && den.is_finite() {
-                let sec = i - h * (i - ip) / den;
-                if sec.is_finite() && sec > 0.5 * g.min(i) && sec < 2.0 * g.max(i) {
-                    next = sec;
-                }
-            }
-        }
-        prev = Some((i, h));
+        // Newton on h(I) = G(I) − I with the analytic dG/dI; the fixed point G(I) when the
+        // step is not usable.
+        let newton = i - h / (dg - 1.0);
+        let next = if newton.is_finite() && newton > 0.5 * g.min(i) && newton < 2.0 * g.max(i) {
+            newton
+        } else {
+            g
+        };
         i = next.clamp(I_MIN, I_MAX);
     }
     Err(Error::NoConvergence {
