@@ -224,3 +224,31 @@ fn data_lists_and_searches_with_sources() {
     assert_eq!(o.status.code(), Some(0));
     assert!(stdout(&o).contains("0 entries"));
 }
+
+#[test]
+fn plot_option_writes_svg() {
+    let dir = std::env::temp_dir().join(format!("protolyte-cli-plot-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let curve = dir.join("curve.svg");
+    let o = protolyte(&[
+        "titrate",
+        "examples/soft_drink_acidity.json",
+        "--plot",
+        curve.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let svg = std::fs::read_to_string(&curve).unwrap();
+    assert!(svg.starts_with("<svg") && svg.contains("titrant volume / mL"));
+    let dist = dir.join("dist.svg");
+    let o = protolyte(&[
+        "solve",
+        "examples/hatchery_makeup.json",
+        "--plot",
+        dist.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(std::fs::read_to_string(&dist).unwrap().starts_with("<svg"));
+    // An SVG that cannot be written is an output failure.
+    let o = protolyte(&["solve", "examples/hatchery_makeup.json", "--plot", "/no/such/dir/x.svg"]);
+    assert_eq!(o.status.code(), Some(5));
+}

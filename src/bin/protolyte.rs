@@ -17,6 +17,7 @@ use protolyte::document::{
     self, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
     TitrationResult,
 };
+use protolyte::plot::{PlotError, PlotOptions, distribution_plot, titration_svg, write_svg};
 use protolyte::{Catalog, Error};
 
 /// Exit codes.
@@ -54,6 +55,9 @@ enum Command {
         /// Write the result as JSON instead of a table.
         #[arg(long)]
         json: bool,
+        /// Also draw the distribution diagram (fraction of each form against pH) as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
     },
     /// Simulate a titration (`protolyte-titration/1`): the curve as CSV, then its endpoints.
     Titrate {
@@ -62,6 +66,9 @@ enum Command {
         /// Write the curve and endpoints as JSON instead of CSV.
         #[arg(long)]
         json: bool,
+        /// Also draw the curve with its equivalence points and dpH/dV as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
     },
     /// Design a buffer (`protolyte-design/1`): what to weigh or pipette, and the check solve.
     Design {
@@ -163,8 +170,8 @@ fn run(cmd: Command) -> Result<u8, Failure> {
     let stdout = io::stdout();
     let mut out = BufWriter::new(stdout.lock());
     let code = match cmd {
-        Command::Solve { file, json } => solve(&file, json, &mut out)?,
-        Command::Titrate { file, json } => titrate(&file, json, &mut out)?,
+        Command::Solve { file, json, plot } => solve(&file, json, plot.as_deref(), &mut out)?,
+        Command::Titrate { file, json, plot } => titrate(&file, json, plot.as_deref(), &mut out)?,
         Command::Design { file, json } => design(&file, json, &mut out)?,
         Command::Fit { file, json } => fit(&file, json, &mut out)?,
         Command::Batch {
@@ -187,7 +194,21 @@ fn write_json<T: serde::Serialize>(out: &mut impl Write, v: &T) -> Result<(), Fa
     writeln!(out).map_err(output_failure)
 }
 
-fn solve(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+fn plot_failure(e: PlotError) -> Failure {
+    Failure {
+        code: EXIT_OUTPUT,
+        message: format!("cannot draw the plot: {e}"),
+    }
+}
+
+fn plot_options(name: &Option<String>) -> PlotOptions {
+    match name {
+        Some(n) => PlotOptions::new().title(n.clone()),
+        None => PlotOptions::new(),
+    }
+}
+
+fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
     let name = display_name(file);
     let doc: RecipeDoc = document::load(file)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
@@ -197,6 +218,11 @@ fn solve(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
         .and_then(|s| s.solve())
         .map_err(|e| chem(&name, e))?;
     let result = SolveResult::from_equilibrium(&eq).named(doc.name.clone());
+    if let Some(p) = plot {
+        let opts = plot_options(&doc.name).mark_ph(eq.ph());
+        let svg = distribution_plot(&recipe, &conditions, &opts).map_err(plot_failure)?;
+        write_svg(p, &svg).map_err(plot_failure)?;
+    }
     if json {
         write_json(out, &result)?;
     } else {
@@ -271,7 +297,7 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
     Ok(())
 }
 
-fn titrate(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
     let name = display_name(file);
     let doc: TitrationDoc = document::load(file)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
@@ -284,6 +310,11 @@ fn titrate(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure>
     let eqs = t.equivalence_points().map_err(|e| chem(&name, e))?;
     let halves = t.half_equivalence_points().map_err(|e| chem(&name, e))?;
     let end = doc.end_volume_ml;
+    if let Some(p) = plot {
+        let shown: Vec<_> = eqs.iter().filter(|e| e.volume_ml <= end).cloned().collect();
+        let svg = titration_svg(&curve, &shown, &plot_options(&doc.name)).map_err(plot_failure)?;
+        write_svg(p, &svg).map_err(plot_failure)?;
+    }
     let result = TitrationResult {
         format: document::RESULT_FORMAT.into(),
         name: doc.name.clone(),
