@@ -343,6 +343,9 @@ fn decimals(d: f64) -> usize {
 }
 
 fn tick(v: f64, dec: usize) -> String {
+    if !v.is_finite() {
+        return String::new();
+    }
     let s = format!("{v:.dec$}");
     // No "-0" or "-0.00".
     if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
@@ -430,9 +433,19 @@ fn draw_label(area: &DrawingArea<SVGBackend<'_>, Shift>, lines: &[String], at: (
     Ok(())
 }
 
+/// Refuses a document with a non-finite number in an attribute (a coordinate or a size). Text
+/// is not searched: a title such as "NaNO₃ buffer" is the caller's, and every number the plot
+/// writes as text comes from a finite value.
 fn finish(buf: String) -> PlotResult<String> {
-    if buf.contains("NaN") || buf.contains("=\"inf") || buf.contains("=\"-inf") {
-        return Err(PlotError::Drawing("a non-finite coordinate reached the SVG".into()));
+    let mut rest = buf.as_str();
+    while let Some(i) = rest.find("=\"") {
+        let value = &rest[i + 2..];
+        let end = value.find('"').unwrap_or(value.len());
+        let v = &value[..end];
+        if v.contains("NaN") || v.contains("inf") {
+            return Err(PlotError::Drawing("a non-finite coordinate reached the SVG".into()));
+        }
+        rest = &value[end..];
     }
     Ok(buf)
 }

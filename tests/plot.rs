@@ -364,3 +364,13 @@ fn one_call_plots_from_a_titration_or_a_recipe() {
     all_finite(&svg);
     assert!(svg.contains("EP1:") && svg.contains("EP2:"));
 }
+
+#[test]
+fn a_title_is_text_not_a_number() {
+    // "NaNO3" holds the letters N, a, N: only attribute values are checked for non-finite numbers.
+    let (t, curve) = strong_titration();
+    let eps = t.equivalence_points().unwrap();
+    let svg = titration_svg(&curve, &eps, &PlotOptions::new().title("NaNO3 background, 0.1 M")).unwrap();
+    assert!(svg.contains("NaNO3 background"));
+    well_formed(&svg);
+}
