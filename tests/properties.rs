@@ -149,13 +149,24 @@ proptest! {
 
     #[test]
     fn ph_rises_as_strong_base_is_added(c in case(), steps in prop::collection::vec(1e-6f64..0.2, 1..6)) {
+        // Within each activity model's stated range. Far beyond it (say I = 2 mol/kg with the
+        // extended Debye–Hückel equation, stated to about 0.1) the extrapolated γ of highly
+        // charged forms falls fast enough with I that a trace of base can lower pH by 1e-8:
+        // a property of the extrapolated model, flagged by its warning, not of the solver.
+        let beyond = |eq: &protolyte::Equilibrium| {
+            eq.warnings().iter().any(|w| matches!(w, protolyte::Warning::IonicStrengthBeyondModel { .. }))
+        };
         let mut added = 0.0;
-        let mut last = system(&c, 0.0).solve().unwrap().ph();
+        let first = system(&c, 0.0).solve().unwrap();
+        let mut last = (first.ph(), beyond(&first));
         for s in steps {
             added += s;
-            let ph = system(&c, added).solve().unwrap().ph();
-            prop_assert!(ph >= last - 1e-12, "pH fell from {} to {} at {} mol/kg added", last, ph, added);
-            last = ph;
+            let eq = system(&c, added).solve().unwrap();
+            let now = (eq.ph(), beyond(&eq));
+            if !now.1 && !last.1 {
+                prop_assert!(now.0 >= last.0 - 1e-12, "pH fell from {} to {} at {} mol/kg added", last.0, now.0, added);
+            }
+            last = now;
         }
     }
 

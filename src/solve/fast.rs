@@ -312,7 +312,16 @@ impl<'a> Fast<'a> {
         let nc = sys.components.len();
         let b = self.charge(l);
         let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
-        let slope = |s: usize| profile.at(sys.species[s].charge, sys.species[s].ion_size_angstrom).1 * LN10;
+        // d ln γ/dI of each species; under Davies z² times that of a singly charged ion.
+        let davies = sys.model == crate::ActivityModel::Davies;
+        let unit = profile.at(1, 0.0).1 * LN10;
+        let slope = |s: usize| {
+            if davies {
+                unit * sys.charge_f[s] * sys.charge_f[s]
+            } else {
+                profile.at(sys.species[s].charge, sys.species[s].ion_size_angstrom).1 * LN10
+            }
+        };
         self.ev.conc.iter_mut().for_each(|c| *c = 0.0);
         let mut y = vec![f64::NEG_INFINITY; nc];
         y[0] = l;

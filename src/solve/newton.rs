@@ -442,7 +442,7 @@ pub(crate) fn solve(
     // phase converges from wherever they leave it; then the joint Newton on every unknown
     // with I, quadratic from there.
     pcf_sweeps(sys, &mut ev, &lay, &mut p, 30);
-    iters += convex_phase(sys, &mut ev, &lay, &mut p, 1e-6, 100);
+    iters += convex_phase(sys, &mut ev, &lay, &mut p, 1e-3, 100);
     if ideal {
         // γ = 1: I is a by-product; start the joint Newton from the consistent value.
         let mut ionic = 0.0;
