@@ -150,8 +150,9 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     match run(cli.command) {
         Ok(code) => ExitCode::from(code),
+        // A reader that closed the pipe early (e.g. `| head`) wanted no more: no message.
+        Err(f) if f.code == EXIT_OUTPUT && f.message.contains("Broken pipe") => ExitCode::from(EXIT_OK),
         Err(f) => {
-            // A closed pipe (e.g. `| head`) is not worth a message.
             eprintln!("protolyte: {}", f.message);
             ExitCode::from(f.code)
         }
@@ -515,7 +516,7 @@ fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Res
         code: EXIT_BAD_INPUT,
         message: format!("{name}: cannot read: {e}"),
     };
-    let (input, total): (Box<dyn BufRead>, Option<u64>) = if file == Path::new("-") {
+    let (input, total): (Box<dyn BufRead + Send>, Option<u64>) = if file == Path::new("-") {
         (Box::new(BufReader::with_capacity(1 << 20, io::stdin())), None)
     } else {
         let f = File::open(file).map_err(unreadable)?;

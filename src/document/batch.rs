@@ -12,6 +12,7 @@
 //! cannot be read or solved, a [`BatchErrorRecord`]; the other lines still run.
 
 use std::io::{self, BufRead, Write};
+use std::sync::Mutex;
 
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
@@ -118,6 +119,7 @@ pub struct BatchSummary {
 }
 
 /// A compiled system re-used for recipes with the same names and conditions.
+#[derive(Clone)]
 struct Template {
     temperature_bits: u64,
     activity: Option<super::ActivityDoc>,
@@ -209,6 +211,9 @@ impl Template {
 /// Per-block state: compiled systems by names and conditions.
 struct Block<'a> {
     catalog: &'a Catalog,
+    /// Compiled systems shared by every block of the run (copied into a block on first use,
+    /// so that names are looked up and recipes compiled once per run, not once per block).
+    shared: &'a Mutex<Vec<Template>>,
     templates: Vec<Template>,
     solver: Solver,
 }
@@ -220,6 +225,22 @@ enum Failure {
 }
 
 impl Block<'_> {
+    /// A copy of the run's compiled system for `doc`, compiling it on first use.
+    fn shared_template(&self, doc: &RecipeDoc) -> Result<Template, DocumentError> {
+        if let Ok(shared) = self.shared.lock()
+            && let Some(t) = shared.iter().find(|t| t.matches(doc))
+        {
+            return Ok(t.clone());
+        }
+        let (t, _) = Template::build(doc, self.catalog)?;
+        if let Ok(mut shared) = self.shared.lock()
+            && shared.len() < MAX_TEMPLATES
+        {
+            shared.push(t.clone());
+        }
+        Ok(t)
+    }
+
     /// Solves one line: its name, the template it used (to keep the result as the next warm
     /// start) and the equilibrium.
     fn solve_line(&mut self, text: &str) -> Result<(Option<String>, Option<usize>, Equilibrium), Failure> {
@@ -246,7 +267,9 @@ impl Block<'_> {
         let idx = match self.templates.iter().position(|t| t.matches(&doc)) {
             Some(i) => i,
             None => {
-                let (t, _) = Template::build(&doc, self.catalog).map_err(|e| Failure::Input(name.clone(), e))?;
+                let t = self
+                    .shared_template(&doc)
+                    .map_err(|e| Failure::Input(name.clone(), e))?;
                 if self.templates.len() >= MAX_TEMPLATES {
                     self.templates.remove(0);
                 }
@@ -347,7 +370,7 @@ fn write_record<T: Serialize>(out: &mut Vec<u8>, rec: &T) {
 /// assert!(lines[2].starts_with(r#"{"line":3,"#));
 /// # Ok::<(), std::io::Error>(())
 /// ```
-pub fn run<R: BufRead, W: Write>(
+pub fn run<R: BufRead + Send, W: Write>(
     mut input: R,
     mut output: W,
     catalog: &Catalog,
@@ -355,72 +378,26 @@ pub fn run<R: BufRead, W: Write>(
     mut progress: impl FnMut(u64, usize),
 ) -> io::Result<BatchSummary> {
     let chunk = options.chunk_lines.max(BLOCK);
-    let mut lines: Vec<Vec<u8>> = Vec::with_capacity(chunk);
+    let shared = Mutex::new(Vec::new());
     let mut summary = BatchSummary::default();
     let mut first_line = 0usize;
     let mut bytes = 0u64;
-    loop {
-        let mut n = 0;
-        let mut eof = false;
-        while n < chunk {
-            if lines.len() <= n {
-                lines.push(Vec::with_capacity(256));
-            }
-            let buf = &mut lines[n];
-            buf.clear();
-            let got = input.read_until(b'\n', buf)?;
-            if got == 0 {
-                eof = true;
-                break;
-            }
-            bytes += got as u64;
-            n += 1;
-        }
-        if n == 0 {
-            break;
-        }
-        let results: Vec<(Vec<u8>, usize, usize)> = lines[..n]
-            .par_chunks(BLOCK)
-            .enumerate()
-            .map(|(k, block_lines)| {
-                let mut block = Block {
-                    catalog,
-                    templates: Vec::new(),
-                    solver: Solver::default(),
-                };
-                let mut out = Vec::with_capacity(block_lines.len() * if options.full { 2048 } else { 160 });
-                let (mut records, mut failed) = (0, 0);
-                for (j, raw) in block_lines.iter().enumerate() {
-                    let line_no = first_line + k * BLOCK + j + 1;
-                    let text = match std::str::from_utf8(raw) {
-                        Ok(t) => t.trim(),
-                        Err(e) => {
-                            records += 1;
-                            failed += 1;
-                            write_record(
-                                &mut out,
-                                &BatchErrorRecord {
-                                    line: line_no,
-                                    name: None,
-                                    kind: "syntax".into(),
-                                    error: format!("not UTF-8 text: {e}"),
-                                },
-                            );
-                            out.push(b'\n');
-                            continue;
-                        }
-                    };
-                    if text.is_empty() {
-                        continue;
-                    }
-                    records += 1;
-                    if block.run_line(line_no, text, options.full, &mut out) {
-                        failed += 1;
-                    }
+    let mut current: Vec<Vec<u8>> = Vec::with_capacity(chunk);
+    let mut next: Vec<Vec<u8>> = Vec::with_capacity(chunk);
+    let (mut n, mut got, mut eof) = read_chunk(&mut input, &mut current, chunk)?;
+    bytes += got;
+    while n > 0 {
+        // Solve this chunk while the next one is read.
+        let (read, results) = rayon::join(
+            || {
+                if eof {
+                    Ok((0, 0, true))
+                } else {
+                    read_chunk(&mut input, &mut next, chunk)
                 }
-                (out, records, failed)
-            })
-            .collect();
+            },
+            || solve_chunk(&current[..n], first_line, catalog, &shared, options.full),
+        );
         for (out, records, failed) in &results {
             output.write_all(out)?;
             summary.records += records;
@@ -428,10 +405,83 @@ pub fn run<R: BufRead, W: Write>(
         }
         first_line += n;
         progress(bytes, first_line);
-        if eof {
-            break;
-        }
+        (n, got, eof) = read?;
+        bytes += got;
+        std::mem::swap(&mut current, &mut next);
     }
     output.flush()?;
     Ok(summary)
+}
+
+/// Reads up to `chunk` lines into `lines` (buffers re-used): (lines read, bytes, end of input).
+fn read_chunk<R: BufRead>(input: &mut R, lines: &mut Vec<Vec<u8>>, chunk: usize) -> io::Result<(usize, u64, bool)> {
+    let mut n = 0;
+    let mut bytes = 0u64;
+    while n < chunk {
+        if lines.len() <= n {
+            lines.push(Vec::with_capacity(256));
+        }
+        let buf = &mut lines[n];
+        buf.clear();
+        let got = input.read_until(b'\n', buf)?;
+        if got == 0 {
+            return Ok((n, bytes, true));
+        }
+        bytes += got as u64;
+        n += 1;
+    }
+    Ok((n, bytes, false))
+}
+
+/// Solves a chunk in parallel blocks: per block, (records as JSON Lines, records, failures).
+fn solve_chunk(
+    lines: &[Vec<u8>],
+    first_line: usize,
+    catalog: &Catalog,
+    shared: &Mutex<Vec<Template>>,
+    full: bool,
+) -> Vec<(Vec<u8>, usize, usize)> {
+    lines
+        .par_chunks(BLOCK)
+        .enumerate()
+        .map(|(k, block_lines)| {
+            let mut block = Block {
+                catalog,
+                shared,
+                templates: Vec::new(),
+                solver: Solver::default(),
+            };
+            let mut out = Vec::with_capacity(block_lines.len() * if full { 2048 } else { 160 });
+            let (mut records, mut failed) = (0, 0);
+            for (j, raw) in block_lines.iter().enumerate() {
+                let line_no = first_line + k * BLOCK + j + 1;
+                let text = match std::str::from_utf8(raw) {
+                    Ok(t) => t.trim(),
+                    Err(e) => {
+                        records += 1;
+                        failed += 1;
+                        write_record(
+                            &mut out,
+                            &BatchErrorRecord {
+                                line: line_no,
+                                name: None,
+                                kind: "syntax".into(),
+                                error: format!("not UTF-8 text: {e}"),
+                            },
+                        );
+                        out.push(b'\n');
+                        continue;
+                    }
+                };
+                if text.is_empty() {
+                    continue;
+                }
+                records += 1;
+                if block.run_line(line_no, text, full, &mut out) {
+                    failed += 1;
+                }
+            }
+            (out, records, failed)
+        })
+        .collect()
 }
