@@ -102,15 +102,7 @@ impl Protolyte {
     pub fn with_enthalpies_kj_per_mol(mut self, dh: &[f64]) -> Result<Self> {
         self.check_len(dh.len(), "enthalpies")?;
         for (s, &h) in self.steps.iter_mut().zip(dh) {
-            check_parameter(
-                &self.name,
-                "ΔH° (kJ/mol)",
-                h,
-                -500.0,
-                500.0,
-                "must be finite and within ±500",
-            )?;
-            s.dh_kj_per_mol = Some(h);
+            s.dh_kj_per_mol = Some(check_enthalpy(&self.name, h)?);
         }
         Ok(self)
     }
@@ -119,15 +111,7 @@ impl Protolyte {
     pub fn with_heat_capacities_j_per_mol_k(mut self, dcp: &[f64]) -> Result<Self> {
         self.check_len(dcp.len(), "heat capacities")?;
         for (s, &c) in self.steps.iter_mut().zip(dcp) {
-            check_parameter(
-                &self.name,
-                "ΔCp° (J/(mol·K))",
-                c,
-                -2000.0,
-                2000.0,
-                "must be finite and within ±2000",
-            )?;
-            s.dcp_j_per_mol_k = Some(c);
+            s.dcp_j_per_mol_k = Some(check_heat_capacity(&self.name, c)?);
         }
         Ok(self)
     }
@@ -136,25 +120,19 @@ impl Protolyte {
     pub(crate) fn with_steps(mut self, steps: Vec<Step>) -> Result<Self> {
         self.check_len(steps.len(), "steps")?;
         for s in &steps {
+            check_parameter(
+                &self.name,
+                "pKa",
+                s.pka,
+                PKA_RANGE.0,
+                PKA_RANGE.1,
+                "must be finite and within -10..25",
+            )?;
             if let Some(h) = s.dh_kj_per_mol {
-                check_parameter(
-                    &self.name,
-                    "ΔH° (kJ/mol)",
-                    h,
-                    -500.0,
-                    500.0,
-                    "must be finite and within ±500",
-                )?;
+                check_enthalpy(&self.name, h)?;
             }
             if let Some(c) = s.dcp_j_per_mol_k {
-                check_parameter(
-                    &self.name,
-                    "ΔCp° (J/(mol·K))",
-                    c,
-                    -2000.0,
-                    2000.0,
-                    "must be finite and within ±2000",
-                )?;
+                check_heat_capacity(&self.name, c)?;
             }
         }
         self.steps = steps;
@@ -320,6 +298,28 @@ fn ammonium_stem(core: &str, n: usize) -> Option<(&str, usize)> {
     let stem = head.strip_suffix("NH")?;
     let k: usize = if num.is_empty() { 1 } else { num.parse().ok()? };
     (k >= n).then_some((stem, k))
+}
+
+fn check_enthalpy(name: &str, dh_kj_per_mol: f64) -> Result<f64> {
+    check_parameter(
+        name,
+        "ΔH° (kJ/mol)",
+        dh_kj_per_mol,
+        -500.0,
+        500.0,
+        "must be finite and within ±500",
+    )
+}
+
+fn check_heat_capacity(name: &str, dcp: f64) -> Result<f64> {
+    check_parameter(
+        name,
+        "ΔCp° (J/(mol·K))",
+        dcp,
+        -2000.0,
+        2000.0,
+        "must be finite and within ±2000",
+    )
 }
 
 /// "", "+", "2+", "-", "3-".
