@@ -312,6 +312,36 @@ mod batch {
     }
 
     #[test]
+    fn batch_lines_with_definitions_escapes_and_typos() {
+        let dye = std::fs::read_to_string("examples/indicator_dye.json").unwrap();
+        let dye: serde_json::Value = serde_json::from_str(&dye).unwrap();
+        let input = format!(
+            "{}\n{}\n{}\n{}\n",
+            serde_json::to_string(&dye).unwrap(),
+            // An escaped name is read like any other.
+            r#"{"name": "tab\there", "reagents": [{"reagent": "acetic \u0061cid", "millimolar": 1}]}"#,
+            r#"{"reagents": [{"reagent": "acetic acid", "milimolar": 1}]}"#,
+            r#"{"format": "protolyte-titration/1", "reagents": []}"#,
+        );
+        let mut out = Vec::new();
+        let s = run(input.as_bytes(), &mut out, &cat(), &BatchOptions::default(), |_, _| {}).unwrap();
+        assert_eq!((s.records, s.failed), (4, 2));
+        let text = String::from_utf8(out).unwrap();
+        let lines: Vec<&str> = text.lines().collect();
+        let dye_rec: BatchRecord = serde_json::from_str(lines[0]).unwrap();
+        let single = solve_doc(&serde_json::from_value(dye).unwrap());
+        assert!((dye_rec.ph - single.ph()).abs() < 1e-12);
+        let esc: BatchRecord = serde_json::from_str(lines[1]).unwrap();
+        assert_eq!(esc.name.as_deref(), Some("tab\there"));
+        let typo: BatchErrorRecord = serde_json::from_str(lines[2]).unwrap();
+        assert_eq!(typo.kind, "syntax");
+        assert!(typo.error.contains("unknown field `milimolar`"), "{}", typo.error);
+        let wrong: BatchErrorRecord = serde_json::from_str(lines[3]).unwrap();
+        assert_eq!(wrong.kind, "input");
+        assert!(wrong.error.contains("format"), "{}", wrong.error);
+    }
+
+    #[test]
     fn full_records_carry_the_whole_result() {
         let input = format!("{}\n\n{}\n", line(1), line(2));
         let mut out = Vec::new();

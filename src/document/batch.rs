@@ -11,12 +11,14 @@
 //! Every non-blank input line gives one output line: a [`BatchRecord`] or, for a line that
 //! cannot be read or solved, a [`BatchErrorRecord`]; the other lines still run.
 
+use std::borrow::Cow;
 use std::io::{self, BufRead, Write};
 use std::sync::Mutex;
 
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
+use super::AmountLine;
 use super::input::{AmountForm, amount_of};
 use super::{DocumentError, RecipeDoc, SolveResult};
 use crate::{Catalog, Conditions, Constituent, Equilibrium, Error, Reagent, Solver, System};
@@ -118,6 +120,89 @@ pub struct BatchSummary {
     pub failed: usize,
 }
 
+/// A batch line as read on the fast path: names borrowed from the input text where they can
+/// be (no allocation per name). The fields are those of [`RecipeDoc`]; a line with
+/// `definitions` is read again as a [`RecipeDoc`] and compiled on its own.
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FastLine<'a> {
+    #[serde(borrow, default)]
+    format: Option<Cow<'a, str>>,
+    #[serde(borrow, default)]
+    name: Option<Cow<'a, str>>,
+    #[serde(default)]
+    temperature_celsius: Option<f64>,
+    #[serde(default)]
+    activity: Option<super::ActivityDoc>,
+    #[serde(borrow, default)]
+    reagents: Vec<FastAmount<'a>>,
+    #[serde(default)]
+    complexes: Vec<String>,
+    #[serde(default)]
+    include_catalog_complexes: bool,
+    #[serde(default)]
+    definitions: Option<serde::de::IgnoredAny>,
+}
+
+/// One line of a [`FastLine`]: the fields of [`AmountLine`] with a borrowed name.
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FastAmount<'a> {
+    #[serde(borrow)]
+    reagent: Cow<'a, str>,
+    #[serde(default)]
+    molar: Option<f64>,
+    #[serde(default)]
+    millimolar: Option<f64>,
+    #[serde(default)]
+    molal: Option<f64>,
+    #[serde(default)]
+    grams: Option<f64>,
+    #[serde(default)]
+    stock_molar: Option<f64>,
+    #[serde(default)]
+    aliquot_ml: Option<f64>,
+    #[serde(default)]
+    final_volume_ml: Option<f64>,
+}
+
+impl FastAmount<'_> {
+    /// The line as an [`AmountLine`]; the reagent's name is copied only when asked for (an
+    /// empty `String` does not allocate).
+    fn to_line(&self, with_name: bool) -> AmountLine {
+        AmountLine {
+            reagent: if with_name {
+                self.reagent.to_string()
+            } else {
+                String::new()
+            },
+            molar: self.molar,
+            millimolar: self.millimolar,
+            molal: self.molal,
+            grams: self.grams,
+            stock_molar: self.stock_molar,
+            aliquot_ml: self.aliquot_ml,
+            final_volume_ml: self.final_volume_ml,
+        }
+    }
+}
+
+impl FastLine<'_> {
+    /// The line as a recipe document (for compiling a new system).
+    fn to_doc(&self) -> RecipeDoc {
+        RecipeDoc {
+            format: self.format.as_ref().map(|f| f.to_string()),
+            name: self.name.as_ref().map(|n| n.to_string()),
+            temperature_celsius: self.temperature_celsius,
+            activity: self.activity,
+            reagents: self.reagents.iter().map(|l| l.to_line(true)).collect(),
+            complexes: self.complexes.clone(),
+            include_catalog_complexes: self.include_catalog_complexes,
+            definitions: None,
+        }
+    }
+}
+
 /// A compiled system re-used for recipes with the same names and conditions.
 #[derive(Clone)]
 struct Template {
@@ -135,13 +220,13 @@ struct Template {
 }
 
 impl Template {
-    fn matches(&self, doc: &RecipeDoc) -> bool {
-        self.temperature_bits == doc.temperature_celsius.unwrap_or(25.0).to_bits()
-            && self.activity.unwrap_or_default() == doc.activity.unwrap_or_default()
-            && self.include_catalog == doc.include_catalog_complexes
-            && self.complexes == doc.complexes
-            && self.names.len() == doc.reagents.len()
-            && self.names.iter().zip(&doc.reagents).all(|(a, b)| *a == b.reagent)
+    fn matches(&self, line: &FastLine) -> bool {
+        self.temperature_bits == line.temperature_celsius.unwrap_or(25.0).to_bits()
+            && self.activity.unwrap_or_default() == line.activity.unwrap_or_default()
+            && self.include_catalog == line.include_catalog_complexes
+            && self.complexes == line.complexes
+            && self.names.len() == line.reagents.len()
+            && self.names.iter().zip(&line.reagents).all(|(a, b)| *a == b.reagent)
     }
 
     fn build(doc: &RecipeDoc, catalog: &Catalog) -> Result<(Template, Conditions), DocumentError> {
@@ -186,13 +271,22 @@ impl Template {
 
     /// Sets the totals from the document's amounts (the same sums, in the same order, as
     /// [`Recipe::compile`](crate::Recipe::compile)).
-    fn retotal(&mut self, doc: &RecipeDoc) -> Result<(), DocumentError> {
+    fn retotal(&mut self, doc: &FastLine) -> Result<(), DocumentError> {
         self.totals.iter_mut().for_each(|t| *t = 0.0);
         let rho = self.sys.water_density_kg_per_l();
-        for (i, line) in doc.reagents.iter().enumerate() {
-            // The path is only formatted for an error message.
+        for (i, fast) in doc.reagents.iter().enumerate() {
+            // The path and the name are only formatted for an error message.
             let path = || format!("reagents[{i}]");
-            let form: AmountForm = line.form("").map_err(|_| line.form(&path()).unwrap_err())?;
+            let form: AmountForm = match fast.to_line(false).form("") {
+                Ok(f) => f,
+                Err(_) => {
+                    let line = fast.to_line(true);
+                    return Err(match line.form(&path()) {
+                        Err(e) => e,
+                        Ok(_) => super::field_error(path(), "invalid amount"),
+                    });
+                }
+            };
             let amount = amount_of(form, &self.reagents[i]).map_err(|e| super::field_error(path(), e))?;
             let m = amount.molal_value(rho);
             for &(c, n) in &self.parts[i] {
@@ -226,13 +320,13 @@ enum Failure {
 
 impl Block<'_> {
     /// A copy of the run's compiled system for `doc`, compiling it on first use.
-    fn shared_template(&self, doc: &RecipeDoc) -> Result<Template, DocumentError> {
+    fn shared_template(&self, line: &FastLine) -> Result<Template, DocumentError> {
         if let Ok(shared) = self.shared.lock()
-            && let Some(t) = shared.iter().find(|t| t.matches(doc))
+            && let Some(t) = shared.iter().find(|t| t.matches(line))
         {
             return Ok(t.clone());
         }
-        let (t, _) = Template::build(doc, self.catalog)?;
+        let (t, _) = Template::build(&line.to_doc(), self.catalog)?;
         if let Ok(mut shared) = self.shared.lock()
             && shared.len() < MAX_TEMPLATES
         {
@@ -244,18 +338,21 @@ impl Block<'_> {
     /// Solves one line: its name, the template it used (to keep the result as the next warm
     /// start) and the equilibrium.
     fn solve_line(&mut self, text: &str) -> Result<(Option<String>, Option<usize>, Equilibrium), Failure> {
-        let doc: RecipeDoc = serde_json::from_str(text).map_err(|e| {
+        let syntax = |e: serde_json::Error| {
             Failure::Syntax(format!(
                 "column {}: {}",
                 e.column().max(1),
                 super::strip_position(&e.to_string())
             ))
-        })?;
-        let name = doc.name.clone();
-        doc.check_format(false).map_err(|e| Failure::Input(name.clone(), e))?;
-        if doc.definitions.as_ref().is_some_and(|d| !d.is_empty()) {
-            // Definitions of its own: compiled on its own.
-            let (recipe, conditions) = doc
+        };
+        let doc: FastLine = serde_json::from_str(text).map_err(syntax)?;
+        let name = doc.name.as_ref().map(|n| n.to_string());
+        super::check_format(doc.format.as_deref(), super::RECIPE_FORMAT, false)
+            .map_err(|e| Failure::Input(name.clone(), e))?;
+        if doc.definitions.is_some() {
+            // Definitions of its own: read in full and compiled on its own.
+            let full: RecipeDoc = serde_json::from_str(text).map_err(syntax)?;
+            let (recipe, conditions) = full
                 .to_recipe(self.catalog)
                 .map_err(|e| Failure::Input(name.clone(), e))?;
             let eq = recipe
