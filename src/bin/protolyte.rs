@@ -338,7 +338,11 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
         writeln!(
             out,
             "{:.6},{:.6},{:.6e},{:.6e}",
-            p.volume_ml, p.ph, p.dph_dv_per_ml, p.ionic_strength_mol_per_kg
+            // `+ 0.0` writes a negative zero as 0.
+            p.volume_ml + 0.0,
+            p.ph,
+            p.dph_dv_per_ml + 0.0,
+            p.ionic_strength_mol_per_kg
         )?;
     }
     if let Some(n) = &r.name {
