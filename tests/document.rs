@@ -394,3 +394,18 @@ fn schema_knows_the_example_fields() {
         }
     }
 }
+
+/// Every kind of request reads the same from TOML as from JSON.
+#[test]
+fn requests_read_from_toml_too() {
+    fn same<T: serde::de::DeserializeOwned + serde::Serialize + PartialEq + std::fmt::Debug>(path: &str) {
+        let from_json: T = document::load(path).unwrap();
+        let toml_text = toml::to_string(&from_json).unwrap();
+        let from_toml: T = document::parse_toml(&toml_text, "converted.toml").unwrap();
+        assert_eq!(from_toml, from_json, "{path}");
+    }
+    same::<TitrationDoc>("examples/soft_drink_acidity.json");
+    same::<DesignDoc>("examples/tris_buffer_design.json");
+    same::<FitDoc>("examples/vinegar_fit.json");
+    same::<RecipeDoc>("examples/indicator_dye.json");
+}
