@@ -33,8 +33,8 @@ Exit codes:
   0  success
   1  batch: some lines failed (each has an error record in the output)
   2  the command line is wrong (unknown option, missing argument)
-  3  the input file cannot be read or is not a valid document (message names file, line and column, or the field)
-  4  the solver did not converge or refused the chemistry
+  3  the input cannot be read or is refused (the message names file, line and column, or the field)
+  4  the solver did not converge
   5  the output could not be written
 
 Documents are JSON or TOML; see docs/recipe-format.md.";
