@@ -154,6 +154,15 @@ fn refused_fields_are_named() {
     let (f, m) = field(r#"{"format": "protolyte-recipe/9", "reagents": []}"#);
     assert_eq!(f, "format");
     assert!(m.contains("not supported"), "{m}");
+    // Read from memory, the message starts with the field; in a file, with the file.
+    let doc: RecipeDoc = document::parse(r#"{"reagents": [{"reagent": "vinegar?", "molar": 1}]}"#, "x.json").unwrap();
+    let err = doc.to_recipe(&cat()).unwrap_err();
+    assert!(err.to_string().starts_with("field `reagents[0].reagent`"), "{err}");
+    assert!(
+        err.in_file("x.json")
+            .to_string()
+            .starts_with("x.json: field `reagents[0].reagent`")
+    );
     // A missing format tag is refused where it is required.
     let doc: RecipeDoc = document::parse(r#"{"reagents": []}"#, "x.json").unwrap();
     assert!(doc.check_format(true).is_err());

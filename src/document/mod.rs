@@ -102,7 +102,7 @@ pub enum DocumentError {
     },
     /// A field holds a value that is refused (a missing amount, an unknown name, a negative
     /// concentration, a wrong format tag...).
-    #[error("{file}: field `{field}`: {message}")]
+    #[error("{}field `{field}`: {message}", file_prefix(file))]
     Field {
         /// The file.
         file: String,
@@ -135,6 +135,15 @@ impl DocumentError {
                 message,
             },
         }
+    }
+}
+
+/// "file: ", or nothing when the file is not known (a document read from memory).
+fn file_prefix(file: &str) -> String {
+    if file.is_empty() {
+        String::new()
+    } else {
+        format!("{file}: ")
     }
 }
 
