@@ -5,30 +5,14 @@
 //! Sources are named beside every check value; "from memory" marks values recalled rather
 //! than read from a copy of the source; "common practice" marks facts of the trade.
 
+mod common;
+
 use protolyte::analysis::{Input, Propagation};
 use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe, System, Temperature};
 
 use proptest::prelude::*;
 
-/// xorshift64* (S. Vigna, ACM TOMS 42 (2016) art. 30; from memory) with Box–Muller normals.
-struct Rng(u64);
-
-impl Rng {
-    fn new(seed: u64) -> Self {
-        Rng(seed.wrapping_mul(0x9E37_79B9_7F4A_7C15) | 1)
-    }
-    fn uniform(&mut self) -> f64 {
-        self.0 ^= self.0 >> 12;
-        self.0 ^= self.0 << 25;
-        self.0 ^= self.0 >> 27;
-        let x = self.0.wrapping_mul(0x2545_F491_4F6C_DD1D);
-        ((x >> 11) as f64 + 0.5) / (1u64 << 53) as f64
-    }
-    fn normal(&mut self) -> f64 {
-        let (u, v) = (self.uniform(), self.uniform());
-        (-2.0 * u.ln()).sqrt() * (2.0 * std::f64::consts::PI * v).cos()
-    }
-}
+use common::Rng;
 
 fn phosphate_buffer(model: ActivityModel) -> System {
     let cat = Catalog::builtin();
