@@ -436,6 +436,28 @@ fn draw_label(area: &DrawingArea<SVGBackend<'_>, Shift>, lines: &[String], at: (
 /// Refuses a document with a non-finite number in an attribute (a coordinate or a size). Text
 /// is not searched: a title such as "NaNO₃ buffer" is the caller's, and every number the plot
 /// writes as text comes from a finite value.
+/// A chart of the given size under a header (title and legend `entries`): the SVG text of
+/// what `draw` puts in the body area (it also gets the whole area, for labels that may
+/// cross the frame).
+fn framed(
+    options: &PlotOptions,
+    entries: &[LegendEntry],
+    left: i32,
+    draw: impl FnOnce(&DrawingArea<SVGBackend<'_>, Shift>, &DrawingArea<SVGBackend<'_>, Shift>) -> PlotResult<()>,
+) -> PlotResult<String> {
+    let head = header_height(options.title.is_some(), entries, options.width, left);
+    let mut buf = String::new();
+    {
+        let root = SVGBackend::with_string(&mut buf, (options.width, options.height + head)).into_drawing_area();
+        root.fill(&WHITE).map_err(drawing)?;
+        let (top, body) = root.split_vertically(head);
+        header(&top, options.title.as_deref(), entries, left)?;
+        draw(&root, &body)?;
+        root.present().map_err(drawing)?;
+    }
+    finish(buf)
+}
+
 fn finish(buf: String) -> PlotResult<String> {
     let mut rest = buf.as_str();
     while let Some(i) = rest.find("=\"") {
@@ -538,13 +560,8 @@ pub fn titration_svg(
         });
     }
     let left = 78;
-    let head = header_height(options.title.is_some(), &entries, options.width, left);
-    let mut buf = String::new();
-    {
-        let root = SVGBackend::with_string(&mut buf, (options.width, options.height + head)).into_drawing_area();
-        root.fill(&WHITE).map_err(drawing)?;
-        let (top, body) = root.split_vertically(head);
-        header(&top, options.title.as_deref(), &entries, left)?;
+    framed(options, &entries, left, |root, body| {
+        let (root, body) = (root.clone(), body.clone());
         let mut chart = ChartBuilder::on(&body)
             .margin_top(6)
             .margin_bottom(10)
@@ -635,9 +652,8 @@ pub fn titration_svg(
             let at = place_label(&lines, c, dir, bounds, &curves, &mut placed);
             draw_label(&root, &lines, at)?;
         }
-        root.present().map_err(drawing)?;
-    }
-    finish(buf)
+        Ok(())
+    })
 }
 
 // ---------------------------------------------------------------------------------------
@@ -1152,13 +1168,8 @@ pub fn capacity_svg(points: &[CapacityPoint], peaks: &[CapacityPeak], options: &
         });
     }
     let left = 86;
-    let head = header_height(options.title.is_some(), &entries, options.width, left);
-    let mut buf = String::new();
-    {
-        let root = SVGBackend::with_string(&mut buf, (options.width, options.height + head)).into_drawing_area();
-        root.fill(&WHITE).map_err(drawing)?;
-        let (top, body) = root.split_vertically(head);
-        header(&top, options.title.as_deref(), &entries, left)?;
+    framed(options, &entries, left, |root, body| {
+        let (root, body) = (root.clone(), body.clone());
         let mut chart = ChartBuilder::on(&body)
             .margin_top(6)
             .margin_bottom(10)
@@ -1220,9 +1231,8 @@ pub fn capacity_svg(points: &[CapacityPoint], peaks: &[CapacityPeak], options: &
             let at = place_label(&lines, c, -1, bounds, &curves, &mut placed);
             draw_label(&root, &lines, at)?;
         }
-        root.present().map_err(drawing)?;
-    }
-    finish(buf)
+        Ok(())
+    })
 }
 
 /// The runs of a polyline that lie at or below `top`, each cut where it crosses `top`.
