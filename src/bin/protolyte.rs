@@ -391,65 +391,67 @@ fn design(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> 
     result.name = doc.name.clone();
     if json {
         write_json(out, &result)?;
-        return Ok(EXIT_OK);
+    } else {
+        write_design_table(out, &result).map_err(output_failure)?;
     }
-    let w = |out: &mut dyn Write| -> io::Result<()> {
-        if let Some(n) = &result.name {
-            writeln!(out, "{n}")?;
-        }
-        writeln!(
-            out,
-            "buffer for pH {:.3}, made up to {} mL with water",
-            result.target_ph, result.final_volume_ml
-        )?;
-        writeln!(out)?;
-        writeln!(out, "{:<40} {:<9} {:>12} {:>14}", "reagent", "role", "mol/L", "take")?;
-        for l in &result.lines {
-            let take = match (l.grams, l.milliliters) {
-                (Some(g), _) => format!("{g:.4} g"),
-                (_, Some(ml)) => format!("{ml:.3} mL"),
-                _ => "-".into(),
-            };
-            writeln!(
-                out,
-                "{:<40} {:<9} {:>12.6} {:>14}",
-                l.reagent, l.role, l.mol_per_l, take
-            )?;
-        }
-        writeln!(out)?;
-        writeln!(
-            out,
-            "check solve       pH {:.4} (check − target {:+.1e}), ionic strength {:.5} mol/kg, balance residual {:.1e}",
-            result.check_ph, result.ph_residual, result.ionic_strength_mol_per_kg, result.balance_residual
-        )?;
-        writeln!(
-            out,
-            "buffer capacity   {:.5} mol/L per pH",
-            result.buffer_capacity_mol_per_l
-        )?;
-        for s in &result.temperature_shifts {
-            writeln!(
-                out,
-                "at {:>5.1} °C       pH {:.3} ({:+.3})",
-                s.temperature_celsius, s.ph, s.shift
-            )?;
-        }
-        let d = &result.dilution_shift;
-        writeln!(
-            out,
-            "diluted {:.0}-fold   pH {:.3} ({:+.3})",
-            d.dilution_factor, d.ph, d.shift
-        )?;
-        for w in &result.warnings {
-            writeln!(out, "warning: {w}")?;
-        }
-        writeln!(
-            out,
-            "caution: a model result; measure the pH of what you make with a calibrated electrode."
-        )
-    };
-    w(out).map_err(output_failure)?;
     Ok(EXIT_OK)
+}
+
+/// The design as text: what to take, the check solve, the shifts.
+fn write_design_table(out: &mut impl Write, result: &DesignResult) -> io::Result<()> {
+    if let Some(n) = &result.name {
+        writeln!(out, "{n}")?;
+    }
+    writeln!(
+        out,
+        "buffer for pH {:.3}, made up to {} mL with water",
+        result.target_ph, result.final_volume_ml
+    )?;
+    writeln!(out)?;
+    writeln!(out, "{:<40} {:<9} {:>12} {:>14}", "reagent", "role", "mol/L", "take")?;
+    for l in &result.lines {
+        let take = match (l.grams, l.milliliters) {
+            (Some(g), _) => format!("{g:.4} g"),
+            (_, Some(ml)) => format!("{ml:.3} mL"),
+            _ => "-".into(),
+        };
+        writeln!(
+            out,
+            "{:<40} {:<9} {:>12.6} {:>14}",
+            l.reagent, l.role, l.mol_per_l, take
+        )?;
+    }
+    writeln!(out)?;
+    writeln!(
+        out,
+        "check solve       pH {:.4} (check − target {:+.1e}), ionic strength {:.5} mol/kg, balance residual {:.1e}",
+        result.check_ph, result.ph_residual, result.ionic_strength_mol_per_kg, result.balance_residual
+    )?;
+    writeln!(
+        out,
+        "buffer capacity   {:.5} mol/L per pH",
+        result.buffer_capacity_mol_per_l
+    )?;
+    for s in &result.temperature_shifts {
+        writeln!(
+            out,
+            "at {:>5.1} °C       pH {:.3} ({:+.3})",
+            s.temperature_celsius, s.ph, s.shift
+        )?;
+    }
+    let d = &result.dilution_shift;
+    writeln!(
+        out,
+        "diluted {:.0}-fold   pH {:.3} ({:+.3})",
+        d.dilution_factor, d.ph, d.shift
+    )?;
+    for w in &result.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
+    writeln!(
+        out,
+        "caution: a model result; measure the pH of what you make with a calibrated electrode."
+    )
 }
 
 fn fit(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
@@ -462,56 +464,58 @@ fn fit(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     result.name = doc.name.clone();
     if json {
         write_json(out, &result)?;
-        return Ok(EXIT_OK);
+    } else {
+        write_fit_table(out, &result, &doc).map_err(output_failure)?;
     }
-    let w = |out: &mut dyn Write| -> io::Result<()> {
-        if let Some(n) = &result.name {
-            writeln!(out, "{n}")?;
-        }
-        writeln!(
-            out,
-            "{:<44} {:>6} {:>14} {:>14} {:>14}",
-            "unknown", "curve", "start", "estimate", "std. error"
-        )?;
-        for e in &result.estimates {
-            let curve = e.curve.map(|c| c.to_string()).unwrap_or_else(|| "all".into());
-            let se = e
-                .standard_error
-                .map(|s| format!("{s:.4e}"))
-                .unwrap_or_else(|| "-".into());
-            writeln!(
-                out,
-                "{:<44} {:>6} {:>14.6} {:>14.6} {:>14}",
-                e.unknown, curve, e.start, e.value, se
-            )?;
-        }
-        writeln!(out)?;
-        let sd = result
-            .residual_sd
-            .map(|s| format!("{s:.4}"))
+    Ok(EXIT_OK)
+}
+
+/// The fit as text; `doc` gives the measured points beside their residuals.
+fn write_fit_table(out: &mut impl Write, result: &FitResult, doc: &FitDoc) -> io::Result<()> {
+    if let Some(n) = &result.name {
+        writeln!(out, "{n}")?;
+    }
+    writeln!(
+        out,
+        "{:<44} {:>6} {:>14} {:>14} {:>14}",
+        "unknown", "curve", "start", "estimate", "std. error"
+    )?;
+    for e in &result.estimates {
+        let curve = e.curve.map(|c| c.to_string()).unwrap_or_else(|| "all".into());
+        let se = e
+            .standard_error
+            .map(|s| format!("{s:.4e}"))
             .unwrap_or_else(|| "-".into());
         writeln!(
             out,
-            "residual SD {sd} pH, {} degrees of freedom, {} iterations, {}",
-            result.degrees_of_freedom,
-            result.iterations,
-            if result.converged {
-                "converged"
-            } else {
-                "stopped on the iteration budget"
-            }
+            "{:<44} {:>6} {:>14.6} {:>14.6} {:>14}",
+            e.unknown, curve, e.start, e.value, se
         )?;
-        writeln!(out)?;
-        writeln!(out, "curve,point,volume_ml,measured_ph,residual_ph")?;
-        for (k, (c, res)) in doc.curves.iter().zip(&result.residuals).enumerate() {
-            for (i, (m, r)) in c.measured.iter().zip(res).enumerate() {
-                writeln!(out, "{},{},{},{},{:+.5}", k + 1, i + 1, m.volume_ml, m.ph, r)?;
-            }
+    }
+    writeln!(out)?;
+    let sd = result
+        .residual_sd
+        .map(|s| format!("{s:.4}"))
+        .unwrap_or_else(|| "-".into());
+    writeln!(
+        out,
+        "residual SD {sd} pH, {} degrees of freedom, {} iterations, {}",
+        result.degrees_of_freedom,
+        result.iterations,
+        if result.converged {
+            "converged"
+        } else {
+            "stopped on the iteration budget"
         }
-        Ok(())
-    };
-    w(out).map_err(output_failure)?;
-    Ok(EXIT_OK)
+    )?;
+    writeln!(out)?;
+    writeln!(out, "curve,point,volume_ml,measured_ph,residual_ph")?;
+    for (k, (c, res)) in doc.curves.iter().zip(&result.residuals).enumerate() {
+        for (i, (m, r)) in c.measured.iter().zip(res).enumerate() {
+            writeln!(out, "{},{},{},{},{:+.5}", k + 1, i + 1, m.volume_ml, m.ph, r)?;
+        }
+    }
+    Ok(())
 }
 
 fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Result<u8, Failure> {
