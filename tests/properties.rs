@@ -7,7 +7,7 @@ mod common;
 use proptest::prelude::*;
 use protolyte::{
     ActivityModel, Amount, Complex, ComplexPart, Conditions, Constituent, Equilibrium, Ion, Parameter, PathChoice,
-    Protolyte, Reagent, Recipe, Solver, System, Temperature,
+    Protolyte, Reagent, Recipe, Sensitivities, Solver, System, Temperature,
 };
 
 #[derive(Debug, Clone)]
@@ -115,6 +115,30 @@ fn check_balances(eq: &Equilibrium) -> Result<(), TestCaseError> {
     Ok(())
 }
 
+/// d pH / d(total of component `ci`) from the sensitivities equals central differences.
+fn check_total_derivative(sys: &System, sens: &Sensitivities, ci: usize) -> Result<(), TestCaseError> {
+    let t = sys.components()[ci].total_molal;
+    let an = sens.dph(Parameter::Total(ci));
+    // A step that moves pH by at most ~1e-5 keeps the difference quotient local.
+    let h = (t * 1e-5).min(1e-5 / an.abs().max(1e-300));
+    let mut up = sys.clone();
+    up.set_total_molal(ci, t + h).unwrap();
+    let mut down = sys.clone();
+    down.set_total_molal(ci, t - h).unwrap();
+    let fd = (up.solve().unwrap().ph() - down.solve().unwrap().ph()) / (2.0 * h);
+    // Scale-free comparison: the pH change over the step, analytic vs numeric.
+    let err = (an - fd).abs() * h;
+    prop_assert!(
+        err <= 1e-7 + 1e-3 * (an.abs() * h),
+        "component {}: analytic {} fd {} (h {})",
+        ci,
+        an,
+        fd,
+        h
+    );
+    Ok(())
+}
+
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(2000))]
 
@@ -177,18 +201,7 @@ proptest! {
         let sens = eq.sensitivities(&sys).unwrap();
         // d pH / d total of each component, by central differences with a relative step.
         for ci in 1..sys.components().len() {
-            let t = sys.components()[ci].total_molal;
-            let an = sens.dph(Parameter::Total(ci));
-            // A step that moves pH by at most ~1e-5 keeps the difference quotient local.
-            let h = (t * 1e-5).min(1e-5 / an.abs().max(1e-300));
-            let mut up = sys.clone();
-            up.set_total_molal(ci, t + h).unwrap();
-            let mut down = sys.clone();
-            down.set_total_molal(ci, t - h).unwrap();
-            let fd = (up.solve().unwrap().ph() - down.solve().unwrap().ph()) / (2.0 * h);
-            // Scale-free comparison: the pH change over the step, analytic vs numeric.
-            let err = (an - fd).abs() * h;
-            prop_assert!(err <= 1e-7 + 1e-3 * (an.abs() * h), "component {}: analytic {} fd {} (h {})", ci, an, fd, h);
+            check_total_derivative(&sys, &sens, ci)?;
         }
     }
 }
@@ -290,16 +303,6 @@ proptest! {
         let sys = complexed_system(&c, &m, c.model);
         let eq = sys.solve().unwrap();
         let sens = eq.sensitivities(&sys).unwrap();
-        let ci = sys.component_index("metal M").unwrap();
-        let t = sys.components()[ci].total_molal;
-        let an = sens.dph(Parameter::Total(ci));
-        let h = (t * 1e-5).min(1e-5 / an.abs().max(1e-300));
-        let mut up = sys.clone();
-        up.set_total_molal(ci, t + h).unwrap();
-        let mut down = sys.clone();
-        down.set_total_molal(ci, t - h).unwrap();
-        let fd = (up.solve().unwrap().ph() - down.solve().unwrap().ph()) / (2.0 * h);
-        let err = (an - fd).abs() * h;
-        prop_assert!(err <= 1e-7 + 1e-3 * (an.abs() * h), "analytic {} fd {} (h {})", an, fd, h);
+        check_total_derivative(&sys, &sens, sys.component_index("metal M").unwrap())?;
     }
 }
