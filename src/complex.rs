@@ -1,7 +1,7 @@
 //! Complexes and ion pairs: species built from several components with an overall
 //! formation constant (one more row of the tableau).
 
-use crate::error::{Error, Result, check_parameter};
+use crate::error::{Error, Result, check_ion_size, check_parameter};
 use crate::ion::Ion;
 use crate::protolyte::Protolyte;
 
@@ -131,8 +131,7 @@ impl Complex {
 
     /// Sets the ion-size parameter å (ångström).
     pub fn with_ion_size_angstrom(mut self, a: f64) -> Result<Self> {
-        check_parameter(&self.name, "ion size (Å)", a, 0.5, 20.0, "must be within 0.5..20 Å")?;
-        self.ion_size_angstrom = Some(a);
+        self.ion_size_angstrom = Some(check_ion_size(&self.name, a)?);
         Ok(self)
     }
 

@@ -131,3 +131,9 @@ pub(crate) fn check_parameter(
         })
     }
 }
+
+/// Refuses an ion-size parameter å outside 0.5..20 Å (the range of tabulated ion sizes,
+/// with room either side).
+pub(crate) fn check_ion_size(what: &str, angstrom: f64) -> Result<f64> {
+    check_parameter(what, "ion size (Å)", angstrom, 0.5, 20.0, "must be within 0.5..20 Å")
+}

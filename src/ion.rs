@@ -1,7 +1,7 @@
 //! A simple ion: a spectator (Na⁺, Cl⁻, NO₃⁻, ...) or a metal ion that reacts only through
 //! the complexes given to a recipe.
 
-use crate::error::{Error, Result, check_parameter};
+use crate::error::{Error, Result, check_ion_size};
 
 /// A simple ion with a fixed charge.
 ///
@@ -46,8 +46,7 @@ impl Ion {
 
     /// Sets the ion-size parameter å (ångström).
     pub fn with_ion_size_angstrom(mut self, a: f64) -> Result<Self> {
-        check_parameter(&self.name, "ion size (Å)", a, 0.5, 20.0, "must be within 0.5..20 Å")?;
-        self.ion_size_angstrom = Some(a);
+        self.ion_size_angstrom = Some(check_ion_size(&self.name, a)?);
         Ok(self)
     }
 

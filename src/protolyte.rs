@@ -1,6 +1,6 @@
 //! An acid–base family (a protolyte): HₙA and its n stepwise dissociations.
 
-use crate::error::{Error, Result, check_parameter};
+use crate::error::{Error, Result, check_ion_size, check_parameter};
 use crate::quantity::Temperature;
 use crate::vant_hoff;
 
@@ -141,8 +141,7 @@ impl Protolyte {
 
     /// Sets the ion-size parameter å (ångström) for the extended Debye–Hückel model.
     pub fn with_ion_size_angstrom(mut self, a: f64) -> Result<Self> {
-        check_parameter(&self.name, "ion size (Å)", a, 0.5, 20.0, "must be within 0.5..20 Å")?;
-        self.ion_size_angstrom = Some(a);
+        self.ion_size_angstrom = Some(check_ion_size(&self.name, a)?);
         Ok(self)
     }
 
