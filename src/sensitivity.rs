@@ -7,7 +7,7 @@
 //! every parameter. Buffer capacity, fitting Jacobians and uncertainty propagation are built
 //! on these numbers.
 
-use nalgebra::DMatrix;
+use nalgebra::{DMatrix, DVector};
 
 use crate::equilibrium::Equilibrium;
 use crate::error::{Error, Result};
@@ -249,4 +249,39 @@ impl Equilibrium {
     pub fn sensitivities(&self, system: &System) -> Result<Sensitivities> {
         Sensitivities::of(system, self)
     }
+}
+
+/// d pH along one direction of change of the totals (`dt[c]` = dT_c in mol/kg, entry 0
+/// ignored): the implicit differentiation of [`Sensitivities::of`] with a single right-hand
+/// side, for analyses that need one derivative per point. A direction that brings a component
+/// in from a zero total goes through the full sensitivities, which handle that limit.
+pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f64> {
+    let sys = system;
+    let nc = sys.components.len();
+    if (1..nc).any(|c| dt[c] != 0.0 && sys.components[c].total_molal <= 0.0) {
+        let sens = eq.sensitivities(sys)?;
+        return Ok((1..nc)
+            .filter(|&c| dt[c] != 0.0)
+            .map(|c| sens.dph(Parameter::Total(c)) * dt[c])
+            .sum());
+    }
+    let p = eq.point();
+    let mut ev = Evaluation::new(sys.species.len());
+    ev.set_gamma(sys, p.ln_i.exp());
+    ev.set_conc(sys, &p);
+    let layout = Layout::new(sys);
+    let jac = jacobian_in(&ev, &layout, &p);
+    // ∂F/∂T_c = −1 in the mass balance of c, so J·dy = +dt there.
+    let mut rhs = DVector::zeros(layout.act.len() + 1);
+    for (k, &c) in layout.act.iter().enumerate().skip(1) {
+        rhs[k] = dt[c];
+    }
+    let x = jac.lu().solve(&rhs).ok_or_else(|| Error::NoConvergence {
+        path: "sensitivity",
+        iterations: 0,
+        max_residual: f64::INFINITY,
+        worst_equation: "singular Jacobian at the solution".into(),
+        last_ph: eq.ph(),
+    })?;
+    Ok(-x[0] / LN10)
 }

@@ -11,15 +11,11 @@
 //! set amount, so points fall densely where the pH moves fast (around each break) and
 //! sparsely on the buffer plateaus.
 
-use nalgebra::DVector;
-
 use crate::equilibrium::Equilibrium;
 use crate::error::{Error, Result};
 use crate::quantity::Volume;
 use crate::recipe::Recipe;
-use crate::sensitivity::Parameter;
-use crate::solve::newton::{active, jacobian};
-use crate::solve::{Evaluation, Solver};
+use crate::solve::Solver;
 use crate::system::{Conditions, System};
 
 const LN10: f64 = std::f64::consts::LN_10;
@@ -391,9 +387,9 @@ impl Titration {
 }
 
 /// d pH along a direction of change of the totals: `dt[c]` is dT_c (mol/kg per unit of the
-/// parameter) for every component c ≥ 1 (entry 0 is ignored). One LU of the converged
-/// Jacobian; a component that the direction brings in from a zero total goes through the
-/// full [`Sensitivities`](crate::Sensitivities), which handle that limit.
+/// parameter) for every component c ≥ 1 (entry 0 is ignored). Uncoupled systems take an
+/// allocation-free elimination here; the others the implicit differentiation of
+/// [`crate::sensitivity`].
 pub(crate) fn dph_along(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f64> {
     let nc = sys.components.len();
     let bad = |what: &str| Error::NoConvergence {
@@ -409,30 +405,9 @@ pub(crate) fn dph_along(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f6
             reason: "the direction or the equilibrium does not belong to this system".into(),
         });
     }
-    let d = if let Some(d) = dph_along_uncoupled(sys, eq, dt) {
-        d
-    } else if (1..nc).any(|c| dt[c] != 0.0 && sys.components[c].total_molal <= 0.0) {
-        let sens = eq.sensitivities(sys)?;
-        (1..nc)
-            .filter(|&c| dt[c] != 0.0)
-            .map(|c| sens.dph(Parameter::Total(c)) * dt[c])
-            .sum()
-    } else {
-        let p = eq.point();
-        let mut ev = Evaluation::new(sys.species.len());
-        ev.set_gamma(sys, p.ln_i.exp());
-        ev.set_conc(sys, &p);
-        let act = active(sys);
-        let jac = jacobian(sys, &ev, &act, &p);
-        let mut rhs = DVector::zeros(act.len() + 1);
-        for (k, &c) in act.iter().enumerate().skip(1) {
-            rhs[k] = dt[c];
-        }
-        let x = jac
-            .lu()
-            .solve(&rhs)
-            .ok_or_else(|| bad("singular Jacobian at the solution"))?;
-        -x[0] / LN10
+    let d = match dph_along_uncoupled(sys, eq, dt) {
+        Some(d) => d,
+        None => crate::sensitivity::dph_along_totals(sys, eq, dt)?,
     };
     if d.is_finite() {
         Ok(d)
@@ -514,6 +489,7 @@ fn dph_along_uncoupled(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Option<f64
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::sensitivity::Parameter;
     use crate::{ActivityModel, Amount, Catalog, Temperature};
 
     /// The allocation-free derivative agrees with the one through the full Jacobian.

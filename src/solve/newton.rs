@@ -141,14 +141,6 @@ pub(crate) fn jacobian_in(ev: &Evaluation, lay: &Layout, p: &Point) -> DMatrix<f
     DMatrix::from_vec(m, m, j)
 }
 
-/// The Jacobian for the active components `act` of `sys` (which must be those with a
-/// positive total, as [`active`] lists them).
-pub(crate) fn jacobian(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> DMatrix<f64> {
-    let lay = Layout::new(sys);
-    debug_assert_eq!(lay.act, act);
-    jacobian_in(ev, &lay, p)
-}
-
 fn merit(f: &DVector<f64>, scale: &DVector<f64>) -> f64 {
     f.iter()
         .zip(scale.iter())
