@@ -164,8 +164,6 @@ pub struct System {
     pub(crate) nu: Vec<f64>,
     /// Species that couple two or more non-H components, or hold one twice.
     pub(crate) coupling: Vec<bool>,
-    /// The one non-H component of an uncoupled species (0 for H⁺ and OH⁻).
-    pub(crate) group: Vec<usize>,
     /// ln K of each species (log₁₀ K × ln 10).
     pub(crate) ln_k: Vec<f64>,
     /// Sparse stoichiometry: the non-zero (component, ν) of species s are
@@ -396,7 +394,6 @@ impl System {
             families: b.families,
             nu,
             coupling,
-            group,
             ln_k,
             term_start,
             terms,
