@@ -259,6 +259,7 @@ fn distribution_fractions_come_from_the_solver() {
     for (i, ph) in d.ph.iter().enumerate() {
         assert!((ph - (1.0 + 0.25 * i as f64)).abs() < 1e-6, "point {i} at pH {ph}");
         for f in &d.families {
+            // The fractions of a family sum to 1 (its mass balance; common practice).
             let sum: f64 = f.fractions.iter().map(|s| s[i]).sum();
             assert!((sum - 1.0).abs() < 1e-9, "{} sums to {sum}", f.family);
         }
