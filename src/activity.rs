@@ -176,3 +176,8 @@ impl DebyeHuckelConstants {
         }
     }
 }
+
+/// The temperature range of the Debye–Hückel constants A(T) and B(T): that of the relative
+/// permittivity of water they are computed from (Malmberg & Maryott 1956, 0–100 °C,
+/// [`water::DIELECTRIC_RANGE`]). A system is compiled only within it.
+pub const DEBYE_HUCKEL_RANGE: crate::vant_hoff::ValidityRange = water::DIELECTRIC_RANGE;
