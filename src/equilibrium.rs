@@ -8,6 +8,7 @@ use crate::error::{Error, Result};
 use crate::quantity::Temperature;
 use crate::solve::{Evaluation, Point, SolverPath};
 use crate::system::System;
+use crate::vant_hoff::{TemperatureGap, ValidityRange};
 
 const LN10: f64 = std::f64::consts::LN_10;
 
@@ -24,14 +25,80 @@ pub enum Warning {
         /// The model.
         model: ActivityModel,
     },
-    /// A family or complex was used away from 25 °C without enthalpy data: its 25 °C
-    /// constants were used unchanged.
-    NoEnthalpyData {
+    /// One reaction (a family's step or a complex) lacks a datum its constant needs at the
+    /// system's temperature: without ΔH° its 25 °C constant was used unchanged; without
+    /// ΔCp°, van't Hoff with ΔH° alone was used outside the range where that is trusted
+    /// ([`crate::vant_hoff::ENTHALPY_ONLY_RANGE`]).
+    TemperatureDataMissing {
         /// Family or complex name.
         name: String,
+        /// For a family: the step (1 = the most protonated form's dissociation) and its
+        /// form pair (acid form, base form); `None` for a complex.
+        step: Option<(usize, (String, String))>,
+        /// The missing datum.
+        datum: TemperatureDatum,
         /// The temperature of the system, °C.
         temperature_celsius: f64,
     },
+    /// One reaction's constant was computed outside the temperature range its method is
+    /// trusted over: an analytic equation outside its fitted range, or van't Hoff with a
+    /// constant ΔCp° outside [`crate::vant_hoff::CONSTANT_HEAT_CAPACITY_RANGE`].
+    TemperatureBeyondRange {
+        /// Family or complex name.
+        name: String,
+        /// For a family: the step (1 = most protonated) and its form pair; `None` for a complex.
+        step: Option<(usize, (String, String))>,
+        /// The range over which the method is trusted.
+        range: ValidityRange,
+        /// The temperature of the system, °C.
+        temperature_celsius: f64,
+    },
+}
+
+/// A thermodynamic datum a constant's temperature dependence needs.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum TemperatureDatum {
+    /// The standard reaction enthalpy ΔH°.
+    Enthalpy,
+    /// The standard heat-capacity change ΔCp°.
+    HeatCapacity,
+}
+
+impl Warning {
+    pub(crate) fn from_gap(
+        name: &str,
+        step: Option<(usize, (String, String))>,
+        gap: TemperatureGap,
+        temperature_celsius: f64,
+    ) -> Warning {
+        let name = name.to_string();
+        match gap {
+            TemperatureGap::NoEnthalpy | TemperatureGap::NoHeatCapacity => Warning::TemperatureDataMissing {
+                name,
+                step,
+                datum: if gap == TemperatureGap::NoEnthalpy {
+                    TemperatureDatum::Enthalpy
+                } else {
+                    TemperatureDatum::HeatCapacity
+                },
+                temperature_celsius,
+            },
+            TemperatureGap::BeyondRange(range) => Warning::TemperatureBeyondRange {
+                name,
+                step,
+                range,
+                temperature_celsius,
+            },
+        }
+    }
+}
+
+/// "phosphate step 2 (H2PO4- → HPO42- + H+)" or the complex's name.
+fn reaction_label(name: &str, step: &Option<(usize, (String, String))>) -> String {
+    match step {
+        Some((k, (acid, base))) => format!("{name} step {k} ({acid} → {base} + H+)"),
+        None => name.to_string(),
+    }
 }
 
 impl std::fmt::Display for Warning {
@@ -46,12 +113,34 @@ impl std::fmt::Display for Warning {
                 "ionic strength {ionic_strength_molal:.3} mol/kg is above the {} model's stated validity (about {limit_molal} mol/kg); activity coefficients are extrapolated",
                 model.name()
             ),
-            Warning::NoEnthalpyData {
+            Warning::TemperatureDataMissing {
                 name,
+                step,
+                datum,
+                temperature_celsius,
+            } => {
+                let what = reaction_label(name, step);
+                match datum {
+                    TemperatureDatum::Enthalpy => write!(
+                        f,
+                        "{what}: no ΔH°, so its 25 °C constant was used unchanged at {temperature_celsius} °C"
+                    ),
+                    TemperatureDatum::HeatCapacity => write!(
+                        f,
+                        "{what}: no ΔCp°, so van't Hoff with ΔH° alone was used at {temperature_celsius} °C, outside {} where that is trusted",
+                        crate::vant_hoff::ENTHALPY_ONLY_RANGE
+                    ),
+                }
+            }
+            Warning::TemperatureBeyondRange {
+                name,
+                step,
+                range,
                 temperature_celsius,
             } => write!(
                 f,
-                "{name}: no enthalpy data, so its 25 °C constants were used unchanged at {temperature_celsius} °C"
+                "{}: its temperature dependence was used at {temperature_celsius} °C, outside its trusted range {range}",
+                reaction_label(name, step)
             ),
         }
     }

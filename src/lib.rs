@@ -95,7 +95,7 @@ pub mod water;
 pub use activity::{ActivityModel, DebyeHuckelConstants};
 pub use complex::{Complex, ComplexPart};
 pub use data::{Catalog, DataInfo, DataKind};
-pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState, Warning};
+pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState, TemperatureDatum, Warning};
 pub use error::{Error, Result};
 pub use ion::Ion;
 pub use protolyte::{Protolyte, Step};
