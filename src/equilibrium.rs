@@ -6,145 +6,11 @@ use std::sync::Arc;
 use crate::activity::ActivityModel;
 use crate::error::{Error, Result};
 use crate::quantity::Temperature;
-use crate::solve::{Evaluation, Point, SolverPath};
+use crate::solve::{Evaluation, Point, Solver, SolverPath};
 use crate::system::System;
-use crate::vant_hoff::{TemperatureGap, ValidityRange};
+use crate::warning::Warning;
 
 const LN10: f64 = std::f64::consts::LN_10;
-
-/// Something the caller should know about a result that is nevertheless returned.
-#[derive(Debug, Clone, PartialEq)]
-#[non_exhaustive]
-pub enum Warning {
-    /// The ionic strength lies above the stated validity of the activity model.
-    IonicStrengthBeyondModel {
-        /// Ionic strength of the result, mol/kg.
-        ionic_strength_molal: f64,
-        /// The model's stated limit, mol/kg.
-        limit_molal: f64,
-        /// The model.
-        model: ActivityModel,
-    },
-    /// One reaction (a family's step or a complex) lacks a datum its constant needs at the
-    /// system's temperature: without ΔH° its 25 °C constant was used unchanged; without
-    /// ΔCp°, van't Hoff with ΔH° alone was used outside the range where that is trusted
-    /// ([`crate::vant_hoff::ENTHALPY_ONLY_RANGE`]).
-    TemperatureDataMissing {
-        /// Family or complex name.
-        name: String,
-        /// For a family: the step (1 = the most protonated form's dissociation) and its
-        /// form pair (acid form, base form); `None` for a complex.
-        step: Option<(usize, (String, String))>,
-        /// The missing datum.
-        datum: TemperatureDatum,
-        /// The temperature of the system, °C.
-        temperature_celsius: f64,
-    },
-    /// One reaction's constant was computed outside the temperature range its method is
-    /// trusted over: an analytic equation outside its fitted range, or van't Hoff with a
-    /// constant ΔCp° outside [`crate::vant_hoff::CONSTANT_HEAT_CAPACITY_RANGE`].
-    TemperatureBeyondRange {
-        /// Family or complex name.
-        name: String,
-        /// For a family: the step (1 = most protonated) and its form pair; `None` for a complex.
-        step: Option<(usize, (String, String))>,
-        /// The range over which the method is trusted.
-        range: ValidityRange,
-        /// The temperature of the system, °C.
-        temperature_celsius: f64,
-    },
-}
-
-/// A thermodynamic datum a constant's temperature dependence needs.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
-pub enum TemperatureDatum {
-    /// The standard reaction enthalpy ΔH°.
-    Enthalpy,
-    /// The standard heat-capacity change ΔCp°.
-    HeatCapacity,
-}
-
-impl Warning {
-    pub(crate) fn from_gap(
-        name: &str,
-        step: Option<(usize, (String, String))>,
-        gap: TemperatureGap,
-        temperature_celsius: f64,
-    ) -> Warning {
-        let name = name.to_string();
-        match gap {
-            TemperatureGap::NoEnthalpy | TemperatureGap::NoHeatCapacity => Warning::TemperatureDataMissing {
-                name,
-                step,
-                datum: if gap == TemperatureGap::NoEnthalpy {
-                    TemperatureDatum::Enthalpy
-                } else {
-                    TemperatureDatum::HeatCapacity
-                },
-                temperature_celsius,
-            },
-            TemperatureGap::BeyondRange(range) => Warning::TemperatureBeyondRange {
-                name,
-                step,
-                range,
-                temperature_celsius,
-            },
-        }
-    }
-}
-
-/// "phosphate step 2 (H2PO4- → HPO42- + H+)" or the complex's name.
-fn reaction_label(name: &str, step: &Option<(usize, (String, String))>) -> String {
-    match step {
-        Some((k, (acid, base))) => format!("{name} step {k} ({acid} → {base} + H+)"),
-        None => name.to_string(),
-    }
-}
-
-impl std::fmt::Display for Warning {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match self {
-            Warning::IonicStrengthBeyondModel {
-                ionic_strength_molal,
-                limit_molal,
-                model,
-            } => write!(
-                f,
-                "ionic strength {ionic_strength_molal:.3} mol/kg is above the {} model's stated validity (about {limit_molal} mol/kg); activity coefficients are extrapolated",
-                model.name()
-            ),
-            Warning::TemperatureDataMissing {
-                name,
-                step,
-                datum,
-                temperature_celsius,
-            } => {
-                let what = reaction_label(name, step);
-                match datum {
-                    TemperatureDatum::Enthalpy => write!(
-                        f,
-                        "{what}: no ΔH°, so its 25 °C constant was used unchanged at {temperature_celsius} °C"
-                    ),
-                    TemperatureDatum::HeatCapacity => write!(
-                        f,
-                        "{what}: no ΔCp°, so van't Hoff with ΔH° alone was used at {temperature_celsius} °C, outside {} where that is trusted",
-                        crate::vant_hoff::ENTHALPY_ONLY_RANGE
-                    ),
-                }
-            }
-            Warning::TemperatureBeyondRange {
-                name,
-                step,
-                range,
-                temperature_celsius,
-            } => write!(
-                f,
-                "{}: its temperature dependence was used at {temperature_celsius} °C, outside its trusted range {range}",
-                reaction_label(name, step)
-            ),
-        }
-    }
-}
 
 /// One species at equilibrium.
 #[derive(Debug, Clone, PartialEq)]
@@ -497,5 +363,34 @@ impl Equilibrium {
             y: self.unknowns.clone(),
             ln_i: self.ln_i,
         }
+    }
+}
+
+impl Solver {
+    /// Solves from a cold start.
+    pub fn solve(&self, system: &System) -> Result<Equilibrium> {
+        let (point, ev, iters, path) = self.run(system, None)?;
+        Equilibrium::build(system, point, ev, iters, path)
+    }
+
+    /// Solves starting from a previous equilibrium of a similar system (same components,
+    /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
+    /// does not converge.
+    pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
+        if previous.unknowns().len() == system.components.len()
+            && let Ok((point, ev, iters, path)) =
+                self.run(system, Some((previous.unknowns(), previous.ln_ionic_strength())))
+            && let Ok(eq) = Equilibrium::build(system, point, ev, iters, path)
+        {
+            return Ok(eq);
+        }
+        self.solve(system)
+    }
+}
+
+impl System {
+    /// Solves the system with the default [`Solver`].
+    pub fn solve(&self) -> Result<Equilibrium> {
+        Solver::default().solve(self)
     }
 }

@@ -11,13 +11,13 @@ use std::sync::Arc;
 
 use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants};
 use crate::complex::{Complex, ComplexPart};
-use crate::equilibrium::{Equilibrium, Warning};
 use crate::error::{Error, Result};
 use crate::ion::Ion;
 use crate::protolyte::Protolyte;
 use crate::quantity::Temperature;
 use crate::reagent::Constituent;
 use crate::recipe::Recipe;
+use crate::warning::Warning;
 use crate::water;
 
 /// Ion size of H⁺ and OH⁻ (Kielland, *J. Am. Chem. Soc.* 59 (1937) 1675; from memory).
@@ -185,6 +185,14 @@ pub struct System {
     pub(crate) compile_warnings: Vec<Warning>,
 }
 
+impl Recipe {
+    /// Compiles the recipe into a [`System`] (the tableau at the given temperature and
+    /// activity model).
+    pub fn compile(&self, conditions: &Conditions) -> Result<System> {
+        System::compile(self, conditions)
+    }
+}
+
 impl System {
     pub(crate) fn compile(recipe: &Recipe, conditions: &Conditions) -> Result<System> {
         let t = conditions.temperature;
@@ -262,7 +270,6 @@ impl System {
                     warnings.push(Warning::from_gap(p.name(), Some((i + 1, forms)), gap, tc));
                 }
             }
-            let size = p.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM);
             fam.forms.clear();
             for j in 0..=n {
                 // log β_j = Σ of the last j pKa values (protonation of the base j times).
@@ -273,7 +280,7 @@ impl System {
                         name: p.form_name(j).into(),
                         charge: p.charge_of_form(j),
                         log10_k: log_beta,
-                        ion_size_angstrom: size,
+                        ion_size_angstrom: p.form_ion_size_angstrom(j).unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
                         kind: SpeciesKind::Form { family: fi, protons: j },
                     },
                     if j == 0 {
@@ -404,11 +411,6 @@ impl System {
             charge_f,
             compile_warnings: warnings,
         })
-    }
-
-    /// Solves the system with the default [`Solver`](crate::Solver).
-    pub fn solve(&self) -> Result<Equilibrium> {
-        crate::solve::Solver::default().solve(self)
     }
 
     /// The temperature.
