@@ -122,6 +122,44 @@ impl Protolyte {
         Ok(self)
     }
 
+    /// Sets ΔH° (kJ/mol) and ΔCp° (J/(mol·K)) of one step `step` (0-based, most protonated
+    /// first); `None` leaves that datum unknown. Refuses a step index beyond the steps and
+    /// values outside ±500 kJ/mol or ±2000 J/(mol·K).
+    ///
+    /// ```
+    /// use protolyte::Protolyte;
+    /// let p = Protolyte::new("x", &[3.0, 6.0], 0)?.with_step_thermodynamics(1, Some(4.0), None)?;
+    /// assert_eq!(p.steps()[0].dh_kj_per_mol, None);
+    /// assert_eq!(p.steps()[1].dh_kj_per_mol, Some(4.0));
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn with_step_thermodynamics(
+        mut self,
+        step: usize,
+        dh_kj_per_mol: Option<f64>,
+        dcp_j_per_mol_k: Option<f64>,
+    ) -> Result<Self> {
+        if step >= self.steps.len() {
+            return Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!(
+                    "ΔH°/ΔCp° for step {} of a family with {} steps",
+                    step + 1,
+                    self.steps.len()
+                ),
+            });
+        }
+        if let Some(h) = dh_kj_per_mol {
+            check_enthalpy(&self.name, h)?;
+        }
+        if let Some(c) = dcp_j_per_mol_k {
+            check_heat_capacity(&self.name, c)?;
+        }
+        self.steps[step].dh_kj_per_mol = dh_kj_per_mol;
+        self.steps[step].dcp_j_per_mol_k = dcp_j_per_mol_k;
+        Ok(self)
+    }
+
     /// Sets an analytic equation for log₁₀ Ka(T) of step `step` (0-based, most protonated
     /// first), used instead of ΔH° and ΔCp° for that step. The equation gives the change of
     /// log Ka from 25 °C; the step's pKa at 25 °C stays as given.
