@@ -77,6 +77,69 @@ pub enum Error {
         /// The supported range, in words.
         domain: &'static str,
     },
+    /// An integer that enters the chemistry (a count, a number of protons, a charge) lies
+    /// outside its documented range (see [`limits`](crate::limits)).
+    #[error("{quantity} of {what} is {value}, outside the accepted range {min}..={max}")]
+    IntegerOutOfRange {
+        /// The definition at fault.
+        what: String,
+        /// Which integer ("net H⁺ gained or lost", "count of part 2", "charge", ...).
+        quantity: String,
+        /// The value given (or computed from the parts), widened so that it cannot overflow.
+        value: i128,
+        /// Smallest accepted value.
+        min: i128,
+        /// Largest accepted value.
+        max: i128,
+    },
+    /// A name or synonym is already taken by another catalog entry.
+    #[error("the {kind} name `{name}` is already used by the {existing_kind} `{existing_name}`{}", if kind == existing_kind { " (use the catalog's replace_* call to override it on purpose)" } else { "" })]
+    NameConflict {
+        /// The name (or synonym) of the new definition.
+        name: String,
+        /// What the new definition is ("ion", "protolyte", ...).
+        kind: &'static str,
+        /// What the entry already holding the name is.
+        existing_kind: &'static str,
+        /// The canonical name of that entry.
+        existing_name: String,
+    },
+    /// An amount or total is larger than the library accepts
+    /// ([`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL)), or a sum of volumes overflows.
+    #[error("{what} is {value} {unit}, above the accepted maximum of {limit} {unit}")]
+    AmountTooLarge {
+        /// What the amount belongs to.
+        what: String,
+        /// The value given or summed.
+        value: f64,
+        /// Its unit.
+        unit: &'static str,
+        /// The largest accepted value.
+        limit: f64,
+    },
+    /// The species of the solution would give an ionic strength above what the solver and
+    /// the activity models represent
+    /// ([`MAX_IONIC_STRENGTH_MOLAL`](crate::limits::MAX_IONIC_STRENGTH_MOLAL)).
+    #[error(
+        "the solution's ionic strength would be at least {ionic_strength_molal:.4} mol/kg, above the limit of {limit_molal} mol/kg for activity models (use the ideal model, or dilute)"
+    )]
+    IonicStrengthBeyondLimit {
+        /// The ionic strength the species give at the last iterate, mol/kg.
+        ionic_strength_molal: f64,
+        /// The limit, mol/kg.
+        limit_molal: f64,
+    },
+    /// More points were asked of a curve or sweep than the library computes
+    /// ([`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)).
+    #[error("{what}: {requested} points requested, at most {limit} are computed")]
+    TooManyPoints {
+        /// The curve or sweep.
+        what: &'static str,
+        /// Points requested.
+        requested: usize,
+        /// The largest number accepted.
+        limit: usize,
+    },
     /// The solver did not converge; the diagnostics say how far it got.
     #[error(
         "no convergence on the {path} path after {iterations} iterations: largest scaled residual {max_residual:.3e} in the {worst_equation}; last pH estimate {last_ph:.4}"
@@ -128,6 +191,65 @@ pub(crate) fn check_parameter(
             parameter,
             value,
             reason,
+        })
+    }
+}
+
+/// Refuses an integer outside `min..=max`.
+pub(crate) fn check_int(what: &str, quantity: &str, value: i128, min: i128, max: i128) -> Result<i128> {
+    if (min..=max).contains(&value) {
+        Ok(value)
+    } else {
+        Err(Error::IntegerOutOfRange {
+            what: what.to_string(),
+            quantity: quantity.to_string(),
+            value,
+            min,
+            max,
+        })
+    }
+}
+
+/// Refuses an amount above [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL) (in its own
+/// unit), after the checks of [`check_amount`].
+pub(crate) fn check_amount_max(what: &str, value: f64, unit: &'static str) -> Result<f64> {
+    let v = check_amount(what, value, unit)?;
+    if v <= crate::limits::MAX_TOTAL_MOLAL {
+        Ok(v)
+    } else {
+        Err(Error::AmountTooLarge {
+            what: what.to_string(),
+            value: v,
+            unit,
+            limit: crate::limits::MAX_TOTAL_MOLAL,
+        })
+    }
+}
+
+/// Refuses a number of points above [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS).
+pub(crate) fn check_points(what: &'static str, points: usize) -> Result<usize> {
+    if points <= crate::limits::MAX_CURVE_POINTS {
+        Ok(points)
+    } else {
+        Err(Error::TooManyPoints {
+            what,
+            requested: points,
+            limit: crate::limits::MAX_CURVE_POINTS,
+        })
+    }
+}
+
+/// Refuses a temperature outside 0–100 °C (or not finite); returns it in °C.
+pub(crate) fn check_temperature(t: crate::quantity::Temperature) -> Result<f64> {
+    let tc = t.as_celsius();
+    let (lo, hi) = crate::limits::TEMPERATURE_RANGE_CELSIUS;
+    if tc.is_finite() && (lo - 1e-9..=hi + 1e-9).contains(&tc) {
+        Ok(tc)
+    } else {
+        Err(Error::OutOfDomain {
+            what: "temperature (°C)",
+            value: tc,
+            domain: "0..100 °C",
         })
     }
 }

@@ -80,6 +80,7 @@ pub mod document;
 mod equilibrium;
 mod error;
 mod ion;
+pub mod limits;
 #[cfg(feature = "plot")]
 pub mod plot;
 mod protolyte;

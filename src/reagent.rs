@@ -1,7 +1,8 @@
 //! Reagents: what a person weighs or pipettes, as constituents with counts.
 
-use crate::error::{Error, Result, check_parameter};
+use crate::error::{Error, Result, check_int, check_parameter};
 use crate::ion::Ion;
+use crate::limits::MAX_CONSTITUENT_COUNT;
 use crate::protolyte::Protolyte;
 
 /// One constituent of a reagent.
@@ -63,8 +64,9 @@ pub struct Reagent {
 
 impl Reagent {
     /// A reagent from its constituents. Refuses an empty name, no constituents, a form with
-    /// more protons than its family has, a zero count, a net charge, and a molar mass that is
-    /// not positive and finite.
+    /// more protons than its family has, a zero count or one above
+    /// [`MAX_CONSTITUENT_COUNT`] ([`Error::IntegerOutOfRange`]), a net charge, and a molar
+    /// mass that is not positive and finite.
     pub fn new(name: &str, molar_mass_g_per_mol: Option<f64>, parts: Vec<(Constituent, u32)>) -> Result<Self> {
         let name = name.trim();
         let bad = |reason: String| Error::InconsistentDefinition {
@@ -82,10 +84,17 @@ impl Reagent {
             return Err(bad("a reagent needs at least one constituent".into()));
         }
         let mut charge: i64 = 0;
-        for (c, n) in &parts {
+        for (k, (c, n)) in parts.iter().enumerate() {
             if *n == 0 {
                 return Err(bad("a constituent with count 0".into()));
             }
+            check_int(
+                name,
+                &format!("count of constituent {}", k + 1),
+                i128::from(*n),
+                1,
+                i128::from(MAX_CONSTITUENT_COUNT),
+            )?;
             if let Constituent::Form { protolyte, protons } = c
                 && *protons > protolyte.proton_count()
             {

@@ -236,6 +236,7 @@ impl CapacityCurve {
             20.0,
             "must be finite and within -4..20",
         )?;
+        crate::error::check_points("buffer capacity sweep", points)?;
         let n = points.max(2);
         (0..n)
             .map(|i| self.at_ph(from + (to - from) * i as f64 / (n - 1) as f64))

@@ -605,9 +605,9 @@ impl Work<'_> {
                 r[row] = measured - (eq.ph() + offset);
                 for &(j, a) in &acts {
                     let d = match a {
-                        Action::Analyte(i) => sens.dph(Parameter::Total(i)) * (1.0 - w) / c.rho,
-                        Action::Titrant(i) => sens.dph(Parameter::Total(i)) * w / c.rho,
-                        Action::Pka(f, s) => sens.dph_dpka(f, s),
+                        Action::Analyte(i) => sens.dph(Parameter::Total(i)).unwrap_or(0.0) * (1.0 - w) / c.rho,
+                        Action::Titrant(i) => sens.dph(Parameter::Total(i)).unwrap_or(0.0) * w / c.rho,
+                        Action::Pka(f, s) => sens.dph_dpka(f, s).unwrap_or(0.0),
                         Action::Offset => 1.0,
                     };
                     jac[(row, j)] += d;
