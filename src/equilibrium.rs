@@ -169,6 +169,15 @@ impl Equilibrium {
             })
             .collect();
         let ph = -point.y[0] / LN10;
+        // The solver's pH range (both paths bracket ln a(H⁺) there): a solution outside it
+        // is refused rather than returned from one path and not the other.
+        if ph.is_finite() && !(-4.0 - 1e-9..=20.0 + 1e-9).contains(&ph) {
+            return Err(Error::OutOfDomain {
+                what: "pH of the solution",
+                value: ph,
+                domain: "-4..20 (the solver's range)",
+            });
+        }
         let h = species[0].molal;
         let oh = species[1].activity;
         let nc = sys.components.len();

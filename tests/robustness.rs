@@ -428,3 +428,195 @@ fn water_functions_refuse_temperatures_outside_their_range() {
     let kw = water::log10_kw(Temperature::celsius(100.0)).unwrap();
     assert!(kw.is_finite());
 }
+
+// ---------------------------------------------------------------- the residual promise
+
+mod promise {
+    use super::common;
+    use proptest::prelude::*;
+    use protolyte::limits::{MAX_TOTAL_MOLAL, RESIDUAL_PROMISE};
+    use protolyte::{
+        ActivityModel, Amount, Complex, ComplexPart, Conditions, Constituent, Equilibrium, Ion, Protolyte, Reagent,
+        Recipe, Temperature, Warning,
+    };
+
+    #[derive(Debug, Clone)]
+    struct Family {
+        pkas: Vec<f64>,
+        charge_top: i32,
+        protons: usize,
+        log_total: f64,
+    }
+
+    #[derive(Debug, Clone)]
+    struct Complexing {
+        family: usize,
+        count: i32,
+        protons: i32,
+        log_beta: f64,
+    }
+
+    #[derive(Debug, Clone)]
+    struct Case {
+        families: Vec<Family>,
+        metal_charge: i32,
+        log_metal: f64,
+        complexes: Vec<Complexing>,
+        hydroxo: (i32, f64),
+        log_base: f64,
+        acid: bool,
+        t: f64,
+        model: ActivityModel,
+    }
+
+    /// log₁₀ of a total over the whole accepted domain: from below the floor (1e-30) to the
+    /// maximum (100 mol/kg), with zero now and then.
+    fn log_total() -> impl Strategy<Value = f64> {
+        prop_oneof![
+            1 => Just(f64::NEG_INFINITY),
+            1 => -330.0f64..-30.0,
+            8 => -32.0f64..MAX_TOTAL_MOLAL.log10(),
+        ]
+    }
+
+    fn family() -> impl Strategy<Value = Family> {
+        (1usize..=4)
+            .prop_flat_map(|n| (prop::collection::vec(-10.0f64..25.0, n), -3i32..=3, 0..=n, log_total()))
+            .prop_map(|(pkas, charge_top, protons, log_total)| Family {
+                pkas,
+                charge_top,
+                protons,
+                log_total,
+            })
+    }
+
+    fn case() -> impl Strategy<Value = Case> {
+        prop::collection::vec(family(), 1..=4)
+            .prop_flat_map(|families| {
+                let n = families.len();
+                (
+                    Just(families),
+                    1i32..=4,
+                    log_total(),
+                    prop::collection::vec((0..n, 1i32..=3, -4i32..=4, -30.0f64..40.0), 0..=3),
+                    (-12i32..=-1, -100.0f64..0.0),
+                    log_total(),
+                    any::<bool>(),
+                    0.0f64..=100.0,
+                    prop_oneof![
+                        Just(ActivityModel::Ideal),
+                        Just(ActivityModel::Davies),
+                        Just(ActivityModel::ExtendedDebyeHuckel)
+                    ],
+                )
+            })
+            .prop_map(
+                |(families, metal_charge, log_metal, cx, hydroxo, log_base, acid, t, model)| Case {
+                    families,
+                    metal_charge,
+                    log_metal,
+                    complexes: cx
+                        .into_iter()
+                        .map(|(family, count, protons, log_beta)| Complexing {
+                            family,
+                            count,
+                            protons,
+                            log_beta,
+                        })
+                        .collect(),
+                    hydroxo,
+                    log_base,
+                    acid,
+                    t,
+                    model,
+                },
+            )
+    }
+
+    /// The recipe, or `None` where a definition is refused (a typed error is all that is
+    /// asked of those).
+    fn recipe(c: &Case) -> Option<Recipe> {
+        let mut r = Recipe::new();
+        let mut fams = Vec::new();
+        for (i, f) in c.families.iter().enumerate() {
+            let p = Protolyte::new(&format!("family {i}"), &f.pkas, f.charge_top).ok()?;
+            r.add(&common::salt(&p, f.protons), Amount::molal(10f64.powf(f.log_total)))
+                .ok()?;
+            fams.push(p);
+        }
+        let metal = Ion::new("metal M", c.metal_charge).ok()?;
+        let salt = Reagent::new(
+            "metal M chloride",
+            None,
+            vec![
+                (Constituent::Ion(metal.clone()), 1),
+                (Constituent::Ion(common::chloride()), c.metal_charge as u32),
+            ],
+        )
+        .ok()?;
+        r.add(&salt, Amount::molal(10f64.powf(c.log_metal))).ok()?;
+        let strong = if c.acid { common::hcl() } else { common::naoh() };
+        r.add(&strong, Amount::molal(10f64.powf(c.log_base))).ok()?;
+        for (k, x) in c.complexes.iter().enumerate() {
+            let mut parts = vec![
+                (ComplexPart::Ion(metal.clone()), 1),
+                (ComplexPart::Base(fams[x.family].clone()), x.count),
+            ];
+            if x.protons != 0 {
+                parts.push((ComplexPart::Proton, x.protons));
+            }
+            if let Ok(cx) = Complex::new(&format!("complex {k}"), parts, x.log_beta) {
+                r.add_complex(&cx);
+            }
+        }
+        if let Ok(cx) = Complex::new(
+            "metal hydroxo",
+            vec![(ComplexPart::Ion(metal), 1), (ComplexPart::Proton, c.hydroxo.0)],
+            c.hydroxo.1,
+        ) {
+            r.add_complex(&cx);
+        }
+        Some(r)
+    }
+
+    fn finite(eq: &Equilibrium) -> bool {
+        let r = eq.residuals();
+        [eq.ph(), eq.p_h_molal(), eq.poh(), eq.ionic_strength_molal()]
+            .iter()
+            .chain(eq.species().iter().flat_map(|s| [s.molal, s.molar, s.gamma, s.activity]).collect::<Vec<_>>().iter())
+            .chain(
+                eq.families()
+                    .iter()
+                    .flat_map(|f| {
+                        let mut v = f.fractions.clone();
+                        v.extend([f.total_molal, f.complexed_fraction, f.mean_bound_protons]);
+                        v
+                    })
+                    .collect::<Vec<_>>()
+                    .iter(),
+            )
+            .chain(eq.free_molal().iter().map(|(_, v)| v))
+            .chain(r.mass_relative.iter().map(|(_, v)| v))
+            .chain([r.charge_molal, r.charge_relative, r.ionic_strength_relative].iter())
+            .all(|v| v.is_finite())
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(1000))]
+
+        /// Whatever is returned keeps the residual promise over every equation (the
+        /// ionic-strength equation included) or says it does not in a warning, and holds no
+        /// NaN or infinity; everything else is a typed error (a panic fails the test).
+        #[test]
+        fn every_returned_result_keeps_its_promise_or_warns(c in case()) {
+            let Some(r) = recipe(&c) else { return Ok(()) };
+            let Ok(sys) = r.compile(&Conditions::new(Temperature::celsius(c.t), c.model)) else { return Ok(()) };
+            let Ok(eq) = sys.solve() else { return Ok(()) };
+            prop_assert!(finite(&eq), "{eq:?}");
+            let worst = eq.residuals().max_relative();
+            let warned = eq.warnings().iter().any(|w| matches!(w, Warning::ResidualAbovePromise { .. }));
+            prop_assert!(worst <= RESIDUAL_PROMISE || warned, "residual {worst:e} without a warning: {:?}", eq.residuals());
+            prop_assert!((-4.0..=20.0).contains(&eq.ph()), "pH {}", eq.ph());
+        }
+    }
+}
