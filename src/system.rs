@@ -272,7 +272,6 @@ impl System {
                 });
             }
             let pkas: Vec<f64> = (0..n).map(|i| p.pka_at(i, t)).collect();
-            let size = p.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM);
             fam.forms.clear();
             for j in 0..=n {
                 // log β_j = Σ of the last j pKa values (protonation of the base j times).
@@ -283,7 +282,7 @@ impl System {
                         name: p.form_name(j).into(),
                         charge: p.charge_of_form(j),
                         log10_k: log_beta,
-                        ion_size_angstrom: size,
+                        ion_size_angstrom: p.form_ion_size_angstrom(j).unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
                         kind: SpeciesKind::Form { family: fi, protons: j },
                     },
                     if j == 0 {
