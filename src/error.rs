@@ -20,7 +20,10 @@ use thiserror::Error;
 #[non_exhaustive]
 pub enum Error {
     /// An amount, concentration, mass or volume was negative, NaN or infinite.
-    #[error("invalid amount for {what}: {value} {unit} (amounts must be finite and not negative)")]
+    #[error(
+        "invalid amount for {}: {value} {unit} (amounts must be finite and not negative)",
+        quote(what)
+    )]
     InvalidAmount {
         /// What the amount belongs to.
         what: String,
@@ -30,7 +33,7 @@ pub enum Error {
         unit: &'static str,
     },
     /// A parameter (pKa, enthalpy, ion size, log β, ...) was out of range or not finite.
-    #[error("invalid {parameter} for {what}: {value} ({reason})")]
+    #[error("invalid {parameter} for {}: {value} ({reason})", quote(what))]
     InvalidParameter {
         /// What the parameter belongs to.
         what: String,
@@ -42,17 +45,18 @@ pub enum Error {
         reason: &'static str,
     },
     /// A name was looked up and not found.
-    #[error("unknown {kind} `{name}`{}", suggestion.as_ref().map(|s| format!(" (did you mean `{s}`?)")).unwrap_or_default())]
+    #[error("unknown {kind} `{}`{}", quote(name), suggestion.as_ref().map(|s| format!(" (did you mean `{s}`?)")).unwrap_or_default())]
     UnknownName {
         /// What kind of thing was looked up ("protolyte", "reagent", "ion", ...).
         kind: &'static str,
-        /// The name as given.
+        /// The name as given (the message quotes it shortened past 80 characters).
         name: String,
-        /// The closest known name, if one is close.
+        /// The closest known name, if one is close (not searched for names past 64
+        /// characters).
         suggestion: Option<String>,
     },
     /// Two definitions disagree, or one contradicts itself.
-    #[error("inconsistent definition of {name}: {reason}")]
+    #[error("inconsistent definition of {}: {reason}", quote(name))]
     InconsistentDefinition {
         /// The thing defined.
         name: String,
@@ -60,7 +64,10 @@ pub enum Error {
         reason: String,
     },
     /// A reagent's constituents do not add up to zero charge.
-    #[error("reagent `{reagent}` is not electroneutral: its constituents carry a net charge of {charge:+}")]
+    #[error(
+        "reagent `{}` is not electroneutral: its constituents carry a net charge of {charge:+}",
+        quote(reagent)
+    )]
     NotElectroneutral {
         /// The reagent.
         reagent: String,
@@ -79,7 +86,7 @@ pub enum Error {
     },
     /// An integer that enters the chemistry (a count, a number of protons, a charge) lies
     /// outside its documented range (see [`limits`](crate::limits)).
-    #[error("{quantity} of {what} is {value}, outside the accepted range {min}..={max}")]
+    #[error("{quantity} of {} is {value}, outside the accepted range {min}..={max}", quote(what))]
     IntegerOutOfRange {
         /// The definition at fault.
         what: String,
@@ -93,7 +100,7 @@ pub enum Error {
         max: i128,
     },
     /// A name or synonym is already taken by another catalog entry.
-    #[error("the {kind} name `{name}` is already used by the {existing_kind} `{existing_name}`{}", if kind == existing_kind { " (use the catalog's replace_* call to override it on purpose)" } else { "" })]
+    #[error("the {kind} name `{}` is already used by the {existing_kind} `{}`{}", quote(name), quote(existing_name), if kind == existing_kind { " (use the catalog's replace_* call to override it on purpose)" } else { "" })]
     NameConflict {
         /// The name (or synonym) of the new definition.
         name: String,
@@ -106,7 +113,7 @@ pub enum Error {
     },
     /// An amount or total is larger than the library accepts
     /// ([`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL)), or a sum of volumes overflows.
-    #[error("{what} is {value} {unit}, above the accepted maximum of {limit} {unit}")]
+    #[error("{} is {value} {unit}, above the accepted maximum of {limit} {unit}", quote(what))]
     AmountTooLarge {
         /// What the amount belongs to.
         what: String,
@@ -160,6 +167,21 @@ pub enum Error {
 
 /// `Result` with protolyte's [`Error`](enum@Error).
 pub type Result<T> = std::result::Result<T, Error>;
+
+/// Longest name quoted whole in a message; a longer one is shortened.
+const QUOTE_CHARS: usize = 80;
+
+/// A name as a message quotes it: whole up to 80 characters, else its first 60 characters,
+/// an ellipsis and its length (an error never repeats a huge input).
+pub(crate) fn quote(s: &str) -> std::borrow::Cow<'_, str> {
+    let n = s.chars().count();
+    if n <= QUOTE_CHARS {
+        std::borrow::Cow::Borrowed(s)
+    } else {
+        let head: String = s.chars().take(60).collect();
+        std::borrow::Cow::Owned(format!("{head}… ({n} characters)"))
+    }
+}
 
 /// Refuses a non-finite or negative amount.
 pub(crate) fn check_amount(what: &str, value: f64, unit: &'static str) -> Result<f64> {

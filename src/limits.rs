@@ -18,6 +18,7 @@
 //! | charge of a complex | ±[`MAX_COMPLEX_CHARGE`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |
 //! | count of one constituent of a reagent | 1..=[`MAX_CONSTITUENT_COUNT`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |
 //! | points of a curve or sweep | ≤ [`MAX_CURVE_POINTS`] | [`Error::TooManyPoints`](crate::Error::TooManyPoints) |
+//! | iteration budget of a titration fit | ≤ [`MAX_FIT_ITERATIONS`] | [`Error::InvalidParameter`](crate::Error::InvalidParameter) |
 //!
 //! Families (1–12 steps, charge of the most protonated form −10..10) and simple ions
 //! (charge −6..6, not 0) are checked by their constructors.
@@ -67,6 +68,9 @@ pub const MAX_CONSTITUENT_COUNT: u32 = 100;
 
 /// Largest number of points of a titration curve or a buffer-capacity sweep.
 pub const MAX_CURVE_POINTS: usize = 1_000_000;
+
+/// Largest iteration budget of a titration fit.
+pub const MAX_FIT_ITERATIONS: usize = 10_000;
 
 /// The residual promise: the largest relative residual of a returned result over every
 /// equation solved (charge balance, mass balances, ionic strength), unless the solver's

@@ -24,13 +24,25 @@ pub enum Constituent {
 }
 
 impl Constituent {
-    /// Charge of one unit of this constituent.
-    pub fn charge(&self) -> i32 {
+    /// Charge of one unit of this constituent; `None` for a form with more protons than its
+    /// family has (no such form exists).
+    ///
+    /// ```
+    /// use protolyte::{Constituent, Protolyte};
+    /// let p = Protolyte::new("phosphate", &[2.148, 7.198, 12.35], 0)?;
+    /// let h2po4 = Constituent::Form { protolyte: p.clone(), protons: 2 };
+    /// assert_eq!(h2po4.charge(), Some(-1));
+    /// assert_eq!(Constituent::Form { protolyte: p, protons: 9 }.charge(), None);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn charge(&self) -> Option<i32> {
         match self {
-            Constituent::Form { protolyte, protons } => protolyte.charge_of_form(*protons),
-            Constituent::Ion(i) => i.charge(),
-            Constituent::Proton => 1,
-            Constituent::Hydroxide => -1,
+            Constituent::Form { protolyte, protons } => {
+                (*protons <= protolyte.proton_count()).then(|| protolyte.charge_of_form(*protons))
+            }
+            Constituent::Ion(i) => Some(i.charge()),
+            Constituent::Proton => Some(1),
+            Constituent::Hydroxide => Some(-1),
         }
     }
 }
@@ -105,7 +117,8 @@ impl Reagent {
                     protons
                 )));
             }
-            charge += i64::from(c.charge()) * i64::from(*n);
+            // Every form was checked to exist just above.
+            charge += i64::from(c.charge().unwrap_or(0)) * i64::from(*n);
         }
         if charge != 0 {
             return Err(Error::NotElectroneutral {

@@ -583,7 +583,13 @@ mod promise {
         let r = eq.residuals();
         [eq.ph(), eq.p_h_molal(), eq.poh(), eq.ionic_strength_molal()]
             .iter()
-            .chain(eq.species().iter().flat_map(|s| [s.molal, s.molar, s.gamma, s.activity]).collect::<Vec<_>>().iter())
+            .chain(
+                eq.species()
+                    .iter()
+                    .flat_map(|s| [s.molal, s.molar, s.gamma, s.activity])
+                    .collect::<Vec<_>>()
+                    .iter(),
+            )
             .chain(
                 eq.families()
                     .iter()
@@ -619,4 +625,40 @@ mod promise {
             prop_assert!((-4.0..=20.0).contains(&eq.ph()), "pH {}", eq.ph());
         }
     }
+}
+
+#[test]
+fn long_unknown_names_are_answered_quickly_and_quoted_short() {
+    let cat = Catalog::builtin();
+    let long = "x".repeat(400_000);
+    let err = cat.reagent(&long).unwrap_err();
+    let msg = err.to_string();
+    assert!(msg.len() < 300, "{} bytes", msg.len());
+    assert!(msg.contains("400000 characters"), "{msg}");
+    // Short typos still get their suggestion.
+    assert!(
+        cat.reagent("sodium acetat")
+            .unwrap_err()
+            .to_string()
+            .contains("did you mean")
+    );
+}
+
+#[test]
+fn overflowing_mass_amounts_and_fit_budgets_are_refused() {
+    use protolyte::Mass;
+    use protolyte::analysis::TitrationFit;
+    assert!(Amount::from_mass(Mass::grams(1e308), 1e-3, Volume::liters(1e-300)).is_err());
+    let err = TitrationFit::new().max_iterations(usize::MAX).run().unwrap_err();
+    assert!(matches!(err, Error::InvalidParameter { .. }), "{err}");
+}
+
+#[test]
+fn a_constituent_form_that_does_not_exist_has_no_charge() {
+    let p = Protolyte::new("acid", &[4.0], 0).unwrap();
+    let c = Constituent::Form {
+        protolyte: p,
+        protons: 1 << 31,
+    };
+    assert_eq!(c.charge(), None);
 }

@@ -205,7 +205,9 @@ impl CapacityCurve {
         })
     }
 
-    /// β at `points` evenly spaced pH values from `from` to `to` (both included).
+    /// β at `points` evenly spaced pH values from `from` to `to` (both included; fewer than 2
+    /// points give 2). Refuses more than [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
+    /// ([`Error::TooManyPoints`](crate::Error::TooManyPoints)).
     ///
     /// ```
     /// use protolyte::analysis::CapacityCurve;

@@ -126,7 +126,9 @@ impl Stepping {
         self
     }
 
-    /// The largest number of points (at least 2).
+    /// The largest number of points (at least 2). A curve asked with more than
+    /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS) is refused by
+    /// [`Titration::curve_adaptive`].
     pub fn max_points(mut self, n: usize) -> Self {
         self.max_points = n.max(2);
         self
@@ -301,8 +303,11 @@ impl Titration {
     }
 
     /// The curve at the given volumes (any order; each point warm-starts from the previous).
+    /// Refuses more than [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS) volumes
+    /// ([`Error::TooManyPoints`](crate::Error::TooManyPoints)).
     pub fn curve(&self, volumes: &[Volume]) -> Result<Vec<TitrationPoint>> {
         let mut c = Cursor::new(self);
+        crate::error::check_points("titration curve", volumes.len())?;
         let mut out: Vec<TitrationPoint> = Vec::with_capacity(volumes.len());
         for v in volumes {
             let p = c.point(v.liters_value(), out.last().map(|p| &p.equilibrium))?;
@@ -311,7 +316,10 @@ impl Titration {
         Ok(out)
     }
 
-    /// The curve at `points` evenly spaced volumes from 0 to `end` (both included).
+    /// The curve at `points` evenly spaced volumes from 0 to `end` (both included; fewer
+    /// than 2 points give 2). Refuses more than
+    /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
+    /// ([`Error::TooManyPoints`](crate::Error::TooManyPoints)).
     ///
     /// ```
     /// use protolyte::analysis::Titration;

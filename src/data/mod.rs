@@ -135,6 +135,9 @@ fn normalize(s: &str) -> String {
     s.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 
+/// Longest name (characters) for which a lookup that fails searches for a suggestion.
+const MAX_SUGGEST_CHARS: usize = 64;
+
 fn levenshtein(a: &str, b: &str) -> usize {
     let a: Vec<char> = a.chars().collect();
     let b: Vec<char> = b.chars().collect();
@@ -176,20 +179,26 @@ impl Catalog {
         {
             return Ok(idx);
         }
-        // Not found: suggest the closest name or synonym, if it is close.
+        // Not found: suggest the closest name or synonym, if it is close. The search is
+        // bounded: a name longer than MAX_SUGGEST_CHARS gets no suggestion, and a key whose
+        // length alone puts it beyond the limit is not compared.
+        let key_len = key.chars().count();
+        let limit = (key_len / 3).max(2);
         let mut best: Option<(usize, &str)> = None;
-        for info in entries() {
-            let d = info
-                .keys
-                .iter()
-                .map(|n| levenshtein(n, &key))
-                .min()
-                .unwrap_or(usize::MAX);
-            if best.is_none_or(|(bd, _)| d < bd) {
-                best = Some((d, info.name.as_str()));
+        if key_len <= MAX_SUGGEST_CHARS {
+            for info in entries() {
+                let d = info
+                    .keys
+                    .iter()
+                    .filter(|n| n.chars().count().abs_diff(key_len) <= limit)
+                    .map(|n| levenshtein(n, &key))
+                    .min()
+                    .unwrap_or(usize::MAX);
+                if best.is_none_or(|(bd, _)| d < bd) {
+                    best = Some((d, info.name.as_str()));
+                }
             }
         }
-        let limit = (key.chars().count() / 3).max(2);
         Err(Error::UnknownName {
             kind: kind.name(),
             name: name.to_string(),
