@@ -80,15 +80,15 @@ impl Complex {
         check_int(
             &label,
             "number of parts",
-            parts.len() as i128,
+            i64::try_from(parts.len()).unwrap_or(i64::MAX),
             1,
-            MAX_COMPLEX_PARTS as i128,
+            MAX_COMPLEX_PARTS as i64,
         )?;
-        let mut heavy: i128 = 0;
-        let mut protons: i128 = 0;
-        let mut charge: i128 = 0;
+        let mut heavy: i64 = 0;
+        let mut protons: i64 = 0;
+        let mut charge: i64 = 0;
         for (k, (p, n)) in parts.iter().enumerate() {
-            let n = i128::from(*n);
+            let n = i64::from(*n);
             if n == 0 {
                 return Err(bad(format!("part {} has count 0", k + 1)));
             }
@@ -97,8 +97,8 @@ impl Complex {
                     &label,
                     &format!("H⁺ count of part {}", k + 1),
                     n,
-                    -i128::from(MAX_COMPLEX_PROTONS),
-                    i128::from(MAX_COMPLEX_PROTONS),
+                    -i64::from(MAX_COMPLEX_PROTONS),
+                    i64::from(MAX_COMPLEX_PROTONS),
                 )?;
                 protons += n;
             } else {
@@ -110,26 +110,26 @@ impl Complex {
                     &format!("count of part {}", k + 1),
                     n,
                     1,
-                    i128::from(MAX_PART_COUNT),
+                    i64::from(MAX_PART_COUNT),
                 )?;
                 heavy += n;
             }
-            charge += i128::from(p.charge()) * n;
+            charge += i64::from(p.charge()) * n;
         }
         // The ranges hold for the species as a whole, not only part by part.
         check_int(
             &label,
             "net H⁺ gained or lost (all proton parts together)",
             protons,
-            -i128::from(MAX_COMPLEX_PROTONS),
-            i128::from(MAX_COMPLEX_PROTONS),
+            -i64::from(MAX_COMPLEX_PROTONS),
+            i64::from(MAX_COMPLEX_PROTONS),
         )?;
         check_int(
             &label,
             "charge",
             charge,
-            -i128::from(MAX_COMPLEX_CHARGE),
-            i128::from(MAX_COMPLEX_CHARGE),
+            -i64::from(MAX_COMPLEX_CHARGE),
+            i64::from(MAX_COMPLEX_CHARGE),
         )?;
         let lone_ion = heavy == 1 && parts.iter().any(|(p, _)| matches!(p, ComplexPart::Ion(_)));
         if heavy == 0 || (heavy == 1 && !(lone_ion && protons != 0)) {

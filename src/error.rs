@@ -92,12 +92,12 @@ pub enum Error {
         what: String,
         /// Which integer ("net H⁺ gained or lost", "count of part 2", "charge", ...).
         quantity: String,
-        /// The value given (or computed from the parts), widened so that it cannot overflow.
-        value: i128,
+        /// The value given (or computed from the parts), as a 64-bit integer (every per-part range is checked before parts are summed, so no sum can overflow).
+        value: i64,
         /// Smallest accepted value.
-        min: i128,
+        min: i64,
         /// Largest accepted value.
-        max: i128,
+        max: i64,
     },
     /// A name or synonym is already taken by another catalog entry.
     #[error("the {kind} name `{}` is already used by the {existing_kind} `{}`{}", quote(name), quote(existing_name), if kind == existing_kind { " (use the catalog's replace_* call to override it on purpose)" } else { "" })]
@@ -218,7 +218,7 @@ pub(crate) fn check_parameter(
 }
 
 /// Refuses an integer outside `min..=max`.
-pub(crate) fn check_int(what: &str, quantity: &str, value: i128, min: i128, max: i128) -> Result<i128> {
+pub(crate) fn check_int(what: &str, quantity: &str, value: i64, min: i64, max: i64) -> Result<i64> {
     if (min..=max).contains(&value) {
         Ok(value)
     } else {

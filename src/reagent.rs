@@ -103,9 +103,9 @@ impl Reagent {
             check_int(
                 name,
                 &format!("count of constituent {}", k + 1),
-                i128::from(*n),
+                i64::from(*n),
                 1,
-                i128::from(MAX_CONSTITUENT_COUNT),
+                i64::from(MAX_CONSTITUENT_COUNT),
             )?;
             if let Constituent::Form { protolyte, protons } = c
                 && *protons > protolyte.proton_count()

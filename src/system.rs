@@ -382,7 +382,7 @@ impl System {
         let species_len = species.len();
         // ν(H⁺) of every species within ±MAX_COMPLEX_PROTONS (families have at most 12 steps
         // and complexes are checked where they are made; this guards the fast path's table).
-        let span = i128::from(crate::limits::MAX_COMPLEX_PROTONS);
+        let span = i64::from(crate::limits::MAX_COMPLEX_PROTONS);
         let mut nu_h: Vec<i32> = Vec::with_capacity(species_len);
         for (s, sp) in species.iter().enumerate() {
             let v = nu[s * nc];
@@ -390,7 +390,7 @@ impl System {
                 return Err(Error::IntegerOutOfRange {
                     what: sp.name.to_string(),
                     quantity: "H⁺ count of the species".into(),
-                    value: if v.is_finite() { v as i128 } else { i128::MAX },
+                    value: if v.is_finite() { v as i64 } else { i64::MAX },
                     min: -span,
                     max: span,
                 });

@@ -207,7 +207,7 @@ impl CapacityCurve {
 
     /// β at `points` evenly spaced pH values from `from` to `to` (both included; fewer than 2
     /// points give 2). Refuses more than [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
-    /// ([`Error::TooManyPoints`](crate::Error::TooManyPoints)).
+    /// ([`Error::TooManyPoints`]).
     ///
     /// ```
     /// use protolyte::analysis::CapacityCurve;

@@ -304,7 +304,7 @@ impl Titration {
 
     /// The curve at the given volumes (any order; each point warm-starts from the previous).
     /// Refuses more than [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS) volumes
-    /// ([`Error::TooManyPoints`](crate::Error::TooManyPoints)).
+    /// ([`Error::TooManyPoints`]).
     pub fn curve(&self, volumes: &[Volume]) -> Result<Vec<TitrationPoint>> {
         let mut c = Cursor::new(self);
         crate::error::check_points("titration curve", volumes.len())?;
@@ -319,7 +319,7 @@ impl Titration {
     /// The curve at `points` evenly spaced volumes from 0 to `end` (both included; fewer
     /// than 2 points give 2). Refuses more than
     /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
-    /// ([`Error::TooManyPoints`](crate::Error::TooManyPoints)).
+    /// ([`Error::TooManyPoints`]).
     ///
     /// ```
     /// use protolyte::analysis::Titration;
