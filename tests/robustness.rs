@@ -662,3 +662,33 @@ fn a_constituent_form_that_does_not_exist_has_no_charge() {
     };
     assert_eq!(c.charge(), None);
 }
+
+#[test]
+fn analysis_fractions_outside_their_range_are_refused_not_clamped() {
+    use protolyte::analysis::{derivative_endpoints, indicators};
+    let data = [
+        (9.0, 4.0),
+        (9.5, 4.4),
+        (9.8, 5.0),
+        (10.0, 7.0),
+        (10.2, 9.3),
+        (11.0, 10.5),
+    ];
+    assert!(matches!(
+        derivative_endpoints(&data, 2.0),
+        Err(Error::InvalidParameter { .. })
+    ));
+    assert!(derivative_endpoints(&data, f64::NAN).is_err());
+    let cat = Catalog::builtin();
+    let mut acid = Recipe::new();
+    acid.add(&cat.reagent("acetic acid").unwrap(), Amount::molar(0.01))
+        .unwrap();
+    let mut base = Recipe::new();
+    base.add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molar(0.01))
+        .unwrap();
+    let t = Titration::new(&acid, Volume::milliliters(10.0), &base, &davies()).unwrap();
+    assert!(matches!(
+        t.equivalence_points_with(0.9, indicators()),
+        Err(Error::InvalidParameter { .. })
+    ));
+}
