@@ -145,7 +145,7 @@ fn refused_fields_are_named() {
     assert_eq!(f, "reagents[0]");
     assert!(m.contains("exactly one amount"), "{m}");
     let (f, m) = field(r#"{"reagents": [{"reagent": "acetic acid", "molar": -0.1}]}"#);
-    assert_eq!(f, "reagents[0]");
+    assert_eq!(f, "reagents[0].molar");
     assert!(m.contains("acetic acid"), "{m}");
     let (f, _) = field(r#"{"reagents": [{"reagent": "sodium chloride", "grams": 1.0}]}"#);
     assert_eq!(f, "reagents[0].final_volume_ml");
