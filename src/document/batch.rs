@@ -695,14 +695,18 @@ fn read_bounded_line<R: BufRead>(input: &mut R, line: &mut RawLine, max: usize) 
     Ok(consumed)
 }
 
-/// The message of a panic payload.
+/// The message of a panic payload (its first 300 characters).
 fn panic_message(payload: &(dyn std::any::Any + Send)) -> String {
-    if let Some(s) = payload.downcast_ref::<&str>() {
-        (*s).to_string()
+    let m: &str = if let Some(s) = payload.downcast_ref::<&str>() {
+        s
     } else if let Some(s) = payload.downcast_ref::<String>() {
-        s.clone()
+        s
     } else {
-        "(no message)".to_string()
+        "(no message)"
+    };
+    match m.char_indices().nth(300) {
+        Some((i, _)) => format!("{}…", &m[..i]),
+        None => m.to_string(),
     }
 }
 
@@ -793,7 +797,7 @@ where
                             "internal",
                             format!(
                                 "internal error (a bug in protolyte; please report it with this line): {}",
-                                super::shorten(&panic_message(payload.as_ref()))
+                                panic_message(payload.as_ref())
                             ),
                         );
                         // The worker's state may be half-updated: start a fresh one.
