@@ -308,7 +308,10 @@ fn a_user_definition_named_like_a_builtin_of_another_kind_is_refused() {
     let o = protolyte(&["solve", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(3), "{}", stdout(&o));
     let err = stderr(&o);
-    assert!(err.contains("definitions.ions[0]") && err.contains("definitions.protolytes[0]"), "{err}");
+    assert!(
+        err.contains("definitions.ions[0]") && err.contains("definitions.protolytes[0]"),
+        "{err}"
+    );
 }
 
 #[test]
@@ -321,7 +324,11 @@ fn long_names_and_lines_are_refused_quickly_with_a_short_message() {
     let o = protolyte(&["solve", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(3));
     let err = stderr(&o);
-    assert!(err.contains("reagents[0].reagent") && err.contains("200"), "{}", &err[..err.len().min(300)]);
+    assert!(
+        err.contains("reagents[0].reagent") && err.contains("200"),
+        "{}",
+        &err[..err.len().min(300)]
+    );
     assert!(err.len() < 400, "message of {} bytes", err.len());
     // A batch line over the line limit gives its own error record; the others run.
     let good = r#"{"reagents":[{"reagent":"acetic acid","millimolar":10}]}"#;
@@ -345,7 +352,11 @@ fn long_names_and_lines_are_refused_quickly_with_a_short_message() {
     );
     let o = protolyte(&["solve", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(3));
-    assert!(stderr(&o).contains("field `reagents`") && stderr(&o).contains("1000"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("field `reagents`") && stderr(&o).contains("1000"),
+        "{}",
+        stderr(&o)
+    );
     // A document over the size limit.
     let p = temp_file("big.json", &format!("{{\"name\":\"{}\"}}", "z".repeat(2 << 20)));
     let o = protolyte(&["solve", p.to_str().unwrap()]);
@@ -368,7 +379,12 @@ fn a_plot_that_cannot_be_written_exits_5_after_the_table() {
     assert_eq!(o.status.code(), Some(5));
     assert!(stdout(&o).contains("pH "), "{}", stdout(&o));
     assert!(stderr(&o).contains("/no/such/dir/x.svg"), "{}", stderr(&o));
-    let o = protolyte(&["titrate", "examples/soft_drink_acidity.json", "--plot", "/no/such/dir/x.svg"]);
+    let o = protolyte(&[
+        "titrate",
+        "examples/soft_drink_acidity.json",
+        "--plot",
+        "/no/such/dir/x.svg",
+    ]);
     assert_eq!(o.status.code(), Some(5));
     assert!(stdout(&o).starts_with("volume_ml,ph"), "{}", stdout(&o));
 }

@@ -292,7 +292,8 @@ impl Template {
                     });
                 }
             };
-            let amount = amount_of(form, &self.reagents[i]).map_err(|(f, e)| fast.to_line(false).amount_error(&path(), f, e))?;
+            let amount =
+                amount_of(form, &self.reagents[i]).map_err(|(f, e)| fast.to_line(false).amount_error(&path(), f, e))?;
             let m = amount.molal_value(rho);
             for &(c, n) in &self.parts[i] {
                 self.totals[c] += m * n;

@@ -10,8 +10,7 @@ use super::{DESIGN_FORMAT, DocumentError, FIT_FORMAT, RECIPE_FORMAT, TITRATION_F
 use crate::analysis::{BufferSpec, Ingredients, Scope, Stepping, Stock, Titration, TitrationFit, Unknown};
 use crate::{
     ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, DataKind, Error, Ion, Mass,
-    Protolyte,
-    Reagent, Recipe, Temperature, Volume,
+    Protolyte, Reagent, Recipe, Temperature, Volume,
 };
 
 /// Refuses a name, synonym or formula longer than [`MAX_NAME_CHARS`] (before any look-up, so
@@ -521,7 +520,12 @@ impl DefinitionsDoc {
             check_count(|| format!("{path}.pka"), d.pka.len(), MAX_PARTS, "pKa values")?;
         }
         for (i, d) in self.ions.iter().enumerate() {
-            names(&format!("definitions.ions[{i}]"), &d.name, &d.synonyms, d.formula.as_ref())?;
+            names(
+                &format!("definitions.ions[{i}]"),
+                &d.name,
+                &d.synonyms,
+                d.formula.as_ref(),
+            )?;
         }
         for (i, d) in self.reagents.iter().enumerate() {
             let path = format!("definitions.reagents[{i}]");
@@ -750,7 +754,11 @@ impl Names {
                 }
             };
             if let Some(other) = clash {
-                let field = if n == name { format!("{path}.name") } else { format!("{path}.synonyms") };
+                let field = if n == name {
+                    format!("{path}.name")
+                } else {
+                    format!("{path}.synonyms")
+                };
                 let mut message = format!(
                     "the {} name `{}` is already taken by {other}",
                     kind.name(),
@@ -1489,7 +1497,12 @@ impl FitDoc {
         check_count(|| "estimate".into(), self.estimate.len(), MAX_ENTRIES, "unknowns")?;
         for (k, c) in self.curves.iter().enumerate() {
             let prefix = format!("curves[{k}].");
-            check_count(|| format!("{prefix}measured"), c.measured.len(), MAX_POINTS, "measured points")?;
+            check_count(
+                || format!("{prefix}measured"),
+                c.measured.len(),
+                MAX_POINTS,
+                "measured points",
+            )?;
             let t = titration_of(&cat, &c.analyte, &c.titrant, &complexes, &conditions, &prefix)?;
             let data: Vec<(Volume, f64)> = c
                 .measured

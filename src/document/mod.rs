@@ -313,9 +313,12 @@ fn read_text(path: &Path) -> std::io::Result<Result<String, usize>> {
     if bytes.len() > limits::MAX_DOCUMENT_BYTES {
         return Ok(Err(bytes.len()));
     }
-    String::from_utf8(bytes)
-        .map(Ok)
-        .map_err(|e| std::io::Error::new(std::io::ErrorKind::InvalidData, format!("not UTF-8 text: {}", e.utf8_error())))
+    String::from_utf8(bytes).map(Ok).map_err(|e| {
+        std::io::Error::new(
+            std::io::ErrorKind::InvalidData,
+            format!("not UTF-8 text: {}", e.utf8_error()),
+        )
+    })
 }
 
 /// 1-based line and column of byte offset `at` in `text`.

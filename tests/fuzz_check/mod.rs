@@ -47,7 +47,10 @@ pub fn check_equilibrium(eq: &Equilibrium, doc: &RecipeDoc) {
         );
     }
     for f in eq.families() {
-        assert!(f.fractions.iter().all(|v| v.is_finite()) && f.mean_bound_protons.is_finite(), "{f:?}");
+        assert!(
+            f.fractions.iter().all(|v| v.is_finite()) && f.mean_bound_protons.is_finite(),
+            "{f:?}"
+        );
     }
     let r = eq.residuals();
     let worst = r.max_balance_relative().max(r.ionic_strength_relative.abs());
@@ -67,7 +70,10 @@ pub fn check_equilibrium(eq: &Equilibrium, doc: &RecipeDoc) {
         let t = doc.temperature_celsius.unwrap_or(25.0);
         let neutral = -protolyte::water::log10_kw(Temperature::celsius(t)) / 2.0;
         if only(STRONG_ACIDS) {
-            assert!(h >= oh * (1.0 - 1e-6), "strong acid only, yet m(H+) {h:e} < m(OH-) {oh:e}");
+            assert!(
+                h >= oh * (1.0 - 1e-6),
+                "strong acid only, yet m(H+) {h:e} < m(OH-) {oh:e}"
+            );
             assert!(
                 eq.ph() <= neutral + 1e-6,
                 "strong acid only, yet pH {} above neutral {neutral}",
@@ -75,7 +81,10 @@ pub fn check_equilibrium(eq: &Equilibrium, doc: &RecipeDoc) {
             );
         }
         if only(STRONG_BASES) {
-            assert!(oh >= h * (1.0 - 1e-6), "strong base only, yet m(OH-) {oh:e} < m(H+) {h:e}");
+            assert!(
+                oh >= h * (1.0 - 1e-6),
+                "strong base only, yet m(OH-) {oh:e} < m(H+) {h:e}"
+            );
         }
     }
 }
