@@ -348,7 +348,7 @@ impl Block<'_> {
             Failure::Syntax(format!(
                 "column {}: {}",
                 e.column().max(1),
-                super::strip_position(&e.to_string())
+                super::shorten_message(super::strip_position(&e.to_string()))
             ))
         };
         let doc: FastLine = serde_json::from_str(text).map_err(syntax)?;

@@ -1085,7 +1085,7 @@ impl TitrationDoc {
         } else {
             Err(field_error(
                 "end_volume_ml",
-                format!("{v} mL: must be positive and finite"),
+                format!("{v} mL: must be positive and at most 1e7 mL"),
             ))
         }
     }
@@ -1488,7 +1488,10 @@ impl FitDoc {
         let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
         let mut fit = TitrationFit::new();
         if let Some(n) = self.max_iterations {
-            fit = fit.max_iterations(n.min(100_000));
+            if n > 100_000 {
+                return Err(field_error("max_iterations", format!("{n}: at most 100000")));
+            }
+            fit = fit.max_iterations(n);
         }
         if self.curves.is_empty() {
             return Err(field_error("curves", "at least one measured curve is needed"));

@@ -154,8 +154,20 @@ pub(crate) fn field_error(field: impl Into<String>, message: impl std::fmt::Disp
     DocumentError::Field {
         file: String::new(),
         field: field.into(),
-        message: message.to_string(),
+        message: shorten_message(message.to_string()),
     }
+}
+
+/// A message cut to its first 160 and last 80 characters when it is longer than 300 (a
+/// message may quote input: an unknown field's name, a string where a number belongs).
+pub(crate) fn shorten_message(message: String) -> String {
+    let n = message.chars().count();
+    if n <= 300 {
+        return message;
+    }
+    let head: String = message.chars().take(160).collect();
+    let tail: String = message.chars().skip(n - 80).collect();
+    format!("{head}… ({} characters left out) …{tail}", n - 240)
 }
 
 /// True when `text` looks like JSON (its first non-blank character opens an object or array).
@@ -223,7 +235,7 @@ pub fn parse_json<T: DeserializeOwned>(text: &str, file: &str) -> Result<T, Docu
         file: file.into(),
         line: e.line().max(1),
         column: e.column().max(1),
-        message: strip_position(&e.to_string()),
+        message: shorten_message(strip_position(&e.to_string())),
     })
 }
 
@@ -243,7 +255,7 @@ pub fn parse_toml<T: DeserializeOwned>(text: &str, file: &str) -> Result<T, Docu
             file: file.into(),
             line,
             column,
-            message: e.message().trim().to_string(),
+            message: shorten_message(e.message().trim().to_string()),
         }
     })
 }
