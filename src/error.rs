@@ -149,7 +149,7 @@ pub enum Error {
     },
     /// The solver did not converge; the diagnostics say how far it got.
     #[error(
-        "no convergence on the {path} path after {iterations} iterations: largest scaled residual {max_residual:.3e} in the {worst_equation}; last pH estimate {last_ph:.4}"
+        "no convergence on the {path} path after {iterations} iterations: largest scaled residual {max_residual:.3e} ({worst_equation}); last pH estimate {last_ph:.4}"
     )]
     NoConvergence {
         /// Which solver path gave up.
