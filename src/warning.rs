@@ -44,6 +44,37 @@ pub enum Warning {
         /// The temperature of the system, °C.
         temperature_celsius: f64,
     },
+    /// A component's positive total lay below
+    /// [`MIN_TOTAL_MOLAL`](crate::limits::MIN_TOTAL_MOLAL) and was taken as exactly zero.
+    TotalBelowFloor {
+        /// The component (family or ion name).
+        component: String,
+        /// The total given, mol/kg.
+        total_molal: f64,
+        /// The floor, mol/kg.
+        floor_molal: f64,
+    },
+    /// A component's total lies above the tested domain
+    /// ([`TESTED_MAX_TOTAL_MOLAR`](crate::limits::TESTED_MAX_TOTAL_MOLAR)).
+    BeyondTestedDomain {
+        /// The component (family or ion name).
+        component: String,
+        /// Its total, mol/L (molal × the density of water).
+        total_molar: f64,
+        /// The largest tested total, mol/L.
+        tested_molar: f64,
+    },
+    /// The result's largest relative residual is above the promise
+    /// ([`RESIDUAL_PROMISE`](crate::limits::RESIDUAL_PROMISE), or the solver's tolerance if
+    /// looser).
+    ResidualAbovePromise {
+        /// The equation with the largest residual.
+        equation: String,
+        /// Its relative residual.
+        residual: f64,
+        /// The promise it misses.
+        promise: f64,
+    },
 }
 
 /// A thermodynamic datum a constant's temperature dependence needs.
@@ -132,6 +163,30 @@ impl std::fmt::Display for Warning {
                 f,
                 "{}: its temperature dependence was used at {temperature_celsius} °C, outside its trusted range {range}",
                 reaction_label(name, step)
+            ),
+            Warning::TotalBelowFloor {
+                component,
+                total_molal,
+                floor_molal,
+            } => write!(
+                f,
+                "{component}: total {total_molal:e} mol/kg is below {floor_molal:e} mol/kg and was taken as zero"
+            ),
+            Warning::BeyondTestedDomain {
+                component,
+                total_molar,
+                tested_molar,
+            } => write!(
+                f,
+                "{component}: total {total_molar:.4} mol/L is above the tested {tested_molar} mol/L; the dilute-solution conversions and the activity model are extrapolated"
+            ),
+            Warning::ResidualAbovePromise {
+                equation,
+                residual,
+                promise,
+            } => write!(
+                f,
+                "the {equation} holds only to {residual:.3e} (relative), above the promised {promise:e}"
             ),
         }
     }

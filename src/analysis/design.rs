@@ -443,7 +443,7 @@ impl BufferSpec {
         )?;
         let vf = self.final_volume.positive("final volume")?;
         self.buffer.validate("buffer concentration")?;
-        let rho = crate::water::density_kg_per_l(self.conditions.temperature);
+        let rho = crate::water::density_kg_per_l(self.conditions.temperature)?;
         let c_buf = self.buffer.molal_value(rho) * rho;
         if c_buf <= 0.0 {
             return Err(design_error("the buffer concentration must be positive".into()));

@@ -364,7 +364,15 @@ impl<'a> Fast<'a> {
         } else {
             f64::NAN
         };
-        (Point { y, ln_i: i.ln() }, ionic.clamp(I_MIN, I_MAX), total)
+        (Point { y, ln_i: i.ln() }, ionic.max(I_MIN), total)
+    }
+}
+
+/// The refusal of a solution whose species give an ionic strength above [`I_MAX`].
+pub(crate) fn beyond_limit(ionic: f64) -> Error {
+    Error::IonicStrengthBeyondLimit {
+        ionic_strength_molal: ionic,
+        limit_molal: I_MAX,
     }
 }
 
@@ -417,6 +425,11 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
         if ideal {
             // γ does not depend on I: report the I of the solution.
             return Ok((Point { y: p.y, ln_i: g.ln() }, fast.ev, evals));
+        }
+        if g > I_MAX && i >= I_MAX {
+            // The iteration is bounded at I_MAX and the species still give more: no
+            // solution within the limit (reported, never capped).
+            return Err(beyond_limit(g));
         }
         let h = g - i;
         if h.abs() <= tol * i {

@@ -24,9 +24,12 @@ const LN10: f64 = std::f64::consts::LN_10;
 /// ln a(H⁺) bounds: pH from −4 to 20.
 pub(crate) const LN_AH_MIN: f64 = -20.0 * LN10;
 pub(crate) const LN_AH_MAX: f64 = 4.0 * LN10;
-/// Ionic-strength bounds (mol/kg) kept by the iterations.
+/// Ionic-strength bounds (mol/kg) kept by the iterations. The upper one is the documented
+/// limit of results under an activity model: a solution whose species give more is refused
+/// ([`Error::IonicStrengthBeyondLimit`](crate::Error::IonicStrengthBeyondLimit)), never
+/// capped. The lower one never binds (water's own ions give more than 1e-8 mol/kg).
 pub(crate) const I_MIN: f64 = 1e-14;
-pub(crate) const I_MAX: f64 = 50.0;
+pub(crate) const I_MAX: f64 = crate::limits::MAX_IONIC_STRENGTH_MOLAL;
 
 /// Which algorithm produced an equilibrium.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -98,10 +101,17 @@ impl Solver {
     }
 
     /// Sets the largest accepted scaled residual (each balance divided by its own scale:
-    /// a mass balance by its total, the charge balance by Σ|z|·m). Clamped to 1e-15..1e-6.
-    pub fn tolerance(mut self, tol: f64) -> Self {
-        self.tolerance = if tol.is_finite() { tol.clamp(1e-15, 1e-6) } else { 1e-12 };
-        self
+    /// a mass balance by its total, the charge balance by Σ|z|·m). Refuses a tolerance that
+    /// is not within 1e-15..1e-6.
+    pub fn tolerance(mut self, tol: f64) -> crate::error::Result<Self> {
+        self.tolerance =
+            crate::error::check_parameter("solver", "tolerance", tol, 1e-15, 1e-6, "must be within 1e-15..1e-6")?;
+        Ok(self)
+    }
+
+    /// The largest accepted scaled residual.
+    pub fn tolerance_value(&self) -> f64 {
+        self.tolerance
     }
 
     /// Sets the iteration budget of the general path (at least 10).
@@ -128,6 +138,7 @@ impl Solver {
         if self.path == PathChoice::Auto && system.uncoupled() {
             match fast::solve(system, start.map(|(y, li)| (y[0], li)), self.tolerance) {
                 Ok((point, ev, iters)) => return Ok((point, ev, iters, SolverPath::Fast)),
+                Err(e @ crate::error::Error::IonicStrengthBeyondLimit { .. }) => return Err(e),
                 Err(_) => {
                     // The ionic-strength iteration can stall at very high I; the general
                     // path solves I inside Newton and is the fallback.
