@@ -68,7 +68,9 @@ pub fn check_equilibrium(eq: &Equilibrium, doc: &RecipeDoc) {
         let m = |name: &str| eq.species_named(name).map(|s| s.molal).unwrap_or(0.0);
         let (h, oh) = (m("H+"), m("OH-"));
         let t = doc.temperature_celsius.unwrap_or(25.0);
-        let neutral = -protolyte::water::log10_kw(Temperature::celsius(t)) / 2.0;
+        let neutral = -protolyte::water::log10_kw(Temperature::celsius(t))
+            .expect("a solved recipe's temperature is inside Kw(T)'s range")
+            / 2.0;
         if only(STRONG_ACIDS) {
             assert!(
                 h >= oh * (1.0 - 1e-6),
