@@ -480,8 +480,15 @@ mod promise {
     }
 
     fn family() -> impl Strategy<Value = Family> {
-        (1usize..=4)
-            .prop_flat_map(|n| (prop::collection::vec(-10.0f64..25.0, n), -3i32..=3, 0..=n, log_total()))
+        (1usize..=6)
+            .prop_flat_map(|n| {
+                (
+                    prop::collection::vec(-10.0f64..25.0, n),
+                    -10i32..=10,
+                    0..=n,
+                    log_total(),
+                )
+            })
             .prop_map(|(pkas, charge_top, protons, log_total)| Family {
                 pkas,
                 charge_top,
