@@ -770,8 +770,8 @@ impl Names {
                     kind.name(),
                     super::shorten(n)
                 );
-                let cross_kind = kind != DataKind::Reagent
-                    && self.species.get(&key).is_some_and(|(k, _, _)| *k != kind);
+                let cross_kind =
+                    kind != DataKind::Reagent && self.species.get(&key).is_some_and(|(k, _, _)| *k != kind);
                 if cross_kind {
                     message.push_str(
                         "; protolytes, ions and complexes need names of their own (they name the species of a solution)",
