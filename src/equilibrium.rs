@@ -258,7 +258,7 @@ impl Equilibrium {
             },
         };
         let mut warnings = sys.compile_warnings.clone();
-        if let Some(limit) = sys.model.validity_limit_molal()
+        if let Some(limit) = Some(sys.model.validity_limit_molal())
             && i > limit
         {
             warnings.push(Warning::IonicStrengthBeyondModel {

@@ -11,10 +11,38 @@
 //! 2nd ed., Butterworths 1959, ch. 9; H. C. Helgeson and D. H. Kirkham, *Am. J. Sci.* **274**
 //! (1974) 1199; constants entered from memory).
 //!
+//! | model | log₁₀ γ of an ion of charge z | stated validity | source |
+//! |---|---|---|---|
+//! | [`Ideal`](ActivityModel::Ideal) | 0 | I ≲ 0.001 mol/kg (γ of a 1:1 ion within 4 % of 1) | — |
+//! | [`Davies`](ActivityModel::Davies) | −A z² (√I/(1+√I) − 0.3 I) | I ≲ 0.5 mol/kg | C. W. Davies, *Ion Association*, Butterworths 1962 |
+//! | [`ExtendedDebyeHuckel`](ActivityModel::ExtendedDebyeHuckel) | −A z² √I/(1 + B å √I), å per species | I ≲ 0.1 mol/kg | J. Kielland, *J. Am. Chem. Soc.* **59** (1937) 1675 (å) |
+//! | [`Sit`](ActivityModel::Sit) | −z² A√I/(1 + 1.5√I) + Σⱼ ε(i,j) mⱼ | I ≲ 3.5 mol/kg | Grenthe, Plyasunov & Spahiu 1997; Ciavatta 1980 ([`sit`]) |
+//!
+//! Past its stated validity a result carries
+//! [`Warning::IonicStrengthBeyondModel`](crate::Warning::IonicStrengthBeyondModel). For
+//! concentrated solutions (brines, stocks of strong acids and bases, up to about 3.5 mol/kg)
+//! use [`Sit`](ActivityModel::Sit); Davies far beyond 0.5 mol/kg gives activity coefficients
+//! that rise without bound (γ ≈ 14 for 10 mol/L NaOH) and must not be trusted.
+//!
+//! How pH is reported is a separate choice, the [`PhConvention`].
+//!
 //! Neutral species get γ = 1 in every model (no salting-out term).
 
 use crate::quantity::Temperature;
 use crate::water;
+
+pub mod sit;
+
+pub use sit::{INTERACTION_COEFFICIENTS, InteractionCoefficient, interaction_coefficient};
+
+/// The product B·å, kg^½ mol^−½, of the Bates–Guggenheim convention and of SIT: 1.5 for every
+/// ion (R. G. Bates and E. A. Guggenheim, *Pure Appl. Chem.* **1** (1960) 163).
+pub const BATES_GUGGENHEIM_BA: f64 = 1.5;
+
+/// Ion size (Å) of Cl⁻ (J. Kielland, *J. Am. Chem. Soc.* **59** (1937) 1675; from memory),
+/// used for the trace chloride of the Bates–Guggenheim convention under the extended
+/// Debye–Hückel model.
+pub const CHLORIDE_ION_SIZE_ANGSTROM: f64 = 3.0;
 
 /// Default ion-size parameter å (ångström) for species without one of their own.
 ///
@@ -49,18 +77,80 @@ pub enum ActivityModel {
     /// Extended Debye–Hückel: log γ = −A z² √I / (1 + B å √I), with each species' ion size
     /// å (ångström). Stated validity: I ≲ 0.1 mol/kg.
     ExtendedDebyeHuckel,
+    /// Specific ion interaction theory: log γᵢ = −zᵢ² A√I/(1 + 1.5√I) + Σⱼ ε(i,j) mⱼ over
+    /// the ions j of opposite sign, with the tabulated ε of [`sit`]. γ depends on the
+    /// composition, not only on I. Stated validity: I ≲ 3.5 mol/kg.
+    Sit,
+}
+
+/// How the reported pH is tied to a single-ion activity of H⁺, which no measurement defines.
+///
+/// # Example
+///
+/// ```
+/// use protolyte::{ActivityModel, Amount, Catalog, Conditions, PhConvention, Recipe, Temperature};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("potassium hydrogen phthalate")?, Amount::molal(0.05))?;
+/// let c = Conditions::new(Temperature::celsius(25.0), ActivityModel::Davies)
+///     .with_ph_convention(PhConvention::BatesGuggenheim);
+/// let eq = r.compile(&c)?.solve()?;
+/// assert_eq!(eq.ph_convention(), PhConvention::BatesGuggenheim);
+/// assert!((eq.ph() - 4.005).abs() < 0.03); // pH(S) 4.005 (Buck et al. 2002)
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub enum PhConvention {
+    /// pH = −log₁₀(m(H⁺)·γ(H⁺)) with the activity model's own γ(H⁺).
+    #[default]
+    Model,
+    /// The convention of the pH(S) values of reference buffers (R. G. Bates and
+    /// E. A. Guggenheim, *Pure Appl. Chem.* **1** (1960) 163; R. P. Buck et al., *Pure Appl.
+    /// Chem.* **74** (2002) 2169): pH = −log₁₀(m(H⁺) γ(H⁺) γ(Cl⁻)) + log₁₀ γ(Cl⁻)ᴮᴳ, the
+    /// measurable product of a Harned cell with the single-ion activity of chloride fixed
+    /// by log₁₀ γ(Cl⁻)ᴮᴳ = −A√I/(1 + 1.5√I). γ(H⁺) and γ(Cl⁻) (a trace of chloride) come
+    /// from the activity model. The convention is defined for I ≤ 0.1 mol/kg; beyond it a
+    /// result carries [`Warning::IonicStrengthBeyondModel`](crate::Warning::IonicStrengthBeyondModel)
+    /// naming the convention.
+    BatesGuggenheim,
+}
+
+impl PhConvention {
+    /// A short name for messages and documents.
+    pub fn name(self) -> &'static str {
+        match self {
+            PhConvention::Model => "single-ion activity of the model",
+            PhConvention::BatesGuggenheim => "Bates–Guggenheim",
+        }
+    }
+
+    /// The ionic strength (mol/kg) up to which the convention is defined, if limited.
+    pub fn validity_limit_molal(self) -> Option<f64> {
+        match self {
+            PhConvention::Model => None,
+            PhConvention::BatesGuggenheim => Some(0.1),
+        }
+    }
 }
 
 impl ActivityModel {
     /// The ionic strength (mol/kg) above which the model is used outside its stated range
-    /// (common practice: Davies about 0.5, extended Debye–Hückel about 0.1); `None` for
-    /// the ideal model, which has no activity correction to go wrong.
-    pub fn validity_limit_molal(self) -> Option<f64> {
+    /// (common practice: ideal about 0.001, where γ of a singly charged ion is still within
+    /// 4 % of 1; Davies about 0.5; extended Debye–Hückel about 0.1; SIT about 3.5, Grenthe,
+    /// Plyasunov & Spahiu 1997).
+    pub fn validity_limit_molal(self) -> f64 {
         match self {
-            ActivityModel::Ideal => None,
-            ActivityModel::Davies => Some(0.5),
-            ActivityModel::ExtendedDebyeHuckel => Some(0.1),
+            ActivityModel::Ideal => 0.001,
+            ActivityModel::Davies => 0.5,
+            ActivityModel::ExtendedDebyeHuckel => 0.1,
+            ActivityModel::Sit => 3.5,
         }
+    }
+
+    /// True when γ depends on the composition, not only on I (SIT).
+    pub fn depends_on_composition(self) -> bool {
+        self == ActivityModel::Sit
     }
 
     /// A short name for messages.
@@ -69,10 +159,12 @@ impl ActivityModel {
             ActivityModel::Ideal => "ideal",
             ActivityModel::Davies => "Davies",
             ActivityModel::ExtendedDebyeHuckel => "extended Debye–Hückel",
+            ActivityModel::Sit => "SIT",
         }
     }
 
-    /// log₁₀ γ for charge `z`, ion size `ion_size_angstrom`, ionic strength `i_molal`.
+    /// log₁₀ γ for charge `z`, ion size `ion_size_angstrom`, ionic strength `i_molal`; for
+    /// SIT the Debye–Hückel part −z²D only (the ε terms need the composition).
     pub fn log10_gamma(self, z: i32, ion_size_angstrom: f64, i_molal: f64, dh: &DebyeHuckelConstants) -> f64 {
         self.log10_gamma_and_slope(z, ion_size_angstrom, i_molal, dh).0
     }
@@ -97,7 +189,8 @@ pub(crate) struct GammaProfile {
     a: f64,
     b: f64,
     sqrt_i: f64,
-    /// Davies: √I/(1+√I) − 0.3 I and its derivative by I.
+    /// Davies: √I/(1+√I) − 0.3 I and its derivative by I; SIT: √I/(1+1.5√I) and its
+    /// derivative.
     davies: (f64, f64),
 }
 
@@ -113,6 +206,10 @@ impl GammaProfile {
                 0.0
             };
             (s / (1.0 + s) - DAVIES_LINEAR_COEFFICIENT * i, df)
+        } else if model == ActivityModel::Sit {
+            let den = 1.0 + BATES_GUGGENHEIM_BA * s;
+            let df = if s > 0.0 { 1.0 / (2.0 * s * den * den) } else { 0.0 };
+            (s / den, df)
         } else {
             (0.0, 0.0)
         };
@@ -134,7 +231,7 @@ impl GammaProfile {
         let az2 = -self.a * f64::from(z * z);
         match self.model {
             ActivityModel::Ideal => (0.0, 0.0),
-            ActivityModel::Davies => (az2 * self.davies.0, az2 * self.davies.1),
+            ActivityModel::Davies | ActivityModel::Sit => (az2 * self.davies.0, az2 * self.davies.1),
             ActivityModel::ExtendedDebyeHuckel => {
                 let s = self.sqrt_i;
                 let den = 1.0 + self.b * size * s;
@@ -173,6 +270,41 @@ impl DebyeHuckelConstants {
         DebyeHuckelConstants {
             a: 1.82483e6 * rho.sqrt() / (et * et.sqrt()),
             b: 50.2916 * rho.sqrt() / et.sqrt(),
+        }
+    }
+}
+
+/// log₁₀ γ(Cl⁻) of the Bates–Guggenheim convention: −A√I/(1 + 1.5√I).
+///
+/// ```
+/// use protolyte::{DebyeHuckelConstants, Temperature, activity};
+///
+/// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0));
+/// // At I = 0.1 mol/kg: −0.511·0.316/(1 + 0.474) ≈ −0.110.
+/// assert!((activity::bates_guggenheim_log10_gamma_chloride(0.1, &dh) + 0.110).abs() < 0.001);
+/// ```
+pub fn bates_guggenheim_log10_gamma_chloride(i_molal: f64, dh: &DebyeHuckelConstants) -> f64 {
+    let s = i_molal.max(0.0).sqrt();
+    -dh.a * s / (1.0 + BATES_GUGGENHEIM_BA * s)
+}
+
+/// pH under `convention` minus pH with the model's own γ(H⁺), at ionic strength `i_molal`;
+/// `sit_chloride_term` is Σⱼ ε(Cl⁻, j)·mⱼ of a trace chloride (used by SIT only).
+pub(crate) fn ph_convention_shift(
+    convention: PhConvention,
+    model: ActivityModel,
+    i_molal: f64,
+    dh: &DebyeHuckelConstants,
+    sit_chloride_term: f64,
+) -> f64 {
+    match convention {
+        PhConvention::Model => 0.0,
+        PhConvention::BatesGuggenheim => {
+            let mut lg_cl = GammaProfile::new(model, i_molal, dh).at(-1, CHLORIDE_ION_SIZE_ANGSTROM).0;
+            if model == ActivityModel::Sit {
+                lg_cl += sit_chloride_term;
+            }
+            bates_guggenheim_log10_gamma_chloride(i_molal, dh) - lg_cl
         }
     }
 }

@@ -11,8 +11,8 @@ use crate::{
     Reagent, Recipe, Temperature, Volume,
 };
 
-/// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"` or
-/// `"extended-debye-huckel"`.
+/// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"`,
+/// `"extended-debye-huckel"` or `"sit"`.
 ///
 /// ```
 /// use protolyte::ActivityModel;
@@ -30,6 +30,8 @@ pub enum ActivityDoc {
     Davies,
     /// Extended Debye–Hückel with per-ion sizes.
     ExtendedDebyeHuckel,
+    /// Specific ion interaction theory (to about 3.5 mol/kg).
+    Sit,
 }
 
 impl From<ActivityDoc> for ActivityModel {
@@ -38,6 +40,7 @@ impl From<ActivityDoc> for ActivityModel {
             ActivityDoc::Ideal => ActivityModel::Ideal,
             ActivityDoc::Davies => ActivityModel::Davies,
             ActivityDoc::ExtendedDebyeHuckel => ActivityModel::ExtendedDebyeHuckel,
+            ActivityDoc::Sit => ActivityModel::Sit,
         }
     }
 }
@@ -48,6 +51,7 @@ impl From<ActivityModel> for ActivityDoc {
             ActivityModel::Ideal => ActivityDoc::Ideal,
             ActivityModel::Davies => ActivityDoc::Davies,
             ActivityModel::ExtendedDebyeHuckel => ActivityDoc::ExtendedDebyeHuckel,
+            ActivityModel::Sit => ActivityDoc::Sit,
         }
     }
 }
