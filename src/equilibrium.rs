@@ -6,56 +6,11 @@ use std::sync::Arc;
 use crate::activity::ActivityModel;
 use crate::error::{Error, Result};
 use crate::quantity::Temperature;
-use crate::solve::{Evaluation, Point, SolverPath};
+use crate::solve::{Evaluation, Point, Solver, SolverPath};
 use crate::system::System;
+use crate::warning::Warning;
 
 const LN10: f64 = std::f64::consts::LN_10;
-
-/// Something the caller should know about a result that is nevertheless returned.
-#[derive(Debug, Clone, PartialEq)]
-#[non_exhaustive]
-pub enum Warning {
-    /// The ionic strength lies above the stated validity of the activity model.
-    IonicStrengthBeyondModel {
-        /// Ionic strength of the result, mol/kg.
-        ionic_strength_molal: f64,
-        /// The model's stated limit, mol/kg.
-        limit_molal: f64,
-        /// The model.
-        model: ActivityModel,
-    },
-    /// A family or complex was used away from 25 °C without enthalpy data: its 25 °C
-    /// constants were used unchanged.
-    NoEnthalpyData {
-        /// Family or complex name.
-        name: String,
-        /// The temperature of the system, °C.
-        temperature_celsius: f64,
-    },
-}
-
-impl std::fmt::Display for Warning {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match self {
-            Warning::IonicStrengthBeyondModel {
-                ionic_strength_molal,
-                limit_molal,
-                model,
-            } => write!(
-                f,
-                "ionic strength {ionic_strength_molal:.3} mol/kg is above the {} model's stated validity (about {limit_molal} mol/kg); activity coefficients are extrapolated",
-                model.name()
-            ),
-            Warning::NoEnthalpyData {
-                name,
-                temperature_celsius,
-            } => write!(
-                f,
-                "{name}: no enthalpy data, so its 25 °C constants were used unchanged at {temperature_celsius} °C"
-            ),
-        }
-    }
-}
 
 /// One species at equilibrium.
 #[derive(Debug, Clone, PartialEq)]
@@ -408,5 +363,34 @@ impl Equilibrium {
             y: self.unknowns.clone(),
             ln_i: self.ln_i,
         }
+    }
+}
+
+impl Solver {
+    /// Solves from a cold start.
+    pub fn solve(&self, system: &System) -> Result<Equilibrium> {
+        let (point, ev, iters, path) = self.run(system, None)?;
+        Equilibrium::build(system, point, ev, iters, path)
+    }
+
+    /// Solves starting from a previous equilibrium of a similar system (same components,
+    /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
+    /// does not converge.
+    pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
+        if previous.unknowns().len() == system.components.len()
+            && let Ok((point, ev, iters, path)) =
+                self.run(system, Some((previous.unknowns(), previous.ln_ionic_strength())))
+            && let Ok(eq) = Equilibrium::build(system, point, ev, iters, path)
+        {
+            return Ok(eq);
+        }
+        self.solve(system)
+    }
+}
+
+impl System {
+    /// Solves the system with the default [`Solver`].
+    pub fn solve(&self) -> Result<Equilibrium> {
+        Solver::default().solve(self)
     }
 }

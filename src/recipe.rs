@@ -5,7 +5,6 @@ use crate::complex::Complex;
 use crate::error::{Error, Result};
 use crate::quantity::{Amount, Mass, Volume};
 use crate::reagent::Reagent;
-use crate::system::{Conditions, System};
 
 /// One line of a recipe.
 #[derive(Debug, Clone, PartialEq)]
@@ -198,12 +197,6 @@ impl Recipe {
             out.add_complexes(&r.complexes);
         }
         Ok(out)
-    }
-
-    /// Compiles the recipe into a [`System`] (the tableau at the given temperature and
-    /// activity model).
-    pub fn compile(&self, conditions: &Conditions) -> Result<System> {
-        System::compile(self, conditions)
     }
 }
 

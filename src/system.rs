@@ -11,7 +11,6 @@ use std::sync::Arc;
 
 use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants};
 use crate::complex::{Complex, ComplexPart};
-use crate::equilibrium::{Equilibrium, Warning};
 use crate::error::{Error, Result};
 use crate::ion::Ion;
 use crate::protolyte::Protolyte;
@@ -19,6 +18,7 @@ use crate::quantity::Temperature;
 use crate::reagent::Constituent;
 use crate::recipe::Recipe;
 use crate::vant_hoff;
+use crate::warning::Warning;
 use crate::water;
 
 /// Ion size of H⁺ and OH⁻ (Kielland, *J. Am. Chem. Soc.* 59 (1937) 1675; from memory).
@@ -184,6 +184,14 @@ pub struct System {
     /// Largest ν(H⁺) and largest −ν(H⁺) over the uncoupled species (both ≥ 0).
     pub(crate) nu_h_span: (usize, usize),
     pub(crate) compile_warnings: Vec<Warning>,
+}
+
+impl Recipe {
+    /// Compiles the recipe into a [`System`] (the tableau at the given temperature and
+    /// activity model).
+    pub fn compile(&self, conditions: &Conditions) -> Result<System> {
+        System::compile(self, conditions)
+    }
 }
 
 impl System {
@@ -405,11 +413,6 @@ impl System {
             charge_f,
             compile_warnings: warnings,
         })
-    }
-
-    /// Solves the system with the default [`Solver`](crate::Solver).
-    pub fn solve(&self) -> Result<Equilibrium> {
-        crate::solve::Solver::default().solve(self)
     }
 
     /// The temperature.

@@ -20,13 +20,14 @@
 
 use roots::{Convergency, find_root_brent};
 
-use crate::equilibrium::{Equilibrium, Warning};
+use crate::equilibrium::Equilibrium;
 use crate::error::{Error, Result, check_parameter};
 use crate::quantity::{Amount, Mass, Temperature, Volume};
 use crate::reagent::Reagent;
 use crate::recipe::Recipe;
 use crate::solve::Solver;
 use crate::system::{Conditions, System};
+use crate::warning::Warning;
 
 /// A reagent as the person has it: a solid to weigh, or a stock solution to pipette.
 ///

@@ -1,4 +1,4 @@
-//! The solver: turns a [`System`] into an [`Equilibrium`].
+//! The solver: turns a [`System`] into an [`Equilibrium`](crate::Equilibrium).
 //!
 //! Unknowns are the natural logarithms of the component activities (ln a(H⁺) first) and
 //! ln I; equations are the charge balance, one mass balance per component with a positive
@@ -17,7 +17,6 @@
 pub(crate) mod fast;
 pub(crate) mod newton;
 
-use crate::equilibrium::Equilibrium;
 use crate::error::Result;
 use crate::system::System;
 
@@ -117,28 +116,18 @@ impl Solver {
         self
     }
 
-    /// Solves from a cold start.
-    pub fn solve(&self, system: &System) -> Result<Equilibrium> {
-        self.solve_inner(system, None)
-    }
-
-    /// Solves starting from a previous equilibrium of a similar system (same components,
-    /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
-    /// does not converge.
-    pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
-        if previous.unknowns().len() == system.components.len()
-            && let Ok(eq) = self.solve_inner(system, Some(previous))
-        {
-            return Ok(eq);
-        }
-        self.solve_inner(system, None)
-    }
-
-    fn solve_inner(&self, system: &System, warm: Option<&Equilibrium>) -> Result<Equilibrium> {
-        let start = warm.map(|e| (e.unknowns(), e.ln_ionic_strength()));
+    /// Runs the chosen path from a cold start (`start` = `None`) or from a previous point
+    /// (ln a of each component, ln I): the solved point, its evaluation, the iterations spent
+    /// and the path taken. [`Solver::solve`] wraps this into an
+    /// [`Equilibrium`](crate::Equilibrium).
+    pub(crate) fn run(
+        &self,
+        system: &System,
+        start: Option<(&[f64], f64)>,
+    ) -> Result<(Point, Evaluation, usize, SolverPath)> {
         if self.path == PathChoice::Auto && system.uncoupled() {
             match fast::solve(system, start.map(|(y, li)| (y[0], li)), self.tolerance) {
-                Ok((point, ev, iters)) => return Equilibrium::build(system, point, ev, iters, SolverPath::Fast),
+                Ok((point, ev, iters)) => return Ok((point, ev, iters, SolverPath::Fast)),
                 Err(_) => {
                     // The ionic-strength iteration can stall at very high I; the general
                     // path solves I inside Newton and is the fallback.
@@ -146,7 +135,7 @@ impl Solver {
             }
         }
         let (point, ev, iters) = newton::solve(system, start, self.tolerance, self.max_iterations)?;
-        Equilibrium::build(system, point, ev, iters, SolverPath::General)
+        Ok((point, ev, iters, SolverPath::General))
     }
 }
 
@@ -271,7 +260,7 @@ impl Residuals {
                 worst = (m.abs(), format!("mass balance of {}", sys.components[c].name));
             }
         }
-        if sys.model != crate::ActivityModel::Ideal && self.ionic_strength.abs() > worst.0 {
+        if sys.model != crate::activity::ActivityModel::Ideal && self.ionic_strength.abs() > worst.0 {
             worst = (self.ionic_strength.abs(), "ionic-strength equation".into());
         }
         if worst.0.is_nan() {

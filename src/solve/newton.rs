@@ -343,7 +343,7 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
 /// path). Slower than the joint Newton but it needs no merit function across unknowns of
 /// very different scales. Returns the iterations used, or `None` if I does not settle.
 fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f64) -> Option<usize> {
-    let ideal = sys.model == crate::ActivityModel::Ideal;
+    let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     let mut iters = 0;
     let mut i = p.ln_i.exp().clamp(I_MIN, I_MAX);
     let mut prev: Option<(f64, f64)> = None;
@@ -428,7 +428,7 @@ pub(crate) fn solve(
             p
         }
     };
-    let ideal = sys.model == crate::ActivityModel::Ideal;
+    let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     // Approach at the start's activity coefficients: fraction sweeps take the large jumps
     // (a component far from its total moves by the whole log ratio at once), the convex
     // phase converges from wherever they leave it; then the joint Newton on every unknown
