@@ -3,7 +3,8 @@
 
 use std::sync::Arc;
 
-use crate::activity::ActivityModel;
+use crate::activity::sit::Interactions;
+use crate::activity::{ActivityModel, PhConvention};
 use crate::error::{Error, Result};
 use crate::quantity::Temperature;
 use crate::solve::{Evaluation, Point, Solver, SolverPath};
@@ -57,6 +58,10 @@ pub struct Residuals {
     pub mass_relative: Vec<(Arc<str>, f64)>,
     /// (½ Σ z²·m − I)/I.
     pub ionic_strength_relative: f64,
+    /// The residual of the activity-coefficient iteration where γ depends on the composition
+    /// (SIT): the largest change of any ln γ between the composition γ was taken at and the
+    /// returned one. 0 for models whose γ depends on I only.
+    pub activity_coefficients_ln: f64,
 }
 
 impl Residuals {
@@ -94,6 +99,7 @@ pub struct Equilibrium {
     ionic_strength_molal: f64,
     temperature: Temperature,
     model: ActivityModel,
+    ph_convention: PhConvention,
     species: Vec<SpeciesState>,
     families: Vec<FamilyState>,
     free_molal: Vec<(Arc<str>, f64)>,
@@ -139,7 +145,13 @@ impl Equilibrium {
                 }
             })
             .collect();
-        let ph = -point.y[0] / LN10;
+        let sit_chloride = if sys.ph_convention == PhConvention::BatesGuggenheim && sys.model == ActivityModel::Sit {
+            Interactions::trace_log10_term("Cl-", -1, species.iter().map(|s| (&*s.name, s.charge, s.molal)))
+        } else {
+            0.0
+        };
+        let ph = -point.y[0] / LN10
+            + crate::activity::ph_convention_shift(sys.ph_convention, sys.model, i, &sys.dh, sit_chloride);
         let h = species[0].molal;
         let oh = species[1].activity;
         let nc = sys.components.len();
@@ -211,16 +223,37 @@ impl Equilibrium {
             } else {
                 (ionic - i) / i
             },
+            activity_coefficients_ln: ev.composition_change(sys),
         };
         let mut warnings = sys.compile_warnings.clone();
-        if let Some(limit) = Some(sys.model.validity_limit_molal())
-            && i > limit
-        {
+        let limit = sys.model.validity_limit_molal();
+        if i > limit {
             warnings.push(Warning::IonicStrengthBeyondModel {
                 ionic_strength_molal: i,
                 limit_molal: limit,
                 model: sys.model,
             });
+        }
+        if let Some(limit) = sys.ph_convention.validity_limit_molal()
+            && i > limit
+        {
+            warnings.push(Warning::PhConventionBeyondRange {
+                convention: sys.ph_convention,
+                ionic_strength_molal: i,
+                limit_molal: limit,
+            });
+        }
+        // SIT pairs without a tabulated ε, where the partner is abundant enough that a typical
+        // ε (±0.1 kg/mol) would move log γ by 0.001 or more.
+        for &(a, b) in &sys.interactions.unknown {
+            let partner = ev.conc[a].max(ev.conc[b]);
+            if partner >= 0.01 && ev.conc[a].min(ev.conc[b]) > 0.0 {
+                warnings.push(Warning::UnknownInteraction {
+                    cation: sys.species[a].name.to_string(),
+                    anion: sys.species[b].name.to_string(),
+                    partner_molal: partner,
+                });
+            }
         }
         let eq = Equilibrium {
             ph,
@@ -229,6 +262,7 @@ impl Equilibrium {
             ionic_strength_molal: i,
             temperature: sys.temperature,
             model: sys.model,
+            ph_convention: sys.ph_convention,
             species,
             families,
             free_molal,
@@ -271,9 +305,17 @@ impl Equilibrium {
         }
     }
 
-    /// pH = −log₁₀ a(H⁺) (molal scale).
+    /// pH on the molal scale under the system's [`PhConvention`] (see
+    /// [`ph_convention`](Self::ph_convention)): by default −log₁₀ a(H⁺) with the activity
+    /// model's own γ(H⁺); under the Bates–Guggenheim convention the pH comparable with the
+    /// pH(S) of reference buffers.
     pub fn ph(&self) -> f64 {
         self.ph
+    }
+
+    /// The convention that produced [`ph`](Self::ph).
+    pub fn ph_convention(&self) -> PhConvention {
+        self.ph_convention
     }
 
     /// p\[H\] = −log₁₀ of the H⁺ molality (mol/kg): the pH of concentration, without γ.

@@ -59,6 +59,8 @@ pub struct Sensitivities {
     dln_gamma_di: Vec<f64>,
     ionic_strength: f64,
     forms: Vec<Vec<usize>>,
+    /// d(pH convention shift)/d ln I (0 with the model's own γ(H⁺)).
+    ph_shift_dln_i: f64,
 }
 
 impl Sensitivities {
@@ -75,7 +77,8 @@ impl Sensitivities {
         }
         let p: Point = eq.point();
         let i = p.ln_i.exp();
-        let mut ev = Evaluation::new(ns);
+        let mut ev = Evaluation::new(sys);
+        ev.hold(eq.species().iter().map(|s| s.molal));
         ev.set_gamma(sys, i);
         ev.set_conc(sys, &p);
         let layout = Layout::new(sys);
@@ -168,6 +171,7 @@ impl Sensitivities {
             dln_gamma_di: ev.dln_gamma_di.clone(),
             ionic_strength: i,
             forms: sys.families.iter().map(|f| f.forms.clone()).collect(),
+            ph_shift_dln_i: crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, i, &sys.dh),
         })
     }
 
@@ -182,7 +186,10 @@ impl Sensitivities {
 
     /// d pH / d p. Zero for a parameter index out of range.
     pub fn dph(&self, p: Parameter) -> f64 {
-        self.column(p).map(|col| -self.dy[(0, col)] / LN10).unwrap_or(0.0)
+        let m = self.act.len() + 1;
+        self.column(p)
+            .map(|col| -self.dy[(0, col)] / LN10 + self.ph_shift_dln_i * self.dy[(m - 1, col)])
+            .unwrap_or(0.0)
     }
 
     /// d log₁₀ m(species) / d p. Zero for an index out of range.
@@ -266,7 +273,8 @@ pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) ->
             .sum());
     }
     let p = eq.point();
-    let mut ev = Evaluation::new(sys.species.len());
+    let mut ev = Evaluation::new(sys);
+    ev.hold(eq.species().iter().map(|s| s.molal));
     ev.set_gamma(sys, p.ln_i.exp());
     ev.set_conc(sys, &p);
     let layout = Layout::new(sys);
@@ -283,5 +291,6 @@ pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) ->
         worst_equation: "singular Jacobian at the solution".into(),
         last_ph: eq.ph(),
     })?;
-    Ok(-x[0] / LN10)
+    let shift = crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, p.ln_i.exp(), &sys.dh);
+    Ok(-x[0] / LN10 + shift * x[layout.act.len()])
 }

@@ -9,7 +9,7 @@ use protolyte::{
     Recipe, Solver, Temperature, Warning, activity,
 };
 
-fn cat() -> &'static Catalog {
+fn cat() -> Catalog {
     Catalog::builtin()
 }
 
@@ -217,7 +217,7 @@ fn per_form_ion_sizes_reach_the_species() {
     .unwrap();
     r.add(&re, Amount::molal(0.01)).unwrap();
     let sys = r.compile(&conditions(ActivityModel::ExtendedDebyeHuckel)).unwrap();
-    let size = |n: &str| sys.species.iter().find(|s| &*s.name == n).unwrap().ion_size_angstrom;
+    let size = |n: &str| sys.species().iter().find(|s| &*s.name == n).unwrap().ion_size_angstrom;
     assert_eq!(size("H2PO4-"), 4.5);
     assert_eq!(size("HPO42-"), 4.0);
     assert_eq!(size("PO43-"), 4.0);

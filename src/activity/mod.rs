@@ -308,3 +308,25 @@ pub(crate) fn ph_convention_shift(
         }
     }
 }
+
+/// d(pH shift of [`ph_convention_shift`])/d ln I at fixed composition.
+pub(crate) fn ph_convention_shift_dln_i(
+    convention: PhConvention,
+    model: ActivityModel,
+    i_molal: f64,
+    dh: &DebyeHuckelConstants,
+) -> f64 {
+    match convention {
+        PhConvention::Model => 0.0,
+        PhConvention::BatesGuggenheim => {
+            let s = i_molal.max(0.0).sqrt();
+            if s == 0.0 {
+                return 0.0;
+            }
+            let den = 1.0 + BATES_GUGGENHEIM_BA * s;
+            let d_bg = -dh.a / (2.0 * s * den * den);
+            let d_model = GammaProfile::new(model, i_molal, dh).at(-1, CHLORIDE_ION_SIZE_ANGSTROM).1;
+            i_molal * (d_bg - d_model)
+        }
+    }
+}
