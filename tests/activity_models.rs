@@ -260,3 +260,39 @@ fn bates_guggenheim_convention_is_applied_and_named() {
         assert_eq!(bg.p_h_molal(), plain.p_h_molal());
     }
 }
+
+/// Under SIT, d pH / d(total) from the sensitivities equals central differences in a brine
+/// where the ε terms are large (1 mol/kg NaCl, acetate buffer with ε(Na⁺, acetate) = 0.08
+/// kg/mol, Ciavatta 1980, from memory).
+#[test]
+fn sit_sensitivities_match_finite_differences() {
+    let mut r = Recipe::new();
+    r.add(&cat().reagent("sodium chloride").unwrap(), Amount::molal(1.0))
+        .unwrap();
+    r.add(&cat().reagent("acetic acid").unwrap(), Amount::molal(0.2))
+        .unwrap();
+    r.add(&cat().reagent("sodium hydroxide").unwrap(), Amount::molal(0.1))
+        .unwrap();
+    for convention in [PhConvention::Model, PhConvention::BatesGuggenheim] {
+        let sys = r
+            .compile(&conditions(ActivityModel::Sit).with_ph_convention(convention))
+            .unwrap();
+        let eq = sys.solve().unwrap();
+        let sens = eq.sensitivities(&sys).unwrap();
+        for ci in 1..sys.components().len() {
+            let t = sys.components()[ci].total_molal;
+            let h = t * 1e-5;
+            let mut up = sys.clone();
+            up.set_total_molal(ci, t + h).unwrap();
+            let mut down = sys.clone();
+            down.set_total_molal(ci, t - h).unwrap();
+            let fd = (up.solve().unwrap().ph() - down.solve().unwrap().ph()) / (2.0 * h);
+            let an = sens.dph(protolyte::Parameter::Total(ci));
+            eprintln!("{:?} component {ci}: analytic {an} fd {fd}", convention);
+            assert!(
+                (an - fd).abs() <= 1e-4 * fd.abs().max(1e-3),
+                "{convention:?} component {ci}: analytic {an}, finite difference {fd}"
+            );
+        }
+    }
+}
