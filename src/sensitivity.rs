@@ -208,7 +208,9 @@ impl Sensitivities {
                 .iter()
                 .enumerate()
                 .filter(|(_, sp)| sp.charge > 0)
-                .filter_map(|(s, sp)| crate::activity::interaction_coefficient("Cl-", &sp.name).map(|e| (s, e.epsilon_kg_per_mol)))
+                .filter_map(|(s, sp)| {
+                    crate::activity::interaction_coefficient("Cl-", &sp.name).map(|e| (s, e.epsilon_kg_per_mol))
+                })
                 .collect()
         } else {
             Vec::new()
@@ -334,7 +336,8 @@ pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) ->
     let nc = sys.components.len();
     // A component brought in from zero, or the Bates–Guggenheim pH under SIT (whose trace
     // chloride term needs every dm), go through the full sensitivities.
-    let sit_bg = sys.ph_convention == crate::activity::PhConvention::BatesGuggenheim && !sys.interactions.known.is_empty();
+    let sit_bg =
+        sys.ph_convention == crate::activity::PhConvention::BatesGuggenheim && !sys.interactions.known.is_empty();
     if sit_bg || (1..nc).any(|c| dt[c] != 0.0 && sys.components[c].total_molal <= 0.0) {
         let sens = eq.sensitivities(sys)?;
         return Ok((1..nc)

@@ -5,8 +5,8 @@
 //! "from memory".
 
 use protolyte::{
-    ActivityModel, Amount, Catalog, Conditions, DebyeHuckelConstants, Equilibrium, PhConvention, Protolyte,
-    Recipe, Solver, Temperature, Warning, activity,
+    ActivityModel, Amount, Catalog, Conditions, DebyeHuckelConstants, Equilibrium, PhConvention, Protolyte, Recipe,
+    Solver, Temperature, Warning, activity,
 };
 
 fn cat() -> Catalog {
@@ -134,7 +134,13 @@ fn sit_weak_acid_in_brine_paths_agree_and_unknown_pair_is_named() {
     let reagent = protolyte::Reagent::new(
         "lab acid Q",
         None,
-        vec![(protolyte::Constituent::Form { protolyte: acid, protons: 1 }, 1)],
+        vec![(
+            protolyte::Constituent::Form {
+                protolyte: acid,
+                protons: 1,
+            },
+            1,
+        )],
     )
     .unwrap();
     r.add(&reagent, Amount::molal(0.05)).unwrap();
@@ -144,11 +150,17 @@ fn sit_weak_acid_in_brine_paths_agree_and_unknown_pair_is_named() {
         .path(protolyte::PathChoice::General)
         .solve(&sys)
         .unwrap();
-    assert!((general.ph() - fast.ph()).abs() < 1e-9, "{} vs {}", general.ph(), fast.ph());
+    assert!(
+        (general.ph() - fast.ph()).abs() < 1e-9,
+        "{} vs {}",
+        general.ph(),
+        fast.ph()
+    );
     assert!(fast.residuals().activity_coefficients_ln.abs() < 1e-10);
-    let named = fast.warnings().iter().any(|w| {
-        matches!(w, Warning::UnknownInteraction { cation, anion, .. } if cation == "Na+" && anion == "Q-")
-    });
+    let named = fast
+        .warnings()
+        .iter()
+        .any(|w| matches!(w, Warning::UnknownInteraction { cation, anion, .. } if cation == "Na+" && anion == "Q-"));
     assert!(named, "expected the Na+/Q- pair to be named: {:?}", fast.warnings());
 }
 
@@ -212,7 +224,13 @@ fn per_form_ion_sizes_reach_the_species() {
     let re = protolyte::Reagent::new(
         "H3PO4 (test)",
         None,
-        vec![(protolyte::Constituent::Form { protolyte: p, protons: 3 }, 1)],
+        vec![(
+            protolyte::Constituent::Form {
+                protolyte: p,
+                protons: 3,
+            },
+            1,
+        )],
     )
     .unwrap();
     r.add(&re, Amount::molal(0.01)).unwrap();
@@ -227,9 +245,18 @@ fn per_form_ion_sizes_reach_the_species() {
 fn per_form_ion_sizes_are_checked() {
     let p = Protolyte::new("x", &[3.0, 6.0], 0).unwrap();
     assert!(p.clone().with_form_ion_sizes(&[4.0, 4.0]).is_err(), "one size per form");
-    assert!(p.clone().with_form_ion_sizes(&[0.0, 4.0, 0.2]).is_err(), "charged form below 0.5 Å");
-    assert!(p.clone().with_form_ion_sizes(&[0.0, f64::NAN, 4.0]).is_err(), "NaN for a charged form");
-    assert!(p.with_form_ion_sizes(&[f64::NAN, 4.0, 4.0]).is_ok(), "neutral form: any value");
+    assert!(
+        p.clone().with_form_ion_sizes(&[0.0, 4.0, 0.2]).is_err(),
+        "charged form below 0.5 Å"
+    );
+    assert!(
+        p.clone().with_form_ion_sizes(&[0.0, f64::NAN, 4.0]).is_err(),
+        "NaN for a charged form"
+    );
+    assert!(
+        p.with_form_ion_sizes(&[f64::NAN, 4.0, 4.0]).is_ok(),
+        "neutral form: any value"
+    );
 }
 
 // ------------------------------------------------------- the Bates–Guggenheim convention
@@ -240,8 +267,11 @@ fn per_form_ion_sizes_are_checked() {
 #[test]
 fn bates_guggenheim_convention_is_applied_and_named() {
     let mut r = Recipe::new();
-    r.add(&cat().reagent("potassium hydrogen phthalate").unwrap(), Amount::molal(0.05))
-        .unwrap();
+    r.add(
+        &cat().reagent("potassium hydrogen phthalate").unwrap(),
+        Amount::molal(0.05),
+    )
+    .unwrap();
     for model in [ActivityModel::Davies, ActivityModel::ExtendedDebyeHuckel] {
         let plain = r.compile(&conditions(model)).unwrap().solve().unwrap();
         assert_eq!(plain.ph_convention(), PhConvention::Model);
@@ -253,9 +283,14 @@ fn bates_guggenheim_convention_is_applied_and_named() {
         assert_eq!(bg.ph_convention(), PhConvention::BatesGuggenheim);
         let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0));
         let i = bg.ionic_strength_molal();
-        let expected = plain.ph() - model.log10_gamma(-1, 3.0, i, &dh)
-            + activity::bates_guggenheim_log10_gamma_chloride(i, &dh);
-        assert!((bg.ph() - expected).abs() < 1e-12, "{}: {} vs {expected}", model.name(), bg.ph());
+        let expected =
+            plain.ph() - model.log10_gamma(-1, 3.0, i, &dh) + activity::bates_guggenheim_log10_gamma_chloride(i, &dh);
+        assert!(
+            (bg.ph() - expected).abs() < 1e-12,
+            "{}: {} vs {expected}",
+            model.name(),
+            bg.ph()
+        );
         // The speciation itself does not change.
         assert_eq!(bg.p_h_molal(), plain.p_h_molal());
     }

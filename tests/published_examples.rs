@@ -700,8 +700,8 @@ fn standard_ph_bg(parts: &[(Reagent, f64)], model: ActivityModel) -> Equilibrium
     for (re, m) in parts {
         r.add(re, Amount::molal(*m)).unwrap();
     }
-    let conditions = Conditions::new(Temperature::celsius(25.0), model)
-        .with_ph_convention(protolyte::PhConvention::BatesGuggenheim);
+    let conditions =
+        Conditions::new(Temperature::celsius(25.0), model).with_ph_convention(protolyte::PhConvention::BatesGuggenheim);
     let eq = solve(&r, &conditions);
     assert_eq!(eq.ph_convention(), protolyte::PhConvention::BatesGuggenheim);
     eq
@@ -735,7 +735,12 @@ fn ph_standards_bates_guggenheim_davies_25c() {
         ),
     ] {
         let eq = standard_ph_bg(&parts, ActivityModel::Davies);
-        assert_close(&format!("{what}, Davies, Bates–Guggenheim"), eq.ph(), ph_s, PH_STANDARD_BG_TOL);
+        assert_close(
+            &format!("{what}, Davies, Bates–Guggenheim"),
+            eq.ph(),
+            ph_s,
+            PH_STANDARD_BG_TOL,
+        );
         no_model_warning(&eq);
     }
 }

@@ -300,7 +300,9 @@ pub(crate) fn ph_convention_shift(
     match convention {
         PhConvention::Model => 0.0,
         PhConvention::BatesGuggenheim => {
-            let mut lg_cl = GammaProfile::new(model, i_molal, dh).at(-1, CHLORIDE_ION_SIZE_ANGSTROM).0;
+            let mut lg_cl = GammaProfile::new(model, i_molal, dh)
+                .at(-1, CHLORIDE_ION_SIZE_ANGSTROM)
+                .0;
             if model == ActivityModel::Sit {
                 lg_cl += sit_chloride_term;
             }
@@ -325,7 +327,9 @@ pub(crate) fn ph_convention_shift_dln_i(
             }
             let den = 1.0 + BATES_GUGGENHEIM_BA * s;
             let d_bg = -dh.a / (2.0 * s * den * den);
-            let d_model = GammaProfile::new(model, i_molal, dh).at(-1, CHLORIDE_ION_SIZE_ANGSTROM).1;
+            let d_model = GammaProfile::new(model, i_molal, dh)
+                .at(-1, CHLORIDE_ION_SIZE_ANGSTROM)
+                .1;
             i_molal * (d_bg - d_model)
         }
     }

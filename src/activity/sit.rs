@@ -41,7 +41,13 @@ const NEA_B4: &str = "R. Guillaumont et al., Update on the Chemical Thermodynami
 const NEA_B5: &str = "R. Guillaumont et al., Update on the Chemical Thermodynamics of U, Np, Pu, Am and Tc (NEA-TDB vol. 5, Elsevier 2003), appendix B, table B-5 (anions)";
 const CIAVATTA: &str = "L. Ciavatta, Ann. Chim. (Rome) 70 (1980) 551";
 
-const fn eps(cation: &'static str, anion: &'static str, e: f64, u: f64, source: &'static str) -> InteractionCoefficient {
+const fn eps(
+    cation: &'static str,
+    anion: &'static str,
+    e: f64,
+    u: f64,
+    source: &'static str,
+) -> InteractionCoefficient {
     InteractionCoefficient {
         cation,
         anion,
