@@ -703,7 +703,10 @@ fn analysis_fractions_outside_their_range_are_refused_not_clamped() {
 #[test]
 fn a_solver_tolerance_outside_its_range_is_refused_not_clamped() {
     use protolyte::Solver;
-    assert!(matches!(Solver::new().tolerance(1.0), Err(Error::InvalidParameter { .. })));
+    assert!(matches!(
+        Solver::new().tolerance(1.0),
+        Err(Error::InvalidParameter { .. })
+    ));
     assert!(Solver::new().tolerance(f64::NAN).is_err());
     assert_eq!(Solver::new().tolerance(1e-9).unwrap().tolerance_value(), 1e-9);
 }

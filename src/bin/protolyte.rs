@@ -254,6 +254,7 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
         document::ActivityDoc::Ideal => "ideal (no activity correction)",
         document::ActivityDoc::Davies => "Davies",
         document::ActivityDoc::ExtendedDebyeHuckel => "extended Debye–Hückel",
+        document::ActivityDoc::Sit => "SIT (specific ion interaction theory)",
     };
     writeln!(
         out,
