@@ -10,9 +10,9 @@
 //!   log Kw as a function of temperature and the density of water (molal scale).
 //!
 //! Each function states the range its source covers ([`DENSITY_RANGE`],
-//! [`DIELECTRIC_RANGE`], [`KW_RANGE`]). A system is compiled only from 0 to 100 °C, inside
-//! every one of them, so a solve never uses them outside their range; called directly
-//! outside it they extrapolate, and the caller should check the range.
+//! [`DIELECTRIC_RANGE`], [`KW_RANGE`]). The functions compute only within the library's
+//! temperature domain, 0–100 °C, which lies inside every one of these ranges, and refuse a
+//! temperature outside it; so no result uses them outside their sources' range.
 
 use crate::error::{Result, check_temperature};
 use crate::quantity::Temperature;
@@ -30,9 +30,9 @@ pub const DIELECTRIC_RANGE: ValidityRange = ValidityRange {
     max_celsius: 100.0,
 };
 
-/// The range of Marshall and Franck's (1981) Kw equation: 0–1000 °C (to 1000 MPa); here
-/// it is used along the 1-atm density of [`density_kg_per_l`], so the density range
-/// (0–150 °C) is the one that binds.
+/// The range of Marshall and Franck's (1981) Kw equation as used here: the equation covers
+/// 0–1000 °C (to 1000 MPa), but here it is evaluated at the 1-atm density of
+/// [`density_kg_per_l`], so the density equation's range (0–150 °C) is the one that binds.
 pub const KW_RANGE: ValidityRange = ValidityRange {
     min_celsius: 0.0,
     max_celsius: 150.0,

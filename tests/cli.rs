@@ -443,7 +443,10 @@ fn syntax_errors_quote_long_input_short() {
     let e: BatchErrorRecord = serde_json::from_str(out.trim()).unwrap();
     assert_eq!(e.kind, "syntax");
     assert!(e.error.len() < 600, "{} bytes", e.error.len());
-    let p = temp_file("longvalue.json", &format!(r#"{{"format":"protolyte-recipe/1","reagents":[{{"reagent":"acetic acid","molar":"{key}"}}]}}"#));
+    let p = temp_file(
+        "longvalue.json",
+        &format!(r#"{{"format":"protolyte-recipe/1","reagents":[{{"reagent":"acetic acid","molar":"{key}"}}]}}"#),
+    );
     let o = protolyte(&["solve", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(3));
     assert!(stderr(&o).len() < 700, "{} bytes", stderr(&o).len());

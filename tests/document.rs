@@ -440,10 +440,8 @@ fn colliding_definitions_are_refused_with_both_names() {
     assert_eq!(f, "definitions.protolytes[0].synonyms");
     assert!(m.contains("ion `sodium`"), "{m}");
     // A complex named like a user ion of the same document.
-    let (f, m) = err(
-        r#"{"definitions": {"ions": [{"name": "q", "charge": 2}],
-            "complexes": [{"name": "q", "log_beta": 1, "parts": [{"ion": "q"}, {"ion": "chloride"}]}]}, "reagents": []}"#,
-    );
+    let (f, m) = err(r#"{"definitions": {"ions": [{"name": "q", "charge": 2}],
+            "complexes": [{"name": "q", "log_beta": 1, "parts": [{"ion": "q"}, {"ion": "chloride"}]}]}, "reagents": []}"#);
     assert_eq!(f, "definitions.complexes[0].name");
     assert!(m.contains("definitions.ions[0]"), "{m}");
     // Two reagents of the same name in one document.
@@ -463,18 +461,25 @@ fn names_and_lists_past_the_limits_are_refused_and_quoted_short() {
     use protolyte::document::limits::{MAX_ENTRIES, MAX_NAME_CHARS, MAX_PARTS};
     let mut doc = RecipeDoc::new();
     // At the limit: looked up (and unknown).
-    doc.reagents.push(document::AmountLine::millimolar(&"é".repeat(MAX_NAME_CHARS), 1.0));
+    doc.reagents
+        .push(document::AmountLine::millimolar(&"é".repeat(MAX_NAME_CHARS), 1.0));
     let e = doc.to_recipe(&cat()).unwrap_err().to_string();
     assert!(e.contains("unknown reagent"), "{}", &e[..200]);
     // Past it: refused before the look-up, quoted short.
     doc.reagents[0] = document::AmountLine::millimolar(&"é".repeat(MAX_NAME_CHARS + 1), 1.0);
     let e = doc.to_recipe(&cat()).unwrap_err().to_string();
-    assert!(e.contains("reagents[0].reagent") && e.contains("(201 characters)"), "{e}");
+    assert!(
+        e.contains("reagents[0].reagent") && e.contains("(201 characters)"),
+        "{e}"
+    );
     assert!(e.len() < 200, "{e}");
     let mut doc = RecipeDoc::new();
     doc.reagents = vec![document::AmountLine::millimolar("sodium chloride", 1.0); MAX_ENTRIES + 1];
     let e = doc.to_recipe(&cat()).unwrap_err();
-    assert!(matches!(&e, DocumentError::Field { field, .. } if field == "reagents"), "{e}");
+    assert!(
+        matches!(&e, DocumentError::Field { field, .. } if field == "reagents"),
+        "{e}"
+    );
     let pka: Vec<String> = (0..=MAX_PARTS).map(|i| format!("{}", 2 + i % 10)).collect();
     let json = format!(
         r#"{{"definitions": {{"protolytes": [{{"name": "poly", "pka": [{}], "charge_most_protonated": 0}}]}}, "reagents": []}}"#,
@@ -482,7 +487,10 @@ fn names_and_lists_past_the_limits_are_refused_and_quoted_short() {
     );
     let doc: RecipeDoc = document::parse(&json, "x.json").unwrap();
     let e = doc.to_recipe(&cat()).unwrap_err();
-    assert!(matches!(&e, DocumentError::Field { field, .. } if field == "definitions.protolytes[0].pka"), "{e}");
+    assert!(
+        matches!(&e, DocumentError::Field { field, .. } if field == "definitions.protolytes[0].pka"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -491,7 +499,27 @@ fn a_byte_order_mark_is_skipped_in_json_and_toml() {
     assert!(doc.reagents.is_empty());
     let doc: RecipeDoc = document::parse("\u{feff}format = \"protolyte-recipe/1\"\nreagents = []\n", "x.toml").unwrap();
     assert_eq!(doc.format.as_deref(), Some("protolyte-recipe/1"));
-    let text = format!("{{\"name\": \"{}\"}}", "a".repeat(protolyte::document::limits::MAX_DOCUMENT_BYTES));
+    let text = format!(
+        "{{\"name\": \"{}\"}}",
+        "a".repeat(protolyte::document::limits::MAX_DOCUMENT_BYTES)
+    );
     let e = document::parse::<RecipeDoc>(&text, "big.json").unwrap_err();
     assert!(matches!(e, DocumentError::Read { .. }), "{e}");
+}
+
+#[test]
+fn a_definition_does_not_silently_replace_a_catalogue_entry() {
+    // A second acetate family with another pKa (invented) would change every acetate reagent.
+    let doc: RecipeDoc = document::parse(
+        r#"{"definitions": {"protolytes": [{"name": "acetate", "pka": [4.0], "charge_most_protonated": 0}]}, "reagents": []}"#,
+        "x.json",
+    )
+    .unwrap();
+    match doc.to_recipe(&cat()).unwrap_err() {
+        DocumentError::Field { field, message, .. } => {
+            assert_eq!(field, "definitions.protolytes[0].name");
+            assert!(message.contains("catalogue's protolyte `acetate`"), "{message}");
+        }
+        other => panic!("{other:?}"),
+    }
 }
