@@ -341,8 +341,14 @@ fn sit_sensitivities_match_finite_differences() {
 fn the_warning_names_the_model_to_use() {
     let eq = solve_salt("sodium chloride", 1.0, ActivityModel::Davies);
     let text: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
-    assert!(text.iter().any(|t| t.contains("Davies") && t.contains("SIT")), "{text:?}");
+    assert!(
+        text.iter().any(|t| t.contains("Davies") && t.contains("SIT")),
+        "{text:?}"
+    );
     let eq = solve_salt("sodium chloride", 4.0, ActivityModel::Sit);
     let text: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
-    assert!(text.iter().any(|t| t.contains("SIT model's stated validity")), "{text:?}");
+    assert!(
+        text.iter().any(|t| t.contains("SIT model's stated validity")),
+        "{text:?}"
+    );
 }
