@@ -112,8 +112,7 @@ pub enum PhConvention {
     /// measurable product of a Harned cell with the single-ion activity of chloride fixed
     /// by log₁₀ γ(Cl⁻)ᴮᴳ = −A√I/(1 + 1.5√I). γ(H⁺) and γ(Cl⁻) (a trace of chloride) come
     /// from the activity model. The convention is defined for I ≤ 0.1 mol/kg; beyond it a
-    /// result carries [`Warning::IonicStrengthBeyondModel`](crate::Warning::IonicStrengthBeyondModel)
-    /// naming the convention.
+    /// result carries [`Warning::PhConventionBeyondRange`](crate::Warning::PhConventionBeyondRange).
     BatesGuggenheim,
 }
 
