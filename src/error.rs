@@ -67,6 +67,21 @@ pub enum Error {
         /// The net charge of one formula unit.
         charge: i64,
     },
+    /// An entry of a catalogue file is refused: the file, the line, the entry and the field
+    /// say where.
+    #[error("{file}:{line}: {}{message}", catalog_where(entry, field))]
+    CatalogFile {
+        /// The file (or the origin given for text read from memory).
+        file: String,
+        /// Line, 1-based.
+        line: usize,
+        /// The entry at fault ("family `acetate`"), or empty for the file as a whole.
+        entry: String,
+        /// The field at fault (`steps[1].pka`), or empty.
+        field: String,
+        /// What is wrong.
+        message: String,
+    },
     /// A condition lies outside the declared domain of the library.
     #[error("{what} = {value} is outside the supported domain {domain}")]
     OutOfDomain {
@@ -93,6 +108,16 @@ pub enum Error {
         /// pH at the last iterate.
         last_ph: f64,
     },
+}
+
+/// "family `acetate`, field `steps[1].pka`: ", or less when the entry or field is not known.
+fn catalog_where(entry: &str, field: &str) -> String {
+    match (entry.is_empty(), field.is_empty()) {
+        (true, true) => String::new(),
+        (false, true) => format!("{entry}: "),
+        (true, false) => format!("field `{field}`: "),
+        (false, false) => format!("{entry}, field `{field}`: "),
+    }
 }
 
 /// `Result` with protolyte's [`Error`](enum@Error).

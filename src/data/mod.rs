@@ -1,25 +1,49 @@
-//! Built-in data: acid–base families, simple ions, reagents and complexes, each row with its
-//! published source, and the [`Catalog`] that looks them up by name or synonym and takes a
-//! user's own definitions beside them.
+//! The catalogue: acid–base families, simple ions, reagents and complexes, each entry with
+//! its published source, looked up by name or synonym.
+//!
+//! The built-in entries live in the data files `data/families.toml`, `data/ions.toml`,
+//! `data/reagents.toml` and `data/complexes.toml` (format `protolyte-catalog/1`, documented in
+//! `docs/catalog-format.md`), embedded at build time and read once. A user's own files in the
+//! same format add entries or replace built-in ones ([`Catalog::with_file`]).
 
+mod format;
+mod formula;
+
+// The Rust tables the data files were converted from, for the test that compares them.
+#[cfg(test)]
 mod complexes;
+#[cfg(test)]
 mod ions;
+#[cfg(test)]
 mod protolytes;
+#[cfg(test)]
 mod reagents;
+#[cfg(test)]
 mod records;
 
+use std::collections::{BTreeMap, HashMap};
+use std::path::Path;
 use std::sync::OnceLock;
 
-use records::{ComplexPartRecord, PartRecord};
+use format::{CATALOG_FORMAT, CatalogFile, ComplexEntry, FamilyEntry, IonEntry, Located, PartEntry, ReagentEntry};
+use toml::Spanned;
 
 use crate::complex::{Complex, ComplexPart};
-use crate::error::{Error, Result};
+use crate::error::{Error, Result, check_ion_size};
 use crate::ion::Ion;
 use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
 
+/// The built-in data files, embedded at build time: (name shown in messages, text).
+const BUILTIN_FILES: [(&str, &str); 4] = [
+    ("data/families.toml", include_str!("../../data/families.toml")),
+    ("data/ions.toml", include_str!("../../data/ions.toml")),
+    ("data/reagents.toml", include_str!("../../data/reagents.toml")),
+    ("data/complexes.toml", include_str!("../../data/complexes.toml")),
+];
+
 /// What kind of thing a catalog entry is.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum DataKind {
     /// An acid–base family.
     Protolyte,
@@ -41,9 +65,32 @@ impl DataKind {
             DataKind::Complex => "complex",
         }
     }
+
+    /// The table name of this kind in a catalogue file: "family", "ion", "reagent", "complex".
+    fn table(self) -> &'static str {
+        match self {
+            DataKind::Protolyte => "family",
+            DataKind::Ion => "ion",
+            DataKind::Reagent => "reagent",
+            DataKind::Complex => "complex",
+        }
+    }
 }
 
-/// A description of one catalog entry, for listings.
+/// One form of an acid–base family, for listings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FormInfo {
+    /// Display name of the form ("H2PO4-").
+    pub name: String,
+    /// Bound protons, 0 = fully deprotonated.
+    pub protons: usize,
+    /// Charge number.
+    pub charge: i32,
+    /// Ion-size parameter å of this form, ångström, where the entry gives one per form.
+    pub ion_size_angstrom: Option<f64>,
+}
+
+/// A description of one catalog entry, for listings: every number the entry holds.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DataInfo {
     /// What it is.
@@ -52,14 +99,36 @@ pub struct DataInfo {
     pub name: String,
     /// Other names it is found by.
     pub synonyms: Vec<String>,
-    /// Formula, if any.
+    /// Formula (of the most protonated form for a family), or empty.
     pub formula: String,
     /// A one-line summary of its numbers (pKa values, charge, molar mass, log β).
     pub summary: String,
-    /// Its published source ("user" for entries a caller added).
+    /// Its published source ("user" for entries a caller added without one).
     pub source: String,
     /// True when the numbers were entered from memory of the source.
     pub from_memory: bool,
+    /// Where the entry was read: `built-in data/families.toml`, a user's file name, or
+    /// "added in code".
+    pub origin: String,
+    /// Charge: of the most protonated form for a family, of the ion or complex, 0 for a reagent.
+    pub charge: i32,
+    /// Stepwise dissociations, most protonated first (families only): pKa at 25 °C and
+    /// I = 0, ΔH° and ΔCp° where known.
+    pub steps: Vec<Step>,
+    /// The forms of a family, most protonated first (families only).
+    pub forms: Vec<FormInfo>,
+    /// The single ion-size parameter å, ångström, where set.
+    pub ion_size_angstrom: Option<f64>,
+    /// Molar mass, g/mol: a reagent's (stored, or computed from its formula), or computed from
+    /// the formula of an ion or of a family's most protonated form where it is a formula of
+    /// elements (IUPAC 2021 abridged atomic weights).
+    pub molar_mass_g_per_mol: Option<f64>,
+    /// Overall formation constant log₁₀ β (complexes only).
+    pub log10_beta: Option<f64>,
+    /// Formation enthalpy ΔH°, kJ/mol (complexes only, where known).
+    pub dh_kj_per_mol: Option<f64>,
+    /// The constituents of a reagent or the parts of a complex, in words ("2 × sodium").
+    pub parts: Vec<String>,
     /// The name and synonyms normalised for lookup.
     keys: Vec<String>,
 }
@@ -86,8 +155,13 @@ pub struct Catalog {
     ions: Vec<Ion>,
     reagents: Vec<Reagent>,
     complexes: Vec<Complex>,
+    /// Descriptions grouped by kind (in `DataKind` order), each group in definition order.
     info: Vec<DataInfo>,
-    /// Built-in rows that could not be turned into definitions (a data bug; tested empty).
+    /// (kind, normalised name or synonym) → index in that kind's definition vector.
+    index: HashMap<(DataKind, String), usize>,
+    /// Citations by key, from every file read so far.
+    sources: BTreeMap<String, String>,
+    /// Built-in files that could not be read (a data bug; tested empty).
     problems: Vec<String>,
 }
 
@@ -120,35 +194,147 @@ fn levenshtein(a: &str, b: &str) -> usize {
     prev[b.len()]
 }
 
+/// Provenance and extras of an entry that its definition does not carry.
+struct Meta {
+    source: String,
+    from_memory: bool,
+    origin: String,
+    form_ion_sizes: Vec<f64>,
+    molar_mass: Option<f64>,
+}
+
+impl Meta {
+    fn added_in_code(source: Option<&str>) -> Self {
+        Meta {
+            source: source.unwrap_or("user").to_string(),
+            from_memory: false,
+            origin: "added in code".into(),
+            form_ion_sizes: Vec::new(),
+            molar_mass: None,
+        }
+    }
+}
+
 impl Catalog {
     /// An empty catalog.
     pub fn empty() -> Self {
         Catalog::default()
     }
 
-    /// The built-in data (built once, then cloned).
+    /// The built-in data (read from the embedded data files once, then cloned).
     pub fn builtin() -> Self {
         static BUILTIN: OnceLock<Catalog> = OnceLock::new();
-        BUILTIN.get_or_init(build_builtin).clone()
+        BUILTIN.get_or_init(Catalog::read_builtin).clone()
     }
 
-    /// Built-in rows that failed to load (always empty in a correct build; the test suite
-    /// checks it).
+    /// Reads the embedded data files (what [`Catalog::builtin`] does once; public for the
+    /// benchmark of reading them).
+    #[doc(hidden)]
+    pub fn read_builtin() -> Self {
+        let mut cat = Catalog::empty();
+        for (name, text) in BUILTIN_FILES {
+            if let Err(e) = cat.load_toml_str(text, &format!("built-in {name}")) {
+                cat.problems.push(e.to_string());
+            }
+        }
+        cat
+    }
+
+    /// Built-in data files that failed to load (always empty in a correct build; the test
+    /// suite checks it).
     pub fn load_problems(&self) -> &[String] {
         &self.problems
     }
 
+    /// This catalog with the entries of the catalogue file at `path` added (format
+    /// `protolyte-catalog/1`, see `docs/catalog-format.md`). An entry whose name is taken is
+    /// refused unless it says `replace = true`; reagents and complexes built on a replaced
+    /// family or ion then use the new definition. Nothing is changed when the file is refused.
+    ///
+    /// Errors name the file, the line and the field ([`Error::CatalogFile`]).
+    pub fn with_file(mut self, path: impl AsRef<Path>) -> Result<Self> {
+        let path = path.as_ref();
+        let name = path.display().to_string();
+        let text = std::fs::read_to_string(path).map_err(|e| Error::CatalogFile {
+            file: name.clone(),
+            line: 0,
+            entry: String::new(),
+            field: String::new(),
+            message: format!("cannot read: {e}"),
+        })?;
+        self.load_toml_str(&text, &name)?;
+        Ok(self)
+    }
+
+    /// Adds the entries of catalogue text `text`; `origin` names it in errors (a file name).
+    /// All or nothing: when an entry is refused, the catalog is left as it was.
+    ///
+    /// ```
+    /// use protolyte::Catalog;
+    ///
+    /// let mut cat = Catalog::builtin();
+    /// cat.load_toml_str(r#"
+    /// format = "protolyte-catalog/1"
+    ///
+    /// [[family]]
+    /// name = "lab acid Q"
+    /// charge_most_protonated = 0
+    /// steps = [{ pka = 3.9 }, { pka = 6.1 }]
+    /// source = "our own titration, notebook 12"
+    /// "#, "lab.toml")?;
+    /// assert_eq!(cat.protolyte("lab acid q")?.proton_count(), 2);
+    ///
+    /// let err = cat.load_toml_str("format = \"protolyte-catalog/1\"\n[[family]]\nname = \"y\"\n\
+    ///     charge_most_protonated = 0\nsteps = [{ pka = 7.0 }, { pka = 3.0 }]\nsource = \"x\"\n", "bad.toml")
+    ///     .unwrap_err();
+    /// assert!(err.to_string().starts_with("bad.toml:5: family `y`, field `steps[1].pka`"), "{err}");
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn load_toml_str(&mut self, text: &str, origin: &str) -> Result<()> {
+        let loc = Located { file: origin, text };
+        let file: CatalogFile = toml::from_str(text).map_err(|e| {
+            let line = e.span().map(|s| loc.line_of(s.start)).unwrap_or(1);
+            loc.error(line, "", "", e.message().trim())
+        })?;
+        match &file.format {
+            None => {
+                return Err(loc.error(
+                    1,
+                    "",
+                    "format",
+                    format!("missing: a catalogue file starts with format = \"{CATALOG_FORMAT}\""),
+                ));
+            }
+            Some(f) if f.get_ref() != CATALOG_FORMAT => {
+                return Err(loc.error(
+                    loc.line_of(f.span().start),
+                    "",
+                    "format",
+                    format!("`{}` is not a catalogue format this version reads (`{CATALOG_FORMAT}`)", f.get_ref()),
+                ));
+            }
+            Some(_) => {}
+        }
+        let mut next = self.clone();
+        next.apply(file, &loc)?;
+        *self = next;
+        Ok(())
+    }
+
+    /// This catalog with the entries of catalogue text `text` added (see [`Catalog::load_toml_str`]).
+    pub fn with_toml_str(mut self, text: &str, origin: &str) -> Result<Self> {
+        self.load_toml_str(text, origin)?;
+        Ok(self)
+    }
+
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
         let key = normalize(name);
-        let entries = || self.info.iter().filter(|i| i.kind == kind);
-        if let Some(idx) =
-            entries().position(|info| normalize(&info.name) == key || info.synonyms.iter().any(|s| normalize(s) == key))
-        {
+        if let Some(&idx) = self.index.get(&(kind, key.clone())) {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close.
         let mut best: Option<(usize, &str)> = None;
-        for info in entries() {
+        for info in self.info.iter().filter(|i| i.kind == kind) {
             let d = info
                 .keys
                 .iter()
@@ -193,9 +379,25 @@ impl Catalog {
         &self.complexes
     }
 
-    /// Every entry's description, built-in first.
+    /// Every entry's description, grouped by kind (families, ions, reagents, complexes),
+    /// built-in first within each kind.
     pub fn entries(&self) -> &[DataInfo] {
         &self.info
+    }
+
+    /// The description of the entry of `kind` named `name` (or a synonym).
+    ///
+    /// ```
+    /// use protolyte::{Catalog, DataKind};
+    /// let cat = Catalog::builtin();
+    /// let info = cat.info(DataKind::Protolyte, "phosphoric acid")?;
+    /// assert_eq!(info.steps.len(), 3);
+    /// assert_eq!(info.forms[1].name, "H2PO4-");
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn info(&self, kind: DataKind, name: &str) -> Result<&DataInfo> {
+        let i = self.find(kind, name)?;
+        Ok(&self.info[self.offset(kind) + i])
     }
 
     /// Entries whose name, a synonym or formula contains `query` (case-insensitive).
@@ -230,43 +432,53 @@ impl Catalog {
         Ok(())
     }
 
-    /// Records an entry's description; `provenance` is (source, entered from memory).
-    fn push_info(
-        &mut self,
-        kind: DataKind,
-        name: &str,
-        synonyms: &[&str],
-        formula: &str,
-        summary: String,
-        provenance: (&str, bool),
-    ) {
-        let keys = std::iter::once(name)
+    /// Position of the first entry of `kind` in `info`.
+    fn offset(&self, kind: DataKind) -> usize {
+        let lens = [
+            self.protolytes.len(),
+            self.ions.len(),
+            self.reagents.len(),
+            self.complexes.len(),
+        ];
+        lens[..kind as usize].iter().sum()
+    }
+
+    fn len_of(&self, kind: DataKind) -> usize {
+        match kind {
+            DataKind::Protolyte => self.protolytes.len(),
+            DataKind::Ion => self.ions.len(),
+            DataKind::Reagent => self.reagents.len(),
+            DataKind::Complex => self.complexes.len(),
+        }
+    }
+
+    /// Records an entry's description at the end of its kind's group and indexes its names.
+    /// Call before pushing the definition.
+    fn push_info(&mut self, mut info: DataInfo, synonyms: &[&str]) {
+        info.synonyms = synonyms.iter().map(|s| s.to_string()).collect();
+        info.keys = std::iter::once(info.name.as_str())
             .chain(synonyms.iter().copied())
             .map(normalize)
             .collect();
-        self.info.push(DataInfo {
-            kind,
-            name: name.to_string(),
-            synonyms: synonyms.iter().map(|s| s.to_string()).collect(),
-            formula: formula.to_string(),
-            summary,
-            source: provenance.0.to_string(),
-            from_memory: provenance.1,
-            keys,
-        });
+        let kind = info.kind;
+        let idx = self.len_of(kind);
+        for k in &info.keys {
+            self.index.entry((kind, k.clone())).or_insert(idx);
+        }
+        let at = self.offset(kind) + idx;
+        self.info.insert(at, info);
     }
 
     /// Adds a user-defined family, found by its name and `synonyms`.
     pub fn add_protolyte(&mut self, p: Protolyte, synonyms: &[&str]) -> Result<()> {
+        let meta = Meta::added_in_code(p.source());
+        self.add_protolyte_with(p, synonyms, meta)
+    }
+
+    fn add_protolyte_with(&mut self, p: Protolyte, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![p.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Protolyte, &names)?;
-        let source = p.source().unwrap_or("user").to_string();
-        self.insert_protolyte(p, synonyms, &source, false);
-        Ok(())
-    }
-
-    fn insert_protolyte(&mut self, p: Protolyte, synonyms: &[&str], source: &str, from_memory: bool) {
         let pk: Vec<String> = p.steps().iter().map(|s| format!("{}", s.pka)).collect();
         let summary = format!(
             "pKa {} (25 °C); most protonated charge {:+}",
@@ -274,170 +486,692 @@ impl Catalog {
             p.charge_most_protonated()
         );
         let formula = p.formula().unwrap_or("").to_string();
-        let name = p.name().to_string();
-        self.protolytes.push(p);
-        self.push_info(
-            DataKind::Protolyte,
-            &name,
-            synonyms,
-            &formula,
+        let n = p.proton_count();
+        let forms = (0..=n)
+            .rev()
+            .enumerate()
+            .map(|(k, j)| FormInfo {
+                name: p.form_name(j),
+                protons: j,
+                charge: p.charge_of_form(j),
+                ion_size_angstrom: meta.form_ion_sizes.get(k).copied(),
+            })
+            .collect();
+        let info = DataInfo {
+            kind: DataKind::Protolyte,
+            name: p.name().to_string(),
+            synonyms: Vec::new(),
+            molar_mass_g_per_mol: formula::molar_mass_g_per_mol(&formula, p.charge_most_protonated()),
+            formula,
             summary,
-            (source, from_memory),
-        );
-        self.sort_info();
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: p.charge_most_protonated(),
+            steps: p.steps().to_vec(),
+            forms,
+            ion_size_angstrom: p.ion_size_angstrom(),
+            log10_beta: None,
+            dh_kj_per_mol: None,
+            parts: Vec::new(),
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
+        self.protolytes.push(p);
+        Ok(())
     }
 
     /// Adds a user-defined ion.
     pub fn add_ion(&mut self, ion: Ion, synonyms: &[&str]) -> Result<()> {
+        self.add_ion_with(ion, synonyms, Meta::added_in_code(None))
+    }
+
+    fn add_ion_with(&mut self, ion: Ion, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![ion.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Ion, &names)?;
-        self.insert_ion(ion, synonyms, "user", false);
-        Ok(())
-    }
-
-    fn insert_ion(&mut self, ion: Ion, synonyms: &[&str], source: &str, from_memory: bool) {
-        let summary = format!("charge {:+}", ion.charge());
-        let name = ion.name().to_string();
         let formula = ion.display_name().to_string();
+        let info = DataInfo {
+            kind: DataKind::Ion,
+            name: ion.name().to_string(),
+            synonyms: Vec::new(),
+            summary: format!("charge {:+}", ion.charge()),
+            molar_mass_g_per_mol: formula::molar_mass_g_per_mol(&formula, ion.charge()),
+            formula,
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: ion.charge(),
+            steps: Vec::new(),
+            forms: Vec::new(),
+            ion_size_angstrom: ion.ion_size_angstrom(),
+            log10_beta: None,
+            dh_kj_per_mol: None,
+            parts: Vec::new(),
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
         self.ions.push(ion);
-        self.push_info(DataKind::Ion, &name, synonyms, &formula, summary, (source, from_memory));
-        self.sort_info();
+        Ok(())
     }
 
     /// Adds a user-defined reagent.
     pub fn add_reagent(&mut self, r: Reagent, synonyms: &[&str]) -> Result<()> {
+        self.add_reagent_with(r, synonyms, Meta::added_in_code(None))
+    }
+
+    fn add_reagent_with(&mut self, r: Reagent, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![r.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Reagent, &names)?;
-        self.insert_reagent(r, synonyms, "user");
-        Ok(())
-    }
-
-    fn insert_reagent(&mut self, r: Reagent, synonyms: &[&str], source: &str) {
-        let summary = match r.molar_mass_g_per_mol() {
+        let molar_mass = r.molar_mass_g_per_mol().or(meta.molar_mass);
+        let summary = match molar_mass {
             Some(m) => format!("M = {m} g/mol"),
             None => "no molar mass".into(),
         };
-        let name = r.name().to_string();
-        let formula = r.formula().unwrap_or("").to_string();
+        let parts = r
+            .parts()
+            .iter()
+            .map(|(c, n)| {
+                let what = match c {
+                    Constituent::Form { protolyte, protons } => {
+                        format!("{} ({})", protolyte.form_name(*protons), protolyte.name())
+                    }
+                    Constituent::Ion(i) => i.name().to_string(),
+                    Constituent::Proton => "H+".into(),
+                    Constituent::Hydroxide => "OH-".into(),
+                };
+                format!("{n} × {what}")
+            })
+            .collect();
+        let info = DataInfo {
+            kind: DataKind::Reagent,
+            name: r.name().to_string(),
+            synonyms: Vec::new(),
+            formula: r.formula().unwrap_or("").to_string(),
+            summary,
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: 0,
+            steps: Vec::new(),
+            forms: Vec::new(),
+            ion_size_angstrom: None,
+            molar_mass_g_per_mol: molar_mass,
+            log10_beta: None,
+            dh_kj_per_mol: None,
+            parts,
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
         self.reagents.push(r);
-        self.push_info(DataKind::Reagent, &name, synonyms, &formula, summary, (source, false));
-        self.sort_info();
+        Ok(())
     }
 
     /// Adds a user-defined complex.
     pub fn add_complex(&mut self, c: Complex, synonyms: &[&str]) -> Result<()> {
+        let meta = Meta::added_in_code(c.source());
+        self.add_complex_with(c, synonyms, meta)
+    }
+
+    fn add_complex_with(&mut self, c: Complex, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![c.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Complex, &names)?;
-        let source = c.source().unwrap_or("user").to_string();
-        self.insert_complex(c, synonyms, &source, false);
+        let parts = c
+            .parts()
+            .iter()
+            .map(|(p, n)| {
+                let what = match p {
+                    ComplexPart::Base(f) => format!("{} ({})", f.form_name(0), f.name()),
+                    ComplexPart::Ion(i) => i.name().to_string(),
+                    ComplexPart::Proton => "H+".into(),
+                };
+                format!("{n} × {what}")
+            })
+            .collect();
+        let info = DataInfo {
+            kind: DataKind::Complex,
+            name: c.name().to_string(),
+            synonyms: Vec::new(),
+            formula: String::new(),
+            summary: format!("log β {} (25 °C); charge {:+}", c.log10_beta(), c.charge()),
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: c.charge(),
+            steps: Vec::new(),
+            forms: Vec::new(),
+            ion_size_angstrom: c.ion_size_angstrom(),
+            molar_mass_g_per_mol: None,
+            log10_beta: Some(c.log10_beta()),
+            dh_kj_per_mol: c.dh_kj_per_mol(),
+            parts,
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
+        self.complexes.push(c);
         Ok(())
     }
 
-    fn insert_complex(&mut self, c: Complex, synonyms: &[&str], source: &str, from_memory: bool) {
-        let summary = format!("log β {} (25 °C); charge {:+}", c.log10_beta(), c.charge());
-        let name = c.name().to_string();
-        self.complexes.push(c);
-        self.push_info(DataKind::Complex, &name, synonyms, "", summary, (source, from_memory));
-        self.sort_info();
+    /// Removes the entry of `kind` at `idx` (its definition and description) and returns
+    /// its synonyms.
+    fn remove(&mut self, kind: DataKind, idx: usize) -> Vec<String> {
+        let at = self.offset(kind) + idx;
+        let info = self.info.remove(at);
+        match kind {
+            DataKind::Protolyte => drop(self.protolytes.remove(idx)),
+            DataKind::Ion => drop(self.ions.remove(idx)),
+            DataKind::Reagent => drop(self.reagents.remove(idx)),
+            DataKind::Complex => drop(self.complexes.remove(idx)),
+        }
+        self.reindex();
+        info.synonyms
     }
 
-    /// Keeps `info` grouped by kind in the order of the definition vectors.
-    fn sort_info(&mut self) {
-        let order = |k: DataKind| k as u8;
-        self.info.sort_by_key(|i| order(i.kind));
+    fn reindex(&mut self) {
+        self.index.clear();
+        let mut per_kind = [0usize; 4];
+        for info in &self.info {
+            let idx = per_kind[info.kind as usize];
+            per_kind[info.kind as usize] += 1;
+            for k in &info.keys {
+                self.index.entry((info.kind, k.clone())).or_insert(idx);
+            }
+        }
     }
-}
 
-fn build_builtin() -> Catalog {
-    let mut cat = Catalog::empty();
-    for r in protolytes::FAMILIES {
-        let pkas: Vec<f64> = r.steps.iter().map(|s| s.pka).collect();
-        let built = Protolyte::new(r.name, &pkas, r.charge_most_protonated).and_then(|p| {
-            let steps = r
-                .steps
+    /// Rebuilds the reagents and complexes that hold the family or ion named `name` so that
+    /// they use its current definition.
+    fn rebind(&mut self, kind: DataKind, name: &str) -> Result<()> {
+        let family = |cat: &Catalog| cat.protolyte(name).ok().filter(|p| p.name() == name);
+        let ion = |cat: &Catalog| cat.ion(name).ok().filter(|i| i.name() == name);
+        let (new_family, new_ion) = match kind {
+            DataKind::Protolyte => (family(self), None),
+            DataKind::Ion => (None, ion(self)),
+            _ => return Ok(()),
+        };
+        for r in &mut self.reagents {
+            let mut touched = false;
+            let parts: Vec<(Constituent, u32)> = r
+                .parts()
                 .iter()
-                .map(|s| Step {
+                .map(|(c, n)| {
+                    let c = match (c, &new_family, &new_ion) {
+                        (Constituent::Form { protolyte, protons }, Some(f), _) if protolyte.name() == name => {
+                            touched = true;
+                            Constituent::Form {
+                                protolyte: f.clone(),
+                                protons: *protons,
+                            }
+                        }
+                        (Constituent::Ion(i), _, Some(new)) if i.name() == name => {
+                            touched = true;
+                            Constituent::Ion(new.clone())
+                        }
+                        (c, _, _) => c.clone(),
+                    };
+                    (c, *n)
+                })
+                .collect();
+            if touched {
+                let mut rebuilt = Reagent::new(r.name(), r.molar_mass_g_per_mol(), parts)?;
+                if let Some(f) = r.formula() {
+                    rebuilt = rebuilt.with_formula(f);
+                }
+                *r = rebuilt;
+            }
+        }
+        for c in &mut self.complexes {
+            let mut touched = false;
+            let parts: Vec<(ComplexPart, i32)> = c
+                .parts()
+                .iter()
+                .map(|(p, n)| {
+                    let p = match (p, &new_family, &new_ion) {
+                        (ComplexPart::Base(b), Some(f), _) if b.name() == name => {
+                            touched = true;
+                            ComplexPart::Base(f.clone())
+                        }
+                        (ComplexPart::Ion(i), _, Some(new)) if i.name() == name => {
+                            touched = true;
+                            ComplexPart::Ion(new.clone())
+                        }
+                        (p, _, _) => p.clone(),
+                    };
+                    (p, *n)
+                })
+                .collect();
+            if touched {
+                let mut rebuilt = Complex::new(c.name(), parts, c.log10_beta())?;
+                if let Some(s) = c.source() {
+                    rebuilt = rebuilt.with_source(s);
+                }
+                if let Some(h) = c.dh_kj_per_mol() {
+                    rebuilt = rebuilt.with_enthalpy_kj_per_mol(h)?;
+                }
+                if let Some(a) = c.ion_size_angstrom() {
+                    rebuilt = rebuilt.with_ion_size_angstrom(a)?;
+                }
+                *c = rebuilt;
+            }
+        }
+        Ok(())
+    }
+
+    /// Adds every entry of a parsed file (families and ions first, so that reagents and
+    /// complexes may refer to them).
+    fn apply(&mut self, file: CatalogFile, loc: &Located) -> Result<()> {
+        let mut sources = self.sources.clone();
+        for (k, v) in &file.sources {
+            if v.trim().is_empty() {
+                return Err(loc.error(loc.line_of_key(&(0..loc.text.len()), k), "", "sources", format!("`{k}` is empty")));
+            }
+            sources.insert(k.clone(), v.clone());
+        }
+        self.sources = sources;
+        for e in &file.family {
+            self.apply_family(e, loc)?;
+        }
+        for e in &file.ion {
+            self.apply_ion(e, loc)?;
+        }
+        for e in &file.reagent {
+            self.apply_reagent(e, loc)?;
+        }
+        for e in &file.complex {
+            self.apply_complex(e, loc)?;
+        }
+        Ok(())
+    }
+
+    /// The citation of an entry: its `source`, or the `[sources]` text its `cite` names.
+    fn citation(&self, entry: &Entry, source: &Option<String>, cite: &Option<String>) -> Result<String> {
+        match (source, cite) {
+            (Some(_), Some(_)) => Err(entry.error("cite", "give either `source` or `cite`, not both")),
+            (None, None) => Err(entry.error(
+                "source",
+                "missing: every entry names its published source (`source = \"...\"` or `cite = \"key\"`)",
+            )),
+            (Some(s), None) if s.trim().is_empty() => Err(entry.error("source", "is empty")),
+            (Some(s), None) => Ok(s.trim().to_string()),
+            (None, Some(k)) => self
+                .sources
+                .get(k)
+                .cloned()
+                .ok_or_else(|| entry.error("cite", format!("no source `{k}` in the [sources] table"))),
+        }
+    }
+
+    /// Adds a definition through the `add_*` functions, first removing the entry it replaces
+    /// when the file says `replace = true`; synonyms of a replaced entry are kept.
+    fn place(
+        &mut self,
+        kind: DataKind,
+        entry: &Entry,
+        replace: bool,
+        synonyms: &[String],
+        add: impl FnOnce(&mut Catalog, &[&str]) -> Result<()>,
+    ) -> Result<()> {
+        let mut all: Vec<String> = synonyms.to_vec();
+        if replace {
+            let idx = self.find(kind, entry.name).map_err(|_| {
+                entry.error(
+                    "replace",
+                    format!("there is no {} named `{}` to replace", kind.name(), entry.name),
+                )
+            })?;
+            for s in self.remove(kind, idx) {
+                if normalize(&s) != normalize(entry.name) && !all.iter().any(|a| normalize(a) == normalize(&s)) {
+                    all.push(s);
+                }
+            }
+        }
+        let refs: Vec<&str> = all.iter().map(String::as_str).collect();
+        add(self, &refs).map_err(|e| match e {
+            Error::InconsistentDefinition { reason, .. } if reason.contains("already in the catalog") => entry.error(
+                "name",
+                format!("{reason}; write `replace = true` to replace it"),
+            ),
+            e => entry.wrap(e),
+        })?;
+        if replace {
+            self.rebind(kind, entry.name).map_err(|e| {
+                entry.error(
+                    "replace",
+                    format!("an entry built on the one replaced no longer holds: {e}"),
+                )
+            })?;
+        }
+        Ok(())
+    }
+
+    fn apply_family(&mut self, spanned: &Spanned<FamilyEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Protolyte, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        for (k, pair) in e.steps.windows(2).enumerate() {
+            let (a, b) = (pair[0].get_ref().pka, pair[1].get_ref().pka);
+            if b < a {
+                return Err(loc.error(
+                    loc.line_of(pair[1].span().start),
+                    &entry.label(),
+                    &format!("steps[{}].pka", k + 1),
+                    format!("pKa values ascend, most protonated form first: {b} follows {a}"),
+                ));
+            }
+        }
+        let pkas: Vec<f64> = e.steps.iter().map(|s| s.get_ref().pka).collect();
+        let steps: Vec<Step> = e
+            .steps
+            .iter()
+            .map(|s| {
+                let s = s.get_ref();
+                Step {
                     pka: s.pka,
                     dh_kj_per_mol: s.dh_kj_per_mol,
                     dcp_j_per_mol_k: s.dcp_j_per_mol_k,
-                })
-                .collect();
-            let p = p.with_steps(steps)?.with_formula(r.formula).with_source(r.source);
-            match r.ion_size_angstrom {
-                Some(a) => p.with_ion_size_angstrom(a),
-                None => Ok(p),
+                }
+            })
+            .collect();
+        let mut p = Protolyte::new(&e.name, &pkas, e.charge_most_protonated)
+            .and_then(|p| p.with_steps(steps))
+            .map_err(|err| entry.wrap(err))?
+            .with_source(&source);
+        if let Some(f) = &e.formula {
+            p = p.with_formula(f);
+        }
+        if let Some(a) = e.ion_size_angstrom {
+            p = p.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
+        }
+        let form_sizes = e.form_ion_sizes_angstrom.clone().unwrap_or_default();
+        if e.form_ion_sizes_angstrom.is_some() {
+            if form_sizes.len() != pkas.len() + 1 {
+                return Err(entry.error(
+                    "form_ion_sizes_angstrom",
+                    format!(
+                        "{} values for {} forms (one per form, most protonated first)",
+                        form_sizes.len(),
+                        pkas.len() + 1
+                    ),
+                ));
             }
-        });
-        match built {
-            Ok(p) => cat.insert_protolyte(p, r.synonyms, r.source, r.from_memory),
-            Err(e) => cat.problems.push(format!("protolyte {}: {e}", r.name)),
+            for &a in &form_sizes {
+                check_ion_size(&e.name, a).map_err(|err| entry.wrap(err))?;
+            }
         }
+        let meta = Meta {
+            source,
+            from_memory: e.from_memory,
+            origin: loc.file.to_string(),
+            form_ion_sizes: form_sizes,
+            molar_mass: None,
+        };
+        self.place(DataKind::Protolyte, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_protolyte_with(p, syn, meta)
+        })
     }
-    for r in ions::IONS {
-        let built = Ion::new(r.name, r.charge)
-            .map(|i| i.with_formula(r.formula))
-            .and_then(|i| match r.ion_size_angstrom {
-                Some(a) => i.with_ion_size_angstrom(a),
-                None => Ok(i),
-            });
-        match built {
-            Ok(i) => cat.insert_ion(i, r.synonyms, r.source, r.from_memory),
-            Err(e) => cat.problems.push(format!("ion {}: {e}", r.name)),
+
+    fn apply_ion(&mut self, spanned: &Spanned<IonEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Ion, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let mut ion = Ion::new(&e.name, e.charge).map_err(|err| entry.wrap(err))?;
+        if let Some(f) = &e.formula {
+            ion = ion.with_formula(f);
         }
-    }
-    for r in reagents::REAGENTS {
-        let parts: Result<Vec<(Constituent, u32)>> = r
-            .parts
-            .iter()
-            .map(|(p, n)| {
-                let c = match p {
-                    PartRecord::Form { family, protons } => Constituent::Form {
-                        protolyte: cat.protolyte(family)?,
-                        protons: *protons as usize,
-                    },
-                    PartRecord::Ion(name) => Constituent::Ion(cat.ion(name)?),
-                    PartRecord::Proton => Constituent::Proton,
-                    PartRecord::Hydroxide => Constituent::Hydroxide,
-                };
-                Ok((c, *n))
-            })
-            .collect();
-        match parts.and_then(|p| Reagent::new(r.name, Some(r.molar_mass_g_per_mol), p)) {
-            Ok(x) => cat.insert_reagent(x.with_formula(r.formula), r.synonyms, r.source),
-            Err(e) => cat.problems.push(format!("reagent {}: {e}", r.name)),
+        if let Some(a) = e.ion_size_angstrom {
+            ion = ion.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
         }
+        let meta = Meta {
+            source,
+            from_memory: e.from_memory,
+            origin: loc.file.to_string(),
+            form_ion_sizes: Vec::new(),
+            molar_mass: None,
+        };
+        self.place(DataKind::Ion, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_ion_with(ion, syn, meta)
+        })
     }
-    for r in complexes::COMPLEXES {
-        let parts: Result<Vec<(ComplexPart, i32)>> = r
-            .parts
-            .iter()
-            .map(|(p, n)| {
-                let c = match p {
-                    ComplexPartRecord::Base(f) => ComplexPart::Base(cat.protolyte(f)?),
-                    ComplexPartRecord::Ion(i) => ComplexPart::Ion(cat.ion(i)?),
-                    ComplexPartRecord::Proton => ComplexPart::Proton,
-                };
-                Ok((c, *n))
-            })
-            .collect();
-        let built = parts.and_then(|p| Complex::new(r.name, p, r.log_beta)).and_then(|c| {
-            let c = c.with_source(r.source);
-            let c = match r.dh_kj_per_mol {
-                Some(h) => c.with_enthalpy_kj_per_mol(h)?,
-                None => c,
+
+    fn apply_reagent(&mut self, spanned: &Spanned<ReagentEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Reagent, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let mut parts = Vec::with_capacity(e.parts.len());
+        for (k, part) in e.parts.iter().enumerate() {
+            let at = PartAt {
+                loc,
+                entry: &entry,
+                span: part.span(),
+                k,
             };
-            match r.ion_size_angstrom {
-                Some(a) => c.with_ion_size_angstrom(a),
-                None => Ok(c),
-            }
-        });
-        match built {
-            Ok(c) => cat.insert_complex(c, &[], r.source, r.from_memory),
-            Err(e) => cat.problems.push(format!("complex {}: {e}", r.name)),
+            let p = part.get_ref();
+            let c = match read_part(p, &at)? {
+                PartRef::Family(f, protons) => Constituent::Form {
+                    protolyte: self.protolyte(f).map_err(|err| at.error("family", err))?,
+                    protons: protons as usize,
+                },
+                PartRef::Ion(i) => Constituent::Ion(self.ion(i).map_err(|err| at.error("ion", err))?),
+                PartRef::Proton => Constituent::Proton,
+                PartRef::Hydroxide => Constituent::Hydroxide,
+                PartRef::Base(_) => {
+                    return Err(at.error(
+                        "base",
+                        "a reagent names a family form as { family = \"...\", protons = n }",
+                    ));
+                }
+            };
+            let n = read_count(p, &at)?;
+            let n = u32::try_from(n).map_err(|_| at.error("count", format!("a reagent's counts are positive, got {n}")))?;
+            parts.push((c, n));
         }
+        let computed = e.formula.as_deref().and_then(|f| formula::molar_mass_g_per_mol(f, 0));
+        if let (Some(stored), Some(m)) = (e.molar_mass_g_per_mol, computed)
+            && (stored - m).abs() > 1e-3 * m
+        {
+            return Err(entry.error(
+                "molar_mass_g_per_mol",
+                format!(
+                    "{stored} g/mol disagrees with {m:.3} g/mol computed from the formula {} (IUPAC 2021 atomic weights)",
+                    e.formula.as_deref().unwrap_or("")
+                ),
+            ));
+        }
+        let mut r = Reagent::new(&e.name, e.molar_mass_g_per_mol.or(computed), parts).map_err(|err| entry.wrap(err))?;
+        if let Some(f) = &e.formula {
+            r = r.with_formula(f);
+        }
+        let meta = Meta {
+            source,
+            from_memory: e.from_memory,
+            origin: loc.file.to_string(),
+            form_ion_sizes: Vec::new(),
+            molar_mass: computed,
+        };
+        self.place(DataKind::Reagent, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_reagent_with(r, syn, meta)
+        })
     }
-    cat
+
+    fn apply_complex(&mut self, spanned: &Spanned<ComplexEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Complex, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let mut parts = Vec::with_capacity(e.parts.len());
+        for (k, part) in e.parts.iter().enumerate() {
+            let at = PartAt {
+                loc,
+                entry: &entry,
+                span: part.span(),
+                k,
+            };
+            let p = part.get_ref();
+            let c = match read_part(p, &at)? {
+                PartRef::Base(f) => ComplexPart::Base(self.protolyte(f).map_err(|err| at.error("base", err))?),
+                PartRef::Ion(i) => ComplexPart::Ion(self.ion(i).map_err(|err| at.error("ion", err))?),
+                PartRef::Proton => ComplexPart::Proton,
+                PartRef::Family(..) => {
+                    return Err(at.error(
+                        "family",
+                        "a complex names its ligand by the fully deprotonated form: { base = \"...\" }",
+                    ));
+                }
+                PartRef::Hydroxide => {
+                    return Err(at.error(
+                        "hydroxide",
+                        "a hydroxo complex loses protons: write { proton = -1 } for each OH",
+                    ));
+                }
+            };
+            parts.push((c, read_count(p, &at)?));
+        }
+        let mut c = Complex::new(&e.name, parts, e.log_beta)
+            .map_err(|err| entry.wrap(err))?
+            .with_source(&source);
+        if let Some(h) = e.dh_kj_per_mol {
+            c = c.with_enthalpy_kj_per_mol(h).map_err(|err| entry.wrap(err))?;
+        }
+        if let Some(a) = e.ion_size_angstrom {
+            c = c.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
+        }
+        let meta = Meta {
+            source,
+            from_memory: e.from_memory,
+            origin: loc.file.to_string(),
+            form_ion_sizes: Vec::new(),
+            molar_mass: None,
+        };
+        self.place(DataKind::Complex, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_complex_with(c, syn, meta)
+        })
+    }
 }
+
+/// An entry being read: where it is, for errors.
+struct Entry<'a> {
+    loc: &'a Located<'a>,
+    span: std::ops::Range<usize>,
+    kind: DataKind,
+    name: &'a str,
+}
+
+impl<'a> Entry<'a> {
+    fn new(loc: &'a Located<'a>, span: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
+        Entry { loc, span, kind, name }
+    }
+
+    fn label(&self) -> String {
+        format!("{} `{}`", self.kind.table(), self.name)
+    }
+
+    fn error(&self, field: &str, message: impl std::fmt::Display) -> Error {
+        let key = field.split(['[', '.']).next().unwrap_or(field);
+        let line = self.loc.line_of_key(&self.span, key);
+        self.loc.error(line, &self.label(), field, message)
+    }
+
+    /// A definition's own error, attributed to the field it is about.
+    fn wrap(&self, err: Error) -> Error {
+        let field = match &err {
+            Error::InvalidParameter { parameter, .. } => match *parameter {
+                "pKa" => "steps",
+                "ΔH° (kJ/mol)" if self.kind == DataKind::Protolyte => "steps",
+                "ΔCp° (J/(mol·K))" => "steps",
+                "ΔH° (kJ/mol)" => "dh_kj_per_mol",
+                "ion size (Å)" => "ion_size_angstrom",
+                "log β" => "log_beta",
+                "molar mass (g/mol)" => "molar_mass_g_per_mol",
+                _ => "",
+            },
+            Error::NotElectroneutral { .. } => "parts",
+            Error::InconsistentDefinition { reason, .. } if reason.contains("step") => "steps",
+            Error::InconsistentDefinition { reason, .. } if reason.contains("charge") => match self.kind {
+                DataKind::Protolyte => "charge_most_protonated",
+                DataKind::Ion => "charge",
+                _ => "parts",
+            },
+            Error::InconsistentDefinition { reason, .. } if reason.contains("name") => "name",
+            _ => "parts",
+        };
+        let field = if field.is_empty() { "name" } else { field };
+        self.error(field, err)
+    }
+}
+
+/// One part of a reagent or complex being read.
+struct PartAt<'a> {
+    loc: &'a Located<'a>,
+    entry: &'a Entry<'a>,
+    span: std::ops::Range<usize>,
+    k: usize,
+}
+
+impl PartAt<'_> {
+    fn error(&self, key: &str, message: impl std::fmt::Display) -> Error {
+        self.loc.error(
+            self.loc.line_of(self.span.start),
+            &self.entry.label(),
+            &format!("parts[{}].{key}", self.k),
+            message,
+        )
+    }
+}
+
+enum PartRef<'a> {
+    Family(&'a str, u32),
+    Base(&'a str),
+    Ion(&'a str),
+    Proton,
+    Hydroxide,
+}
+
+/// Which part this is; exactly one of `family`, `base`, `ion`, `proton`, `hydroxide`.
+fn read_part<'a>(p: &'a PartEntry, at: &PartAt) -> Result<PartRef<'a>> {
+    let given = [
+        p.family.is_some(),
+        p.base.is_some(),
+        p.ion.is_some(),
+        p.proton.is_some(),
+        p.hydroxide.is_some(),
+    ];
+    if given.iter().filter(|&&g| g).count() != 1 {
+        return Err(at.error(
+            "",
+            "a part is exactly one of { family = \"...\", protons = n }, { base = \"...\" }, { ion = \"...\" }, { proton = n }, { hydroxide = n }",
+        ));
+    }
+    if p.protons.is_some() && p.family.is_none() {
+        return Err(at.error("protons", "only a family part takes `protons`"));
+    }
+    if p.count.is_some() && (p.proton.is_some() || p.hydroxide.is_some()) {
+        return Err(at.error("count", "a proton or hydroxide part gives its count as its value"));
+    }
+    Ok(if let Some(f) = &p.family {
+        let protons = p
+            .protons
+            .ok_or_else(|| at.error("protons", "a family part says how many protons the form holds"))?;
+        PartRef::Family(f, protons)
+    } else if let Some(b) = &p.base {
+        PartRef::Base(b)
+    } else if let Some(i) = &p.ion {
+        PartRef::Ion(i)
+    } else if p.proton.is_some() {
+        PartRef::Proton
+    } else {
+        PartRef::Hydroxide
+    })
+}
+
+/// The count of a part: `count` (default 1), or the value of `proton` / `hydroxide`.
+fn read_count(p: &PartEntry, at: &PartAt) -> Result<i32> {
+    let n = p.proton.or(p.hydroxide).or(p.count).unwrap_or(1);
+    if n == 0 {
+        return Err(at.error("count", "a count of 0"));
+    }
+    Ok(n)
+}
+
+#[cfg(test)]
+mod tests;

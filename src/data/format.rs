@@ -1,0 +1,179 @@
+//! The catalogue file format, `protolyte-catalog/1` (documented for users in
+//! `docs/catalog-format.md`): the shapes of a file as read, and where in the text each field
+//! sits (for errors that name the line).
+
+use std::collections::BTreeMap;
+use std::ops::Range;
+
+use serde::Deserialize;
+use toml::Spanned;
+
+use crate::error::Error;
+
+/// The format tag every catalogue file carries.
+pub(crate) const CATALOG_FORMAT: &str = "protolyte-catalog/1";
+
+/// One catalogue file.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct CatalogFile {
+    pub format: Option<Spanned<String>>,
+    /// Citations by key, for entries that `cite` them.
+    #[serde(default)]
+    pub sources: BTreeMap<String, String>,
+    #[serde(default)]
+    pub family: Vec<Spanned<FamilyEntry>>,
+    #[serde(default)]
+    pub ion: Vec<Spanned<IonEntry>>,
+    #[serde(default)]
+    pub reagent: Vec<Spanned<ReagentEntry>>,
+    #[serde(default)]
+    pub complex: Vec<Spanned<ComplexEntry>>,
+}
+
+/// An acid–base family.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct FamilyEntry {
+    pub name: String,
+    #[serde(default)]
+    pub synonyms: Vec<String>,
+    pub formula: Option<String>,
+    pub charge_most_protonated: i32,
+    pub steps: Vec<Spanned<StepEntry>>,
+    pub ion_size_angstrom: Option<f64>,
+    pub form_ion_sizes_angstrom: Option<Vec<f64>>,
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    #[serde(default)]
+    pub from_memory: bool,
+    #[serde(default)]
+    pub replace: bool,
+}
+
+/// One dissociation step.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct StepEntry {
+    pub pka: f64,
+    pub dh_kj_per_mol: Option<f64>,
+    pub dcp_j_per_mol_k: Option<f64>,
+}
+
+/// A simple ion.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct IonEntry {
+    pub name: String,
+    #[serde(default)]
+    pub synonyms: Vec<String>,
+    pub formula: Option<String>,
+    pub charge: i32,
+    pub ion_size_angstrom: Option<f64>,
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    #[serde(default)]
+    pub from_memory: bool,
+    #[serde(default)]
+    pub replace: bool,
+}
+
+/// A reagent.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct ReagentEntry {
+    pub name: String,
+    #[serde(default)]
+    pub synonyms: Vec<String>,
+    pub formula: Option<String>,
+    pub molar_mass_g_per_mol: Option<f64>,
+    pub parts: Vec<Spanned<PartEntry>>,
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    #[serde(default)]
+    pub from_memory: bool,
+    #[serde(default)]
+    pub replace: bool,
+}
+
+/// A complex or ion pair.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct ComplexEntry {
+    pub name: String,
+    #[serde(default)]
+    pub synonyms: Vec<String>,
+    pub parts: Vec<Spanned<PartEntry>>,
+    pub log_beta: f64,
+    pub dh_kj_per_mol: Option<f64>,
+    pub ion_size_angstrom: Option<f64>,
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    #[serde(default)]
+    pub from_memory: bool,
+    #[serde(default)]
+    pub replace: bool,
+}
+
+/// One part of a reagent or complex: exactly one of `family` (with `protons`), `base`, `ion`,
+/// `proton`, `hydroxide`, with `count` (default 1) for the named ones.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct PartEntry {
+    pub family: Option<String>,
+    pub protons: Option<u32>,
+    pub base: Option<String>,
+    pub ion: Option<String>,
+    pub proton: Option<i32>,
+    pub hydroxide: Option<i32>,
+    pub count: Option<i32>,
+}
+
+/// Where a file's text is: its name and the start of each line, for line numbers.
+pub(crate) struct Located<'a> {
+    pub file: &'a str,
+    pub text: &'a str,
+}
+
+impl Located<'_> {
+    /// The 1-based line of byte offset `at`.
+    pub fn line_of(&self, at: usize) -> usize {
+        let at = at.min(self.text.len());
+        self.text.as_bytes()[..at].iter().filter(|&&b| b == b'\n').count() + 1
+    }
+
+    /// The line where `key = ...` is written inside `span` (an entry), else the entry's first line.
+    pub fn line_of_key(&self, span: &Range<usize>, key: &str) -> usize {
+        let end = span.end.min(self.text.len());
+        let start = span.start.min(end);
+        let body = &self.text[start..end];
+        let mut offset = start;
+        for line in body.split_inclusive('\n') {
+            let t = line.trim_start().trim_start_matches(['{', ',', ' ']);
+            if let Some(rest) = t.strip_prefix(key)
+                && rest.trim_start().starts_with('=')
+            {
+                return self.line_of(offset);
+            }
+            // Inline tables: `{ pka = 4.1, dh_kj_per_mol = ... }`.
+            if let Some(i) = line.find(&format!(" {key} =")).or_else(|| line.find(&format!("{{{key} =")))
+                && !line.trim_start().starts_with('#')
+            {
+                return self.line_of(offset + i);
+            }
+            offset += line.len();
+        }
+        self.line_of(span.start)
+    }
+
+    /// An error at `line` for `entry`'s `field`.
+    pub fn error(&self, line: usize, entry: &str, field: &str, message: impl std::fmt::Display) -> Error {
+        Error::CatalogFile {
+            file: self.file.to_string(),
+            line,
+            entry: entry.to_string(),
+            field: field.to_string(),
+            message: message.to_string(),
+        }
+    }
+}
