@@ -94,9 +94,9 @@ pub mod water;
 
 pub use activity::{ActivityModel, DebyeHuckelConstants};
 pub use complex::{Complex, ComplexPart};
-pub use data::{Catalog, DataInfo, DataKind};
+pub use data::{Catalog, DataInfo, DataKind, FormInfo};
 pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState, Warning};
-pub use error::{Error, Result};
+pub use error::{CatalogFileError, Error, Result};
 pub use ion::Ion;
 pub use protolyte::{Protolyte, Step};
 pub use quantity::{Amount, Mass, Temperature, Volume};

@@ -8,7 +8,7 @@ use std::ops::Range;
 use serde::Deserialize;
 use toml::Spanned;
 
-use crate::error::Error;
+use crate::error::{CatalogFileError, Error};
 
 /// The format tag every catalogue file carries.
 pub(crate) const CATALOG_FORMAT: &str = "protolyte-catalog/1";
@@ -156,7 +156,9 @@ impl Located<'_> {
                 return self.line_of(offset);
             }
             // Inline tables: `{ pka = 4.1, dh_kj_per_mol = ... }`.
-            if let Some(i) = line.find(&format!(" {key} =")).or_else(|| line.find(&format!("{{{key} =")))
+            if let Some(i) = line
+                .find(&format!(" {key} ="))
+                .or_else(|| line.find(&format!("{{{key} =")))
                 && !line.trim_start().starts_with('#')
             {
                 return self.line_of(offset + i);
@@ -168,12 +170,12 @@ impl Located<'_> {
 
     /// An error at `line` for `entry`'s `field`.
     pub fn error(&self, line: usize, entry: &str, field: &str, message: impl std::fmt::Display) -> Error {
-        Error::CatalogFile {
+        Error::CatalogFile(Box::new(CatalogFileError {
             file: self.file.to_string(),
             line,
             entry: entry.to_string(),
             field: field.to_string(),
             message: message.to_string(),
-        }
+        }))
     }
 }

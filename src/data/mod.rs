@@ -9,18 +9,6 @@
 mod format;
 mod formula;
 
-// The Rust tables the data files were converted from, for the test that compares them.
-#[cfg(test)]
-mod complexes;
-#[cfg(test)]
-mod ions;
-#[cfg(test)]
-mod protolytes;
-#[cfg(test)]
-mod reagents;
-#[cfg(test)]
-mod records;
-
 use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 use std::sync::OnceLock;
@@ -29,7 +17,7 @@ use format::{CATALOG_FORMAT, CatalogFile, ComplexEntry, FamilyEntry, IonEntry, L
 use toml::Spanned;
 
 use crate::complex::{Complex, ComplexPart};
-use crate::error::{Error, Result, check_ion_size};
+use crate::error::{CatalogFileError, Error, Result, check_ion_size};
 use crate::ion::Ion;
 use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
@@ -255,12 +243,14 @@ impl Catalog {
     pub fn with_file(mut self, path: impl AsRef<Path>) -> Result<Self> {
         let path = path.as_ref();
         let name = path.display().to_string();
-        let text = std::fs::read_to_string(path).map_err(|e| Error::CatalogFile {
-            file: name.clone(),
-            line: 0,
-            entry: String::new(),
-            field: String::new(),
-            message: format!("cannot read: {e}"),
+        let text = std::fs::read_to_string(path).map_err(|e| {
+            Error::CatalogFile(Box::new(CatalogFileError {
+                file: name.clone(),
+                line: 0,
+                entry: String::new(),
+                field: String::new(),
+                message: format!("cannot read: {e}"),
+            }))
         })?;
         self.load_toml_str(&text, &name)?;
         Ok(self)
@@ -310,7 +300,10 @@ impl Catalog {
                     loc.line_of(f.span().start),
                     "",
                     "format",
-                    format!("`{}` is not a catalogue format this version reads (`{CATALOG_FORMAT}`)", f.get_ref()),
+                    format!(
+                        "`{}` is not a catalogue format this version reads (`{CATALOG_FORMAT}`)",
+                        f.get_ref()
+                    ),
                 ));
             }
             Some(_) => {}
@@ -765,7 +758,12 @@ impl Catalog {
         let mut sources = self.sources.clone();
         for (k, v) in &file.sources {
             if v.trim().is_empty() {
-                return Err(loc.error(loc.line_of_key(&(0..loc.text.len()), k), "", "sources", format!("`{k}` is empty")));
+                return Err(loc.error(
+                    loc.line_of_key(&(0..loc.text.len()), k),
+                    "",
+                    "sources",
+                    format!("`{k}` is empty"),
+                ));
             }
             sources.insert(k.clone(), v.clone());
         }
@@ -829,10 +827,9 @@ impl Catalog {
         }
         let refs: Vec<&str> = all.iter().map(String::as_str).collect();
         add(self, &refs).map_err(|e| match e {
-            Error::InconsistentDefinition { reason, .. } if reason.contains("already in the catalog") => entry.error(
-                "name",
-                format!("{reason}; write `replace = true` to replace it"),
-            ),
+            Error::InconsistentDefinition { reason, .. } if reason.contains("already in the catalog") => {
+                entry.error("name", format!("{reason}; write `replace = true` to replace it"))
+            }
             e => entry.wrap(e),
         })?;
         if replace {
@@ -964,7 +961,8 @@ impl Catalog {
                 }
             };
             let n = read_count(p, &at)?;
-            let n = u32::try_from(n).map_err(|_| at.error("count", format!("a reagent's counts are positive, got {n}")))?;
+            let n =
+                u32::try_from(n).map_err(|_| at.error("count", format!("a reagent's counts are positive, got {n}")))?;
             parts.push((c, n));
         }
         let computed = e.formula.as_deref().and_then(|f| formula::molar_mass_g_per_mol(f, 0));
@@ -1172,6 +1170,3 @@ fn read_count(p: &PartEntry, at: &PartAt) -> Result<i32> {
     }
     Ok(n)
 }
-
-#[cfg(test)]
-mod tests;
