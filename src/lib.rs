@@ -94,7 +94,7 @@ pub mod water;
 
 pub use activity::{ActivityModel, DebyeHuckelConstants};
 pub use complex::{Complex, ComplexPart};
-pub use data::{Catalog, DataInfo, DataKind, FormInfo};
+pub use data::{Catalog, DataInfo, DataKind, FormInfo, molar_mass_from_formula};
 pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState, Warning};
 pub use error::{CatalogFileError, Error, Result};
 pub use ion::Ion;

@@ -80,6 +80,30 @@ fn atomic_weight(symbol: &str) -> Option<f64> {
     ATOMIC_WEIGHTS.iter().find(|(s, _)| *s == symbol).map(|&(_, w)| w)
 }
 
+/// The molar mass (g/mol) of a chemical formula, from the IUPAC 2021 abridged standard atomic
+/// weights (T. Prohaska et al., Pure Appl. Chem. 94 (2022) 573; conventional values for the
+/// elements whose weight is an interval).
+///
+/// `formula` may hold parentheses or brackets with counts, hydrate or adduct parts after `·`,
+/// `.` or `*` with a leading multiplier, and at its end the charge `charge` (`Ca2+`, `CO3^2-`,
+/// `H2PO4-`; nothing for 0). The mass of the electrons is neglected (common practice).
+///
+/// ```
+/// use protolyte::molar_mass_from_formula;
+/// let m = molar_mass_from_formula("CuSO4·5H2O", 0)?;
+/// assert!((m - 249.677).abs() < 1e-9);
+/// assert!(molar_mass_from_formula("Tris", 0).is_err());
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+pub fn molar_mass_from_formula(formula: &str, charge: i32) -> crate::Result<f64> {
+    molar_mass_g_per_mol(formula, charge).ok_or_else(|| crate::Error::InconsistentDefinition {
+        name: formula.to_string(),
+        reason: format!(
+            "not a formula of known elements with charge {charge} written at its end (e.g. NaCl, CuSO4·5H2O, CO3^2-)"
+        ),
+    })
+}
+
 /// The molar mass (g/mol) of `formula` with the given `charge` written at its end (or not
 /// written, for charge 0), or `None` when the text is not a formula of known elements or its
 /// written charge differs.

@@ -9,6 +9,8 @@
 mod format;
 mod formula;
 
+pub use formula::molar_mass_from_formula;
+
 use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 use std::sync::OnceLock;
