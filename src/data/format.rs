@@ -40,7 +40,7 @@ pub(crate) struct FamilyEntry {
     pub synonyms: Vec<String>,
     pub formula: Option<String>,
     pub charge_most_protonated: i32,
-    pub steps: Vec<Spanned<StepEntry>>,
+    pub steps: Vec<StepEntry>,
     pub ion_size_angstrom: Option<f64>,
     pub form_ion_sizes_angstrom: Option<Vec<f64>>,
     pub source: Option<String>,
@@ -87,7 +87,7 @@ pub(crate) struct ReagentEntry {
     pub synonyms: Vec<String>,
     pub formula: Option<String>,
     pub molar_mass_g_per_mol: Option<f64>,
-    pub parts: Vec<Spanned<PartEntry>>,
+    pub parts: Vec<PartEntry>,
     pub source: Option<String>,
     pub cite: Option<String>,
     #[serde(default)]
@@ -103,7 +103,7 @@ pub(crate) struct ComplexEntry {
     pub name: String,
     #[serde(default)]
     pub synonyms: Vec<String>,
-    pub parts: Vec<Spanned<PartEntry>>,
+    pub parts: Vec<PartEntry>,
     pub log_beta: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub ion_size_angstrom: Option<f64>,
@@ -166,6 +166,44 @@ impl Located<'_> {
             offset += line.len();
         }
         self.line_of(span.start)
+    }
+
+    /// The line of the `k`-th inline table in the array `key = [...]` inside `span`, else the
+    /// line of `key`.
+    pub fn line_of_item(&self, span: &Range<usize>, key: &str, k: usize) -> usize {
+        let key_line = self.line_of_key(span, key);
+        let end = span.end.min(self.text.len());
+        // Byte offset where the key's line starts.
+        let mut start = 0;
+        for _ in 1..key_line {
+            match self.text[start..].find('\n') {
+                Some(i) => start += i + 1,
+                None => break,
+            }
+        }
+        let (mut depth, mut seen, mut in_str, mut in_comment) = (0usize, 0usize, false, false);
+        for (i, c) in self.text[start.min(end)..end].char_indices() {
+            match c {
+                '\n' => in_comment = false,
+                _ if in_comment => {}
+                '"' => in_str = !in_str,
+                _ if in_str => {}
+                '#' => in_comment = true,
+                '{' => {
+                    if depth == 0 {
+                        if seen == k {
+                            return self.line_of(start + i);
+                        }
+                        seen += 1;
+                    }
+                    depth += 1;
+                }
+                '}' => depth = depth.saturating_sub(1),
+                ']' if depth == 0 => break,
+                _ => {}
+            }
+        }
+        key_line
     }
 
     /// An error at `line` for `entry`'s `field`.

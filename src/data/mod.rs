@@ -157,6 +157,16 @@ pub struct Catalog {
 
 /// Lower case, single spaces, ASCII hyphens.
 fn normalize(s: &str) -> String {
+    // Most names already are (every built-in one): copy them as they are.
+    let plain = s
+        .bytes()
+        .all(|b| (b.is_ascii_graphic() || b == b' ') && !b.is_ascii_uppercase())
+        && !s.starts_with(' ')
+        && !s.ends_with(' ')
+        && !s.contains("  ");
+    if plain {
+        return s.to_string();
+    }
     let s: String = s
         .trim()
         .chars()
@@ -223,7 +233,7 @@ impl Catalog {
     pub fn read_builtin() -> Self {
         let mut cat = Catalog::empty();
         for (name, text) in BUILTIN_FILES {
-            if let Err(e) = cat.load_toml_str(text, &format!("built-in {name}")) {
+            if let Err(e) = cat.load(text, &format!("built-in {name}"), false) {
                 cat.problems.push(e.to_string());
             }
         }
@@ -283,6 +293,12 @@ impl Catalog {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn load_toml_str(&mut self, text: &str, origin: &str) -> Result<()> {
+        self.load(text, origin, true)
+    }
+
+    /// Reads catalogue text; `atomic` leaves the catalog unchanged when an entry is refused
+    /// (the built-in files need no copy: a refused entry there is a data bug, tested for).
+    fn load(&mut self, text: &str, origin: &str, atomic: bool) -> Result<()> {
         let loc = Located { file: origin, text };
         let file: CatalogFile = toml::from_str(text).map_err(|e| {
             let line = e.span().map(|s| loc.line_of(s.start)).unwrap_or(1);
@@ -310,10 +326,14 @@ impl Catalog {
             }
             Some(_) => {}
         }
-        let mut next = self.clone();
-        next.apply(file, &loc)?;
-        *self = next;
-        Ok(())
+        if atomic {
+            let mut next = self.clone();
+            next.apply(file, &loc)?;
+            *self = next;
+            Ok(())
+        } else {
+            self.apply(file, &loc)
+        }
     }
 
     /// This catalog with the entries of catalogue text `text` added (see [`Catalog::load_toml_str`]).
@@ -417,7 +437,7 @@ impl Catalog {
 
     fn check_new(&self, kind: DataKind, names: &[&str]) -> Result<()> {
         for n in names {
-            if self.find(kind, n).is_ok() {
+            if self.index.contains_key(&(kind, normalize(n))) {
                 return Err(Error::InconsistentDefinition {
                     name: n.to_string(),
                     reason: format!("a {} of that name is already in the catalog", kind.name()),
@@ -850,27 +870,24 @@ impl Catalog {
         let entry = Entry::new(loc, spanned.span(), DataKind::Protolyte, &e.name);
         let source = self.citation(&entry, &e.source, &e.cite)?;
         for (k, pair) in e.steps.windows(2).enumerate() {
-            let (a, b) = (pair[0].get_ref().pka, pair[1].get_ref().pka);
+            let (a, b) = (pair[0].pka, pair[1].pka);
             if b < a {
                 return Err(loc.error(
-                    loc.line_of(pair[1].span().start),
+                    loc.line_of_item(&entry.span, "steps", k + 1),
                     &entry.label(),
                     &format!("steps[{}].pka", k + 1),
                     format!("pKa values ascend, most protonated form first: {b} follows {a}"),
                 ));
             }
         }
-        let pkas: Vec<f64> = e.steps.iter().map(|s| s.get_ref().pka).collect();
+        let pkas: Vec<f64> = e.steps.iter().map(|s| s.pka).collect();
         let steps: Vec<Step> = e
             .steps
             .iter()
-            .map(|s| {
-                let s = s.get_ref();
-                Step {
-                    pka: s.pka,
-                    dh_kj_per_mol: s.dh_kj_per_mol,
-                    dcp_j_per_mol_k: s.dcp_j_per_mol_k,
-                }
+            .map(|s| Step {
+                pka: s.pka,
+                dh_kj_per_mol: s.dh_kj_per_mol,
+                dcp_j_per_mol_k: s.dcp_j_per_mol_k,
             })
             .collect();
         let mut p = Protolyte::new(&e.name, &pkas, e.charge_most_protonated)
@@ -940,13 +957,8 @@ impl Catalog {
         let source = self.citation(&entry, &e.source, &e.cite)?;
         let mut parts = Vec::with_capacity(e.parts.len());
         for (k, part) in e.parts.iter().enumerate() {
-            let at = PartAt {
-                loc,
-                entry: &entry,
-                span: part.span(),
-                k,
-            };
-            let p = part.get_ref();
+            let at = PartAt { loc, entry: &entry, k };
+            let p = part;
             let c = match read_part(p, &at)? {
                 PartRef::Family(f, protons) => Constituent::Form {
                     protolyte: self.protolyte(f).map_err(|err| at.error("family", err))?,
@@ -1001,13 +1013,8 @@ impl Catalog {
         let source = self.citation(&entry, &e.source, &e.cite)?;
         let mut parts = Vec::with_capacity(e.parts.len());
         for (k, part) in e.parts.iter().enumerate() {
-            let at = PartAt {
-                loc,
-                entry: &entry,
-                span: part.span(),
-                k,
-            };
-            let p = part.get_ref();
+            let at = PartAt { loc, entry: &entry, k };
+            let p = part;
             let c = match read_part(p, &at)? {
                 PartRef::Base(f) => ComplexPart::Base(self.protolyte(f).map_err(|err| at.error("base", err))?),
                 PartRef::Ion(i) => ComplexPart::Ion(self.ion(i).map_err(|err| at.error("ion", err))?),
@@ -1104,14 +1111,13 @@ impl<'a> Entry<'a> {
 struct PartAt<'a> {
     loc: &'a Located<'a>,
     entry: &'a Entry<'a>,
-    span: std::ops::Range<usize>,
     k: usize,
 }
 
 impl PartAt<'_> {
     fn error(&self, key: &str, message: impl std::fmt::Display) -> Error {
         self.loc.error(
-            self.loc.line_of(self.span.start),
+            self.loc.line_of_item(&self.entry.span, "parts", self.k),
             &self.entry.label(),
             &format!("parts[{}].{key}", self.k),
             message,
