@@ -142,6 +142,17 @@ impl Located<'_> {
         self.text.as_bytes()[..at].iter().filter(|&&b| b == b'\n').count() + 1
     }
 
+    /// The text range of the entry whose `[[table]]` header spans `header`: up to the next
+    /// table header written at the start of a line, or the end of the file.
+    pub fn entry_range(&self, header: Range<usize>) -> Range<usize> {
+        let from = header.end.min(self.text.len());
+        let end = self.text[from..]
+            .find("\n[")
+            .map(|i| from + i + 1)
+            .unwrap_or(self.text.len());
+        header.start..end
+    }
+
     /// The line where `key = ...` is written inside `span` (an entry), else the entry's first line.
     pub fn line_of_key(&self, span: &Range<usize>, key: &str) -> usize {
         let end = span.end.min(self.text.len());

@@ -1066,6 +1066,7 @@ struct Entry<'a> {
 
 impl<'a> Entry<'a> {
     fn new(loc: &'a Located<'a>, span: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
+        let span = loc.entry_range(span);
         Entry { loc, span, kind, name }
     }
 
