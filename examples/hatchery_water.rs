@@ -46,7 +46,7 @@ fn main() -> Result<(), protolyte::Error> {
             eq.ph(),
             eq.p_h_molal(),
             eq.ionic_strength_molal(),
-            eq.residuals().max_balance_relative()
+            eq.residuals().max_relative()
         );
     }
 

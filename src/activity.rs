@@ -33,11 +33,12 @@ pub const DAVIES_LINEAR_COEFFICIENT: f64 = 0.3;
 /// ```
 /// use protolyte::{ActivityModel, DebyeHuckelConstants, Temperature};
 ///
-/// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0));
+/// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0))?;
 /// // Davies at I = 0.1 mol/kg for a singly charged ion: γ ≈ 0.78.
 /// let lg = ActivityModel::Davies.log10_gamma(1, 4.0, 0.1, &dh);
 /// assert!((10f64.powf(lg) - 0.78).abs() < 0.01);
 /// assert_eq!(ActivityModel::Ideal.log10_gamma(2, 4.0, 0.1, &dh), 0.0);
+/// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub enum ActivityModel {
@@ -152,9 +153,10 @@ impl GammaProfile {
 /// ```
 /// use protolyte::{DebyeHuckelConstants, Temperature};
 ///
-/// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0));
+/// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0))?;
 /// assert!((dh.a - 0.511).abs() < 0.003);
 /// assert!((dh.b - 0.329).abs() < 0.002);
+/// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct DebyeHuckelConstants {
@@ -165,14 +167,16 @@ pub struct DebyeHuckelConstants {
 }
 
 impl DebyeHuckelConstants {
-    /// A and B at temperature `t`.
-    pub fn at(t: Temperature) -> Self {
-        let eps = water::dielectric_constant(t);
-        let rho = water::density_kg_per_l(t);
+    /// A and B at temperature `t`. Refuses a temperature outside 0–100 °C (the range of
+    /// the water properties they are built from) with
+    /// [`Error::OutOfDomain`](crate::Error::OutOfDomain).
+    pub fn at(t: Temperature) -> crate::Result<Self> {
+        let eps = water::dielectric_constant(t)?;
+        let rho = water::density_kg_per_l(t)?;
         let et = eps * t.kelvin();
-        DebyeHuckelConstants {
+        Ok(DebyeHuckelConstants {
             a: 1.82483e6 * rho.sqrt() / (et * et.sqrt()),
             b: 50.2916 * rho.sqrt() / et.sqrt(),
-        }
+        })
     }
 }

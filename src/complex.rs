@@ -1,8 +1,9 @@
 //! Complexes and ion pairs: species built from several components with an overall
 //! formation constant (one more row of the tableau).
 
-use crate::error::{Error, Result, check_ion_size, check_parameter};
+use crate::error::{Error, Result, check_int, check_ion_size, check_parameter};
 use crate::ion::Ion;
+use crate::limits::{MAX_COMPLEX_CHARGE, MAX_COMPLEX_PARTS, MAX_COMPLEX_PROTONS, MAX_PART_COUNT};
 use crate::protolyte::Protolyte;
 
 /// One building block of a complex.
@@ -57,7 +58,11 @@ impl Complex {
     /// Refuses an empty name, a complex with fewer than two non-proton parts unless it is
     /// one simple ion with H⁺ gained or lost (a hydrolysis product such as CuOH⁺; a species
     /// of one family alone belongs in the [`Protolyte`]), zero counts, non-proton parts with
-    /// negative counts, and a log β that is not finite or beyond ±100.
+    /// negative counts, and a log β that is not finite or beyond ±100. The integer ranges of
+    /// [`limits`](crate::limits) are enforced with [`Error::IntegerOutOfRange`]: at most
+    /// [`MAX_COMPLEX_PARTS`] part entries, each non-proton count 1..=[`MAX_PART_COUNT`], and
+    /// on the complex as a whole (all parts together) at most [`MAX_COMPLEX_PROTONS`] H⁺
+    /// gained or lost and a charge within ±[`MAX_COMPLEX_CHARGE`].
     pub fn new(name: &str, parts: Vec<(ComplexPart, i32)>, log10_beta: f64) -> Result<Self> {
         let name = name.trim();
         let bad = |reason: String| Error::InconsistentDefinition {
@@ -71,26 +76,61 @@ impl Complex {
         if name.is_empty() {
             return Err(bad("a complex needs a name".into()));
         }
-        let mut heavy = 0;
-        for (p, n) in &parts {
-            if *n == 0 {
-                return Err(bad("a part with count 0".into()));
+        let label = name.to_string();
+        check_int(
+            &label,
+            "number of parts",
+            i64::try_from(parts.len()).unwrap_or(i64::MAX),
+            1,
+            MAX_COMPLEX_PARTS as i64,
+        )?;
+        let mut heavy: i64 = 0;
+        let mut protons: i64 = 0;
+        let mut charge: i64 = 0;
+        for (k, (p, n)) in parts.iter().enumerate() {
+            let n = i64::from(*n);
+            if n == 0 {
+                return Err(bad(format!("part {} has count 0", k + 1)));
             }
-            if matches!(p, ComplexPart::Proton) && n.abs() > 12 {
-                return Err(bad(format!("{n} protons gained or lost is outside −12..12")));
-            }
-            if !matches!(p, ComplexPart::Proton) {
-                if *n < 0 {
+            if matches!(p, ComplexPart::Proton) {
+                check_int(
+                    &label,
+                    &format!("H⁺ count of part {}", k + 1),
+                    n,
+                    -i64::from(MAX_COMPLEX_PROTONS),
+                    i64::from(MAX_COMPLEX_PROTONS),
+                )?;
+                protons += n;
+            } else {
+                if n < 0 {
                     return Err(bad("only H⁺ may have a negative count".into()));
                 }
+                check_int(
+                    &label,
+                    &format!("count of part {}", k + 1),
+                    n,
+                    1,
+                    i64::from(MAX_PART_COUNT),
+                )?;
                 heavy += n;
             }
+            charge += i64::from(p.charge()) * n;
         }
-        let protons: i32 = parts
-            .iter()
-            .filter(|(p, _)| matches!(p, ComplexPart::Proton))
-            .map(|(_, n)| n)
-            .sum();
+        // The ranges hold for the species as a whole, not only part by part.
+        check_int(
+            &label,
+            "net H⁺ gained or lost (all proton parts together)",
+            protons,
+            -i64::from(MAX_COMPLEX_PROTONS),
+            i64::from(MAX_COMPLEX_PROTONS),
+        )?;
+        check_int(
+            &label,
+            "charge",
+            charge,
+            -i64::from(MAX_COMPLEX_CHARGE),
+            i64::from(MAX_COMPLEX_CHARGE),
+        )?;
         let lone_ion = heavy == 1 && parts.iter().any(|(p, _)| matches!(p, ComplexPart::Ion(_)));
         if heavy == 0 || (heavy == 1 && !(lone_ion && protons != 0)) {
             return Err(bad(

@@ -5,57 +5,13 @@ use std::sync::Arc;
 
 use crate::activity::ActivityModel;
 use crate::error::{Error, Result};
+use crate::limits::{MIN_TOTAL_MOLAL, RESIDUAL_PROMISE, TESTED_MAX_TOTAL_MOLAR};
 use crate::quantity::Temperature;
-use crate::solve::{Evaluation, Point, SolverPath};
+use crate::solve::{Evaluation, Point, Solver, SolverPath};
 use crate::system::System;
+use crate::warning::Warning;
 
 const LN10: f64 = std::f64::consts::LN_10;
-
-/// Something the caller should know about a result that is nevertheless returned.
-#[derive(Debug, Clone, PartialEq)]
-#[non_exhaustive]
-pub enum Warning {
-    /// The ionic strength lies above the stated validity of the activity model.
-    IonicStrengthBeyondModel {
-        /// Ionic strength of the result, mol/kg.
-        ionic_strength_molal: f64,
-        /// The model's stated limit, mol/kg.
-        limit_molal: f64,
-        /// The model.
-        model: ActivityModel,
-    },
-    /// A family or complex was used away from 25 °C without enthalpy data: its 25 °C
-    /// constants were used unchanged.
-    NoEnthalpyData {
-        /// Family or complex name.
-        name: String,
-        /// The temperature of the system, °C.
-        temperature_celsius: f64,
-    },
-}
-
-impl std::fmt::Display for Warning {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match self {
-            Warning::IonicStrengthBeyondModel {
-                ionic_strength_molal,
-                limit_molal,
-                model,
-            } => write!(
-                f,
-                "ionic strength {ionic_strength_molal:.3} mol/kg is above the {} model's stated validity (about {limit_molal} mol/kg); activity coefficients are extrapolated",
-                model.name()
-            ),
-            Warning::NoEnthalpyData {
-                name,
-                temperature_celsius,
-            } => write!(
-                f,
-                "{name}: no enthalpy data, so its 25 °C constants were used unchanged at {temperature_celsius} °C"
-            ),
-        }
-    }
-}
 
 /// One species at equilibrium.
 #[derive(Debug, Clone, PartialEq)]
@@ -105,12 +61,37 @@ pub struct Residuals {
 }
 
 impl Residuals {
-    /// The largest relative residual of the charge and mass balances.
+    /// The largest relative residual of the charge and mass balances (the ionic-strength
+    /// equation left out; see [`Residuals::max_relative`] for every equation).
     pub fn max_balance_relative(&self) -> f64 {
         self.mass_relative
             .iter()
             .map(|(_, v)| v.abs())
             .fold(self.charge_relative.abs(), f64::max)
+    }
+
+    /// The largest relative residual over every equation solved: the charge balance, each
+    /// mass balance and the ionic-strength equation (0 under the ideal model, where the
+    /// ionic strength is reported as the species give it). This is the number the residual
+    /// promise is about: at most [`RESIDUAL_PROMISE`](crate::limits::RESIDUAL_PROMISE) (or
+    /// the solver's tolerance, if set looser) for every returned result, else the result
+    /// carries [`Warning::ResidualAbovePromise`].
+    pub fn max_relative(&self) -> f64 {
+        self.max_balance_relative().max(self.ionic_strength_relative.abs())
+    }
+
+    /// The equation with the largest relative residual and that residual.
+    fn worst(&self) -> (String, f64) {
+        let mut worst = ("charge balance".to_string(), self.charge_relative.abs());
+        for (name, v) in &self.mass_relative {
+            if v.abs() > worst.1 {
+                worst = (format!("mass balance of {name}"), v.abs());
+            }
+        }
+        if self.ionic_strength_relative.abs() > worst.1 {
+            worst = ("ionic-strength equation".into(), self.ionic_strength_relative.abs());
+        }
+        worst
     }
 }
 
@@ -128,7 +109,7 @@ impl Residuals {
 /// assert!((eq.ph() - 2.88).abs() < 0.01);
 /// let acetate = eq.family("acetate").unwrap();
 /// assert!((acetate.fractions.iter().sum::<f64>() - 1.0).abs() < 1e-12);
-/// assert!(eq.residuals().max_balance_relative() < 1e-10);
+/// assert!(eq.residuals().max_relative() < 1e-10);
 /// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, PartialEq)]
@@ -157,8 +138,8 @@ impl Equilibrium {
         ev: Evaluation,
         iterations: usize,
         path: SolverPath,
+        tolerance: f64,
     ) -> Result<Self> {
-        let i = point.ln_i.exp();
         // Charge balance, its scale and the ionic strength, over every species.
         let (mut charge, mut charge_scale, mut ionic) = (0.0, 0.0, 0.0);
         for (s, &m) in ev.conc.iter().enumerate() {
@@ -167,6 +148,9 @@ impl Equilibrium {
             charge_scale += z.abs() * m;
             ionic += 0.5 * z * z * m;
         }
+        // Under the ideal model I is a by-product: reported as the species give it.
+        let ideal = sys.model == ActivityModel::Ideal;
+        let i = if ideal { ionic } else { point.ln_i.exp() };
         let rho = sys.water_density;
         let species: Vec<SpeciesState> = sys
             .species
@@ -185,6 +169,15 @@ impl Equilibrium {
             })
             .collect();
         let ph = -point.y[0] / LN10;
+        // The solver's pH range (both paths bracket ln a(H⁺) there): a solution outside it
+        // is refused rather than returned from one path and not the other.
+        if ph.is_finite() && !(-4.0 - 1e-9..=20.0 + 1e-9).contains(&ph) {
+            return Err(Error::OutOfDomain {
+                what: "pH of the solution",
+                value: ph,
+                domain: "-4..20 (the solver's range)",
+            });
+        }
         let h = species[0].molal;
         let oh = species[1].activity;
         let nc = sys.components.len();
@@ -242,7 +235,7 @@ impl Equilibrium {
                 // any complex that contains it.
                 let mut held: f64 = sys.members[ci].iter().map(|&s| ev.conc[s]).sum();
                 for s in (0..sys.species.len()).filter(|&s| sys.coupling[s]) {
-                    held += sys.stoichiometry(s, ci) * ev.conc[s];
+                    held += sys.nu[s * nc + ci] * ev.conc[s];
                 }
                 mass_relative.push((c.name.clone(), (held - c.total_molal) / c.total_molal));
             }
@@ -251,13 +244,35 @@ impl Equilibrium {
             charge_molal: charge,
             charge_relative: if charge_scale > 0.0 { charge / charge_scale } else { 0.0 },
             mass_relative,
-            ionic_strength_relative: if sys.model == ActivityModel::Ideal {
-                0.0
-            } else {
-                (ionic - i) / i
-            },
+            ionic_strength_relative: if ideal { 0.0 } else { (ionic - i) / i },
         };
         let mut warnings = sys.compile_warnings.clone();
+        for (c, comp) in sys.components.iter().enumerate().skip(1) {
+            if let Some(given) = sys.below_floor[c] {
+                warnings.push(Warning::TotalBelowFloor {
+                    component: comp.name.to_string(),
+                    total_molal: given,
+                    floor_molal: MIN_TOTAL_MOLAL,
+                });
+            }
+            let molar = comp.total_molal * rho;
+            if molar > TESTED_MAX_TOTAL_MOLAR * (1.0 + 1e-12) {
+                warnings.push(Warning::BeyondTestedDomain {
+                    component: comp.name.to_string(),
+                    total_molar: molar,
+                    tested_molar: TESTED_MAX_TOTAL_MOLAR,
+                });
+            }
+        }
+        let promise = RESIDUAL_PROMISE.max(tolerance);
+        let (equation, worst) = residuals.worst();
+        if worst > promise {
+            warnings.push(Warning::ResidualAbovePromise {
+                equation,
+                residual: worst,
+                promise,
+            });
+        }
         if let Some(limit) = sys.model.validity_limit_molal()
             && i > limit
         {
@@ -302,6 +317,7 @@ impl Equilibrium {
                 .iter()
                 .all(|f| f.fractions.iter().all(|v| v.is_finite()) && f.mean_bound_protons.is_finite())
             && self.residuals.charge_relative.is_finite()
+            && self.residuals.ionic_strength_relative.is_finite()
             && self.residuals.mass_relative.iter().all(|(_, v)| v.is_finite());
         if ok {
             Ok(())
@@ -408,5 +424,34 @@ impl Equilibrium {
             y: self.unknowns.clone(),
             ln_i: self.ln_i,
         }
+    }
+}
+
+impl Solver {
+    /// Solves from a cold start.
+    pub fn solve(&self, system: &System) -> Result<Equilibrium> {
+        let (point, ev, iters, path) = self.run(system, None)?;
+        Equilibrium::build(system, point, ev, iters, path, self.tolerance_value())
+    }
+
+    /// Solves starting from a previous equilibrium of a similar system (same components,
+    /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
+    /// does not converge.
+    pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
+        if previous.unknowns().len() == system.components.len()
+            && let Ok((point, ev, iters, path)) =
+                self.run(system, Some((previous.unknowns(), previous.ln_ionic_strength())))
+            && let Ok(eq) = Equilibrium::build(system, point, ev, iters, path, self.tolerance_value())
+        {
+            return Ok(eq);
+        }
+        self.solve(system)
+    }
+}
+
+impl System {
+    /// Solves the system with the default [`Solver`].
+    pub fn solve(&self) -> Result<Equilibrium> {
+        Solver::default().solve(self)
     }
 }

@@ -20,7 +20,10 @@ use thiserror::Error;
 #[non_exhaustive]
 pub enum Error {
     /// An amount, concentration, mass or volume was negative, NaN or infinite.
-    #[error("invalid amount for {what}: {value} {unit} (amounts must be finite and not negative)")]
+    #[error(
+        "invalid amount for {}: {value} {unit} (amounts must be finite and not negative)",
+        quote(what)
+    )]
     InvalidAmount {
         /// What the amount belongs to.
         what: String,
@@ -30,7 +33,7 @@ pub enum Error {
         unit: &'static str,
     },
     /// A parameter (pKa, enthalpy, ion size, log β, ...) was out of range or not finite.
-    #[error("invalid {parameter} for {what}: {value} ({reason})")]
+    #[error("invalid {parameter} for {}: {value} ({reason})", quote(what))]
     InvalidParameter {
         /// What the parameter belongs to.
         what: String,
@@ -42,17 +45,18 @@ pub enum Error {
         reason: &'static str,
     },
     /// A name was looked up and not found.
-    #[error("unknown {kind} `{name}`{}", suggestion.as_ref().map(|s| format!(" (did you mean `{s}`?)")).unwrap_or_default())]
+    #[error("unknown {kind} `{}`{}", quote(name), suggestion.as_ref().map(|s| format!(" (did you mean `{s}`?)")).unwrap_or_default())]
     UnknownName {
         /// What kind of thing was looked up ("protolyte", "reagent", "ion", ...).
         kind: &'static str,
-        /// The name as given.
+        /// The name as given (the message quotes it shortened past 80 characters).
         name: String,
-        /// The closest known name, if one is close.
+        /// The closest known name, if one is close (not searched for names past 64
+        /// characters).
         suggestion: Option<String>,
     },
     /// Two definitions disagree, or one contradicts itself.
-    #[error("inconsistent definition of {name}: {reason}")]
+    #[error("inconsistent definition of {}: {reason}", quote(name))]
     InconsistentDefinition {
         /// The thing defined.
         name: String,
@@ -60,7 +64,10 @@ pub enum Error {
         reason: String,
     },
     /// A reagent's constituents do not add up to zero charge.
-    #[error("reagent `{reagent}` is not electroneutral: its constituents carry a net charge of {charge:+}")]
+    #[error(
+        "reagent `{}` is not electroneutral: its constituents carry a net charge of {charge:+}",
+        quote(reagent)
+    )]
     NotElectroneutral {
         /// The reagent.
         reagent: String,
@@ -81,9 +88,72 @@ pub enum Error {
         /// The supported range, in words.
         domain: &'static str,
     },
+    /// An integer that enters the chemistry (a count, a number of protons, a charge) lies
+    /// outside its documented range (see [`limits`](crate::limits)).
+    #[error("{quantity} of {} is {value}, outside the accepted range {min}..={max}", quote(what))]
+    IntegerOutOfRange {
+        /// The definition at fault.
+        what: String,
+        /// Which integer ("net H⁺ gained or lost", "count of part 2", "charge", ...).
+        quantity: String,
+        /// The value given (or computed from the parts), as a 64-bit integer (every per-part range is checked before parts are summed, so no sum can overflow).
+        value: i64,
+        /// Smallest accepted value.
+        min: i64,
+        /// Largest accepted value.
+        max: i64,
+    },
+    /// A name or synonym is already taken by another catalog entry.
+    #[error("the {kind} name `{}` is already used by the {existing_kind} `{}`{}", quote(name), quote(existing_name), if kind == existing_kind { " (use the catalog's replace_* call to override it on purpose)" } else { "" })]
+    NameConflict {
+        /// The name (or synonym) of the new definition.
+        name: String,
+        /// What the new definition is ("ion", "protolyte", ...).
+        kind: &'static str,
+        /// What the entry already holding the name is.
+        existing_kind: &'static str,
+        /// The canonical name of that entry.
+        existing_name: String,
+    },
+    /// An amount or total is larger than the library accepts
+    /// ([`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL)), or a sum of volumes overflows.
+    #[error("{} is {value} {unit}, above the accepted maximum of {limit} {unit}", quote(what))]
+    AmountTooLarge {
+        /// What the amount belongs to.
+        what: String,
+        /// The value given or summed.
+        value: f64,
+        /// Its unit.
+        unit: &'static str,
+        /// The largest accepted value.
+        limit: f64,
+    },
+    /// The species of the solution would give an ionic strength above what the solver and
+    /// the activity models represent
+    /// ([`MAX_IONIC_STRENGTH_MOLAL`](crate::limits::MAX_IONIC_STRENGTH_MOLAL)).
+    #[error(
+        "the solution's ionic strength would be at least {ionic_strength_molal:.4} mol/kg, above the limit of {limit_molal} mol/kg for activity models (use the ideal model, or dilute)"
+    )]
+    IonicStrengthBeyondLimit {
+        /// The ionic strength the species give at the last iterate, mol/kg.
+        ionic_strength_molal: f64,
+        /// The limit, mol/kg.
+        limit_molal: f64,
+    },
+    /// More points were asked of a curve or sweep than the library computes
+    /// ([`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)).
+    #[error("{what}: {requested} points requested, at most {limit} are computed")]
+    TooManyPoints {
+        /// The curve or sweep.
+        what: &'static str,
+        /// Points requested.
+        requested: usize,
+        /// The largest number accepted.
+        limit: usize,
+    },
     /// The solver did not converge; the diagnostics say how far it got.
     #[error(
-        "no convergence on the {path} path after {iterations} iterations: largest scaled residual {max_residual:.3e} in the {worst_equation}; last pH estimate {last_ph:.4}"
+        "no convergence on the {path} path after {iterations} iterations: largest scaled residual {max_residual:.3e} ({worst_equation}); last pH estimate {last_ph:.4}"
     )]
     NoConvergence {
         /// Which solver path gave up.
@@ -139,6 +209,21 @@ fn catalog_where(entry: &str, field: &str) -> String {
 /// `Result` with protolyte's [`Error`](enum@Error).
 pub type Result<T> = std::result::Result<T, Error>;
 
+/// Longest name quoted whole in a message; a longer one is shortened.
+const QUOTE_CHARS: usize = 80;
+
+/// A name as a message quotes it: whole up to 80 characters, else its first 60 characters,
+/// an ellipsis and its length (an error never repeats a huge input).
+pub(crate) fn quote(s: &str) -> std::borrow::Cow<'_, str> {
+    let n = s.chars().count();
+    if n <= QUOTE_CHARS {
+        std::borrow::Cow::Borrowed(s)
+    } else {
+        let head: String = s.chars().take(60).collect();
+        std::borrow::Cow::Owned(format!("{head}… ({n} characters)"))
+    }
+}
+
 /// Refuses a non-finite or negative amount.
 pub(crate) fn check_amount(what: &str, value: f64, unit: &'static str) -> Result<f64> {
     if value.is_finite() && value >= 0.0 {
@@ -169,6 +254,65 @@ pub(crate) fn check_parameter(
             parameter,
             value,
             reason,
+        })
+    }
+}
+
+/// Refuses an integer outside `min..=max`.
+pub(crate) fn check_int(what: &str, quantity: &str, value: i64, min: i64, max: i64) -> Result<i64> {
+    if (min..=max).contains(&value) {
+        Ok(value)
+    } else {
+        Err(Error::IntegerOutOfRange {
+            what: what.to_string(),
+            quantity: quantity.to_string(),
+            value,
+            min,
+            max,
+        })
+    }
+}
+
+/// Refuses an amount above [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL) (in its own
+/// unit), after the checks of [`check_amount`].
+pub(crate) fn check_amount_max(what: &str, value: f64, unit: &'static str) -> Result<f64> {
+    let v = check_amount(what, value, unit)?;
+    if v <= crate::limits::MAX_TOTAL_MOLAL {
+        Ok(v)
+    } else {
+        Err(Error::AmountTooLarge {
+            what: what.to_string(),
+            value: v,
+            unit,
+            limit: crate::limits::MAX_TOTAL_MOLAL,
+        })
+    }
+}
+
+/// Refuses a number of points above [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS).
+pub(crate) fn check_points(what: &'static str, points: usize) -> Result<usize> {
+    if points <= crate::limits::MAX_CURVE_POINTS {
+        Ok(points)
+    } else {
+        Err(Error::TooManyPoints {
+            what,
+            requested: points,
+            limit: crate::limits::MAX_CURVE_POINTS,
+        })
+    }
+}
+
+/// Refuses a temperature outside 0–100 °C (or not finite); returns it in °C.
+pub(crate) fn check_temperature(t: crate::quantity::Temperature) -> Result<f64> {
+    let tc = t.as_celsius();
+    let (lo, hi) = crate::limits::TEMPERATURE_RANGE_CELSIUS;
+    if tc.is_finite() && (lo - 1e-9..=hi + 1e-9).contains(&tc) {
+        Ok(tc)
+    } else {
+        Err(Error::OutOfDomain {
+            what: "temperature (°C)",
+            value: tc,
+            domain: "0..100 °C",
         })
     }
 }

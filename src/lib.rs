@@ -46,7 +46,7 @@
 //!
 //! // With activity corrections the buffer reads lower than pKa − log 2 = 4.455.
 //! assert!(eq.ph() < 4.455 && eq.ph() > 4.2);
-//! assert!(eq.residuals().max_balance_relative() < 1e-10);
+//! assert!(eq.residuals().max_relative() < 1e-10);
 //! for s in eq.species() {
 //!     println!("{:10} {:.3e} mol/kg  γ = {:.3}", s.name, s.molal, s.gamma);
 //! }
@@ -62,6 +62,12 @@
 //! - Built-in constants are thermodynamic (infinite dilution) at 25 °C; other temperatures
 //!   use the van't Hoff equation ([`vant_hoff`]) where ΔH° is known, and say so in a
 //!   [`Warning`] where it is not.
+//! - Every input limit (temperature, totals and their floor, ionic strength, integer ranges of
+//!   complexes and reagents, points per curve) is a constant in [`limits`]; past a limit the
+//!   call returns a typed [`Error`], beyond the tested domain the result carries a
+//!   [`Warning`]. [`Residuals::max_relative`] covers every equation solved, ionic strength
+//!   included, and every returned result keeps it below
+//!   [`RESIDUAL_PROMISE`](limits::RESIDUAL_PROMISE) or says otherwise in a warning.
 //!
 //! ## Cautions
 //!
@@ -80,6 +86,7 @@ pub mod document;
 mod equilibrium;
 mod error;
 mod ion;
+pub mod limits;
 #[cfg(feature = "plot")]
 pub mod plot;
 mod protolyte;
@@ -90,12 +97,13 @@ mod sensitivity;
 pub mod solve;
 mod system;
 pub mod vant_hoff;
+mod warning;
 pub mod water;
 
 pub use activity::{ActivityModel, DebyeHuckelConstants};
 pub use complex::{Complex, ComplexPart};
 pub use data::{Catalog, DataInfo, DataKind, FormInfo, molar_mass_from_formula};
-pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState, Warning};
+pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState};
 pub use error::{CatalogFileError, Error, Result};
 pub use ion::Ion;
 pub use protolyte::{Protolyte, Step};
@@ -105,3 +113,4 @@ pub use recipe::{Entry, Recipe};
 pub use sensitivity::{Parameter, Sensitivities};
 pub use solve::{PathChoice, Solver, SolverPath};
 pub use system::{Component, ComponentKind, Conditions, Family, Species, SpeciesKind, System};
+pub use warning::Warning;

@@ -41,6 +41,8 @@ pub struct Protolyte {
     charge_most_protonated: i32,
     steps: Vec<Step>,
     ion_size_angstrom: Option<f64>,
+    /// Per-form ion sizes, indexed by the number of bound protons (0 = fully deprotonated).
+    form_ion_sizes: Option<Vec<Option<f64>>>,
     source: Option<String>,
 }
 
@@ -107,6 +109,7 @@ impl Protolyte {
             charge_most_protonated,
             steps,
             ion_size_angstrom: None,
+            form_ion_sizes: None,
             source: None,
         })
     }
@@ -155,6 +158,52 @@ impl Protolyte {
     /// Sets the ion-size parameter å (ångström) for the extended Debye–Hückel model.
     pub fn with_ion_size_angstrom(mut self, a: f64) -> Result<Self> {
         self.ion_size_angstrom = Some(check_ion_size(&self.name, a)?);
+        Ok(self)
+    }
+
+    /// Sets one ion-size parameter å (ångström) per form, most protonated first (so
+    /// `sizes_angstrom.len()` is the number of steps + 1), as tabulated per ion by
+    /// J. Kielland, *J. Am. Chem. Soc.* **59** (1937) 1675. The extended Debye–Hückel model
+    /// then uses each form's own size; forms without one fall back to the family's single
+    /// size ([`with_ion_size_angstrom`](Self::with_ion_size_angstrom)).
+    ///
+    /// Each charged form's size must lie within 0.5..20 Å. A neutral form's value is accepted
+    /// whatever it is (tables often print 0 or leave it blank), because no model uses it; a
+    /// value outside 0.5..20 Å or not finite is not stored.
+    ///
+    /// ```
+    /// use protolyte::Protolyte;
+    ///
+    /// // Phosphate: H3PO4 (neutral), H2PO4⁻ 4 Å, HPO4²⁻ 4 Å, PO4³⁻ 4 Å (Kielland 1937).
+    /// let p = Protolyte::new("phosphate", &[2.148, 7.198, 12.35], 0)?
+    ///     .with_form_ion_sizes(&[0.0, 4.0, 4.0, 4.0])?;
+    /// assert_eq!(p.form_ion_size_angstrom(1), Some(4.0)); // HPO4²⁻ (one bound proton)
+    /// assert_eq!(p.form_ion_size_angstrom(3), None); // neutral, no family size set
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn with_form_ion_sizes(mut self, sizes_angstrom: &[f64]) -> Result<Self> {
+        let n = self.steps.len();
+        if sizes_angstrom.len() != n + 1 {
+            return Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!(
+                    "{} form ion sizes given for {} forms (one per form, most protonated first)",
+                    sizes_angstrom.len(),
+                    n + 1
+                ),
+            });
+        }
+        let mut by_protons = vec![None; n + 1];
+        for (k, &a) in sizes_angstrom.iter().enumerate() {
+            let protons = n - k;
+            if self.charge_of_form(protons) == 0 {
+                by_protons[protons] = (a.is_finite() && (0.5..=20.0).contains(&a)).then_some(a);
+            } else {
+                let what = format!("{} (form {})", self.name, self.form_name(protons));
+                by_protons[protons] = Some(check_ion_size(&what, a)?);
+            }
+        }
+        self.form_ion_sizes = Some(by_protons);
         Ok(self)
     }
 
@@ -211,9 +260,26 @@ impl Protolyte {
         self.charge_most_protonated - (self.steps.len() as i32 - protons as i32)
     }
 
-    /// The ion-size parameter, if set.
+    /// The family's single ion-size parameter, if set.
     pub fn ion_size_angstrom(&self) -> Option<f64> {
         self.ion_size_angstrom
+    }
+
+    /// The ion size (Å) of the form with `protons` bound protons: its own size where
+    /// [`with_form_ion_sizes`](Self::with_form_ion_sizes) gave one, else the family's single
+    /// size, else `None` (the system then uses
+    /// [`DEFAULT_ION_SIZE_ANGSTROM`](crate::activity::DEFAULT_ION_SIZE_ANGSTROM)).
+    pub fn form_ion_size_angstrom(&self, protons: usize) -> Option<f64> {
+        self.form_ion_sizes
+            .as_ref()
+            .and_then(|v| v.get(protons).copied().flatten())
+            .or(self.ion_size_angstrom)
+    }
+
+    /// The per-form ion sizes (Å) as given, most protonated first (`None` for a form without
+    /// one), or `None` when none were given.
+    pub fn form_ion_sizes(&self) -> Option<Vec<Option<f64>>> {
+        self.form_ion_sizes.as_ref().map(|v| v.iter().rev().copied().collect())
     }
 
     /// The published source of the numbers, if recorded.

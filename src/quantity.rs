@@ -114,7 +114,12 @@ impl Amount {
             "must be positive and finite",
         )?;
         let v = volume.positive("final volume")?;
-        Ok(Amount::Molar(g / m / v))
+        // A huge mass in a tiny volume overflows: refused rather than returned as infinity.
+        Ok(Amount::Molar(check_amount(
+            "amount from mass and volume",
+            g / m / v,
+            "mol/L",
+        )?))
     }
 
     /// The numeric value in its own unit.

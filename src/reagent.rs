@@ -1,7 +1,8 @@
 //! Reagents: what a person weighs or pipettes, as constituents with counts.
 
-use crate::error::{Error, Result, check_parameter};
+use crate::error::{Error, Result, check_int, check_parameter};
 use crate::ion::Ion;
+use crate::limits::MAX_CONSTITUENT_COUNT;
 use crate::protolyte::Protolyte;
 
 /// One constituent of a reagent.
@@ -23,13 +24,25 @@ pub enum Constituent {
 }
 
 impl Constituent {
-    /// Charge of one unit of this constituent.
-    pub fn charge(&self) -> i32 {
+    /// Charge of one unit of this constituent; `None` for a form with more protons than its
+    /// family has (no such form exists).
+    ///
+    /// ```
+    /// use protolyte::{Constituent, Protolyte};
+    /// let p = Protolyte::new("phosphate", &[2.148, 7.198, 12.35], 0)?;
+    /// let h2po4 = Constituent::Form { protolyte: p.clone(), protons: 2 };
+    /// assert_eq!(h2po4.charge(), Some(-1));
+    /// assert_eq!(Constituent::Form { protolyte: p, protons: 9 }.charge(), None);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn charge(&self) -> Option<i32> {
         match self {
-            Constituent::Form { protolyte, protons } => protolyte.charge_of_form(*protons),
-            Constituent::Ion(i) => i.charge(),
-            Constituent::Proton => 1,
-            Constituent::Hydroxide => -1,
+            Constituent::Form { protolyte, protons } => {
+                (*protons <= protolyte.proton_count()).then(|| protolyte.charge_of_form(*protons))
+            }
+            Constituent::Ion(i) => Some(i.charge()),
+            Constituent::Proton => Some(1),
+            Constituent::Hydroxide => Some(-1),
         }
     }
 }
@@ -63,8 +76,9 @@ pub struct Reagent {
 
 impl Reagent {
     /// A reagent from its constituents. Refuses an empty name, no constituents, a form with
-    /// more protons than its family has, a zero count, a net charge, and a molar mass that is
-    /// not positive and finite.
+    /// more protons than its family has, a zero count or one above
+    /// [`MAX_CONSTITUENT_COUNT`] ([`Error::IntegerOutOfRange`]), a net charge, and a molar
+    /// mass that is not positive and finite.
     pub fn new(name: &str, molar_mass_g_per_mol: Option<f64>, parts: Vec<(Constituent, u32)>) -> Result<Self> {
         let name = name.trim();
         let bad = |reason: String| Error::InconsistentDefinition {
@@ -82,10 +96,17 @@ impl Reagent {
             return Err(bad("a reagent needs at least one constituent".into()));
         }
         let mut charge: i64 = 0;
-        for (c, n) in &parts {
+        for (k, (c, n)) in parts.iter().enumerate() {
             if *n == 0 {
                 return Err(bad("a constituent with count 0".into()));
             }
+            check_int(
+                name,
+                &format!("count of constituent {}", k + 1),
+                i64::from(*n),
+                1,
+                i64::from(MAX_CONSTITUENT_COUNT),
+            )?;
             if let Constituent::Form { protolyte, protons } = c
                 && *protons > protolyte.proton_count()
             {
@@ -96,7 +117,8 @@ impl Reagent {
                     protons
                 )));
             }
-            charge += i64::from(c.charge()) * i64::from(*n);
+            // Every form was checked to exist just above.
+            charge += i64::from(c.charge().unwrap_or(0)) * i64::from(*n);
         }
         if charge != 0 {
             return Err(Error::NotElectroneutral {

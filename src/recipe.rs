@@ -5,7 +5,6 @@ use crate::complex::Complex;
 use crate::error::{Error, Result};
 use crate::quantity::{Amount, Mass, Volume};
 use crate::reagent::Reagent;
-use crate::system::{Conditions, System};
 
 /// One line of a recipe.
 #[derive(Debug, Clone, PartialEq)]
@@ -46,10 +45,16 @@ impl Recipe {
         Recipe::default()
     }
 
-    /// Adds `amount` of `reagent`. Refuses a negative, NaN or infinite amount, naming the
-    /// reagent.
+    /// Adds `amount` of `reagent`. Refuses a negative, NaN or infinite amount, and one above
+    /// [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL) in its own unit
+    /// ([`Error::AmountTooLarge`]), naming the reagent.
     pub fn add(&mut self, reagent: &Reagent, amount: Amount) -> Result<&mut Self> {
         amount.validate(reagent.name())?;
+        let unit = match amount {
+            Amount::Molar(_) => "mol/L",
+            Amount::Molal(_) => "mol/kg",
+        };
+        crate::error::check_amount_max(reagent.name(), amount.value(), unit)?;
         self.entries.push(Entry {
             reagent: reagent.clone(),
             amount,
@@ -161,7 +166,8 @@ impl Recipe {
     /// Mixes solutions by volume. Volumes are taken as additive (no volume change on mixing),
     /// the dilute-solution assumption: each amount is scaled by its solution's share of the
     /// total volume; molal amounts are scaled the same way (water mass taken proportional to
-    /// volume). Complexes of all parts are kept.
+    /// volume). Complexes of all parts are kept. Refuses volumes that are negative or not
+    /// finite, a zero total volume and one that overflows.
     ///
     /// ```
     /// use protolyte::{Amount, Catalog, Recipe, Volume};
@@ -178,6 +184,14 @@ impl Recipe {
         let mut total = 0.0;
         for (_, v) in parts {
             total += crate::error::check_amount("mixed volume", v.liters_value(), "L")?;
+        }
+        if !total.is_finite() {
+            return Err(Error::AmountTooLarge {
+                what: "total mixed volume".into(),
+                value: total,
+                unit: "L",
+                limit: f64::MAX,
+            });
         }
         if total <= 0.0 {
             return Err(Error::InvalidAmount {
@@ -198,12 +212,6 @@ impl Recipe {
             out.add_complexes(&r.complexes);
         }
         Ok(out)
-    }
-
-    /// Compiles the recipe into a [`System`] (the tableau at the given temperature and
-    /// activity model).
-    pub fn compile(&self, conditions: &Conditions) -> Result<System> {
-        System::compile(self, conditions)
     }
 }
 

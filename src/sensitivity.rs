@@ -180,16 +180,17 @@ impl Sensitivities {
         }
     }
 
-    /// d pH / d p. Zero for a parameter index out of range.
-    pub fn dph(&self, p: Parameter) -> f64 {
-        self.column(p).map(|col| -self.dy[(0, col)] / LN10).unwrap_or(0.0)
+    /// d pH / d p; `None` for a parameter index out of range (a total of H⁺, index 0, is
+    /// not a parameter).
+    pub fn dph(&self, p: Parameter) -> Option<f64> {
+        self.column(p).map(|col| -self.dy[(0, col)] / LN10)
     }
 
-    /// d log₁₀ m(species) / d p. Zero for an index out of range.
-    pub fn dlog10_molal(&self, species: usize, p: Parameter) -> f64 {
-        let Some(col) = self.column(p) else { return 0.0 };
+    /// d log₁₀ m(species) / d p; `None` for an index out of range.
+    pub fn dlog10_molal(&self, species: usize, p: Parameter) -> Option<f64> {
+        let col = self.column(p)?;
         if species >= self.ns {
-            return 0.0;
+            return None;
         }
         let m = self.act.len() + 1;
         let mut d = 0.0;
@@ -198,28 +199,30 @@ impl Sensitivities {
         }
         d -= self.dln_gamma_di[species] * self.ionic_strength * self.dy[(m - 1, col)];
         let own = matches!(p, Parameter::Log10K(s) if s == species);
-        d / LN10 + if own { 1.0 } else { 0.0 }
+        Some(d / LN10 + if own { 1.0 } else { 0.0 })
     }
 
-    /// d ln I / d p.
-    pub fn dln_ionic_strength(&self, p: Parameter) -> f64 {
+    /// d ln I / d p; `None` for a parameter index out of range.
+    pub fn dln_ionic_strength(&self, p: Parameter) -> Option<f64> {
         let m = self.act.len() + 1;
-        self.column(p).map(|col| self.dy[(m - 1, col)]).unwrap_or(0.0)
+        self.column(p).map(|col| self.dy[(m - 1, col)])
     }
 
-    /// d pH / d(total of component `component`, mol/kg).
-    pub fn dph_dtotal_molal(&self, component: usize) -> f64 {
+    /// d pH / d(total of component `component`, mol/kg); `None` for H⁺ (index 0) or an
+    /// index out of range.
+    pub fn dph_dtotal_molal(&self, component: usize) -> Option<f64> {
         self.dph(Parameter::Total(component))
     }
 
-    /// d pH / d log₁₀ K of species `species`.
-    pub fn dph_dlog10k(&self, species: usize) -> f64 {
+    /// d pH / d log₁₀ K of species `species`; `None` for an index out of range.
+    pub fn dph_dlog10k(&self, species: usize) -> Option<f64> {
         self.dph(Parameter::Log10K(species))
     }
 
     /// d pH / d(strong base added, mol/kg).
     pub fn dph_dstrong_base_molal(&self) -> f64 {
-        self.dph(Parameter::StrongBase)
+        let col = self.nc - 1 + self.ns;
+        -self.dy[(0, col)] / LN10
     }
 
     /// Buffer capacity β = dC(strong base)/dpH, mol/kg per pH unit.
@@ -228,17 +231,16 @@ impl Sensitivities {
         if d > 0.0 { 1.0 / d } else { f64::INFINITY.min(f64::MAX) }
     }
 
-    /// d pH / d pKa of step `step` (0-based, most protonated first) of family `family`.
+    /// d pH / d pKa of step `step` (0-based, most protonated first) of family `family`;
+    /// `None` when the family or the step does not exist.
     ///
     /// log β_j of the form with j protons is the sum of the last j stepwise pKa values, so
     /// d/dpKaᵢ sums d/d log β_j over the forms whose β contains pKaᵢ.
-    pub fn dph_dpka(&self, family: usize, step: usize) -> f64 {
-        let Some(forms) = self.forms.get(family) else {
-            return 0.0;
-        };
-        let n = forms.len() - 1;
+    pub fn dph_dpka(&self, family: usize, step: usize) -> Option<f64> {
+        let forms = self.forms.get(family)?;
+        let n = forms.len().checked_sub(1)?;
         if step >= n {
-            return 0.0;
+            return None;
         }
         (n - step..=n).map(|j| self.dph_dlog10k(forms[j])).sum()
     }
@@ -262,7 +264,7 @@ pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) ->
         let sens = eq.sensitivities(sys)?;
         return Ok((1..nc)
             .filter(|&c| dt[c] != 0.0)
-            .map(|c| sens.dph(Parameter::Total(c)) * dt[c])
+            .map(|c| sens.dph(Parameter::Total(c)).unwrap_or(0.0) * dt[c])
             .sum());
     }
     let p = eq.point();

@@ -11,7 +11,6 @@ use std::sync::Arc;
 
 use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants};
 use crate::complex::{Complex, ComplexPart};
-use crate::equilibrium::{Equilibrium, Warning};
 use crate::error::{Error, Result};
 use crate::ion::Ion;
 use crate::protolyte::Protolyte;
@@ -19,6 +18,7 @@ use crate::quantity::Temperature;
 use crate::reagent::Constituent;
 use crate::recipe::Recipe;
 use crate::vant_hoff;
+use crate::warning::Warning;
 use crate::water;
 
 /// Ion size of H⁺ and OH⁻ (Kielland, *J. Am. Chem. Soc.* 59 (1937) 1675; from memory).
@@ -184,20 +184,23 @@ pub struct System {
     /// Largest ν(H⁺) and largest −ν(H⁺) over the uncoupled species (both ≥ 0).
     pub(crate) nu_h_span: (usize, usize),
     pub(crate) compile_warnings: Vec<Warning>,
+    /// Per component: the positive total given below the floor, taken as zero.
+    pub(crate) below_floor: Vec<Option<f64>>,
+}
+
+impl Recipe {
+    /// Compiles the recipe into a [`System`] (the tableau at the given temperature and
+    /// activity model).
+    pub fn compile(&self, conditions: &Conditions) -> Result<System> {
+        System::compile(self, conditions)
+    }
 }
 
 impl System {
     pub(crate) fn compile(recipe: &Recipe, conditions: &Conditions) -> Result<System> {
         let t = conditions.temperature;
-        let tc = t.as_celsius();
-        if !(tc.is_finite() && (-1e-9..=100.0 + 1e-9).contains(&tc)) {
-            return Err(Error::OutOfDomain {
-                what: "temperature (°C)",
-                value: tc,
-                domain: "0..100 °C",
-            });
-        }
-        let water_density = water::density_kg_per_l(t);
+        let tc = crate::error::check_temperature(t)?;
+        let water_density = water::density_kg_per_l(t)?;
         let mut b = Builder {
             components: vec![Component {
                 name: "H+".into(),
@@ -225,6 +228,14 @@ impl System {
                 }
             }
         }
+        // The accepted domain of totals: at most MAX_TOTAL_MOLAL (a sum of lines can pass it
+        // where no single line does); a positive total below the floor is taken as zero.
+        let mut below_floor = vec![None; b.components.len()];
+        for (c, comp) in b.components.iter_mut().enumerate().skip(1) {
+            let (total, floored) = checked_total(&comp.name, comp.total_molal)?;
+            comp.total_molal = total;
+            below_floor[c] = floored;
+        }
         let mut warnings = Vec::new();
         let off_standard = (t.kelvin() - Temperature::STANDARD.kelvin()).abs() > 1e-6;
         // Species rows.
@@ -240,7 +251,7 @@ impl System {
             },
             vec![(0, 1.0)],
         ));
-        let log10_kw = water::log10_kw(t);
+        let log10_kw = water::log10_kw(t)?;
         rows.push((
             Species {
                 name: "OH-".into(),
@@ -261,7 +272,6 @@ impl System {
                 });
             }
             let pkas: Vec<f64> = (0..n).map(|i| p.pka_at(i, t)).collect();
-            let size = p.ion_size_angstrom().unwrap_or(DEFAULT_ION_SIZE_ANGSTROM);
             fam.forms.clear();
             for j in 0..=n {
                 // log β_j = Σ of the last j pKa values (protonation of the base j times).
@@ -272,7 +282,7 @@ impl System {
                         name: p.form_name(j).into(),
                         charge: p.charge_of_form(j),
                         log10_k: log_beta,
-                        ion_size_angstrom: size,
+                        ion_size_angstrom: p.form_ion_size_angstrom(j).unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
                         kind: SpeciesKind::Form { family: fi, protons: j },
                     },
                     if j == 0 {
@@ -370,7 +380,23 @@ impl System {
             .collect();
         let family_names = b.families.iter().map(|f| Arc::from(f.protolyte.name())).collect();
         let species_len = species.len();
-        let nu_h: Vec<i32> = (0..species_len).map(|s| nu[s * nc].round() as i32).collect();
+        // ν(H⁺) of every species within ±MAX_COMPLEX_PROTONS (families have at most 12 steps
+        // and complexes are checked where they are made; this guards the fast path's table).
+        let span = i64::from(crate::limits::MAX_COMPLEX_PROTONS);
+        let mut nu_h: Vec<i32> = Vec::with_capacity(species_len);
+        for (s, sp) in species.iter().enumerate() {
+            let v = nu[s * nc];
+            if !(v.is_finite() && v.abs() <= span as f64) {
+                return Err(Error::IntegerOutOfRange {
+                    what: sp.name.to_string(),
+                    quantity: "H⁺ count of the species".into(),
+                    value: if v.is_finite() { v as i64 } else { i64::MAX },
+                    min: -span,
+                    max: span,
+                });
+            }
+            nu_h.push(v.round() as i32);
+        }
         let fast_coef = (0..species_len)
             .map(|s| {
                 let z = f64::from(species[s].charge);
@@ -379,14 +405,14 @@ impl System {
             .collect();
         let unc = || (0..species_len).filter(|&s| !coupling[s]);
         let nu_h_span = (
-            unc().map(|s| nu_h[s].max(0) as usize).max().unwrap_or(0),
-            unc().map(|s| (-nu_h[s]).max(0) as usize).max().unwrap_or(0),
+            unc().map(|s| nu_h[s].max(0).unsigned_abs() as usize).max().unwrap_or(0),
+            unc().map(|s| nu_h[s].min(0).unsigned_abs() as usize).max().unwrap_or(0),
         );
         let charge_f = species.iter().map(|s| f64::from(s.charge)).collect();
         Ok(System {
             temperature: t,
             model: conditions.activity,
-            dh: DebyeHuckelConstants::at(t),
+            dh: DebyeHuckelConstants::at(t)?,
             water_density,
             log10_kw,
             components: b.components,
@@ -405,12 +431,8 @@ impl System {
             nu_h,
             charge_f,
             compile_warnings: warnings,
+            below_floor,
         })
-    }
-
-    /// Solves the system with the default [`Solver`](crate::Solver).
-    pub fn solve(&self) -> Result<Equilibrium> {
-        crate::solve::Solver::default().solve(self)
     }
 
     /// The temperature.
@@ -453,9 +475,26 @@ impl System {
         &self.families
     }
 
-    /// Stoichiometric coefficient of component `component` in species `species`.
-    pub fn stoichiometry(&self, species: usize, component: usize) -> f64 {
-        self.nu[species * self.components.len() + component]
+    /// Stoichiometric coefficient of component `component` in species `species`; `None`
+    /// when either index is out of range.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("acetic acid")?, Amount::molal(0.1))?;
+    /// let sys = r.compile(&Conditions::default())?;
+    /// assert_eq!(sys.stoichiometry(1, 0), Some(-1.0)); // OH⁻ = H₂O − H⁺
+    /// assert_eq!(sys.stoichiometry(99, 0), None);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn stoichiometry(&self, species: usize, component: usize) -> Option<f64> {
+        let nc = self.components.len();
+        if species < self.species.len() && component < nc {
+            Some(self.nu[species * nc + component])
+        } else {
+            None
+        }
     }
 
     /// Index of the component named `name` (a family or an ion name, or "H+").
@@ -469,7 +508,10 @@ impl System {
     }
 
     /// Sets the total of component `index` (mol/kg). Refuses H⁺ (index 0), an index out of
-    /// range, and a negative or non-finite total.
+    /// range, a negative or non-finite total, and a total above
+    /// [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL) ([`Error::AmountTooLarge`]). A
+    /// positive total below [`MIN_TOTAL_MOLAL`](crate::limits::MIN_TOTAL_MOLAL) is taken as
+    /// zero and the results carry [`Warning::TotalBelowFloor`].
     ///
     /// ```
     /// use protolyte::{Amount, Catalog, Conditions, Recipe};
@@ -493,7 +535,9 @@ impl System {
             });
         }
         let name = self.components[index].name.clone();
-        self.components[index].total_molal = crate::error::check_amount(&name, total, "mol/kg")?;
+        let (total, floored) = checked_total(&name, total)?;
+        self.components[index].total_molal = total;
+        self.below_floor[index] = floored;
         Ok(())
     }
 
@@ -641,17 +685,55 @@ impl Builder {
         for (part, n) in cx.parts() {
             let idx = match part {
                 ComplexPart::Proton => Some(0),
-                ComplexPart::Base(p) => match self.families.iter().find(|f| f.protolyte.name() == p.name()) {
-                    Some(f) if same_family(&f.protolyte, p) => Some(f.component),
-                    Some(_) => {
-                        return Err(Error::InconsistentDefinition {
-                            name: cx.name().to_string(),
-                            reason: format!("its ligand `{}` differs from the recipe's definition", p.name()),
-                        });
-                    }
+                ComplexPart::Base(p) => match self.components.iter().position(|c| &*c.name == p.name()) {
+                    Some(i) => match &self.components[i].kind {
+                        ComponentKind::Family(f) if same_family(&self.families[*f].protolyte, p) => Some(i),
+                        ComponentKind::Family(_) => {
+                            return Err(Error::InconsistentDefinition {
+                                name: cx.name().to_string(),
+                                reason: format!("its ligand `{}` differs from the recipe's definition", p.name()),
+                            });
+                        }
+                        _ => {
+                            return Err(Error::InconsistentDefinition {
+                                name: cx.name().to_string(),
+                                reason: format!(
+                                    "its part `{}` is an acid–base family, but the recipe's `{}` is a simple ion",
+                                    p.name(),
+                                    p.name()
+                                ),
+                            });
+                        }
+                    },
                     None => None,
                 },
-                ComplexPart::Ion(ion) => self.components.iter().position(|c| &*c.name == ion.name()),
+                ComplexPart::Ion(ion) => match self.components.iter().position(|c| &*c.name == ion.name()) {
+                    Some(i) => match &self.components[i].kind {
+                        ComponentKind::Ion(existing) if existing.charge() == ion.charge() => Some(i),
+                        ComponentKind::Ion(existing) => {
+                            return Err(Error::InconsistentDefinition {
+                                name: cx.name().to_string(),
+                                reason: format!(
+                                    "its ion `{}` has charge {:+}, the recipe's ion of that name {:+}",
+                                    ion.name(),
+                                    ion.charge(),
+                                    existing.charge()
+                                ),
+                            });
+                        }
+                        _ => {
+                            return Err(Error::InconsistentDefinition {
+                                name: cx.name().to_string(),
+                                reason: format!(
+                                    "its part `{}` is a simple ion, but the recipe's `{}` is an acid–base family",
+                                    ion.name(),
+                                    ion.name()
+                                ),
+                            });
+                        }
+                    },
+                    None => None,
+                },
             };
             match idx {
                 Some(i) => out.push((i, f64::from(*n))),
@@ -659,6 +741,20 @@ impl Builder {
             }
         }
         Ok(Some(out))
+    }
+}
+
+/// A component total checked against the accepted domain: refused above
+/// [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL) or when not finite and non-negative;
+/// a positive total below [`MIN_TOTAL_MOLAL`](crate::limits::MIN_TOTAL_MOLAL) becomes zero
+/// (the value given is returned beside it for the warning).
+fn checked_total(name: &str, total: f64) -> Result<(f64, Option<f64>)> {
+    let what = format!("total of {name}");
+    let t = crate::error::check_amount_max(&what, total, "mol/kg")?;
+    if t > 0.0 && t < crate::limits::MIN_TOTAL_MOLAL {
+        Ok((0.0, Some(t)))
+    } else {
+        Ok((t, None))
     }
 }
 

@@ -87,7 +87,7 @@ fn bad_json_exits_3_with_line_and_column() {
     );
     let o = protolyte(&["solve", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(3));
-    assert!(stderr(&o).contains("field `reagents[0]`"), "{}", stderr(&o));
+    assert!(stderr(&o).contains("field `reagents[0].molar`"), "{}", stderr(&o));
     // A document without its format tag is refused.
     let p = temp_file("noformat.json", r#"{"reagents": []}"#);
     let o = protolyte(&["solve", p.to_str().unwrap()]);
@@ -251,4 +251,203 @@ fn plot_option_writes_svg() {
     // An SVG that cannot be written is an output failure.
     let o = protolyte(&["solve", "examples/hatchery_makeup.json", "--plot", "/no/such/dir/x.svg"]);
     assert_eq!(o.status.code(), Some(5));
+}
+
+// ---- Issue 7: no input may crash a run, lose a record or give a wrong answer with exit 0 ----
+
+/// A line whose complex has proton parts adding up beyond ±12: once a panic in the solver's
+/// fast path that ended `batch` with exit 101 and no record at all.
+const PROTON_SUM_LINE: &str = r#"{"name":"protons","definitions":{"ions":[{"name":"q","charge":2}],"complexes":[{"name":"qx","log_beta":1,"parts":[{"ion":"q"},{"protons":-7},{"protons":-6}]}],"reagents":[{"name":"q salt","parts":[{"ion":"q"},{"ion":"chloride","count":2}]}]},"reagents":[{"reagent":"q salt","millimolar":10}]}"#;
+/// The same with the smallest 32-bit proton count.
+const PROTON_MIN_LINE: &str = r#"{"name":"min","definitions":{"ions":[{"name":"q","charge":2}],"complexes":[{"name":"qx","log_beta":1,"parts":[{"ion":"q"},{"protons":-2147483648}]}],"reagents":[{"name":"q salt","parts":[{"ion":"q"},{"ion":"chloride","count":2}]}]},"reagents":[{"reagent":"q salt","millimolar":10}]}"#;
+
+#[test]
+fn batch_gives_one_record_per_line_even_for_lines_that_once_crashed_it() {
+    let good = r#"{"name":"good","reagents":[{"reagent":"acetic acid","millimolar":10}]}"#;
+    let input = [good, PROTON_SUM_LINE, good, PROTON_MIN_LINE, good].join("\n") + "\n";
+    let o = with_stdin(&["batch", "-"], &input);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let out = stdout(&o);
+    let recs: Vec<&str> = out.lines().collect();
+    assert_eq!(recs.len(), 5, "{out}");
+    for (i, r) in recs.iter().enumerate() {
+        if i % 2 == 0 {
+            let r: BatchRecord = serde_json::from_str(r).unwrap();
+            assert_eq!(r.line, i + 1);
+        } else {
+            let e: BatchErrorRecord = serde_json::from_str(r).unwrap();
+            assert_eq!(e.line, i + 1);
+            assert!(!e.error.is_empty());
+        }
+    }
+}
+
+#[test]
+fn a_user_definition_named_like_a_builtin_of_another_kind_is_refused() {
+    // An ion named like the built-in acetate family, charge +3: once accepted, and 0.1 mol/L
+    // sodium acetate then gave pH 13.60 with exit 0 (about 8.9 expected: pKa 4.76, common practice).
+    let p = temp_file(
+        "collide.json",
+        r#"{"format":"protolyte-recipe/1",
+           "definitions":{"ions":[{"name":"acetate","charge":3}],
+             "complexes":[{"name":"weird","log_beta":2,"parts":[{"ion":"acetate"},{"ion":"sodium"}]}]},
+           "reagents":[{"reagent":"sodium acetate","molar":0.1}]}"#,
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3), "{}", stdout(&o));
+    let err = stderr(&o);
+    assert!(err.contains("definitions.ions[0]"), "{err}");
+    assert!(err.contains("acetate") && err.contains("protolyte"), "{err}");
+    // Two definitions of the same name in one document: both are named.
+    let p = temp_file(
+        "twice.json",
+        r#"{"format":"protolyte-recipe/1",
+           "definitions":{"ions":[{"name":"q","charge":2}],"protolytes":[{"name":"Q","pka":[5],"charge_most_protonated":0}]},
+           "reagents":[{"reagent":"sodium chloride","molar":0.1}]}"#,
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3), "{}", stdout(&o));
+    let err = stderr(&o);
+    assert!(
+        err.contains("definitions.ions[0]") && err.contains("definitions.protolytes[0]"),
+        "{err}"
+    );
+}
+
+#[test]
+fn long_names_and_lines_are_refused_quickly_with_a_short_message() {
+    let long = "x".repeat(400_000);
+    let p = temp_file(
+        "longname.json",
+        &format!(r#"{{"format":"protolyte-recipe/1","reagents":[{{"reagent":"{long}","molar":0.1}}]}}"#),
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    let err = stderr(&o);
+    assert!(
+        err.contains("reagents[0].reagent") && err.contains("200"),
+        "{}",
+        &err[..err.len().min(300)]
+    );
+    assert!(err.len() < 400, "message of {} bytes", err.len());
+    // A batch line over the line limit gives its own error record; the others run.
+    let good = r#"{"reagents":[{"reagent":"acetic acid","millimolar":10}]}"#;
+    let huge = format!(r#"{{"name":"{}","reagents":[]}}"#, "y".repeat(2 << 20));
+    let input = format!("{good}\n{huge}\n{good}\n");
+    let o = with_stdin(&["batch", "-"], &input);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let out = stdout(&o);
+    let recs: Vec<&str> = out.lines().collect();
+    assert_eq!(recs.len(), 3);
+    let e: BatchErrorRecord = serde_json::from_str(recs[1]).unwrap();
+    assert_eq!((e.line, e.kind.as_str()), (2, "input"));
+    assert!(e.error.contains("1048576"), "{}", e.error);
+    assert!(recs[1].len() < 400);
+    // Too many lines in one recipe.
+    let line = r#"{"reagent":"sodium chloride","millimolar":1}"#;
+    let many = vec![line; 1001].join(",");
+    let p = temp_file(
+        "many.json",
+        &format!(r#"{{"format":"protolyte-recipe/1","reagents":[{many}]}}"#),
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(
+        stderr(&o).contains("field `reagents`") && stderr(&o).contains("1000"),
+        "{}",
+        stderr(&o)
+    );
+    // A document over the size limit.
+    let p = temp_file("big.json", &format!("{{\"name\":\"{}\"}}", "z".repeat(2 << 20)));
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("1048576"), "{}", stderr(&o));
+}
+
+#[test]
+fn batch_on_a_directory_is_an_input_error() {
+    let dir = std::env::temp_dir().join(format!("protolyte-cli-dir-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let o = protolyte(&["batch", dir.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3), "{}", stderr(&o));
+    assert!(stderr(&o).contains("directory"), "{}", stderr(&o));
+}
+
+#[test]
+fn a_plot_that_cannot_be_written_exits_5_after_the_table() {
+    let o = protolyte(&["solve", "examples/hatchery_makeup.json", "--plot", "/no/such/dir/x.svg"]);
+    assert_eq!(o.status.code(), Some(5));
+    assert!(stdout(&o).contains("pH "), "{}", stdout(&o));
+    assert!(stderr(&o).contains("/no/such/dir/x.svg"), "{}", stderr(&o));
+    let o = protolyte(&[
+        "titrate",
+        "examples/soft_drink_acidity.json",
+        "--plot",
+        "/no/such/dir/x.svg",
+    ]);
+    assert_eq!(o.status.code(), Some(5));
+    assert!(stdout(&o).starts_with("volume_ml,ph"), "{}", stdout(&o));
+}
+
+#[test]
+fn a_refused_amount_names_its_field() {
+    let p = temp_file(
+        "amount.json",
+        r#"{"format":"protolyte-recipe/1","reagents":[{"reagent":"acetic acid","molar":0.1},{"reagent":"sodium acetate","millimolar":-5}]}"#,
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("field `reagents[1].millimolar`"), "{}", stderr(&o));
+    let p = temp_file(
+        "stock.json",
+        r#"{"format":"protolyte-recipe/1","reagents":[{"reagent":"acetic acid","stock_molar":1,"aliquot_ml":-1,"final_volume_ml":100}]}"#,
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("field `reagents[0].aliquot_ml`"), "{}", stderr(&o));
+}
+
+#[test]
+fn json_with_a_byte_order_mark_is_read_as_json() {
+    let text = std::fs::read_to_string("examples/hatchery_makeup.json").unwrap();
+    let p = temp_file("bom.json", &format!("\u{feff}{text}"));
+    let o = protolyte(&["solve", "--json", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let o = with_stdin(&["solve", "--json", "-"], &format!("\u{feff}{text}"));
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    // And a batch whose first line starts with one.
+    let line = r#"{"reagents":[{"reagent":"acetic acid","millimolar":10}]}"#;
+    let o = with_stdin(&["batch", "-"], &format!("\u{feff}{line}\n{line}\n"));
+    assert_eq!(o.status.code(), Some(0), "{}", stdout(&o));
+}
+
+#[test]
+fn no_convergence_messages_read_as_sentences() {
+    let e = protolyte::Error::NoConvergence {
+        path: "general",
+        iterations: 3,
+        max_residual: 1.0,
+        worst_equation: "a non-finite value in the result".into(),
+        last_ph: 7.0,
+    };
+    assert!(!e.to_string().contains("the a "), "{e}");
+}
+
+#[test]
+fn syntax_errors_quote_long_input_short() {
+    let key = "k".repeat(500_000);
+    let line = format!(r#"{{"{key}": 1, "reagents": []}}"#);
+    let o = with_stdin(&["batch", "-"], &format!("{line}\n"));
+    assert_eq!(o.status.code(), Some(1));
+    let out = stdout(&o);
+    let e: BatchErrorRecord = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(e.kind, "syntax");
+    assert!(e.error.len() < 600, "{} bytes", e.error.len());
+    let p = temp_file(
+        "longvalue.json",
+        &format!(r#"{{"format":"protolyte-recipe/1","reagents":[{{"reagent":"acetic acid","molar":"{key}"}}]}}"#),
+    );
+    let o = protolyte(&["solve", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).len() < 700, "{} bytes", stderr(&o).len());
 }

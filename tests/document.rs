@@ -145,7 +145,7 @@ fn refused_fields_are_named() {
     assert_eq!(f, "reagents[0]");
     assert!(m.contains("exactly one amount"), "{m}");
     let (f, m) = field(r#"{"reagents": [{"reagent": "acetic acid", "molar": -0.1}]}"#);
-    assert_eq!(f, "reagents[0]");
+    assert_eq!(f, "reagents[0].molar");
     assert!(m.contains("acetic acid"), "{m}");
     let (f, _) = field(r#"{"reagents": [{"reagent": "sodium chloride", "grams": 1.0}]}"#);
     assert_eq!(f, "reagents[0].final_volume_ml");
@@ -417,4 +417,92 @@ fn requests_read_from_toml_too() {
     same::<DesignDoc>("examples/tris_buffer_design.json");
     same::<FitDoc>("examples/vinegar_fit.json");
     same::<RecipeDoc>("examples/indicator_dye.json");
+}
+
+#[test]
+fn colliding_definitions_are_refused_with_both_names() {
+    let err = |json: &str| -> (String, String) {
+        let doc: RecipeDoc = document::parse(json, "x.json").unwrap();
+        match doc.to_recipe(&cat()).unwrap_err() {
+            DocumentError::Field { field, message, .. } => (field, message),
+            other => panic!("{other:?}"),
+        }
+    };
+    // An ion named like a built-in family (common practice: acetate is the conjugate base of
+    // acetic acid, a family in the catalogue).
+    let (f, m) = err(r#"{"definitions": {"ions": [{"name": "Acetate", "charge": 3}]}, "reagents": []}"#);
+    assert_eq!(f, "definitions.ions[0].name");
+    assert!(m.contains("`Acetate`") && m.contains("protolyte `acetate`"), "{m}");
+    // A family named by a synonym of a built-in ion's entry, through its synonyms.
+    let (f, m) = err(
+        r#"{"definitions": {"protolytes": [{"name": "dye", "pka": [5], "charge_most_protonated": 0, "synonyms": ["SODIUM"]}]}, "reagents": []}"#,
+    );
+    assert_eq!(f, "definitions.protolytes[0].synonyms");
+    assert!(m.contains("ion `sodium`"), "{m}");
+    // A complex named like a user ion of the same document.
+    let (f, m) = err(r#"{"definitions": {"ions": [{"name": "q", "charge": 2}],
+            "complexes": [{"name": "q", "log_beta": 1, "parts": [{"ion": "q"}, {"ion": "chloride"}]}]}, "reagents": []}"#);
+    assert_eq!(f, "definitions.complexes[0].name");
+    assert!(m.contains("definitions.ions[0]"), "{m}");
+    // Two reagents of the same name in one document.
+    let (f, m) = err(
+        r#"{"definitions": {"reagents": [{"name": "mix", "parts": [{"proton": true}, {"ion": "chloride"}]},
+            {"name": "Mix", "parts": [{"hydroxide": true}, {"ion": "sodium"}]}]}, "reagents": []}"#,
+    );
+    assert_eq!(f, "definitions.reagents[1].name");
+    assert!(m.contains("definitions.reagents[0]"), "{m}");
+    // A neutral family's reagent of the same name is not a collision.
+    let doc: RecipeDoc = document::load("examples/indicator_dye.json").unwrap();
+    assert!(doc.to_recipe(&cat()).is_ok());
+}
+
+#[test]
+fn names_and_lists_past_the_limits_are_refused_and_quoted_short() {
+    use protolyte::document::limits::{MAX_ENTRIES, MAX_NAME_CHARS, MAX_PARTS};
+    let mut doc = RecipeDoc::new();
+    // At the limit: looked up (and unknown).
+    doc.reagents
+        .push(document::AmountLine::millimolar(&"é".repeat(MAX_NAME_CHARS), 1.0));
+    let e = doc.to_recipe(&cat()).unwrap_err().to_string();
+    assert!(e.contains("unknown reagent"), "{}", &e[..200]);
+    // Past it: refused before the look-up, quoted short.
+    doc.reagents[0] = document::AmountLine::millimolar(&"é".repeat(MAX_NAME_CHARS + 1), 1.0);
+    let e = doc.to_recipe(&cat()).unwrap_err().to_string();
+    assert!(
+        e.contains("reagents[0].reagent") && e.contains("(201 characters)"),
+        "{e}"
+    );
+    assert!(e.len() < 200, "{e}");
+    let mut doc = RecipeDoc::new();
+    doc.reagents = vec![document::AmountLine::millimolar("sodium chloride", 1.0); MAX_ENTRIES + 1];
+    let e = doc.to_recipe(&cat()).unwrap_err();
+    assert!(
+        matches!(&e, DocumentError::Field { field, .. } if field == "reagents"),
+        "{e}"
+    );
+    let pka: Vec<String> = (0..=MAX_PARTS).map(|i| format!("{}", 2 + i % 10)).collect();
+    let json = format!(
+        r#"{{"definitions": {{"protolytes": [{{"name": "poly", "pka": [{}], "charge_most_protonated": 0}}]}}, "reagents": []}}"#,
+        pka.join(",")
+    );
+    let doc: RecipeDoc = document::parse(&json, "x.json").unwrap();
+    let e = doc.to_recipe(&cat()).unwrap_err();
+    assert!(
+        matches!(&e, DocumentError::Field { field, .. } if field == "definitions.protolytes[0].pka"),
+        "{e}"
+    );
+}
+
+#[test]
+fn a_byte_order_mark_is_skipped_in_json_and_toml() {
+    let doc: RecipeDoc = document::parse("\u{feff}{\"reagents\": []}", "x.json").unwrap();
+    assert!(doc.reagents.is_empty());
+    let doc: RecipeDoc = document::parse("\u{feff}format = \"protolyte-recipe/1\"\nreagents = []\n", "x.toml").unwrap();
+    assert_eq!(doc.format.as_deref(), Some("protolyte-recipe/1"));
+    let text = format!(
+        "{{\"name\": \"{}\"}}",
+        "a".repeat(protolyte::document::limits::MAX_DOCUMENT_BYTES)
+    );
+    let e = document::parse::<RecipeDoc>(&text, "big.json").unwrap_err();
+    assert!(matches!(e, DocumentError::Read { .. }), "{e}");
 }

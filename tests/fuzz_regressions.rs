@@ -1,45 +1,26 @@
-//! Inputs the fuzz target (`fuzz/fuzz_targets/recipe_document.rs`) found or was seeded with,
-//! kept as regression tests: each file in `tests/fuzz_inputs/` goes through the same path —
-//! parse as a recipe document, compile, solve — and must end in an error or in finite numbers,
-//! never a panic or a NaN.
-#![cfg(feature = "serde")]
+//! Inputs the fuzz targets (`fuzz/fuzz_targets/`) found or were seeded with, kept as
+//! regression tests: each file in `tests/fuzz_inputs/` goes through the same oracles as the
+//! fuzzer (`tests/fuzz_check/mod.rs`): read as a recipe or titration document, solved directly
+//! and as a batch line, it must end in an error or in finite numbers that meet the residual
+//! and sign checks, never a panic, a NaN or a lost batch record.
+#![cfg(feature = "cli")]
 
-use protolyte::Catalog;
-use protolyte::document::{RecipeDoc, SolveResult, parse};
-
-fn run(text: &str) {
-    let Ok(doc) = parse::<RecipeDoc>(text, "fuzz.json") else {
-        return;
-    };
-    let Ok((recipe, conditions)) = doc.to_recipe(&Catalog::builtin()) else {
-        return;
-    };
-    let Ok(system) = recipe.compile(&conditions) else {
-        return;
-    };
-    let Ok(eq) = system.solve() else { return };
-    let result = SolveResult::from_equilibrium(&eq);
-    assert!(result.ph.is_finite(), "pH is not finite");
-    for s in eq.species() {
-        assert!(
-            s.molal.is_finite() && s.gamma.is_finite() && s.activity.is_finite(),
-            "{s:?}"
-        );
-    }
-    if let Ok(sens) = eq.sensitivities(&system) {
-        assert!(sens.buffer_capacity_molal().is_finite());
-    }
-}
+mod fuzz_check;
 
 #[test]
-fn every_kept_fuzz_input_ends_in_an_error_or_finite_numbers() {
+fn every_kept_fuzz_input_ends_in_an_error_or_checked_numbers() {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fuzz_inputs");
     let mut count = 0;
-    for entry in std::fs::read_dir(&dir).expect("tests/fuzz_inputs exists") {
-        let path = entry.expect("entry").path();
+    let mut entries: Vec<_> = std::fs::read_dir(&dir)
+        .expect("tests/fuzz_inputs exists")
+        .map(|e| e.expect("entry").path())
+        .collect();
+    entries.sort();
+    for path in entries {
         let bytes = std::fs::read(&path).expect("readable");
         if let Ok(text) = std::str::from_utf8(&bytes) {
-            run(text);
+            let r = std::panic::catch_unwind(|| fuzz_check::check_text(text));
+            assert!(r.is_ok(), "{} fails its checks", path.display());
         }
         count += 1;
     }

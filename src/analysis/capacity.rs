@@ -205,7 +205,9 @@ impl CapacityCurve {
         })
     }
 
-    /// β at `points` evenly spaced pH values from `from` to `to` (both included).
+    /// β at `points` evenly spaced pH values from `from` to `to` (both included; fewer than 2
+    /// points give 2). Refuses more than [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
+    /// ([`Error::TooManyPoints`]).
     ///
     /// ```
     /// use protolyte::analysis::CapacityCurve;
@@ -236,6 +238,7 @@ impl CapacityCurve {
             20.0,
             "must be finite and within -4..20",
         )?;
+        crate::error::check_points("buffer capacity sweep", points)?;
         let n = points.max(2);
         (0..n)
             .map(|i| self.at_ph(from + (to - from) * i as f64 / (n - 1) as f64))

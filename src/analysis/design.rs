@@ -20,13 +20,14 @@
 
 use roots::{Convergency, find_root_brent};
 
-use crate::equilibrium::{Equilibrium, Warning};
+use crate::equilibrium::Equilibrium;
 use crate::error::{Error, Result, check_parameter};
 use crate::quantity::{Amount, Mass, Temperature, Volume};
 use crate::reagent::Reagent;
 use crate::recipe::Recipe;
 use crate::solve::Solver;
 use crate::system::{Conditions, System};
+use crate::warning::Warning;
 
 /// A reagent as the person has it: a solid to weigh, or a stock solution to pipette.
 ///
@@ -442,7 +443,7 @@ impl BufferSpec {
         )?;
         let vf = self.final_volume.positive("final volume")?;
         self.buffer.validate("buffer concentration")?;
-        let rho = crate::water::density_kg_per_l(self.conditions.temperature);
+        let rho = crate::water::density_kg_per_l(self.conditions.temperature)?;
         let c_buf = self.buffer.molal_value(rho) * rho;
         if c_buf <= 0.0 {
             return Err(design_error("the buffer concentration must be positive".into()));

@@ -264,14 +264,17 @@ impl Titration {
     }
 
     /// The stoichiometric equivalence points, with the steep part of each break taken as
-    /// ±`steep_fraction` of its volume (clamped to 1e-5..0.5) and indicators chosen from
-    /// `table`.
+    /// ±`steep_fraction` of its volume (1e-5..0.5; refused outside) and indicators chosen
+    /// from `table`.
     pub fn equivalence_points_with(&self, steep_fraction: f64, table: &[Indicator]) -> Result<Vec<EquivalencePoint>> {
-        let f = if steep_fraction.is_finite() {
-            steep_fraction.clamp(1e-5, 0.5)
-        } else {
-            DEFAULT_STEEP_FRACTION
-        };
+        let f = crate::error::check_parameter(
+            "equivalence points",
+            "steep fraction",
+            steep_fraction,
+            1e-5,
+            0.5,
+            "must be within 1e-5..0.5",
+        )?;
         let lad = Ladder::of(self);
         let v0 = self.analyte_volume().liters_value();
         let n = lad.rungs.len();
@@ -536,7 +539,8 @@ fn check_data(data: &[(f64, f64)], min: usize) -> Result<()> {
 
 /// Endpoints of measured (volume mL, pH) data by the derivative method: the peaks of the
 /// first difference |ΔpH/ΔV| at least `min_fraction` (0..1) of the largest one, each located
-/// by the zero crossing of the second difference (common practice). Volumes must increase.
+/// by the zero crossing of the second difference (common practice). Volumes must increase;
+/// a `min_fraction` outside 0..1 is refused.
 ///
 /// ```
 /// use protolyte::analysis::derivative_endpoints;
@@ -550,11 +554,14 @@ fn check_data(data: &[(f64, f64)], min: usize) -> Result<()> {
 /// ```
 pub fn derivative_endpoints(data: &[(f64, f64)], min_fraction: f64) -> Result<Vec<DerivativeEndpoint>> {
     check_data(data, 4)?;
-    let frac = if min_fraction.is_finite() {
-        min_fraction.clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
+    let frac = crate::error::check_parameter(
+        "derivative endpoints",
+        "minimum fraction",
+        min_fraction,
+        0.0,
+        1.0,
+        "must be within 0..1",
+    )?;
     let sign = if data[data.len() - 1].1 >= data[0].1 { 1.0 } else { -1.0 };
     let mid: Vec<(f64, f64)> = data
         .windows(2)

@@ -247,7 +247,9 @@ impl TitrationFit {
         TitrationFit::default()
     }
 
-    /// Sets the iteration budget (at least 1; default 100).
+    /// Sets the iteration budget (at least 1; default 100). A budget above
+    /// [`MAX_FIT_ITERATIONS`](crate::limits::MAX_FIT_ITERATIONS) is refused by
+    /// [`TitrationFit::run`].
     pub fn max_iterations(mut self, n: usize) -> Self {
         self.max_iterations = n.max(1);
         self
@@ -356,6 +358,14 @@ impl TitrationFit {
 
     /// Runs the fit.
     pub fn run(&self) -> Result<FitReport> {
+        crate::error::check_parameter(
+            "titration fit",
+            "iteration budget",
+            self.max_iterations as f64,
+            1.0,
+            crate::limits::MAX_FIT_ITERATIONS as f64,
+            "must be at most MAX_FIT_ITERATIONS (10,000)",
+        )?;
         if self.curves.is_empty() {
             return Err(bad("no measured curve was added".into()));
         }
@@ -605,9 +615,9 @@ impl Work<'_> {
                 r[row] = measured - (eq.ph() + offset);
                 for &(j, a) in &acts {
                     let d = match a {
-                        Action::Analyte(i) => sens.dph(Parameter::Total(i)) * (1.0 - w) / c.rho,
-                        Action::Titrant(i) => sens.dph(Parameter::Total(i)) * w / c.rho,
-                        Action::Pka(f, s) => sens.dph_dpka(f, s),
+                        Action::Analyte(i) => sens.dph(Parameter::Total(i)).unwrap_or(0.0) * (1.0 - w) / c.rho,
+                        Action::Titrant(i) => sens.dph(Parameter::Total(i)).unwrap_or(0.0) * w / c.rho,
+                        Action::Pka(f, s) => sens.dph_dpka(f, s).unwrap_or(0.0),
                         Action::Offset => 1.0,
                     };
                     jac[(row, j)] += d;

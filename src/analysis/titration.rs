@@ -126,7 +126,9 @@ impl Stepping {
         self
     }
 
-    /// The largest number of points (at least 2).
+    /// The largest number of points (at least 2). A curve asked with more than
+    /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS) is refused by
+    /// [`Titration::curve_adaptive`].
     pub fn max_points(mut self, n: usize) -> Self {
         self.max_points = n.max(2);
         self
@@ -301,8 +303,11 @@ impl Titration {
     }
 
     /// The curve at the given volumes (any order; each point warm-starts from the previous).
+    /// Refuses more than [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS) volumes
+    /// ([`Error::TooManyPoints`]).
     pub fn curve(&self, volumes: &[Volume]) -> Result<Vec<TitrationPoint>> {
         let mut c = Cursor::new(self);
+        crate::error::check_points("titration curve", volumes.len())?;
         let mut out: Vec<TitrationPoint> = Vec::with_capacity(volumes.len());
         for v in volumes {
             let p = c.point(v.liters_value(), out.last().map(|p| &p.equilibrium))?;
@@ -311,7 +316,10 @@ impl Titration {
         Ok(out)
     }
 
-    /// The curve at `points` evenly spaced volumes from 0 to `end` (both included).
+    /// The curve at `points` evenly spaced volumes from 0 to `end` (both included; fewer
+    /// than 2 points give 2). Refuses more than
+    /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
+    /// ([`Error::TooManyPoints`]).
     ///
     /// ```
     /// use protolyte::analysis::Titration;
@@ -329,6 +337,7 @@ impl Titration {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn curve_uniform(&self, end: Volume, points: usize) -> Result<Vec<TitrationPoint>> {
+        crate::error::check_points("titration curve", points)?;
         let e = crate::error::check_amount("end volume", end.liters_value(), "L")?;
         let n = points.max(2);
         let volumes: Vec<Volume> = (0..n).map(|i| Volume::liters(e * i as f64 / (n - 1) as f64)).collect();
@@ -356,6 +365,7 @@ impl Titration {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn curve_adaptive(&self, stepping: &Stepping) -> Result<Vec<TitrationPoint>> {
+        crate::error::check_points("adaptive titration curve", stepping.max_points)?;
         let end = crate::error::check_amount("end volume", stepping.end_l, "L")?;
         let min_step = stepping.min_step_l.min(end.max(f64::MIN_POSITIVE));
         let max_step = stepping.max_step_l.max(min_step);
@@ -518,7 +528,7 @@ mod tests {
                 let mut dt = vec![0.0; nc];
                 dt[c] = 1.0;
                 let fast = dph_along_uncoupled(&sys, &eq, &dt).unwrap();
-                let full = sens.dph(Parameter::Total(c));
+                let full = sens.dph(Parameter::Total(c)).unwrap_or(0.0);
                 assert!(
                     (fast - full).abs() <= 1e-8 * full.abs().max(1e-3),
                     "{model:?} {c}: {fast} vs {full}"

@@ -133,8 +133,8 @@ impl Resolved {
     /// d pH / d input.
     pub(crate) fn dph(self, sens: &Sensitivities) -> f64 {
         match self {
-            Resolved::Pka { family, step } => sens.dph_dpka(family, step),
-            Resolved::Param(p) => sens.dph(p),
+            Resolved::Pka { family, step } => sens.dph_dpka(family, step).unwrap_or(0.0),
+            Resolved::Param(p) => sens.dph(p).unwrap_or(0.0),
         }
     }
 
@@ -146,10 +146,10 @@ impl Resolved {
                 let forms = &system.families()[family].forms;
                 let n = forms.len() - 1;
                 (n - step..=n)
-                    .map(|j| sens.dlog10_molal(species, Parameter::Log10K(forms[j])))
+                    .map(|j| sens.dlog10_molal(species, Parameter::Log10K(forms[j])).unwrap_or(0.0))
                     .sum()
             }
-            Resolved::Param(p) => sens.dlog10_molal(species, p),
+            Resolved::Param(p) => sens.dlog10_molal(species, p).unwrap_or(0.0),
         }
     }
 }

@@ -33,9 +33,10 @@ Exit codes:
   0  success
   1  batch: some lines failed (each has an error record in the output)
   2  the command line is wrong (unknown option, missing argument)
-  3  the input cannot be read or is refused (the message names file, line and column, or the field)
+  3  the input cannot be read or is refused (the message names file, line and column, or the
+     field), or is over an input limit (docs/cli.md)
   4  the solver did not converge
-  5  the output could not be written
+  5  the output could not be written (with --plot: the result was written, the plot was not)
 
 Documents are JSON or TOML; see docs/recipe-format.md.";
 
@@ -147,6 +148,13 @@ fn output_failure(e: io::Error) -> Failure {
 }
 
 fn main() -> ExitCode {
+    // A panic is a bug; say so in one line (a batch line that hits one gets an error record
+    // that says the same, and the run goes on). RUST_BACKTRACE keeps the standard report.
+    if std::env::var_os("RUST_BACKTRACE").is_none() {
+        std::panic::set_hook(Box::new(|info| {
+            eprintln!("protolyte: internal error (a bug in protolyte; please report it): {info}");
+        }));
+    }
     let cli = Cli::parse();
     match run(cli.command) {
         Ok(code) => ExitCode::from(code),
@@ -195,10 +203,13 @@ fn write_json<T: serde::Serialize>(out: &mut impl Write, v: &T) -> Result<(), Fa
     writeln!(out).map_err(output_failure)
 }
 
-fn plot_failure(e: PlotError) -> Failure {
+fn plot_failure(path: &Path, e: PlotError) -> Failure {
     Failure {
         code: EXIT_OUTPUT,
-        message: format!("cannot draw the plot: {e}"),
+        message: format!(
+            "{}: cannot draw or write the plot (the result above is complete): {e}",
+            path.display()
+        ),
     }
 }
 
@@ -219,15 +230,18 @@ fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> 
         .and_then(|s| s.solve())
         .map_err(|e| chem(&name, e))?;
     let result = SolveResult::from_equilibrium(&eq).named(doc.name.clone());
-    if let Some(p) = plot {
-        let opts = plot_options(&doc.name).mark_ph(eq.ph());
-        let svg = distribution_plot(&recipe, &conditions, &opts).map_err(plot_failure)?;
-        write_svg(p, &svg).map_err(plot_failure)?;
-    }
     if json {
         write_json(out, &result)?;
     } else {
         write_solve_table(out, &result).map_err(output_failure)?;
+    }
+    // The plot comes after the result, so that a plot that cannot be drawn or written (exit 5)
+    // does not take the result with it.
+    if let Some(p) = plot {
+        out.flush().map_err(output_failure)?;
+        let opts = plot_options(&doc.name).mark_ph(eq.ph());
+        let svg = distribution_plot(&recipe, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
 }
@@ -311,11 +325,6 @@ fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -
     let eqs = t.equivalence_points().map_err(|e| chem(&name, e))?;
     let halves = t.half_equivalence_points().map_err(|e| chem(&name, e))?;
     let end = doc.end_volume_ml;
-    if let Some(p) = plot {
-        let shown: Vec<_> = eqs.iter().filter(|e| e.volume_ml <= end).cloned().collect();
-        let svg = titration_svg(&curve, &shown, &plot_options(&doc.name)).map_err(plot_failure)?;
-        write_svg(p, &svg).map_err(plot_failure)?;
-    }
     let result = TitrationResult {
         format: document::RESULT_FORMAT.into(),
         name: doc.name.clone(),
@@ -328,6 +337,13 @@ fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -
         write_json(out, &result)?;
     } else {
         write_titration_csv(out, &result).map_err(output_failure)?;
+    }
+    // After the result, as for `solve`.
+    if let Some(p) = plot {
+        out.flush().map_err(output_failure)?;
+        let shown: Vec<_> = eqs.iter().filter(|e| e.volume_ml <= end).cloned().collect();
+        let svg = titration_svg(&curve, &shown, &plot_options(&doc.name)).map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
 }
@@ -528,7 +544,14 @@ fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Res
         (Box::new(BufReader::with_capacity(1 << 20, io::stdin())), None)
     } else {
         let f = File::open(file).map_err(unreadable)?;
-        let len = f.metadata().ok().map(|m| m.len());
+        let meta = f.metadata().map_err(unreadable)?;
+        if meta.is_dir() {
+            return Err(Failure {
+                code: EXIT_BAD_INPUT,
+                message: format!("{name}: is a directory, not a JSON Lines file"),
+            });
+        }
+        let len = Some(meta.len());
         (Box::new(BufReader::with_capacity(1 << 20, f)), len)
     };
     let sink: Box<dyn Write> = match output {
@@ -558,7 +581,7 @@ fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Res
     )
     .map_err(|e| {
         // A read error names the input; anything else is the output's.
-        if e.kind() == io::ErrorKind::InvalidData || e.kind() == io::ErrorKind::UnexpectedEof {
+        if batch::is_read_error(&e) {
             unreadable(e)
         } else {
             output_failure(e)

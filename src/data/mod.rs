@@ -153,6 +153,29 @@ pub struct Catalog {
     sources: BTreeMap<String, String>,
     /// Built-in files that could not be read (a data bug; tested empty).
     problems: Vec<String>,
+    /// Entries replaced on purpose, as they were.
+    replaced: Vec<DataInfo>,
+}
+
+/// A dependent entry that the replacement would leave invalid.
+fn dependent(name: &str, e: Error) -> Error {
+    Error::InconsistentDefinition {
+        name: name.to_string(),
+        reason: format!("it depends on the replaced entry and would become invalid: {e}"),
+    }
+}
+
+/// Longest name (characters) for which a lookup that fails searches for a suggestion.
+const MAX_SUGGEST_CHARS: usize = 64;
+
+/// The kinds that share a namespace with `kind`: families, ions and complexes share one
+/// (a recipe matches them by name when it is compiled); reagents have their own (a reagent
+/// may carry the name of the family it delivers, such as "acetic acid").
+fn namespace(kind: DataKind) -> &'static [DataKind] {
+    match kind {
+        DataKind::Reagent => &[DataKind::Reagent],
+        _ => &[DataKind::Protolyte, DataKind::Ion, DataKind::Complex],
+    }
 }
 
 /// Lower case, single spaces, ASCII hyphens.
@@ -347,20 +370,26 @@ impl Catalog {
         if let Some(&idx) = self.index.get(&(kind, key.clone())) {
             return Ok(idx);
         }
-        // Not found: suggest the closest name or synonym, if it is close.
+        // Not found: suggest the closest name or synonym, if it is close. The search is
+        // bounded: a name longer than MAX_SUGGEST_CHARS gets no suggestion, and a key whose
+        // length alone puts it beyond the limit is not compared.
+        let key_len = key.chars().count();
+        let limit = (key_len / 3).max(2);
         let mut best: Option<(usize, &str)> = None;
-        for info in self.info.iter().filter(|i| i.kind == kind) {
-            let d = info
-                .keys
-                .iter()
-                .map(|n| levenshtein(n, &key))
-                .min()
-                .unwrap_or(usize::MAX);
-            if best.is_none_or(|(bd, _)| d < bd) {
-                best = Some((d, info.name.as_str()));
+        if key_len <= MAX_SUGGEST_CHARS {
+            for info in self.info.iter().filter(|i| i.kind == kind) {
+                let d = info
+                    .keys
+                    .iter()
+                    .filter(|n| n.chars().count().abs_diff(key_len) <= limit)
+                    .map(|n| levenshtein(n, &key))
+                    .min()
+                    .unwrap_or(usize::MAX);
+                if best.is_none_or(|(bd, _)| d < bd) {
+                    best = Some((d, info.name.as_str()));
+                }
             }
         }
-        let limit = (key.chars().count() / 3).max(2);
         Err(Error::UnknownName {
             kind: kind.name(),
             name: name.to_string(),
@@ -435,16 +464,145 @@ impl Catalog {
             .collect()
     }
 
-    fn check_new(&self, kind: DataKind, names: &[&str]) -> Result<()> {
+    /// The entries (kind, index within the kind) whose name or synonym equals one of `names`
+    /// (normalised), among the kinds that share a namespace with `kind`.
+    fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, DataKind, usize)> {
+        let mut out = Vec::new();
         for n in names {
-            if self.index.contains_key(&(kind, normalize(n))) {
-                return Err(Error::InconsistentDefinition {
-                    name: n.to_string(),
-                    reason: format!("a {} of that name is already in the catalog", kind.name()),
-                });
+            let key = normalize(n);
+            for &k in namespace(kind) {
+                if let Some(&idx) = self.index.get(&(k, key.clone())) {
+                    out.push((n.to_string(), k, idx));
+                }
             }
         }
-        Ok(())
+        out
+    }
+
+    fn conflict_error(&self, kind: DataKind, name: &str, existing: DataKind, idx: usize) -> Error {
+        Error::NameConflict {
+            name: name.to_string(),
+            kind: kind.name(),
+            existing_kind: existing.name(),
+            existing_name: self.info[self.offset(existing) + idx].name.clone(),
+        }
+    }
+
+    /// Refuses a name or synonym already taken (see [`Catalog::add_protolyte`]).
+    fn check_new(&self, kind: DataKind, names: &[&str]) -> Result<()> {
+        match self.conflicts(kind, names).first() {
+            Some((name, k, idx)) => Err(self.conflict_error(kind, name, *k, *idx)),
+            None => Ok(()),
+        }
+    }
+
+    /// For a replacement: the one entry of the same kind that the names point to (its index
+    /// within the kind; `None` when they are all new). Refuses names held by an entry of
+    /// another kind, or by two different entries.
+    fn replacement_target(&self, kind: DataKind, names: &[&str]) -> Result<Option<usize>> {
+        let mut target: Option<usize> = None;
+        for (name, k, idx) in self.conflicts(kind, names) {
+            if k != kind || target.is_some_and(|t| t != idx) {
+                return Err(self.conflict_error(kind, &name, k, idx));
+            }
+            target = Some(idx);
+        }
+        Ok(target)
+    }
+
+    /// The entries replaced by the `replace_*` calls and by catalogue files' `replace = true`,
+    /// in order (their descriptions as they were before the replacement).
+    pub fn replaced(&self) -> &[DataInfo] {
+        &self.replaced
+    }
+
+    /// Replaces the family that `p`'s name or one of `synonyms` names, on purpose: the
+    /// explicit override of a built-in (or earlier) definition of the same kind. Returns the
+    /// description of the entry replaced (also kept in [`Catalog::replaced`]), or `None` when
+    /// no entry had those names (then `p` is simply added).
+    ///
+    /// The replacement keeps the old entry's name and synonyms beside its own, and every
+    /// reagent and complex of the catalog built on the old family is rebuilt on the new one
+    /// (so that a recipe never meets two definitions under one name). Refuses names held by
+    /// an entry of another kind or by two different entries ([`Error::NameConflict`]), and a
+    /// replacement that leaves a dependent reagent or complex invalid (for instance with
+    /// fewer steps than a reagent's form needs); the catalog is then unchanged.
+    ///
+    /// ```
+    /// use protolyte::{Catalog, Protolyte};
+    /// let mut cat = Catalog::builtin();
+    /// let old = cat.replace_protolyte(Protolyte::new("acetate", &[4.80], 0)?, &[])?;
+    /// assert_eq!(old.map(|o| o.name), Some("acetate".to_string()));
+    /// assert_eq!(cat.protolyte("acetic acid")?.steps()[0].pka, 4.80);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn replace_protolyte(&mut self, p: Protolyte, synonyms: &[&str]) -> Result<Option<DataInfo>> {
+        let name = p.name().to_string();
+        let meta = Meta::added_in_code(p.source());
+        self.replace_with(DataKind::Protolyte, &name, synonyms, |cat, syn| {
+            cat.add_protolyte_with(p, syn, meta)
+        })
+    }
+
+    /// Replaces the simple ion that `ion`'s name or one of `synonyms` names, on purpose
+    /// (see [`Catalog::replace_protolyte`], which this mirrors: reagents and complexes built
+    /// on the old ion are rebuilt on the new one).
+    pub fn replace_ion(&mut self, ion: Ion, synonyms: &[&str]) -> Result<Option<DataInfo>> {
+        let name = ion.name().to_string();
+        self.replace_with(DataKind::Ion, &name, synonyms, |cat, syn| {
+            cat.add_ion_with(ion, syn, Meta::added_in_code(None))
+        })
+    }
+
+    /// Replaces the reagent that `r`'s name or one of `synonyms` names, on purpose (see
+    /// [`Catalog::replace_protolyte`]).
+    pub fn replace_reagent(&mut self, r: Reagent, synonyms: &[&str]) -> Result<Option<DataInfo>> {
+        let name = r.name().to_string();
+        self.replace_with(DataKind::Reagent, &name, synonyms, |cat, syn| {
+            cat.add_reagent_with(r, syn, Meta::added_in_code(None))
+        })
+    }
+
+    /// Replaces the complex that `c`'s name or one of `synonyms` names, on purpose (see
+    /// [`Catalog::replace_protolyte`]).
+    pub fn replace_complex(&mut self, c: Complex, synonyms: &[&str]) -> Result<Option<DataInfo>> {
+        let name = c.name().to_string();
+        let meta = Meta::added_in_code(c.source());
+        self.replace_with(DataKind::Complex, &name, synonyms, |cat, syn| {
+            cat.add_complex_with(c, syn, meta)
+        })
+    }
+
+    /// The replacement behind the `replace_*` calls: removes the target (if any), adds the new
+    /// definition with the old entry's name and synonyms beside its own, and rebuilds the
+    /// entries built on the old one. All or nothing.
+    fn replace_with(
+        &mut self,
+        kind: DataKind,
+        name: &str,
+        synonyms: &[&str],
+        add: impl FnOnce(&mut Catalog, &[&str]) -> Result<()>,
+    ) -> Result<Option<DataInfo>> {
+        let mut names = vec![name];
+        names.extend_from_slice(synonyms);
+        let Some(idx) = self.replacement_target(kind, &names)? else {
+            add(self, synonyms)?;
+            return Ok(None);
+        };
+        let mut next = self.clone();
+        let old = next.remove(kind, idx);
+        let mut all: Vec<String> = synonyms.iter().map(|s| s.to_string()).collect();
+        for s in std::iter::once(&old.name).chain(&old.synonyms) {
+            if normalize(s) != normalize(name) && !all.iter().any(|a| normalize(a) == normalize(s)) {
+                all.push(s.clone());
+            }
+        }
+        let refs: Vec<&str> = all.iter().map(String::as_str).collect();
+        add(&mut next, &refs)?;
+        next.rebind(kind, &old.name, name)?;
+        next.replaced.push(old.clone());
+        *self = next;
+        Ok(Some(old))
     }
 
     /// Position of the first entry of `kind` in `info`.
@@ -485,6 +643,20 @@ impl Catalog {
     }
 
     /// Adds a user-defined family, found by its name and `synonyms`.
+    ///
+    /// Names are unambiguous: families, simple ions and complexes share one namespace
+    /// (a recipe matches them by name), reagents have their own. A name or synonym already
+    /// held in that namespace, by an entry of any kind, is refused with
+    /// [`Error::NameConflict`] naming both; to override an entry of the same kind on purpose
+    /// use [`Catalog::replace_protolyte`] (and its siblings), which reports what it replaced.
+    ///
+    /// ```
+    /// use protolyte::{Catalog, Error, Ion};
+    /// let mut cat = Catalog::builtin();
+    /// let err = cat.add_ion(Ion::new("acetate", 3)?, &[]).unwrap_err();
+    /// assert!(matches!(err, Error::NameConflict { existing_kind: "protolyte", .. }));
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
     pub fn add_protolyte(&mut self, p: Protolyte, synonyms: &[&str]) -> Result<()> {
         let meta = Meta::added_in_code(p.source());
         self.add_protolyte_with(p, synonyms, meta)
@@ -536,7 +708,7 @@ impl Catalog {
         Ok(())
     }
 
-    /// Adds a user-defined ion.
+    /// Adds a user-defined ion (names as for [`Catalog::add_protolyte`]).
     pub fn add_ion(&mut self, ion: Ion, synonyms: &[&str]) -> Result<()> {
         self.add_ion_with(ion, synonyms, Meta::added_in_code(None))
     }
@@ -570,7 +742,7 @@ impl Catalog {
         Ok(())
     }
 
-    /// Adds a user-defined reagent.
+    /// Adds a user-defined reagent (its name and synonyms must be new among the reagents).
     pub fn add_reagent(&mut self, r: Reagent, synonyms: &[&str]) -> Result<()> {
         self.add_reagent_with(r, synonyms, Meta::added_in_code(None))
     }
@@ -623,7 +795,7 @@ impl Catalog {
         Ok(())
     }
 
-    /// Adds a user-defined complex.
+    /// Adds a user-defined complex (names as for [`Catalog::add_protolyte`]).
     pub fn add_complex(&mut self, c: Complex, synonyms: &[&str]) -> Result<()> {
         let meta = Meta::added_in_code(c.source());
         self.add_complex_with(c, synonyms, meta)
@@ -670,8 +842,8 @@ impl Catalog {
     }
 
     /// Removes the entry of `kind` at `idx` (its definition and description) and returns
-    /// its synonyms.
-    fn remove(&mut self, kind: DataKind, idx: usize) -> Vec<String> {
+    /// its description.
+    fn remove(&mut self, kind: DataKind, idx: usize) -> DataInfo {
         let at = self.offset(kind) + idx;
         let info = self.info.remove(at);
         match kind {
@@ -681,7 +853,7 @@ impl Catalog {
             DataKind::Complex => drop(self.complexes.remove(idx)),
         }
         self.reindex();
-        info.synonyms
+        info
     }
 
     fn reindex(&mut self) {
@@ -696,14 +868,12 @@ impl Catalog {
         }
     }
 
-    /// Rebuilds the reagents and complexes that hold the family or ion named `name` so that
-    /// they use its current definition.
-    fn rebind(&mut self, kind: DataKind, name: &str) -> Result<()> {
-        let family = |cat: &Catalog| cat.protolyte(name).ok().filter(|p| p.name() == name);
-        let ion = |cat: &Catalog| cat.ion(name).ok().filter(|i| i.name() == name);
+    /// Rebuilds the reagents and complexes that hold the family or ion named `old_name` on
+    /// its replacement, now named `new_name`.
+    fn rebind(&mut self, kind: DataKind, old_name: &str, new_name: &str) -> Result<()> {
         let (new_family, new_ion) = match kind {
-            DataKind::Protolyte => (family(self), None),
-            DataKind::Ion => (None, ion(self)),
+            DataKind::Protolyte => (self.protolyte(new_name).ok(), None),
+            DataKind::Ion => (None, self.ion(new_name).ok()),
             _ => return Ok(()),
         };
         for r in &mut self.reagents {
@@ -713,14 +883,14 @@ impl Catalog {
                 .iter()
                 .map(|(c, n)| {
                     let c = match (c, &new_family, &new_ion) {
-                        (Constituent::Form { protolyte, protons }, Some(f), _) if protolyte.name() == name => {
+                        (Constituent::Form { protolyte, protons }, Some(f), _) if protolyte.name() == old_name => {
                             touched = true;
                             Constituent::Form {
                                 protolyte: f.clone(),
                                 protons: *protons,
                             }
                         }
-                        (Constituent::Ion(i), _, Some(new)) if i.name() == name => {
+                        (Constituent::Ion(i), _, Some(new)) if i.name() == old_name => {
                             touched = true;
                             Constituent::Ion(new.clone())
                         }
@@ -730,7 +900,8 @@ impl Catalog {
                 })
                 .collect();
             if touched {
-                let mut rebuilt = Reagent::new(r.name(), r.molar_mass_g_per_mol(), parts)?;
+                let mut rebuilt =
+                    Reagent::new(r.name(), r.molar_mass_g_per_mol(), parts).map_err(|e| dependent(r.name(), e))?;
                 if let Some(f) = r.formula() {
                     rebuilt = rebuilt.with_formula(f);
                 }
@@ -744,11 +915,11 @@ impl Catalog {
                 .iter()
                 .map(|(p, n)| {
                     let p = match (p, &new_family, &new_ion) {
-                        (ComplexPart::Base(b), Some(f), _) if b.name() == name => {
+                        (ComplexPart::Base(b), Some(f), _) if b.name() == old_name => {
                             touched = true;
                             ComplexPart::Base(f.clone())
                         }
-                        (ComplexPart::Ion(i), _, Some(new)) if i.name() == name => {
+                        (ComplexPart::Ion(i), _, Some(new)) if i.name() == old_name => {
                             touched = true;
                             ComplexPart::Ion(new.clone())
                         }
@@ -758,17 +929,20 @@ impl Catalog {
                 })
                 .collect();
             if touched {
-                let mut rebuilt = Complex::new(c.name(), parts, c.log10_beta())?;
-                if let Some(s) = c.source() {
-                    rebuilt = rebuilt.with_source(s);
-                }
-                if let Some(h) = c.dh_kj_per_mol() {
-                    rebuilt = rebuilt.with_enthalpy_kj_per_mol(h)?;
-                }
-                if let Some(a) = c.ion_size_angstrom() {
-                    rebuilt = rebuilt.with_ion_size_angstrom(a)?;
-                }
-                *c = rebuilt;
+                let rebuild = || -> Result<Complex> {
+                    let mut x = Complex::new(c.name(), parts, c.log10_beta())?;
+                    if let Some(s) = c.source() {
+                        x = x.with_source(s);
+                    }
+                    if let Some(h) = c.dh_kj_per_mol() {
+                        x = x.with_enthalpy_kj_per_mol(h)?;
+                    }
+                    if let Some(a) = c.ion_size_angstrom() {
+                        x = x.with_ion_size_angstrom(a)?;
+                    }
+                    Ok(x)
+                };
+                *c = rebuild().map_err(|e| dependent(c.name(), e))?;
             }
         }
         Ok(())
@@ -823,8 +997,8 @@ impl Catalog {
         }
     }
 
-    /// Adds a definition through the `add_*` functions, first removing the entry it replaces
-    /// when the file says `replace = true`; synonyms of a replaced entry are kept.
+    /// Adds a definition through the `add_*` functions, or through the `replace_*` machinery
+    /// when the file says `replace = true` (then an entry of that name must exist).
     fn place(
         &mut self,
         kind: DataKind,
@@ -833,34 +1007,32 @@ impl Catalog {
         synonyms: &[String],
         add: impl FnOnce(&mut Catalog, &[&str]) -> Result<()>,
     ) -> Result<()> {
-        let mut all: Vec<String> = synonyms.to_vec();
+        let refs: Vec<&str> = synonyms.iter().map(String::as_str).collect();
+        let named = |e: Error| match e {
+            Error::NameConflict {
+                kind: k, existing_kind, ..
+            } if k == existing_kind && !replace => entry.error(
+                "name",
+                format!("{e}; write `replace = true` in the entry to replace it"),
+            ),
+            Error::NameConflict { .. } => entry.error("name", e),
+            e => entry.wrap(e),
+        };
         if replace {
-            let idx = self.find(kind, entry.name).map_err(|_| {
-                entry.error(
+            let mut names = vec![entry.name];
+            names.extend_from_slice(&refs);
+            if self.replacement_target(kind, &names).map_err(named)?.is_none() {
+                return Err(entry.error(
                     "replace",
                     format!("there is no {} named `{}` to replace", kind.name(), entry.name),
-                )
-            })?;
-            for s in self.remove(kind, idx) {
-                if normalize(&s) != normalize(entry.name) && !all.iter().any(|a| normalize(a) == normalize(&s)) {
-                    all.push(s);
-                }
+                ));
             }
-        }
-        let refs: Vec<&str> = all.iter().map(String::as_str).collect();
-        add(self, &refs).map_err(|e| match e {
-            Error::InconsistentDefinition { reason, .. } if reason.contains("already in the catalog") => {
-                entry.error("name", format!("{reason}; write `replace = true` to replace it"))
-            }
-            e => entry.wrap(e),
-        })?;
-        if replace {
-            self.rebind(kind, entry.name).map_err(|e| {
-                entry.error(
-                    "replace",
-                    format!("an entry built on the one replaced no longer holds: {e}"),
-                )
+            self.replace_with(kind, entry.name, &refs, add).map_err(|e| match e {
+                Error::InconsistentDefinition { .. } => entry.error("replace", e),
+                e => named(e),
             })?;
+        } else {
+            add(self, &refs).map_err(named)?;
         }
         Ok(())
     }

@@ -8,8 +8,12 @@
 //! the previous one of its kind in the block ([`Solver::solve_from`]).
 //! Blocks are fixed by line numbers, so the output does not depend on the thread schedule.
 //!
-//! Every non-blank input line gives one output line: a [`BatchRecord`] or, for a line that
-//! cannot be read or solved, a [`BatchErrorRecord`]; the other lines still run.
+//! Every non-blank input line gives exactly one output line, in input order: a [`BatchRecord`]
+//! or, for a line that cannot be read or solved, a [`BatchErrorRecord`]; the other lines still
+//! run. Lines longer than [`MAX_LINE_BYTES`](super::limits::MAX_LINE_BYTES) are skipped while
+//! they are read (never held in memory) and get an error record. Each line's work runs under
+//! [`std::panic::catch_unwind`]: should the program fail on a line (a bug), that line gets an
+//! error record of kind `"internal"` and the run goes on.
 
 use std::borrow::Cow;
 use std::io::{self, BufRead, Write};
@@ -99,8 +103,9 @@ pub struct BatchErrorRecord {
     /// The recipe's `name`, when it could be read.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub name: Option<String>,
-    /// `"syntax"` (not JSON or wrong types), `"input"` (a refused field or name),
-    /// `"no-convergence"` or `"chemistry"` (another refusal by the solver).
+    /// `"syntax"` (not JSON or wrong types), `"input"` (a refused field or name, or a line
+    /// over the length limit), `"no-convergence"` or `"chemistry"` (another refusal by the
+    /// solver), `"internal"` (the program failed on this line: a bug, to be reported).
     pub kind: String,
     /// The message.
     pub error: String,
@@ -287,7 +292,8 @@ impl Template {
                     });
                 }
             };
-            let amount = amount_of(form, &self.reagents[i]).map_err(|e| super::field_error(path(), e))?;
+            let amount =
+                amount_of(form, &self.reagents[i]).map_err(|(f, e)| fast.to_line(false).amount_error(&path(), f, e))?;
             let m = amount.molal_value(rho);
             for &(c, n) in &self.parts[i] {
                 self.totals[c] += m * n;
@@ -342,7 +348,7 @@ impl Block<'_> {
             Failure::Syntax(format!(
                 "column {}: {}",
                 e.column().max(1),
-                super::strip_position(&e.to_string())
+                super::shorten_message(super::strip_position(&e.to_string()))
             ))
         };
         let doc: FastLine = serde_json::from_str(text).map_err(syntax)?;
@@ -446,7 +452,10 @@ fn write_record<T: Serialize>(out: &mut Vec<u8>, rec: &T) {
 /// Runs a batch: reads JSON Lines of recipe documents from `input`, writes one JSON line per
 /// non-blank input line to `output`, in input order. `progress` is called after each chunk
 /// with the bytes and lines read so far. Only I/O errors stop the run; a bad line gives an
-/// error record.
+/// error record, and so does a line longer than [`MAX_LINE_BYTES`](super::limits::MAX_LINE_BYTES)
+/// (it is skipped without being held in memory) or a line on which the program fails
+/// internally (kind `"internal"`: a bug, reported in the record instead of ending the run).
+/// A read error is told from a write error by [`is_read_error`].
 ///
 /// ```
 /// use protolyte::Catalog;
@@ -468,19 +477,118 @@ fn write_record<T: Serialize>(out: &mut Vec<u8>, rec: &T) {
 /// # Ok::<(), std::io::Error>(())
 /// ```
 pub fn run<R: BufRead + Send, W: Write>(
-    mut input: R,
-    mut output: W,
+    input: R,
+    output: W,
     catalog: &Catalog,
     options: &BatchOptions,
-    mut progress: impl FnMut(u64, usize),
+    progress: impl FnMut(u64, usize),
 ) -> io::Result<BatchSummary> {
-    let chunk = options.chunk_lines.max(BLOCK);
     let shared = Mutex::new(Vec::new());
+    let full = options.full;
+    let make = || {
+        let mut block = Block {
+            catalog,
+            shared: &shared,
+            templates: Vec::new(),
+            solver: Solver::default(),
+        };
+        move |line_no: usize, text: &str, out: &mut Vec<u8>| block.run_line(line_no, text, full, out)
+    };
+    let sizes = Sizes {
+        block: BLOCK,
+        chunk_lines: options.chunk_lines.max(BLOCK),
+        record_bytes: if full { 2048 } else { 160 },
+    };
+    run_with(input, output, sizes, progress, &make)
+}
+
+/// True when an error returned by [`run`] came from reading the input (not from writing the
+/// output).
+///
+/// ```
+/// use protolyte::Catalog;
+/// use protolyte::document::batch::{BatchOptions, is_read_error, run};
+///
+/// struct Broken;
+/// impl std::io::Read for Broken {
+///     fn read(&mut self, _: &mut [u8]) -> std::io::Result<usize> {
+///         Err(std::io::Error::other("disk gone"))
+///     }
+/// }
+/// let input = std::io::BufReader::new(Broken);
+/// let e = run(input, std::io::sink(), &Catalog::builtin(), &BatchOptions::default(), |_, _| {}).unwrap_err();
+/// assert!(is_read_error(&e));
+/// ```
+pub fn is_read_error(e: &io::Error) -> bool {
+    e.get_ref().is_some_and(|inner| inner.is::<ReadFailure>())
+}
+
+/// A read error, wrapped so that the caller can tell it from a write error.
+#[derive(Debug)]
+struct ReadFailure(io::Error);
+
+impl std::fmt::Display for ReadFailure {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        self.0.fmt(f)
+    }
+}
+
+impl std::error::Error for ReadFailure {
+    fn source(&self) -> Option<&(dyn std::error::Error + 'static)> {
+        Some(&self.0)
+    }
+}
+
+fn read_failure(e: io::Error) -> io::Error {
+    io::Error::new(e.kind(), ReadFailure(e))
+}
+
+/// Block and chunk sizes of a run (small ones in the tests).
+#[derive(Debug, Clone, Copy)]
+struct Sizes {
+    /// Lines per block (one task, one worker).
+    block: usize,
+    /// Lines per chunk (read while the previous chunk is solved).
+    chunk_lines: usize,
+    /// Expected bytes per record (output buffer reservation).
+    record_bytes: usize,
+}
+
+/// Bytes read per chunk at most (with lines near the line limit, fewer lines are read per
+/// chunk, so that memory stays bounded whatever the input).
+const CHUNK_BYTES: u64 = 64 << 20;
+
+/// One input line as read: its bytes, or its length when it was over the limit (and skipped).
+#[derive(Default)]
+struct RawLine {
+    bytes: Vec<u8>,
+    overlong: Option<u64>,
+}
+
+/// The batch driver: reads lines, hands each non-blank one to a worker made by `make` (one
+/// per block), and writes the records in input order. A worker appends exactly one record
+/// and a newline to `out` and returns true when the record is an error record. Whatever a
+/// worker does (a panic, a malformed record), every non-blank line gets exactly one record:
+/// a panic becomes an `"internal"` error record and the block's worker is made afresh.
+fn run_with<R, W, M, F>(
+    mut input: R,
+    mut output: W,
+    sizes: Sizes,
+    mut progress: impl FnMut(u64, usize),
+    make: &M,
+) -> io::Result<BatchSummary>
+where
+    R: BufRead + Send,
+    W: Write,
+    M: Fn() -> F + Sync,
+    F: FnMut(usize, &str, &mut Vec<u8>) -> bool,
+{
+    let chunk = sizes.chunk_lines.max(sizes.block).max(1);
     let mut summary = BatchSummary::default();
     let mut first_line = 0usize;
     let mut bytes = 0u64;
-    let mut current: Vec<Vec<u8>> = Vec::with_capacity(chunk);
-    let mut next: Vec<Vec<u8>> = Vec::with_capacity(chunk);
+    let mut current: Vec<RawLine> = Vec::with_capacity(chunk);
+    let mut next: Vec<RawLine> = Vec::with_capacity(chunk);
     let (mut n, mut got, mut eof) = read_chunk(&mut input, &mut current, chunk)?;
     bytes += got;
     while n > 0 {
@@ -493,7 +601,7 @@ pub fn run<R: BufRead + Send, W: Write>(
                     read_chunk(&mut input, &mut next, chunk)
                 }
             },
-            || solve_chunk(&current[..n], first_line, catalog, &shared, options.full),
+            || solve_chunk(&current[..n], first_line, sizes, make),
         );
         for (out, records, failed) in &results {
             output.write_all(out)?;
@@ -510,63 +618,151 @@ pub fn run<R: BufRead + Send, W: Write>(
     Ok(summary)
 }
 
-/// Reads up to `chunk` lines into `lines` (buffers re-used): (lines read, bytes, end of input).
-fn read_chunk<R: BufRead>(input: &mut R, lines: &mut Vec<Vec<u8>>, chunk: usize) -> io::Result<(usize, u64, bool)> {
+/// Reads up to `chunk` lines (and about [`CHUNK_BYTES`]) into `lines`, buffers re-used:
+/// (lines read, bytes, end of input).
+fn read_chunk<R: BufRead>(input: &mut R, lines: &mut Vec<RawLine>, chunk: usize) -> io::Result<(usize, u64, bool)> {
     let mut n = 0;
     let mut bytes = 0u64;
-    while n < chunk {
+    while n < chunk && bytes < CHUNK_BYTES {
         if lines.len() <= n {
-            lines.push(Vec::with_capacity(256));
+            lines.push(RawLine::default());
         }
-        let buf = &mut lines[n];
-        buf.clear();
-        let got = input.read_until(b'\n', buf)?;
+        let line = &mut lines[n];
+        // A buffer that held a long line is not kept at that size.
+        if line.bytes.capacity() > 1 << 16 {
+            line.bytes = Vec::new();
+        }
+        let got = read_bounded_line(input, line, super::limits::MAX_LINE_BYTES).map_err(read_failure)?;
         if got == 0 {
             return Ok((n, bytes, true));
         }
-        bytes += got as u64;
+        bytes += got;
         n += 1;
     }
     Ok((n, bytes, false))
 }
 
+/// Reads one line into `line`, keeping at most `max` bytes before the newline: a longer line
+/// is consumed to its end but only its length is kept. Returns the bytes consumed (0 at the
+/// end of the input).
+fn read_bounded_line<R: BufRead>(input: &mut R, line: &mut RawLine, max: usize) -> io::Result<u64> {
+    line.bytes.clear();
+    line.overlong = None;
+    let mut consumed = 0u64;
+    let mut over = false;
+    loop {
+        let avail = match input.fill_buf() {
+            Ok(b) => b,
+            Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
+            Err(e) => return Err(e),
+        };
+        if avail.is_empty() {
+            break;
+        }
+        let (take, done) = match avail.iter().position(|&b| b == b'\n') {
+            Some(i) => (i + 1, true),
+            None => (avail.len(), false),
+        };
+        if !over {
+            if line.bytes.len() + take > max.saturating_add(2) {
+                over = true;
+                line.bytes = Vec::new();
+            } else {
+                line.bytes.extend_from_slice(&avail[..take]);
+            }
+        }
+        input.consume(take);
+        consumed += take as u64;
+        if done {
+            break;
+        }
+    }
+    if over {
+        // The line end is counted in; the limit is far from it.
+        line.overlong = Some(consumed);
+        return Ok(consumed);
+    }
+    let mut len = line.bytes.len();
+    if line.bytes.last() == Some(&b'\n') {
+        len -= 1;
+        if len > 0 && line.bytes[len - 1] == b'\r' {
+            len -= 1;
+        }
+    }
+    if len > max {
+        line.bytes.clear();
+        line.overlong = Some(len as u64);
+    }
+    Ok(consumed)
+}
+
+/// The message of a panic payload (its first 300 characters).
+fn panic_message(payload: &(dyn std::any::Any + Send)) -> String {
+    let m: &str = if let Some(s) = payload.downcast_ref::<&str>() {
+        s
+    } else if let Some(s) = payload.downcast_ref::<String>() {
+        s
+    } else {
+        "(no message)"
+    };
+    match m.char_indices().nth(300) {
+        Some((i, _)) => format!("{}…", &m[..i]),
+        None => m.to_string(),
+    }
+}
+
+/// Appends an error record and its newline.
+fn error_line(out: &mut Vec<u8>, line: usize, kind: &str, error: String) {
+    write_record(
+        out,
+        &BatchErrorRecord {
+            line,
+            name: None,
+            kind: kind.into(),
+            error,
+        },
+    );
+    out.push(b'\n');
+}
+
 /// Solves a chunk in parallel blocks: per block, (records as JSON Lines, records, failures).
-fn solve_chunk(
-    lines: &[Vec<u8>],
-    first_line: usize,
-    catalog: &Catalog,
-    shared: &Mutex<Vec<Template>>,
-    full: bool,
-) -> Vec<(Vec<u8>, usize, usize)> {
+fn solve_chunk<M, F>(lines: &[RawLine], first_line: usize, sizes: Sizes, make: &M) -> Vec<(Vec<u8>, usize, usize)>
+where
+    M: Fn() -> F + Sync,
+    F: FnMut(usize, &str, &mut Vec<u8>) -> bool,
+{
+    let block = sizes.block.max(1);
     lines
-        .par_chunks(BLOCK)
+        .par_chunks(block)
         .enumerate()
         .map(|(k, block_lines)| {
-            let mut block = Block {
-                catalog,
-                shared,
-                templates: Vec::new(),
-                solver: Solver::default(),
-            };
-            let mut out = Vec::with_capacity(block_lines.len() * if full { 2048 } else { 160 });
+            let mut worker = make();
+            let mut out = Vec::with_capacity(block_lines.len() * sizes.record_bytes);
             let (mut records, mut failed) = (0, 0);
             for (j, raw) in block_lines.iter().enumerate() {
-                let line_no = first_line + k * BLOCK + j + 1;
-                let text = match std::str::from_utf8(raw) {
-                    Ok(t) => t.trim(),
+                let line_no = first_line + k * block + j + 1;
+                if let Some(len) = raw.overlong {
+                    records += 1;
+                    failed += 1;
+                    error_line(
+                        &mut out,
+                        line_no,
+                        "input",
+                        format!(
+                            "the line is {len} bytes long; a batch line may hold at most {} bytes (1 MiB)",
+                            super::limits::MAX_LINE_BYTES
+                        ),
+                    );
+                    continue;
+                }
+                let text = match std::str::from_utf8(&raw.bytes) {
+                    // A byte-order mark (at the start of a file written by some editors) is
+                    // not part of the document.
+                    Ok(t) => t.trim().trim_start_matches('\u{feff}').trim_start(),
                     Err(e) => {
                         records += 1;
                         failed += 1;
-                        write_record(
-                            &mut out,
-                            &BatchErrorRecord {
-                                line: line_no,
-                                name: None,
-                                kind: "syntax".into(),
-                                error: format!("not UTF-8 text: {e}"),
-                            },
-                        );
-                        out.push(b'\n');
+                        error_line(&mut out, line_no, "syntax", format!("not UTF-8 text: {e}"));
                         continue;
                     }
                 };
@@ -574,11 +770,208 @@ fn solve_chunk(
                     continue;
                 }
                 records += 1;
-                if block.run_line(line_no, text, full, &mut out) {
-                    failed += 1;
+                let mark = out.len();
+                let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| worker(line_no, text, &mut out)));
+                match outcome {
+                    Ok(f) => {
+                        // Exactly one record, ended by a newline (records hold no raw newline).
+                        let newlines = out[mark..].iter().filter(|&&b| b == b'\n').count();
+                        if newlines == 1 && out.last() == Some(&b'\n') {
+                            failed += usize::from(f);
+                        } else {
+                            out.truncate(mark);
+                            failed += 1;
+                            error_line(
+                                &mut out,
+                                line_no,
+                                "internal",
+                                "internal error (a bug in protolyte; please report it): the record could not be written".into(),
+                            );
+                        }
+                    }
+                    Err(payload) => {
+                        out.truncate(mark);
+                        failed += 1;
+                        error_line(
+                            &mut out,
+                            line_no,
+                            "internal",
+                            format!(
+                                "internal error (a bug in protolyte; please report it with this line): {}",
+                                panic_message(payload.as_ref())
+                            ),
+                        );
+                        // The worker's state may be half-updated: start a fresh one.
+                        worker = make();
+                    }
                 }
             }
             (out, records, failed)
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    //! The batch driver under injected failures: whatever the per-line worker does (succeed,
+    //! fail, panic, write a malformed record), every non-blank line gets exactly one record,
+    //! in input order, and the run ends normally.
+
+    use super::*;
+    use proptest::prelude::*;
+
+    /// What the injected worker does with a line.
+    #[derive(Debug, Clone, Copy)]
+    enum Act {
+        Ok,
+        Fail,
+        Panic,
+        /// Writes two records (a worker bug the driver must catch).
+        Twice,
+        /// Writes nothing.
+        Nothing,
+        /// A blank line: no record.
+        Blank,
+    }
+
+    /// The payload of an injected panic (silenced by the hook below, other panics are not).
+    struct Injected;
+
+    fn quiet_injected_panics() {
+        static ONCE: std::sync::Once = std::sync::Once::new();
+        ONCE.call_once(|| {
+            let previous = std::panic::take_hook();
+            std::panic::set_hook(Box::new(move |info| {
+                if info.payload().downcast_ref::<Injected>().is_none() {
+                    previous(info);
+                }
+            }));
+        });
+    }
+
+    fn act() -> impl Strategy<Value = Act> {
+        prop_oneof![
+            10 => Just(Act::Ok),
+            3 => Just(Act::Fail),
+            2 => Just(Act::Panic),
+            1 => Just(Act::Twice),
+            1 => Just(Act::Nothing),
+            1 => Just(Act::Blank),
+        ]
+    }
+
+    fn input_of(acts: &[Act]) -> String {
+        acts.iter()
+            .enumerate()
+            .map(|(i, a)| match a {
+                Act::Blank => "  \n".to_string(),
+                Act::Ok => format!("ok {i}\n"),
+                Act::Fail => format!("fail {i}\n"),
+                Act::Panic => format!("panic {i}\n"),
+                Act::Twice => format!("twice {i}\n"),
+                Act::Nothing => format!("nothing {i}\n"),
+            })
+            .collect()
+    }
+
+    /// A worker that counts the lines it saw since it was made (to check that a fresh one
+    /// is made after a panic) and acts as the line says.
+    fn make() -> impl FnMut(usize, &str, &mut Vec<u8>) -> bool {
+        let mut seen = 0usize;
+        move |line, text, out| {
+            seen += 1;
+            let (what, _) = text.split_once(' ').unwrap_or((text, ""));
+            match what {
+                "ok" => {
+                    out.extend_from_slice(format!("{{\"line\":{line},\"seen\":{seen}}}\n").as_bytes());
+                    false
+                }
+                "fail" => {
+                    error_line(out, line, "input", "injected".into());
+                    true
+                }
+                "panic" => {
+                    out.extend_from_slice(b"{\"half\":");
+                    std::panic::panic_any(Injected)
+                }
+                "twice" => {
+                    out.extend_from_slice(format!("{{\"line\":{line}}}\n{{\"line\":{line}}}\n").as_bytes());
+                    false
+                }
+                _ => false,
+            }
+        }
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(256))]
+
+        #[test]
+        fn every_line_gets_one_record_in_order_whatever_the_worker_does(
+            acts in prop::collection::vec(act(), 0..80),
+            block in 1usize..7,
+            chunk in 1usize..20,
+        ) {
+            quiet_injected_panics();
+            let input = input_of(&acts);
+            let mut out = Vec::new();
+            let sizes = Sizes { block, chunk_lines: chunk, record_bytes: 16 };
+            let s = run_with(input.as_bytes(), &mut out, sizes, |_, _| {}, &make).unwrap();
+            let text = String::from_utf8(out).unwrap();
+            let records: Vec<serde_json::Value> =
+                text.lines().map(|l| serde_json::from_str(l).unwrap()).collect();
+            let expected: Vec<(usize, Act)> = acts
+                .iter()
+                .enumerate()
+                .filter(|(_, a)| !matches!(a, Act::Blank))
+                .map(|(i, a)| (i + 1, *a))
+                .collect();
+            prop_assert_eq!(records.len(), expected.len());
+            prop_assert_eq!(s.records, expected.len());
+            let failures = expected.iter().filter(|(_, a)| !matches!(a, Act::Ok)).count();
+            prop_assert_eq!(s.failed, failures);
+            for (r, (line, a)) in records.iter().zip(&expected) {
+                prop_assert_eq!(r["line"].as_u64(), Some(*line as u64));
+                let kind = r["kind"].as_str();
+                match a {
+                    Act::Ok => prop_assert_eq!(kind, None),
+                    Act::Fail => prop_assert_eq!(kind, Some("input")),
+                    _ => prop_assert_eq!(kind, Some("internal")),
+                }
+                if matches!(a, Act::Panic) {
+                    prop_assert!(r["error"].as_str().unwrap().contains("internal error"));
+                }
+            }
+            // After a panic the block's worker is made afresh: the next line is its first.
+            for w in expected.windows(2) {
+                let (prev, next) = (w[0], w[1]);
+                let c = chunk.max(block);
+                let (i, j) = (prev.0 - 1, next.0 - 1);
+                let same_block = i / c == j / c && (i % c) / block == (j % c) / block;
+                if matches!(prev.1, Act::Panic) && matches!(next.1, Act::Ok) && same_block {
+                    let r = records.iter().find(|r| r["line"].as_u64() == Some(next.0 as u64)).unwrap();
+                    prop_assert_eq!(r["seen"].as_u64(), Some(1));
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_long_line_is_skipped_while_read_and_the_next_is_intact() {
+        let max = 16;
+        let text = format!("{}\nshort\r\n{}\nlast", "a".repeat(100), "b".repeat(max));
+        let mut input = std::io::BufReader::with_capacity(7, text.as_bytes());
+        let mut line = RawLine::default();
+        assert_eq!(read_bounded_line(&mut input, &mut line, max).unwrap(), 101);
+        assert_eq!(line.overlong, Some(101));
+        assert!(line.bytes.capacity() < 64);
+        read_bounded_line(&mut input, &mut line, max).unwrap();
+        assert_eq!((line.bytes.as_slice(), line.overlong), (&b"short\r\n"[..], None));
+        // Exactly at the limit: kept.
+        read_bounded_line(&mut input, &mut line, max).unwrap();
+        assert_eq!((line.bytes.len(), line.overlong), (max + 1, None));
+        read_bounded_line(&mut input, &mut line, max).unwrap();
+        assert_eq!(line.bytes.as_slice(), b"last");
+        assert_eq!(read_bounded_line(&mut input, &mut line, max).unwrap(), 0);
+    }
 }

@@ -1,15 +1,44 @@
 //! Input documents: recipes, titration, design and fit requests, and user definitions.
 
 use std::borrow::Cow;
+use std::collections::HashMap;
 
 use serde::{Deserialize, Serialize};
 
+use super::limits::{MAX_CURVES, MAX_ENTRIES, MAX_NAME_CHARS, MAX_PARTS, MAX_POINTS};
 use super::{DESIGN_FORMAT, DocumentError, FIT_FORMAT, RECIPE_FORMAT, TITRATION_FORMAT, check_format, field_error};
 use crate::analysis::{BufferSpec, Ingredients, Scope, Stepping, Stock, Titration, TitrationFit, Unknown};
 use crate::{
-    ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, Error, Ion, Mass, Protolyte,
-    Reagent, Recipe, Temperature, Volume,
+    ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, DataKind, Error, Ion, Mass,
+    Protolyte, Reagent, Recipe, Temperature, Volume,
 };
+
+/// Refuses a name, synonym or formula longer than [`MAX_NAME_CHARS`] (before any look-up, so
+/// that the "did you mean" search stays bounded).
+fn check_name(path: impl FnOnce() -> String, name: &str) -> Result<(), DocumentError> {
+    // Counting stops just past the limit.
+    if name.chars().nth(MAX_NAME_CHARS).is_some() {
+        return Err(field_error(
+            path(),
+            format!(
+                "`{}`: a name may hold at most {MAX_NAME_CHARS} characters",
+                super::shorten(name)
+            ),
+        ));
+    }
+    Ok(())
+}
+
+/// Refuses a list longer than `max`.
+fn check_count(path: impl FnOnce() -> String, len: usize, max: usize, what: &str) -> Result<(), DocumentError> {
+    if len > max {
+        return Err(field_error(
+            path(),
+            format!("{len} {what}: a document may give at most {max}"),
+        ));
+    }
+    Ok(())
+}
 
 /// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"` or
 /// `"extended-debye-huckel"`.
@@ -167,41 +196,79 @@ impl AmountLine {
 
     /// Adds the line to `recipe`, `reagent` being the resolved reagent.
     pub(crate) fn add_to(&self, recipe: &mut Recipe, reagent: &Reagent, path: &str) -> Result<(), DocumentError> {
-        let amount = amount_of(self.form(path)?, reagent).map_err(|e| field_error(path, e))?;
-        recipe.add(reagent, amount).map_err(|e| field_error(path, e))?;
+        let amount = amount_of(self.form(path)?, reagent).map_err(|(f, e)| self.amount_error(path, f, e))?;
+        recipe
+            .add(reagent, amount)
+            .map_err(|e| field_error(format!("{path}.{}", self.amount_field()), e))?;
         Ok(())
+    }
+
+    /// An error about field `field` of the line at `path` (the amount's own field when
+    /// `field` is empty).
+    pub(crate) fn amount_error(&self, path: &str, field: &str, e: Error) -> DocumentError {
+        let field = if field.is_empty() { self.amount_field() } else { field };
+        field_error(format!("{path}.{field}"), e)
+    }
+
+    /// The field that gives the amount (`molar`, `millimolar`, `molal`, `grams` or
+    /// `stock_molar`).
+    pub(crate) fn amount_field(&self) -> &'static str {
+        if self.molar.is_some() {
+            "molar"
+        } else if self.millimolar.is_some() {
+            "millimolar"
+        } else if self.molal.is_some() {
+            "molal"
+        } else if self.grams.is_some() {
+            "grams"
+        } else {
+            "stock_molar"
+        }
     }
 }
 
 /// The amount of `reagent` a checked line gives, in the final solution (the checks of
-/// [`Recipe::add_mass`] and [`Recipe::add_stock`]).
-pub(crate) fn amount_of(form: AmountForm, reagent: &Reagent) -> Result<Amount, Error> {
+/// [`Recipe::add_mass`] and [`Recipe::add_stock`]); an error comes with the field it is about.
+pub(crate) fn amount_of(form: AmountForm, reagent: &Reagent) -> Result<Amount, (&'static str, Error)> {
     let name = reagent.name();
     match form {
-        AmountForm::Plain(a) => a.validate(name),
+        // The field (`molar`, `millimolar` or `molal`) is filled in by the caller.
+        AmountForm::Plain(a) => a.validate(name).map_err(|e| ("", e)),
         AmountForm::Mass { grams, final_l } => {
-            let m = reagent
-                .molar_mass_g_per_mol()
-                .ok_or_else(|| Error::InconsistentDefinition {
-                    name: name.to_string(),
-                    reason: "a mass was given but the reagent has no molar mass".into(),
-                })?;
-            crate::error::check_amount(&format!("mass of {name}"), grams, "g")?;
-            Amount::from_mass(Mass::grams(grams), m, Volume::liters(final_l))
+            let m = reagent.molar_mass_g_per_mol().ok_or_else(|| {
+                (
+                    "grams",
+                    Error::InconsistentDefinition {
+                        name: name.to_string(),
+                        reason: "a mass was given but the reagent has no molar mass".into(),
+                    },
+                )
+            })?;
+            crate::error::check_amount(&format!("mass of {name}"), grams, "g").map_err(|e| ("grams", e))?;
+            Volume::liters(final_l)
+                .positive("final volume")
+                .map_err(|e| ("final_volume_ml", e))?;
+            Amount::from_mass(Mass::grams(grams), m, Volume::liters(final_l)).map_err(|e| ("grams", e))
         }
         AmountForm::Stock {
             molar,
             aliquot_l,
             final_l,
         } => {
-            Amount::molar(molar).validate(name)?;
-            let v = crate::error::check_amount(&format!("aliquot of {name}"), aliquot_l, "L")?;
-            let vf = Volume::liters(final_l).positive("final volume")?;
+            Amount::molar(molar).validate(name).map_err(|e| ("stock_molar", e))?;
+            let v = crate::error::check_amount(&format!("aliquot of {name}"), aliquot_l, "L")
+                .map_err(|e| ("aliquot_ml", e))?;
+            let vf = Volume::liters(final_l)
+                .positive("final volume")
+                .map_err(|e| ("final_volume_ml", e))?;
             if v > vf {
-                return Err(Error::InconsistentDefinition {
-                    name: name.to_string(),
-                    reason: format!("aliquot {} mL is larger than the final volume {} mL", v * 1e3, vf * 1e3),
-                });
+                return Err((
+                    "aliquot_ml",
+                    Error::InconsistentDefinition {
+                        name: name.to_string(),
+                        reason: format!("aliquot {} mL is larger than the final volume {} mL", v * 1e3, vf * 1e3),
+                    },
+                ));
             }
             Ok(Amount::molar(molar).scaled(v / vf))
         }
@@ -425,10 +492,75 @@ impl DefinitionsDoc {
         self.protolytes.is_empty() && self.ions.is_empty() && self.reagents.is_empty() && self.complexes.is_empty()
     }
 
-    /// Adds the definitions to `cat`; returns the user's complexes.
-    fn apply(&self, cat: &mut Catalog) -> Result<Vec<Complex>, DocumentError> {
+    /// Refuses lists, names and synonyms over the limits.
+    fn check_limits(&self) -> Result<(), DocumentError> {
+        let lists = [
+            ("protolytes", self.protolytes.len()),
+            ("ions", self.ions.len()),
+            ("reagents", self.reagents.len()),
+            ("complexes", self.complexes.len()),
+        ];
+        for (kind, len) in lists {
+            check_count(|| format!("definitions.{kind}"), len, MAX_ENTRIES, "definitions")?;
+        }
+        let names = |path: &str, name: &str, synonyms: &[String], formula: Option<&String>| {
+            check_name(|| format!("{path}.name"), name)?;
+            check_count(|| format!("{path}.synonyms"), synonyms.len(), MAX_PARTS, "synonyms")?;
+            for (k, syn) in synonyms.iter().enumerate() {
+                check_name(|| format!("{path}.synonyms[{k}]"), syn)?;
+            }
+            if let Some(f) = formula {
+                check_name(|| format!("{path}.formula"), f)?;
+            }
+            Ok::<(), DocumentError>(())
+        };
         for (i, d) in self.protolytes.iter().enumerate() {
             let path = format!("definitions.protolytes[{i}]");
+            names(&path, &d.name, &d.synonyms, None)?;
+            check_count(|| format!("{path}.pka"), d.pka.len(), MAX_PARTS, "pKa values")?;
+        }
+        for (i, d) in self.ions.iter().enumerate() {
+            names(
+                &format!("definitions.ions[{i}]"),
+                &d.name,
+                &d.synonyms,
+                d.formula.as_ref(),
+            )?;
+        }
+        for (i, d) in self.reagents.iter().enumerate() {
+            let path = format!("definitions.reagents[{i}]");
+            names(&path, &d.name, &d.synonyms, d.formula.as_ref())?;
+            check_count(|| format!("{path}.parts"), d.parts.len(), MAX_PARTS, "parts")?;
+            for (k, p) in d.parts.iter().enumerate() {
+                for (field, n) in [("protolyte", &p.protolyte), ("ion", &p.ion)] {
+                    if let Some(n) = n {
+                        check_name(|| format!("{path}.parts[{k}].{field}"), n)?;
+                    }
+                }
+            }
+        }
+        for (i, d) in self.complexes.iter().enumerate() {
+            let path = format!("definitions.complexes[{i}]");
+            names(&path, &d.name, &[], None)?;
+            check_count(|| format!("{path}.parts"), d.parts.len(), MAX_PARTS, "parts")?;
+            for (k, p) in d.parts.iter().enumerate() {
+                for (field, n) in [("base", &p.base), ("ion", &p.ion)] {
+                    if let Some(n) = n {
+                        check_name(|| format!("{path}.parts[{k}].{field}"), n)?;
+                    }
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// Adds the definitions to `cat`; returns the user's complexes.
+    fn apply(&self, cat: &mut Catalog) -> Result<Vec<Complex>, DocumentError> {
+        self.check_limits()?;
+        let mut names = Names::of(cat);
+        for (i, d) in self.protolytes.iter().enumerate() {
+            let path = format!("definitions.protolytes[{i}]");
+            names.claim(DataKind::Protolyte, &d.name, &d.synonyms, &path)?;
             let p = (|| -> Result<Protolyte, Error> {
                 let mut p = Protolyte::new(&d.name, &d.pka, d.charge_most_protonated)?;
                 if let Some(h) = &d.enthalpies_kj_per_mol {
@@ -452,6 +584,7 @@ impl DefinitionsDoc {
         }
         for (i, d) in self.ions.iter().enumerate() {
             let path = format!("definitions.ions[{i}]");
+            names.claim(DataKind::Ion, &d.name, &d.synonyms, &path)?;
             let ion = (|| -> Result<Ion, Error> {
                 let mut ion = Ion::new(&d.name, d.charge)?;
                 if let Some(a) = d.ion_size_angstrom {
@@ -468,6 +601,7 @@ impl DefinitionsDoc {
         }
         for (i, d) in self.reagents.iter().enumerate() {
             let path = format!("definitions.reagents[{i}]");
+            names.claim(DataKind::Reagent, &d.name, &d.synonyms, &path)?;
             let mut parts = Vec::with_capacity(d.parts.len());
             for (k, p) in d.parts.iter().enumerate() {
                 let ppath = format!("{path}.parts[{k}]");
@@ -504,6 +638,7 @@ impl DefinitionsDoc {
         let mut out = Vec::new();
         for (i, d) in self.complexes.iter().enumerate() {
             let path = format!("definitions.complexes[{i}]");
+            names.claim(DataKind::Complex, &d.name, &[], &path)?;
             let mut parts = Vec::with_capacity(d.parts.len());
             for (k, p) in d.parts.iter().enumerate() {
                 let ppath = format!("{path}.parts[{k}]");
@@ -547,6 +682,108 @@ impl DefinitionsDoc {
     }
 }
 
+/// The names already taken, for the collision checks of a document's definitions.
+///
+/// Families, ions and complexes share one set of names (they name the components and species
+/// of a solution, so an ion named like a family would be taken for it); reagents have their
+/// own (a neutral family's reagent carries the family's name). A definition whose name or
+/// synonym is taken by another kind, or by an earlier definition of the same document, is
+/// refused with both named. A name taken in the catalogue by the same kind is left to the
+/// catalogue's own rule ([`Catalog::add_protolyte`] and the like).
+struct Names {
+    /// Normalised name → (kind, where it comes from, as quoted in a message, from the document).
+    species: HashMap<String, (DataKind, String, bool)>,
+    /// Normalised reagent name → (where it comes from, from the document).
+    reagents: HashMap<String, (String, bool)>,
+}
+
+/// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens.
+fn normalize_name(s: &str) -> String {
+    let s: String = s
+        .trim()
+        .chars()
+        .map(|c| match c {
+            '\u{2010}'..='\u{2015}' | '\u{2212}' => '-',
+            c => c,
+        })
+        .collect::<String>()
+        .to_lowercase();
+    s.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+impl Names {
+    fn of(cat: &Catalog) -> Self {
+        let mut names = Names {
+            species: HashMap::new(),
+            reagents: HashMap::new(),
+        };
+        for e in cat.entries() {
+            let origin = format!("the catalogue's {} `{}`", e.kind.name(), e.name);
+            for n in std::iter::once(&e.name).chain(&e.synonyms) {
+                let key = normalize_name(n);
+                if e.kind == DataKind::Reagent {
+                    names.reagents.entry(key).or_insert_with(|| (origin.clone(), false));
+                } else {
+                    names
+                        .species
+                        .entry(key)
+                        .or_insert_with(|| (e.kind, origin.clone(), false));
+                }
+            }
+        }
+        names
+    }
+
+    /// Takes `name` and `synonyms` for a definition of `kind` at `path`, or says what already
+    /// holds one of them.
+    fn claim(&mut self, kind: DataKind, name: &str, synonyms: &[String], path: &str) -> Result<(), DocumentError> {
+        let all = || std::iter::once(name).chain(synonyms.iter().map(String::as_str));
+        let this = format!("{path} (`{}`)", super::shorten(name));
+        for n in all() {
+            let key = normalize_name(n);
+            let clash = if kind == DataKind::Reagent {
+                match self.reagents.get(&key) {
+                    Some((origin, true)) => Some(format!("reagent {origin}")),
+                    _ => None,
+                }
+            } else {
+                match self.species.get(&key) {
+                    Some((k, origin, _)) if *k != kind => Some(origin.clone()),
+                    Some((_, origin, true)) => Some(format!("{} {origin}", kind.name())),
+                    _ => None,
+                }
+            };
+            if let Some(other) = clash {
+                let field = if n == name {
+                    format!("{path}.name")
+                } else {
+                    format!("{path}.synonyms")
+                };
+                let mut message = format!(
+                    "the {} name `{}` is already taken by {other}",
+                    kind.name(),
+                    super::shorten(n)
+                );
+                if kind != DataKind::Reagent {
+                    message.push_str(
+                        "; protolytes, ions and complexes need names of their own (they name the species of a solution)",
+                    );
+                }
+                return Err(field_error(field, message));
+            }
+        }
+        for n in all() {
+            let key = normalize_name(n);
+            if kind == DataKind::Reagent {
+                self.reagents.insert(key, (this.clone(), true));
+            } else {
+                self.species.insert(key, (kind, this.clone(), true));
+            }
+        }
+        Ok(())
+    }
+}
+
 /// The catalogue a document is read against: `base` plus the document's definitions.
 fn catalog_with<'a>(
     base: &'a Catalog,
@@ -585,8 +822,10 @@ fn complexes_of(
     include_catalog: bool,
     user: &[Complex],
 ) -> Result<Vec<Complex>, DocumentError> {
+    check_count(|| "complexes".into(), names.len(), MAX_ENTRIES, "complexes")?;
     let mut out: Vec<Complex> = user.to_vec();
     for (i, n) in names.iter().enumerate() {
+        check_name(|| format!("complexes[{i}]"), n)?;
         out.push(cat.complex(n).map_err(|e| field_error(format!("complexes[{i}]"), e))?);
     }
     if include_catalog {
@@ -602,9 +841,11 @@ fn recipe_of(
     complexes: &[Complex],
     prefix: &str,
 ) -> Result<Recipe, DocumentError> {
+    check_count(|| prefix.to_string(), lines.len(), MAX_ENTRIES, "reagent lines")?;
     let mut recipe = Recipe::new();
     for (i, line) in lines.iter().enumerate() {
         let path = format!("{prefix}[{i}]");
+        check_name(|| format!("{path}.reagent"), &line.reagent)?;
         let reagent = cat
             .reagent(&line.reagent)
             .map_err(|e| field_error(format!("{path}.reagent"), e))?;
@@ -844,7 +1085,7 @@ impl TitrationDoc {
         } else {
             Err(field_error(
                 "end_volume_ml",
-                format!("{v} mL: must be positive and finite"),
+                format!("{v} mL: must be positive and at most 1e7 mL"),
             ))
         }
     }
@@ -861,10 +1102,12 @@ impl TitrationDoc {
         Ok(s)
     }
 
-    /// The number of evenly spaced points, checked (2..=100 000).
+    /// The number of evenly spaced points, checked (2..=[`MAX_POINTS`]).
     pub fn uniform_points(&self) -> Result<Option<usize>, DocumentError> {
         match self.points {
-            Some(n) if !(2..=100_000).contains(&n) => Err(field_error("points", format!("{n}: must be 2..100000"))),
+            Some(n) if !(2..=MAX_POINTS).contains(&n) => {
+                Err(field_error("points", format!("{n}: must be 2..{MAX_POINTS}")))
+            }
             p => Ok(p),
         }
     }
@@ -890,6 +1133,7 @@ pub struct StockDoc {
 
 impl StockDoc {
     fn to_stock(&self, cat: &Catalog, path: &str) -> Result<Stock, DocumentError> {
+        check_name(|| format!("{path}.reagent"), &self.reagent)?;
         let r = cat
             .reagent(&self.reagent)
             .map_err(|e| field_error(format!("{path}.reagent"), e))?;
@@ -1006,6 +1250,13 @@ impl DesignDoc {
         check_format(self.format.as_deref(), DESIGN_FORMAT, false)?;
         let conditions = self.conditions()?;
         let (cat, _) = catalog_with(catalog, self.definitions.as_ref())?;
+        check_count(|| "buffer".into(), self.buffer.len(), MAX_ENTRIES, "buffer substances")?;
+        check_count(
+            || "compare_at_celsius".into(),
+            self.compare_at_celsius.len(),
+            MAX_ENTRIES,
+            "temperatures",
+        )?;
         let ingredients = match (&self.acid, &self.base, self.buffer.is_empty(), &self.adjuster) {
             (Some(a), Some(b), true, None) => Ingredients::AcidAndBase {
                 acid: a.to_stock(&cat, "acid")?,
@@ -1142,6 +1393,15 @@ pub struct UnknownDoc {
 
 impl UnknownDoc {
     fn to_unknown(&self, path: &str) -> Result<(Unknown, Scope), DocumentError> {
+        for (field, name) in [
+            ("analyte_total", &self.analyte_total),
+            ("titrant_total", &self.titrant_total),
+            ("pka_of", &self.pka_of),
+        ] {
+            if let Some(n) = name {
+                check_name(|| format!("{path}.{field}"), n)?;
+            }
+        }
         let u = match (
             &self.analyte_total,
             &self.titrant_total,
@@ -1228,13 +1488,24 @@ impl FitDoc {
         let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
         let mut fit = TitrationFit::new();
         if let Some(n) = self.max_iterations {
-            fit = fit.max_iterations(n.min(100_000));
+            if n > 100_000 {
+                return Err(field_error("max_iterations", format!("{n}: at most 100000")));
+            }
+            fit = fit.max_iterations(n);
         }
         if self.curves.is_empty() {
             return Err(field_error("curves", "at least one measured curve is needed"));
         }
+        check_count(|| "curves".into(), self.curves.len(), MAX_CURVES, "curves")?;
+        check_count(|| "estimate".into(), self.estimate.len(), MAX_ENTRIES, "unknowns")?;
         for (k, c) in self.curves.iter().enumerate() {
             let prefix = format!("curves[{k}].");
+            check_count(
+                || format!("{prefix}measured"),
+                c.measured.len(),
+                MAX_POINTS,
+                "measured points",
+            )?;
             let t = titration_of(&cat, &c.analyte, &c.titrant, &complexes, &conditions, &prefix)?;
             let data: Vec<(Volume, f64)> = c
                 .measured

@@ -38,8 +38,10 @@
 #[cfg(feature = "cli")]
 pub mod batch;
 mod input;
+pub mod limits;
 mod output;
 
+use std::borrow::Cow;
 use std::path::Path;
 
 use serde::de::DeserializeOwned;
@@ -152,13 +154,44 @@ pub(crate) fn field_error(field: impl Into<String>, message: impl std::fmt::Disp
     DocumentError::Field {
         file: String::new(),
         field: field.into(),
-        message: message.to_string(),
+        message: shorten_message(message.to_string()),
     }
+}
+
+/// A message cut to its first 160 and last 80 characters when it is longer than 300 (a
+/// message may quote input: an unknown field's name, a string where a number belongs).
+pub(crate) fn shorten_message(message: String) -> String {
+    let n = message.chars().count();
+    if n <= 300 {
+        return message;
+    }
+    let head: String = message.chars().take(160).collect();
+    let tail: String = message.chars().skip(n - 80).collect();
+    format!("{head}… ({} characters left out) …{tail}", n - 240)
 }
 
 /// True when `text` looks like JSON (its first non-blank character opens an object or array).
 fn looks_like_json(text: &str) -> bool {
     matches!(text.trim_start().chars().next(), Some('{') | Some('['))
+}
+
+/// `text` without a leading UTF-8 byte-order mark (written by some editors; not part of the
+/// document).
+fn without_bom(text: &str) -> &str {
+    text.strip_prefix('\u{feff}').unwrap_or(text)
+}
+
+/// `s` as quoted in a message: whole when short, otherwise its first 40 characters, "…" and
+/// its length.
+pub(crate) fn shorten(s: &str) -> Cow<'_, str> {
+    const KEEP: usize = 40;
+    match s.char_indices().nth(KEEP + 20) {
+        None => Cow::Borrowed(s),
+        Some(_) => {
+            let cut = s.char_indices().nth(KEEP).map(|(i, _)| i).unwrap_or(s.len());
+            Cow::Owned(format!("{}… ({} characters)", &s[..cut], s.chars().count()))
+        }
+    }
 }
 
 /// Parses a document from JSON or TOML text (JSON when the text starts with `{`, TOML
@@ -180,6 +213,7 @@ fn looks_like_json(text: &str) -> bool {
 /// # Ok::<(), protolyte::document::DocumentError>(())
 /// ```
 pub fn parse<T: DeserializeOwned>(text: &str, file: &str) -> Result<T, DocumentError> {
+    let text = without_bom(text);
     if looks_like_json(text) {
         parse_json(text, file)
     } else {
@@ -195,11 +229,13 @@ pub fn parse<T: DeserializeOwned>(text: &str, file: &str) -> Result<T, DocumentE
 /// assert!(err.to_string().contains("x.json:1:"));
 /// ```
 pub fn parse_json<T: DeserializeOwned>(text: &str, file: &str) -> Result<T, DocumentError> {
+    check_size(text.len(), file)?;
+    let text = without_bom(text);
     serde_json::from_str(text).map_err(|e| DocumentError::Syntax {
         file: file.into(),
         line: e.line().max(1),
         column: e.column().max(1),
-        message: strip_position(&e.to_string()),
+        message: shorten_message(strip_position(&e.to_string())),
     })
 }
 
@@ -211,19 +247,37 @@ pub fn parse_json<T: DeserializeOwned>(text: &str, file: &str) -> Result<T, Docu
 /// assert!(err.to_string().starts_with("x.toml:2:"));
 /// ```
 pub fn parse_toml<T: DeserializeOwned>(text: &str, file: &str) -> Result<T, DocumentError> {
+    check_size(text.len(), file)?;
+    let text = without_bom(text);
     toml::from_str(text).map_err(|e| {
         let (line, column) = e.span().map(|s| line_column(text, s.start)).unwrap_or((1, 1));
         DocumentError::Syntax {
             file: file.into(),
             line,
             column,
-            message: e.message().trim().to_string(),
+            message: shorten_message(e.message().trim().to_string()),
         }
     })
 }
 
+/// Refuses a document over [`limits::MAX_DOCUMENT_BYTES`].
+fn check_size(bytes: usize, file: &str) -> Result<(), DocumentError> {
+    if bytes > limits::MAX_DOCUMENT_BYTES {
+        return Err(DocumentError::Read {
+            file: file.into(),
+            message: format!(
+                "the document is {bytes} bytes long; a document may hold at most {} bytes (1 MiB)",
+                limits::MAX_DOCUMENT_BYTES
+            ),
+        });
+    }
+    Ok(())
+}
+
 /// Reads and parses a document from `path` (`-` reads standard input). JSON or TOML is told
-/// from the extension (`.toml`) or, failing that, from the text.
+/// from the extension (`.toml`) or, failing that, from the text; a leading byte-order mark is
+/// skipped. A document over [`limits::MAX_DOCUMENT_BYTES`] is refused before it is read in
+/// full.
 ///
 /// ```no_run
 /// use protolyte::document::{RecipeDoc, load};
@@ -241,6 +295,10 @@ pub fn load<T: DeserializeOwned>(path: impl AsRef<Path>) -> Result<T, DocumentEr
         file: name.clone(),
         message: e.to_string(),
     })?;
+    let text = match text {
+        Ok(t) => t,
+        Err(bytes) => return Err(check_size(bytes, &name).unwrap_err()),
+    };
     let is_toml = path.extension().is_some_and(|e| e.eq_ignore_ascii_case("toml"));
     if is_toml {
         parse_toml(&text, &name)
@@ -249,14 +307,30 @@ pub fn load<T: DeserializeOwned>(path: impl AsRef<Path>) -> Result<T, DocumentEr
     }
 }
 
-fn read_text(path: &Path) -> std::io::Result<String> {
+/// The text of `path`, or `Err(bytes read)` when it is over the size limit (reading stops
+/// just past the limit).
+fn read_text(path: &Path) -> std::io::Result<Result<String, usize>> {
+    use std::io::Read;
+    let limit = limits::MAX_DOCUMENT_BYTES as u64 + 1;
+    let mut bytes = Vec::new();
     if path == Path::new("-") {
-        let mut s = String::new();
-        std::io::Read::read_to_string(&mut std::io::stdin(), &mut s)?;
-        Ok(s)
+        std::io::stdin().lock().take(limit).read_to_end(&mut bytes)?;
     } else {
-        std::fs::read_to_string(path)
+        let f = std::fs::File::open(path)?;
+        if f.metadata()?.is_dir() {
+            return Err(std::io::Error::new(std::io::ErrorKind::IsADirectory, "is a directory"));
+        }
+        f.take(limit).read_to_end(&mut bytes)?;
     }
+    if bytes.len() > limits::MAX_DOCUMENT_BYTES {
+        return Ok(Err(bytes.len()));
+    }
+    String::from_utf8(bytes).map(Ok).map_err(|e| {
+        std::io::Error::new(
+            std::io::ErrorKind::InvalidData,
+            format!("not UTF-8 text: {}", e.utf8_error()),
+        )
+    })
 }
 
 /// 1-based line and column of byte offset `at` in `text`.
@@ -281,6 +355,7 @@ pub(crate) fn check_format(found: Option<&str>, expected: &str, required: bool) 
     match found {
         Some(f) if f == expected => Ok(()),
         Some(f) => {
+            let f = shorten(f);
             let kind = expected.split('/').next().unwrap_or(expected);
             let message = if f.starts_with(kind) {
                 format!("version `{f}` is not supported (this program reads `{expected}`)")

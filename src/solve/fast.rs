@@ -103,7 +103,7 @@ impl<'a> Fast<'a> {
     /// is z² times one number, so the factors are integer powers of a single exponential.
     fn update_gamma(&mut self, i: f64) {
         let sys = self.sys;
-        if sys.model == crate::ActivityModel::Davies {
+        if sys.model == crate::activity::ActivityModel::Davies {
             let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
             let unit = profile.at(1, 0.0).0 * LN10; // ln γ of a singly charged ion
             let old_unit = self.davies_unit;
@@ -313,7 +313,7 @@ impl<'a> Fast<'a> {
         let b = self.charge(l);
         let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
         // d ln γ/dI of each species; under Davies z² times that of a singly charged ion.
-        let davies = sys.model == crate::ActivityModel::Davies;
+        let davies = sys.model == crate::activity::ActivityModel::Davies;
         let unit = profile.at(1, 0.0).1 * LN10;
         let slope = |s: usize| {
             if davies {
@@ -364,7 +364,15 @@ impl<'a> Fast<'a> {
         } else {
             f64::NAN
         };
-        (Point { y, ln_i: i.ln() }, ionic.clamp(I_MIN, I_MAX), total)
+        (Point { y, ln_i: i.ln() }, ionic.max(I_MIN), total)
+    }
+}
+
+/// The refusal of a solution whose species give an ionic strength above [`I_MAX`].
+pub(crate) fn beyond_limit(ionic: f64) -> Error {
+    Error::IonicStrengthBeyondLimit {
+        ionic_strength_molal: ionic,
+        limit_molal: I_MAX,
     }
 }
 
@@ -398,7 +406,7 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
             (-7.0 * LN10, i0.clamp(I_MIN, I_MAX))
         }
     };
-    let ideal = sys.model == crate::ActivityModel::Ideal;
+    let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     let mut evals = 0;
     // How closely L is solved at the current γ: loosely while I is still far off (the γ
     // error then dominates), to round-off once it has settled.
@@ -417,6 +425,11 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
         if ideal {
             // γ does not depend on I: report the I of the solution.
             return Ok((Point { y: p.y, ln_i: g.ln() }, fast.ev, evals));
+        }
+        if g > I_MAX && i >= I_MAX {
+            // The iteration is bounded at I_MAX and the species still give more: no
+            // solution within the limit (reported, never capped).
+            return Err(beyond_limit(g));
         }
         let h = g - i;
         if h.abs() <= tol * i {

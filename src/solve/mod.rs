@@ -1,4 +1,4 @@
-//! The solver: turns a [`System`] into an [`Equilibrium`].
+//! The solver: turns a [`System`] into an [`Equilibrium`](crate::Equilibrium).
 //!
 //! Unknowns are the natural logarithms of the component activities (ln a(H⁺) first) and
 //! ln I; equations are the charge balance, one mass balance per component with a positive
@@ -17,7 +17,6 @@
 pub(crate) mod fast;
 pub(crate) mod newton;
 
-use crate::equilibrium::Equilibrium;
 use crate::error::Result;
 use crate::system::System;
 
@@ -25,9 +24,12 @@ const LN10: f64 = std::f64::consts::LN_10;
 /// ln a(H⁺) bounds: pH from −4 to 20.
 pub(crate) const LN_AH_MIN: f64 = -20.0 * LN10;
 pub(crate) const LN_AH_MAX: f64 = 4.0 * LN10;
-/// Ionic-strength bounds (mol/kg) kept by the iterations.
+/// Ionic-strength bounds (mol/kg) kept by the iterations. The upper one is the documented
+/// limit of results under an activity model: a solution whose species give more is refused
+/// ([`Error::IonicStrengthBeyondLimit`](crate::Error::IonicStrengthBeyondLimit)), never
+/// capped. The lower one never binds (water's own ions give more than 1e-8 mol/kg).
 pub(crate) const I_MIN: f64 = 1e-14;
-pub(crate) const I_MAX: f64 = 50.0;
+pub(crate) const I_MAX: f64 = crate::limits::MAX_IONIC_STRENGTH_MOLAL;
 
 /// Which algorithm produced an equilibrium.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -99,10 +101,17 @@ impl Solver {
     }
 
     /// Sets the largest accepted scaled residual (each balance divided by its own scale:
-    /// a mass balance by its total, the charge balance by Σ|z|·m). Clamped to 1e-15..1e-6.
-    pub fn tolerance(mut self, tol: f64) -> Self {
-        self.tolerance = if tol.is_finite() { tol.clamp(1e-15, 1e-6) } else { 1e-12 };
-        self
+    /// a mass balance by its total, the charge balance by Σ|z|·m). Refuses a tolerance that
+    /// is not within 1e-15..1e-6.
+    pub fn tolerance(mut self, tol: f64) -> crate::error::Result<Self> {
+        self.tolerance =
+            crate::error::check_parameter("solver", "tolerance", tol, 1e-15, 1e-6, "must be within 1e-15..1e-6")?;
+        Ok(self)
+    }
+
+    /// The largest accepted scaled residual.
+    pub fn tolerance_value(&self) -> f64 {
+        self.tolerance
     }
 
     /// Sets the iteration budget of the general path (at least 10).
@@ -117,28 +126,19 @@ impl Solver {
         self
     }
 
-    /// Solves from a cold start.
-    pub fn solve(&self, system: &System) -> Result<Equilibrium> {
-        self.solve_inner(system, None)
-    }
-
-    /// Solves starting from a previous equilibrium of a similar system (same components,
-    /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
-    /// does not converge.
-    pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
-        if previous.unknowns().len() == system.components.len()
-            && let Ok(eq) = self.solve_inner(system, Some(previous))
-        {
-            return Ok(eq);
-        }
-        self.solve_inner(system, None)
-    }
-
-    fn solve_inner(&self, system: &System, warm: Option<&Equilibrium>) -> Result<Equilibrium> {
-        let start = warm.map(|e| (e.unknowns(), e.ln_ionic_strength()));
+    /// Runs the chosen path from a cold start (`start` = `None`) or from a previous point
+    /// (ln a of each component, ln I): the solved point, its evaluation, the iterations spent
+    /// and the path taken. [`Solver::solve`] wraps this into an
+    /// [`Equilibrium`](crate::Equilibrium).
+    pub(crate) fn run(
+        &self,
+        system: &System,
+        start: Option<(&[f64], f64)>,
+    ) -> Result<(Point, Evaluation, usize, SolverPath)> {
         if self.path == PathChoice::Auto && system.uncoupled() {
             match fast::solve(system, start.map(|(y, li)| (y[0], li)), self.tolerance) {
-                Ok((point, ev, iters)) => return Equilibrium::build(system, point, ev, iters, SolverPath::Fast),
+                Ok((point, ev, iters)) => return Ok((point, ev, iters, SolverPath::Fast)),
+                Err(e @ crate::error::Error::IonicStrengthBeyondLimit { .. }) => return Err(e),
                 Err(_) => {
                     // The ionic-strength iteration can stall at very high I; the general
                     // path solves I inside Newton and is the fallback.
@@ -146,7 +146,7 @@ impl Solver {
             }
         }
         let (point, ev, iters) = newton::solve(system, start, self.tolerance, self.max_iterations)?;
-        Equilibrium::build(system, point, ev, iters, SolverPath::General)
+        Ok((point, ev, iters, SolverPath::General))
     }
 }
 
@@ -271,7 +271,7 @@ impl Residuals {
                 worst = (m.abs(), format!("mass balance of {}", sys.components[c].name));
             }
         }
-        if sys.model != crate::ActivityModel::Ideal && self.ionic_strength.abs() > worst.0 {
+        if sys.model != crate::activity::ActivityModel::Ideal && self.ionic_strength.abs() > worst.0 {
             worst = (self.ionic_strength.abs(), "ionic-strength equation".into());
         }
         if worst.0.is_nan() {

@@ -342,8 +342,8 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
 /// solves at fixed activity coefficients (secant-accelerated fixed point, as on the fast
 /// path). Slower than the joint Newton but it needs no merit function across unknowns of
 /// very different scales. Returns the iterations used, or `None` if I does not settle.
-fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f64) -> Option<usize> {
-    let ideal = sys.model == crate::ActivityModel::Ideal;
+fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f64) -> Result<Option<usize>> {
+    let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     let mut iters = 0;
     let mut i = p.ln_i.exp().clamp(I_MIN, I_MAX);
     let mut prev: Option<(f64, f64)> = None;
@@ -355,14 +355,17 @@ fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f
         for &s in &lay.species {
             g += 0.5 * sys.charge_f[s] * sys.charge_f[s] * ev.conc[s];
         }
-        let g = g.clamp(I_MIN, I_MAX);
+        let g = g.max(I_MIN);
         if ideal {
             p.ln_i = g.ln();
-            return Some(iters);
+            return Ok(Some(iters));
+        }
+        if g > I_MAX && i >= I_MAX {
+            return Err(fast::beyond_limit(g));
         }
         let h = g - i;
         if h.abs() <= tol * i {
-            return Some(iters);
+            return Ok(Some(iters));
         }
         let mut next = g;
         if let Some((ip, hp)) = prev {
@@ -377,7 +380,7 @@ fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f
         prev = Some((i, h));
         i = next.clamp(I_MIN, I_MAX);
     }
-    None
+    Ok(None)
 }
 
 /// Solves the full system. `start` is a previous solution's (ln a, ln I).
@@ -428,7 +431,7 @@ pub(crate) fn solve(
             p
         }
     };
-    let ideal = sys.model == crate::ActivityModel::Ideal;
+    let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     // Approach at the start's activity coefficients: fraction sweeps take the large jumps
     // (a component far from its total moves by the whole log ratio at once), the convex
     // phase converges from wherever they leave it; then the joint Newton on every unknown
@@ -441,7 +444,7 @@ pub(crate) fn solve(
         for &s in &lay.species {
             ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * ev.conc[s];
         }
-        p.ln_i = ionic.clamp(I_MIN, I_MAX).ln();
+        p.ln_i = ionic.max(I_MIN).ln();
     }
     evaluate(sys, &mut ev, &p);
     let (mut f, mut scale) = residual(sys, &ev, &lay, &p);
@@ -456,6 +459,9 @@ pub(crate) fn solve(
     // The joint Newton converges in well under 40 steps when it converges at all; past
     // that, hand over to the nested iteration below.
     let joint_end = (iters + 40).min(max_iter);
+    // ln I is bounded at the limit under an activity model (a solution beyond it is refused
+    // below); under the ideal model I is a by-product and unbounded.
+    let ln_i_max = if ideal { f64::INFINITY } else { I_MAX.ln() };
     let mut short_steps = 0;
     while iters < joint_end {
         if max_scaled(&f, &scale, ideal) <= tol && last_step <= 1e-9 {
@@ -486,7 +492,7 @@ pub(crate) fn solve(
                 trial.y[c] = p.y[c] + alpha * dx[k];
             }
             trial.y[0] = trial.y[0].clamp(LN_AH_MIN, LN_AH_MAX);
-            trial.ln_i = (p.ln_i + alpha * dx[m - 1]).clamp(I_MIN.ln(), I_MAX.ln());
+            trial.ln_i = (p.ln_i + alpha * dx[m - 1]).clamp(I_MIN.ln(), ln_i_max);
             evaluate(sys, &mut ev, &trial);
             let (tf, ts) = residual(sys, &ev, &lay, &trial);
             let tphi = merit(&tf, &ts);
@@ -530,7 +536,7 @@ pub(crate) fn solve(
     }
     // The joint Newton stalled (typically where pH is set by traces beside large totals that
     // make its merit function badly scaled): finish with the nested iteration.
-    if let Some(n) = nested(sys, &mut ev, &lay, &mut p, tol) {
+    if let Some(n) = nested(sys, &mut ev, &lay, &mut p, tol)? {
         iters += n;
     }
     evaluate(sys, &mut ev, &p);
@@ -538,6 +544,14 @@ pub(crate) fn solve(
     let (worst, eqn) = r.worst(sys);
     if worst <= tol.max(1e-11) {
         return Ok((p, ev, iters));
+    }
+    let ionic: f64 = lay
+        .species
+        .iter()
+        .map(|&s| 0.5 * sys.charge_f[s] * sys.charge_f[s] * ev.conc[s])
+        .sum();
+    if !ideal && ionic > I_MAX {
+        return Err(fast::beyond_limit(ionic));
     }
     Err(Error::NoConvergence {
         path: "general",
