@@ -100,7 +100,7 @@ pub mod vant_hoff;
 mod warning;
 pub mod water;
 
-pub use activity::{ActivityModel, DebyeHuckelConstants};
+pub use activity::{ActivityModel, DebyeHuckelConstants, PhConvention};
 pub use complex::{Complex, ComplexPart};
 pub use data::{Catalog, DataInfo, DataKind, FormInfo, molar_mass_from_formula};
 pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState};

@@ -506,3 +506,20 @@ fn a_byte_order_mark_is_skipped_in_json_and_toml() {
     let e = document::parse::<RecipeDoc>(&text, "big.json").unwrap_err();
     assert!(matches!(e, DocumentError::Read { .. }), "{e}");
 }
+
+#[test]
+fn a_definition_does_not_silently_replace_a_catalogue_entry() {
+    // A second acetate family with another pKa (invented) would change every acetate reagent.
+    let doc: RecipeDoc = document::parse(
+        r#"{"definitions": {"protolytes": [{"name": "acetate", "pka": [4.0], "charge_most_protonated": 0}]}, "reagents": []}"#,
+        "x.json",
+    )
+    .unwrap();
+    match doc.to_recipe(&cat()).unwrap_err() {
+        DocumentError::Field { field, message, .. } => {
+            assert_eq!(field, "definitions.protolytes[0].name");
+            assert!(message.contains("catalogue's protolyte `acetate`"), "{message}");
+        }
+        other => panic!("{other:?}"),
+    }
+}

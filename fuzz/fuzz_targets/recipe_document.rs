@@ -1,24 +1,15 @@
-//! Fuzz target: any bytes as a recipe document (JSON or TOML) → parse → compile → solve.
-//! Whatever the input, the library must answer with an error or with finite numbers: no
-//! panic, no hang, no NaN.
+//! Fuzz target: any bytes as a recipe or titration document (JSON or TOML) → parse → compile →
+//! solve, directly and as a batch line. The oracles are those of `tests/fuzz_check/mod.rs`
+//! (shared with `cargo test`): an error or finite numbers that keep the residual promise,
+//! sign sanity, one batch record; no panic, no hang.
 #![no_main]
 
 use libfuzzer_sys::fuzz_target;
-use protolyte::Catalog;
-use protolyte::document::{RecipeDoc, SolveResult, parse};
+
+#[path = "../../tests/fuzz_check/mod.rs"]
+mod fuzz_check;
 
 fuzz_target!(|data: &[u8]| {
     let Ok(text) = std::str::from_utf8(data) else { return };
-    let Ok(doc) = parse::<RecipeDoc>(text, "fuzz.json") else { return };
-    let Ok((recipe, conditions)) = doc.to_recipe(&Catalog::builtin()) else { return };
-    let Ok(system) = recipe.compile(&conditions) else { return };
-    let Ok(eq) = system.solve() else { return };
-    let result = SolveResult::from_equilibrium(&eq);
-    assert!(result.ph.is_finite(), "pH is not finite");
-    for s in eq.species() {
-        assert!(s.molal.is_finite() && s.gamma.is_finite() && s.activity.is_finite(), "{s:?}");
-    }
-    if let Ok(sens) = eq.sensitivities(&system) {
-        assert!(sens.buffer_capacity_molal().is_finite());
-    }
+    fuzz_check::check_text(text);
 });

@@ -281,6 +281,7 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
         document::ActivityDoc::Ideal => "ideal (no activity correction)",
         document::ActivityDoc::Davies => "Davies",
         document::ActivityDoc::ExtendedDebyeHuckel => "extended Debye–Hückel",
+        document::ActivityDoc::Sit => "SIT (specific ion interaction theory)",
     };
     writeln!(
         out,
@@ -293,8 +294,8 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
     writeln!(out, "ionic strength    {:.6} mol/kg", r.ionic_strength_mol_per_kg)?;
     writeln!(
         out,
-        "solver            {} path, {} iterations, largest balance residual {:.1e}",
-        r.path, r.iterations, r.residuals.max_balance_relative
+        "solver            {} path, {} iterations, largest residual {:.1e}",
+        r.path, r.iterations, r.residuals.max_relative
     )?;
     writeln!(out)?;
     writeln!(

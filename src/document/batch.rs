@@ -78,7 +78,8 @@ pub struct BatchRecord {
     pub p_h_molal: f64,
     /// Ionic strength, mol/kg.
     pub ionic_strength_mol_per_kg: f64,
-    /// Largest relative charge or mass-balance residual.
+    /// Largest relative residual of every equation solved: the charge balance, the mass
+    /// balances and the ionic-strength equation.
     pub max_balance_residual: f64,
     /// Warnings, as sentences.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
@@ -402,7 +403,7 @@ impl Block<'_> {
                     ph: eq.ph(),
                     p_h_molal: eq.p_h_molal(),
                     ionic_strength_mol_per_kg: eq.ionic_strength_molal(),
-                    max_balance_residual: eq.residuals().max_balance_relative(),
+                    max_balance_residual: eq.residuals().max_relative(),
                     warnings,
                     result: full.then(|| SolveResult::from_equilibrium(&eq)),
                 };

@@ -40,8 +40,8 @@ fn check_count(path: impl FnOnce() -> String, len: usize, max: usize, what: &str
     Ok(())
 }
 
-/// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"` or
-/// `"extended-debye-huckel"`.
+/// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"`,
+/// `"extended-debye-huckel"` or `"sit"`.
 ///
 /// ```
 /// use protolyte::ActivityModel;
@@ -59,6 +59,8 @@ pub enum ActivityDoc {
     Davies,
     /// Extended Debye–Hückel with per-ion sizes.
     ExtendedDebyeHuckel,
+    /// Specific ion interaction theory (to about 3.5 mol/kg).
+    Sit,
 }
 
 impl From<ActivityDoc> for ActivityModel {
@@ -67,6 +69,7 @@ impl From<ActivityDoc> for ActivityModel {
             ActivityDoc::Ideal => ActivityModel::Ideal,
             ActivityDoc::Davies => ActivityModel::Davies,
             ActivityDoc::ExtendedDebyeHuckel => ActivityModel::ExtendedDebyeHuckel,
+            ActivityDoc::Sit => ActivityModel::Sit,
         }
     }
 }
@@ -77,6 +80,7 @@ impl From<ActivityModel> for ActivityDoc {
             ActivityModel::Ideal => ActivityDoc::Ideal,
             ActivityModel::Davies => ActivityDoc::Davies,
             ActivityModel::ExtendedDebyeHuckel => ActivityDoc::ExtendedDebyeHuckel,
+            ActivityModel::Sit => ActivityDoc::Sit,
         }
     }
 }
@@ -688,8 +692,8 @@ impl DefinitionsDoc {
 /// of a solution, so an ion named like a family would be taken for it); reagents have their
 /// own (a neutral family's reagent carries the family's name). A definition whose name or
 /// synonym is taken by another kind, or by an earlier definition of the same document, is
-/// refused with both named. A name taken in the catalogue by the same kind is left to the
-/// catalogue's own rule ([`Catalog::add_protolyte`] and the like).
+/// refused with both named, and so is a definition that would replace a catalogue entry of the
+/// same kind (the library's `Catalog::replace_*` calls do that on purpose; a document does not).
 struct Names {
     /// Normalised name → (kind, where it comes from, as quoted in a message, from the document).
     species: HashMap<String, (DataKind, String, bool)>,
@@ -744,12 +748,18 @@ impl Names {
             let clash = if kind == DataKind::Reagent {
                 match self.reagents.get(&key) {
                     Some((origin, true)) => Some(format!("reagent {origin}")),
-                    _ => None,
+                    Some((origin, false)) => Some(format!(
+                        "{origin} (a document's definitions do not replace the catalogue's entries: give yours a name of its own)"
+                    )),
+                    None => None,
                 }
             } else {
                 match self.species.get(&key) {
                     Some((k, origin, _)) if *k != kind => Some(origin.clone()),
                     Some((_, origin, true)) => Some(format!("{} {origin}", kind.name())),
+                    Some((_, origin, false)) => Some(format!(
+                        "{origin} (a document's definitions do not replace the catalogue's entries: give yours a name of its own)"
+                    )),
                     _ => None,
                 }
             };
@@ -764,7 +774,9 @@ impl Names {
                     kind.name(),
                     super::shorten(n)
                 );
-                if kind != DataKind::Reagent {
+                let cross_kind =
+                    kind != DataKind::Reagent && self.species.get(&key).is_some_and(|(k, _, _)| *k != kind);
+                if cross_kind {
                     message.push_str(
                         "; protolytes, ions and complexes need names of their own (they name the species of a solution)",
                     );

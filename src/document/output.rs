@@ -81,6 +81,10 @@ pub struct ResidualsResult {
     pub ionic_strength_relative: f64,
     /// The largest relative charge or mass-balance residual.
     pub max_balance_relative: f64,
+    /// The largest relative residual of every equation solved (charge, mass balances and
+    /// ionic strength): the one to check against the residual promise.
+    #[serde(default)]
+    pub max_relative: f64,
 }
 
 /// The result of solving one recipe.
@@ -179,6 +183,7 @@ impl SolveResult {
                 mass_relative: r.mass_relative.iter().map(|(n, v)| (n.to_string(), *v)).collect(),
                 ionic_strength_relative: finite(r.ionic_strength_relative).unwrap_or(0.0),
                 max_balance_relative: r.max_balance_relative(),
+                max_relative: finite(r.max_relative()).unwrap_or(f64::MAX),
             },
             warnings: warnings(eq.warnings()),
         }
