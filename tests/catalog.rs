@@ -415,3 +415,29 @@ fn a_documents_out_of_order_pka_list_is_refused() {
     assert!(err.to_string().contains("ascend"), "{err}");
     assert!(protolyte::Protolyte::new("x", &[3.0, 3.0], 0).is_ok());
 }
+
+#[test]
+fn per_form_ion_sizes_where_kielland_lists_the_forms() {
+    // J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675, as entered from memory: H2PO4- 4.0-4.5
+    // (upper value taken), HPO4^2- 4.0, PO4^3- 4.0; H2Cit- 3.5, HCit^2- 4.5, Cit^3- 5.0;
+    // HCO3- 4.0-4.5 (upper), CO3^2- 4.5.
+    let cat = Catalog::builtin();
+    let sizes = |name: &str| -> Vec<Option<f64>> {
+        cat.info(DataKind::Protolyte, name)
+            .unwrap()
+            .forms
+            .iter()
+            .map(|f| f.ion_size_angstrom)
+            .collect()
+    };
+    assert_eq!(sizes("phosphate"), [None, Some(4.5), Some(4.0), Some(4.0)]);
+    assert_eq!(sizes("citrate"), [None, Some(3.5), Some(4.5), Some(5.0)]);
+    assert_eq!(sizes("carbonate"), [None, Some(4.5), Some(4.5)]);
+    // The definition carries them too (protons bound: 2 = H2PO4-).
+    let p = cat.protolyte("phosphate").unwrap();
+    assert_eq!(p.form_ion_size_angstrom(2), Some(4.5));
+    assert_eq!(p.form_ion_size_angstrom(0), Some(4.0));
+    // A charged form the table does not list takes the family's single size (oxalate:
+    // HC2O4- takes 4.5, the value for C2O4^2-).
+    assert_eq!(sizes("oxalate"), [None, Some(4.5), Some(4.5)]);
+}

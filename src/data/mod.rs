@@ -19,7 +19,7 @@ use format::{CATALOG_FORMAT, CatalogFile, ComplexEntry, FamilyEntry, IonEntry, L
 use toml::Spanned;
 
 use crate::complex::{Complex, ComplexPart};
-use crate::error::{CatalogFileError, Error, Result, check_ion_size};
+use crate::error::{CatalogFileError, Error, Result};
 use crate::ion::Ion;
 use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
@@ -76,7 +76,9 @@ pub struct FormInfo {
     pub protons: usize,
     /// Charge number.
     pub charge: i32,
-    /// Ion-size parameter å of this form, ångström, where the entry gives one per form.
+    /// Ion-size parameter å the extended Debye–Hückel model uses for this form, ångström: the
+    /// form's own where the entry lists one per form, else the family's (none for a neutral
+    /// form).
     pub ion_size_angstrom: Option<f64>,
 }
 
@@ -222,7 +224,6 @@ struct Meta {
     source: String,
     from_memory: bool,
     origin: String,
-    form_ion_sizes: Vec<f64>,
     molar_mass: Option<f64>,
 }
 
@@ -232,7 +233,6 @@ impl Meta {
             source: source.unwrap_or("user").to_string(),
             from_memory: false,
             origin: "added in code".into(),
-            form_ion_sizes: Vec::new(),
             molar_mass: None,
         }
     }
@@ -676,12 +676,13 @@ impl Catalog {
         let n = p.proton_count();
         let forms = (0..=n)
             .rev()
-            .enumerate()
-            .map(|(k, j)| FormInfo {
+            .map(|j| FormInfo {
                 name: p.form_name(j),
                 protons: j,
                 charge: p.charge_of_form(j),
-                ion_size_angstrom: meta.form_ion_sizes.get(k).copied(),
+                ion_size_angstrom: (p.charge_of_form(j) != 0)
+                    .then(|| p.form_ion_size_angstrom(j))
+                    .flatten(),
             })
             .collect();
         let info = DataInfo {
@@ -1072,27 +1073,47 @@ impl Catalog {
         if let Some(a) = e.ion_size_angstrom {
             p = p.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
         }
-        let form_sizes = e.form_ion_sizes_angstrom.clone().unwrap_or_default();
-        if e.form_ion_sizes_angstrom.is_some() {
-            if form_sizes.len() != pkas.len() + 1 {
+        if let Some(sizes) = &e.form_ion_sizes_angstrom {
+            let n = pkas.len();
+            if sizes.len() != n + 1 {
                 return Err(entry.error(
                     "form_ion_sizes_angstrom",
                     format!(
                         "{} values for {} forms (one per form, most protonated first)",
-                        form_sizes.len(),
-                        pkas.len() + 1
+                        sizes.len(),
+                        n + 1
                     ),
                 ));
             }
-            for &a in &form_sizes {
-                check_ion_size(&e.name, a).map_err(|err| entry.wrap(err))?;
+            // 0 means "none listed": a neutral form needs none, a charged one takes the
+            // family's single size.
+            let mut filled = Vec::with_capacity(n + 1);
+            for (k, &a) in sizes.iter().enumerate() {
+                let protons = n - k;
+                let charged = p.charge_of_form(protons) != 0;
+                filled.push(match (a == 0.0, charged, p.ion_size_angstrom()) {
+                    (true, false, _) => 0.0,
+                    (true, true, Some(family)) => family,
+                    (true, true, None) => {
+                        return Err(entry.error(
+                            "form_ion_sizes_angstrom",
+                            format!(
+                                "the charged form {} has no size (0) and the family has no ion_size_angstrom to fall back on",
+                                p.form_name(protons)
+                            ),
+                        ));
+                    }
+                    (false, _, _) => a,
+                });
             }
+            p = p
+                .with_form_ion_sizes(&filled)
+                .map_err(|err| entry.error("form_ion_sizes_angstrom", err))?;
         }
         let meta = Meta {
             source,
             from_memory: e.from_memory,
             origin: loc.file.to_string(),
-            form_ion_sizes: form_sizes,
             molar_mass: None,
         };
         self.place(DataKind::Protolyte, &entry, e.replace, &e.synonyms, |cat, syn| {
@@ -1115,7 +1136,6 @@ impl Catalog {
             source,
             from_memory: e.from_memory,
             origin: loc.file.to_string(),
-            form_ion_sizes: Vec::new(),
             molar_mass: None,
         };
         self.place(DataKind::Ion, &entry, e.replace, &e.synonyms, |cat, syn| {
@@ -1171,7 +1191,6 @@ impl Catalog {
             source,
             from_memory: e.from_memory,
             origin: loc.file.to_string(),
-            form_ion_sizes: Vec::new(),
             molar_mass: computed,
         };
         self.place(DataKind::Reagent, &entry, e.replace, &e.synonyms, |cat, syn| {
@@ -1219,7 +1238,6 @@ impl Catalog {
             source,
             from_memory: e.from_memory,
             origin: loc.file.to_string(),
-            form_ion_sizes: Vec::new(),
             molar_mass: None,
         };
         self.place(DataKind::Complex, &entry, e.replace, &e.synonyms, |cat, syn| {
