@@ -15,7 +15,9 @@ use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 use std::sync::OnceLock;
 
-use format::{CATALOG_FORMAT, CatalogFile, ComplexEntry, FamilyEntry, IonEntry, Located, PartEntry, ReagentEntry};
+use format::{
+    CATALOG_FORMAT, CatalogFile, ComplexEntry, EquationEntry, FamilyEntry, IonEntry, Located, PartEntry, ReagentEntry,
+};
 use toml::Spanned;
 
 use crate::complex::{Complex, ComplexPart};
@@ -23,6 +25,7 @@ use crate::error::{CatalogFileError, Error, Result};
 use crate::ion::Ion;
 use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
+use crate::vant_hoff::{LogKEquation, ValidityRange};
 
 /// The built-in data files, embedded at build time: (name shown in messages, text).
 const BUILTIN_FILES: [(&str, &str); 4] = [
@@ -1110,9 +1113,41 @@ impl Catalog {
                 .with_form_ion_sizes(&filled)
                 .map_err(|err| entry.error("form_ion_sizes_angstrom", err))?;
         }
+        // Temperature data with sources of their own: named in the family's source text.
+        let (mut source, mut from_memory) = (source, e.from_memory);
+        for (k, s) in e.steps.iter().enumerate() {
+            if s.source.is_some() || s.cite.is_some() {
+                let text = self.citation(&entry, &s.source, &s.cite)?;
+                source.push_str(&format!("; step {} ΔH°/ΔCp°: {text}", k + 1));
+                from_memory |= s.from_memory;
+            }
+        }
+        for (i, q) in e.log_k_equation.iter().enumerate() {
+            let field = format!("log_k_equation[{i}]");
+            let step = match q.step {
+                Some(k) if (1..=pkas.len()).contains(&k) => k,
+                Some(k) => {
+                    return Err(entry.error(
+                        &format!("{field}.step"),
+                        format!("step {k} of a family with {} steps (1 = most protonated)", pkas.len()),
+                    ));
+                }
+                None => return Err(entry.error(&format!("{field}.step"), "missing: which step (1 = most protonated)")),
+            };
+            let eq = read_equation(q).map_err(|err| entry.error(&field, err))?;
+            p = p
+                .with_log_k_equation(step - 1, eq)
+                .map_err(|err| entry.error(&field, err))?;
+            if q.source.is_some() || q.cite.is_some() {
+                let text = self.citation(&entry, &q.source, &q.cite)?;
+                source.push_str(&format!("; log K(T) equation of step {step}: {text}"));
+            }
+            from_memory |= q.from_memory;
+        }
+        let p = p.with_source(&source);
         let meta = Meta {
             source,
-            from_memory: e.from_memory,
+            from_memory,
             origin: loc.file.to_string(),
             molar_mass: None,
         };
@@ -1231,12 +1266,33 @@ impl Catalog {
         if let Some(h) = e.dh_kj_per_mol {
             c = c.with_enthalpy_kj_per_mol(h).map_err(|err| entry.wrap(err))?;
         }
+        if let Some(cp) = e.dcp_j_per_mol_k {
+            c = c
+                .with_heat_capacity_j_per_mol_k(cp)
+                .map_err(|err| entry.error("dcp_j_per_mol_k", err))?;
+        }
+        let (mut source, mut from_memory) = (source, e.from_memory);
+        if let Some(q) = &e.log_k_equation {
+            if q.step.is_some() {
+                return Err(entry.error("log_k_equation.step", "a complex has one reaction: no step"));
+            }
+            let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
+            c = c
+                .with_log_k_equation(eq)
+                .map_err(|err| entry.error("log_k_equation", err))?;
+            if q.source.is_some() || q.cite.is_some() {
+                let text = self.citation(&entry, &q.source, &q.cite)?;
+                source.push_str(&format!("; log K(T) equation: {text}"));
+                c = c.with_source(&source);
+            }
+            from_memory |= q.from_memory;
+        }
         if let Some(a) = e.ion_size_angstrom {
             c = c.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
         }
         let meta = Meta {
             source,
-            from_memory: e.from_memory,
+            from_memory,
             origin: loc.file.to_string(),
             molar_mass: None,
         };
@@ -1244,6 +1300,14 @@ impl Catalog {
             cat.add_complex_with(c, syn, meta)
         })
     }
+}
+
+/// A log K(T) equation as read from a file.
+fn read_equation(q: &EquationEntry) -> Result<LogKEquation> {
+    LogKEquation::new(
+        q.coefficients,
+        ValidityRange::celsius(q.range_celsius[0], q.range_celsius[1])?,
+    )
 }
 
 /// An entry being read: where it is, for errors.
