@@ -364,3 +364,66 @@ fn warnings_name_the_step_and_the_missing_datum() {
         )
     );
 }
+
+// ------------------------------------------------------- temperature data in catalogue files
+
+/// A user's family with a log K(T) equation and a step with its own ΔH° source reads in, and
+/// the equation drives pKa(T); errors name the file, line and field. (Invented numbers.)
+#[test]
+fn catalogue_file_temperature_fields() {
+    let mut cat = Catalog::builtin();
+    cat.load_toml_str(
+        r#"format = "protolyte-catalog/1"
+
+[[family]]
+name = "lab acid T"
+charge_most_protonated = 0
+steps = [
+    { pka = 4.0 },
+    { pka = 7.0, dh_kj_per_mol = 5.0, source = "our calorimetry, notebook 3", from_memory = false },
+]
+source = "our own titration, notebook 12"
+
+[[family.log_k_equation]]
+step = 1
+coefficients = [-2.0, 0.0, -596.3, 0.0, 0.0]
+range_celsius = [5.0, 45.0]
+source = "our fit, notebook 12"
+"#,
+        "lab.toml",
+    )
+    .unwrap();
+    let p = cat.protolyte("lab acid t").unwrap();
+    // log K = −2 − 596.3/T: −4.000 at 25 °C, −3.874 at 45 °C (the pKa falls by 0.126).
+    assert!(p.log_k_equation(0).is_some() && p.log_k_equation(1).is_none());
+    assert!((p.pka_at(0, Temperature::celsius(45.0)) - 3.8743).abs() < 1e-3);
+    assert!(p.source().unwrap().contains("notebook 3") && p.source().unwrap().contains("our fit"));
+
+    let bad = |body: &str| {
+        let mut c = Catalog::builtin();
+        c.load_toml_str(
+            &format!(
+                "format = \"protolyte-catalog/1\"\n[[family]]\nname = \"q\"\ncharge_most_protonated = 0\nsteps = [{{ pka = 4.0 }}]\nsource = \"x\"\n{body}"
+            ),
+            "q.toml",
+        )
+        .unwrap_err()
+        .to_string()
+    };
+    // Step beyond the family.
+    let e = bad(
+        "[[family.log_k_equation]]\nstep = 2\ncoefficients = [-4.0, 0.0, 0.0, 0.0, 0.0]\nrange_celsius = [0.0, 50.0]\n",
+    );
+    // Line 7 is the [[family.log_k_equation]] header.
+    assert!(e.starts_with("q.toml:7: family `q`, field `log_k_equation[0].step`"), "{e}");
+    // An equation that disagrees with the step's pKa at 25 °C.
+    let e = bad(
+        "[[family.log_k_equation]]\nstep = 1\ncoefficients = [-5.0, 0.0, 0.0, 0.0, 0.0]\nrange_celsius = [0.0, 50.0]\n",
+    );
+    assert!(e.contains("log_k_equation[0]") && e.contains("pKa 5.000"), "{e}");
+    // A range upside down.
+    let e = bad(
+        "[[family.log_k_equation]]\nstep = 1\ncoefficients = [-4.0, 0.0, 0.0, 0.0, 0.0]\nrange_celsius = [50.0, 0.0]\n",
+    );
+    assert!(e.contains("log_k_equation[0]") && e.contains("below the lowest"), "{e}");
+}

@@ -1122,22 +1122,43 @@ impl Catalog {
                 from_memory |= s.from_memory;
             }
         }
+        // The line of the i-th [[family.log_k_equation]] table of this entry, for errors.
+        let eq_error = |i: usize, field: &str, message: String| {
+            let start = entry.span.start.min(loc.text.len());
+            let rest = &loc.text[start..];
+            let end = rest
+                .get(1..)
+                .and_then(|r| r.find("\n[[family]]"))
+                .map_or(rest.len(), |e| e + 1);
+            let line = rest[..end]
+                .match_indices("[[family.log_k_equation]]")
+                .nth(i)
+                .map_or_else(|| loc.line_of(start), |(o, _)| loc.line_of(start + o));
+            loc.error(line, &entry.label(), field, message)
+        };
         for (i, q) in e.log_k_equation.iter().enumerate() {
             let field = format!("log_k_equation[{i}]");
             let step = match q.step {
                 Some(k) if (1..=pkas.len()).contains(&k) => k,
                 Some(k) => {
-                    return Err(entry.error(
+                    return Err(eq_error(
+                        i,
                         &format!("{field}.step"),
                         format!("step {k} of a family with {} steps (1 = most protonated)", pkas.len()),
                     ));
                 }
-                None => return Err(entry.error(&format!("{field}.step"), "missing: which step (1 = most protonated)")),
+                None => {
+                    return Err(eq_error(
+                        i,
+                        &format!("{field}.step"),
+                        "missing: which step (1 = most protonated)".into(),
+                    ));
+                }
             };
-            let eq = read_equation(q).map_err(|err| entry.error(&field, err))?;
+            let eq = read_equation(q).map_err(|err| eq_error(i, &field, err.to_string()))?;
             p = p
                 .with_log_k_equation(step - 1, eq)
-                .map_err(|err| entry.error(&field, err))?;
+                .map_err(|err| eq_error(i, &field, err.to_string()))?;
             if q.source.is_some() || q.cite.is_some() {
                 let text = self.citation(&entry, &q.source, &q.cite)?;
                 source.push_str(&format!("; log K(T) equation of step {step}: {text}"));
