@@ -122,6 +122,11 @@ pub struct DataInfo {
     pub log10_beta: Option<f64>,
     /// Formation enthalpy ΔH°, kJ/mol (complexes only, where known).
     pub dh_kj_per_mol: Option<f64>,
+    /// Formation heat-capacity change ΔCp°, J/(mol·K) (complexes only, where known).
+    pub dcp_j_per_mol_k: Option<f64>,
+    /// Analytic log K(T) equations: one entry per step for a family, one for a complex
+    /// (`None` where there is none); empty for ions and reagents.
+    pub log_k_equations: Vec<Option<LogKEquation>>,
     /// The constituents of a reagent or the parts of a complex, in words ("2 × sodium").
     pub parts: Vec<String>,
     /// The name and synonyms normalised for lookup.
@@ -704,6 +709,8 @@ impl Catalog {
             ion_size_angstrom: p.ion_size_angstrom(),
             log10_beta: None,
             dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: (0..p.proton_count()).map(|k| p.log_k_equation(k)).collect(),
             parts: Vec::new(),
             keys: Vec::new(),
         };
@@ -738,6 +745,8 @@ impl Catalog {
             ion_size_angstrom: ion.ion_size_angstrom(),
             log10_beta: None,
             dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: Vec::new(),
             parts: Vec::new(),
             keys: Vec::new(),
         };
@@ -791,6 +800,8 @@ impl Catalog {
             molar_mass_g_per_mol: molar_mass,
             log10_beta: None,
             dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: Vec::new(),
             parts,
             keys: Vec::new(),
         };
@@ -837,6 +848,8 @@ impl Catalog {
             molar_mass_g_per_mol: None,
             log10_beta: Some(c.log10_beta()),
             dh_kj_per_mol: c.dh_kj_per_mol(),
+            dcp_j_per_mol_k: c.dcp_j_per_mol_k(),
+            log_k_equations: vec![c.log_k_equation()],
             parts,
             keys: Vec::new(),
         };
