@@ -954,6 +954,12 @@ impl Catalog {
                     if let Some(h) = c.dh_kj_per_mol() {
                         x = x.with_enthalpy_kj_per_mol(h)?;
                     }
+                    if let Some(cp) = c.dcp_j_per_mol_k() {
+                        x = x.with_heat_capacity_j_per_mol_k(cp)?;
+                    }
+                    if let Some(q) = c.log_k_equation() {
+                        x = x.with_log_k_equation(q)?;
+                    }
                     if let Some(a) = c.ion_size_angstrom() {
                         x = x.with_ion_size_angstrom(a)?;
                     }
