@@ -415,7 +415,10 @@ source = "our fit, notebook 12"
         "[[family.log_k_equation]]\nstep = 2\ncoefficients = [-4.0, 0.0, 0.0, 0.0, 0.0]\nrange_celsius = [0.0, 50.0]\n",
     );
     // Line 7 is the [[family.log_k_equation]] header.
-    assert!(e.starts_with("q.toml:7: family `q`, field `log_k_equation[0].step`"), "{e}");
+    assert!(
+        e.starts_with("q.toml:7: family `q`, field `log_k_equation[0].step`"),
+        "{e}"
+    );
     // An equation that disagrees with the step's pKa at 25 °C.
     let e = bad(
         "[[family.log_k_equation]]\nstep = 1\ncoefficients = [-5.0, 0.0, 0.0, 0.0, 0.0]\nrange_celsius = [0.0, 50.0]\n",
