@@ -430,3 +430,39 @@ source = "our fit, notebook 12"
     );
     assert!(e.contains("log_k_equation[0]") && e.contains("below the lowest"), "{e}");
 }
+
+/// Every built-in log K(T) equation agrees with its step's 25 °C pKa (or the complex's log β)
+/// to 0.015, names its source in the entry's source text, and is flagged from memory; the
+/// listing carries it (`DataInfo::log_k_equations`). The 0.015 is the largest difference
+/// between a source's own fit at 25 °C and the compiled 25 °C constant (phthalate step 1:
+/// 2.936 from the equation of Hamer, Pinching & Acree 1945, 2.950 compiled).
+#[test]
+fn builtin_equations_agree_with_their_25_c_constants() {
+    let cat = cat();
+    let mut count = 0;
+    for info in cat.entries() {
+        for (k, q) in info.log_k_equations.iter().enumerate() {
+            let Some(q) = q else { continue };
+            count += 1;
+            let at25 = q.log10_k(Temperature::STANDARD);
+            let stored = match info.kind {
+                protolyte::DataKind::Protolyte => -info.steps[k].pka,
+                _ => info.log10_beta.unwrap(),
+            };
+            assert!(
+                (at25 - stored).abs() <= 0.015,
+                "{} equation {k}: {at25:.4} at 25 °C vs {stored}",
+                info.name
+            );
+            assert!(
+                info.source.contains("log K(T) equation") || info.source.contains("Plummer"),
+                "{}",
+                info.source
+            );
+            assert!(info.from_memory, "{}", info.name);
+        }
+    }
+    // carbonate 2, phosphate 2, hypochlorite, silicate 2, formate, propanoate, oxalate,
+    // phthalate 2, CaHCO3+, CaCO3(aq).
+    assert_eq!(count, 14);
+}
