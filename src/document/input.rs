@@ -1496,8 +1496,9 @@ impl FitDoc {
         let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
         let mut fit = TitrationFit::new();
         if let Some(n) = self.max_iterations {
-            if n > 100_000 {
-                return Err(field_error("max_iterations", format!("{n}: at most 100000")));
+            let max = crate::limits::MAX_FIT_ITERATIONS;
+            if !(1..=max).contains(&n) {
+                return Err(field_error("max_iterations", format!("{n}: must be 1..{max}")));
             }
             fit = fit.max_iterations(n);
         }
