@@ -699,6 +699,16 @@ struct Names {
 
 /// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens.
 fn normalize_name(s: &str) -> String {
+    // Most names are plain ASCII with single spaces: one allocation.
+    let b = s.as_bytes();
+    let plain = s.is_ascii()
+        && b.first() != Some(&b' ')
+        && b.last() != Some(&b' ')
+        && !b.iter().any(|c| c.is_ascii_whitespace() && *c != b' ')
+        && !s.contains("  ");
+    if plain {
+        return s.to_ascii_lowercase();
+    }
     let s: String = s
         .trim()
         .chars()
