@@ -704,7 +704,7 @@ fn normalize_name(s: &str) -> String {
     let plain = s.is_ascii()
         && b.first() != Some(&b' ')
         && b.last() != Some(&b' ')
-        && !b.iter().any(|c| c.is_ascii_whitespace() && *c != b' ')
+        && !b.iter().any(|c| (c.is_ascii_whitespace() && *c != b' ') || *c == 0x0b)
         && !s.contains("  ");
     if plain {
         return s.to_ascii_lowercase();
