@@ -1,6 +1,7 @@
 //! Criterion benchmarks of one solve (issue targets, one core): (a) a monoprotic acid,
 //! (b) a 3-family mixture with Davies, (c) an 8-family mixture with one complex and the
-//! extended Debye–Hückel model. The recipes are demo scenarios of our own.
+//! extended Debye–Hückel model, (d) the 3-family mixture of (b) in a 0.5 mol/L sodium
+//! chloride medium with SIT. The recipes are demo scenarios of our own.
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use protolyte::{
@@ -43,6 +44,23 @@ fn bench(c: &mut Criterion) {
     );
     c.bench_function("solve/b_three_families_davies", |b| {
         b.iter(|| black_box(&bsys).solve().expect("solve"))
+    });
+
+    // The same three families in a sodium chloride medium, with SIT (γ depends on the
+    // composition, iterated to self-consistency inside the ionic-strength iteration).
+    let dsys = system(
+        &[
+            ("acetic acid", 5.0),
+            ("sodium dihydrogen phosphate", 3.0),
+            ("ammonium chloride", 2.0),
+            ("sodium hydroxide", 4.0),
+            ("sodium chloride", 500.0),
+        ],
+        &[],
+        ActivityModel::Sit,
+    );
+    c.bench_function("solve/d_three_families_sit", |b| {
+        b.iter(|| black_box(&dsys).solve().expect("solve"))
     });
 
     // Eight families and one complex (calcium–EDTA).

@@ -3,7 +3,8 @@
 
 use std::sync::Arc;
 
-use crate::activity::ActivityModel;
+use crate::activity::sit::Interactions;
+use crate::activity::{ActivityModel, PhConvention};
 use crate::error::{Error, Result};
 use crate::limits::{MIN_TOTAL_MOLAL, RESIDUAL_PROMISE, TESTED_MAX_TOTAL_MOLAR};
 use crate::quantity::Temperature;
@@ -58,6 +59,10 @@ pub struct Residuals {
     pub mass_relative: Vec<(Arc<str>, f64)>,
     /// (½ Σ z²·m − I)/I.
     pub ionic_strength_relative: f64,
+    /// The residual of the activity-coefficient iteration where γ depends on the composition
+    /// (SIT): the largest change of any ln γ between the composition γ was taken at and the
+    /// returned one. 0 for models whose γ depends on I only.
+    pub activity_coefficients_ln: f64,
 }
 
 impl Residuals {
@@ -71,13 +76,16 @@ impl Residuals {
     }
 
     /// The largest relative residual over every equation solved: the charge balance, each
-    /// mass balance and the ionic-strength equation (0 under the ideal model, where the
-    /// ionic strength is reported as the species give it). This is the number the residual
+    /// mass balance, the ionic-strength equation (0 under the ideal model, where the
+    /// ionic strength is reported as the species give it) and, for a model whose γ depends
+    /// on the composition (SIT), the activity-coefficient iteration. This is the number the residual
     /// promise is about: at most [`RESIDUAL_PROMISE`](crate::limits::RESIDUAL_PROMISE) (or
     /// the solver's tolerance, if set looser) for every returned result, else the result
     /// carries [`Warning::ResidualAbovePromise`].
     pub fn max_relative(&self) -> f64 {
-        self.max_balance_relative().max(self.ionic_strength_relative.abs())
+        self.max_balance_relative()
+            .max(self.ionic_strength_relative.abs())
+            .max(self.activity_coefficients_ln.abs())
     }
 
     /// The equation with the largest relative residual and that residual.
@@ -90,6 +98,12 @@ impl Residuals {
         }
         if self.ionic_strength_relative.abs() > worst.1 {
             worst = ("ionic-strength equation".into(), self.ionic_strength_relative.abs());
+        }
+        if self.activity_coefficients_ln.abs() > worst.1 {
+            worst = (
+                "activity-coefficient iteration".into(),
+                self.activity_coefficients_ln.abs(),
+            );
         }
         worst
     }
@@ -120,6 +134,7 @@ pub struct Equilibrium {
     ionic_strength_molal: f64,
     temperature: Temperature,
     model: ActivityModel,
+    ph_convention: PhConvention,
     species: Vec<SpeciesState>,
     families: Vec<FamilyState>,
     free_molal: Vec<(Arc<str>, f64)>,
@@ -168,16 +183,23 @@ impl Equilibrium {
                 }
             })
             .collect();
-        let ph = -point.y[0] / LN10;
+        let p_h_activity = -point.y[0] / LN10;
         // The solver's pH range (both paths bracket ln a(H⁺) there): a solution outside it
         // is refused rather than returned from one path and not the other.
-        if ph.is_finite() && !(-4.0 - 1e-9..=20.0 + 1e-9).contains(&ph) {
+        if p_h_activity.is_finite() && !(-4.0 - 1e-9..=20.0 + 1e-9).contains(&p_h_activity) {
             return Err(Error::OutOfDomain {
                 what: "pH of the solution",
-                value: ph,
+                value: p_h_activity,
                 domain: "-4..20 (the solver's range)",
             });
         }
+        let sit_chloride = if sys.ph_convention == PhConvention::BatesGuggenheim && sys.model == ActivityModel::Sit {
+            Interactions::trace_log10_term("Cl-", -1, species.iter().map(|s| (&*s.name, s.charge, s.molal)))
+        } else {
+            0.0
+        };
+        let ph =
+            p_h_activity + crate::activity::ph_convention_shift(sys.ph_convention, sys.model, i, &sys.dh, sit_chloride);
         let h = species[0].molal;
         let oh = species[1].activity;
         let nc = sys.components.len();
@@ -245,6 +267,7 @@ impl Equilibrium {
             charge_relative: if charge_scale > 0.0 { charge / charge_scale } else { 0.0 },
             mass_relative,
             ionic_strength_relative: if ideal { 0.0 } else { (ionic - i) / i },
+            activity_coefficients_ln: ev.composition_change(sys),
         };
         let mut warnings = sys.compile_warnings.clone();
         for (c, comp) in sys.components.iter().enumerate().skip(1) {
@@ -273,14 +296,34 @@ impl Equilibrium {
                 promise,
             });
         }
-        if let Some(limit) = sys.model.validity_limit_molal()
-            && i > limit
-        {
+        let limit = sys.model.validity_limit_molal();
+        if i > limit {
             warnings.push(Warning::IonicStrengthBeyondModel {
                 ionic_strength_molal: i,
                 limit_molal: limit,
                 model: sys.model,
             });
+        }
+        if let Some(limit) = sys.ph_convention.validity_limit_molal()
+            && i > limit
+        {
+            warnings.push(Warning::PhConventionBeyondRange {
+                convention: sys.ph_convention,
+                ionic_strength_molal: i,
+                limit_molal: limit,
+            });
+        }
+        // SIT pairs without a tabulated ε, where the partner is abundant enough that a typical
+        // ε (±0.1 kg/mol) would move log γ by 0.001 or more.
+        for &(a, b) in &sys.interactions.unknown {
+            let partner = ev.conc[a].max(ev.conc[b]);
+            if partner >= 0.01 && ev.conc[a].min(ev.conc[b]) > 0.0 {
+                warnings.push(Warning::UnknownInteraction {
+                    cation: sys.species[a].name.to_string(),
+                    anion: sys.species[b].name.to_string(),
+                    partner_molal: partner,
+                });
+            }
         }
         let eq = Equilibrium {
             ph,
@@ -289,6 +332,7 @@ impl Equilibrium {
             ionic_strength_molal: i,
             temperature: sys.temperature,
             model: sys.model,
+            ph_convention: sys.ph_convention,
             species,
             families,
             free_molal,
@@ -332,9 +376,17 @@ impl Equilibrium {
         }
     }
 
-    /// pH = −log₁₀ a(H⁺) (molal scale).
+    /// pH on the molal scale under the system's [`PhConvention`] (see
+    /// [`ph_convention`](Self::ph_convention)): by default −log₁₀ a(H⁺) with the activity
+    /// model's own γ(H⁺); under the Bates–Guggenheim convention the pH comparable with the
+    /// pH(S) of reference buffers.
     pub fn ph(&self) -> f64 {
         self.ph
+    }
+
+    /// The convention that produced [`ph`](Self::ph).
+    pub fn ph_convention(&self) -> PhConvention {
+        self.ph_convention
     }
 
     /// p\[H\] = −log₁₀ of the H⁺ molality (mol/kg): the pH of concentration, without γ.

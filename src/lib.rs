@@ -100,11 +100,11 @@ pub mod vant_hoff;
 mod warning;
 pub mod water;
 
-pub use activity::{ActivityModel, DebyeHuckelConstants};
+pub use activity::{ActivityModel, DebyeHuckelConstants, PhConvention};
 pub use complex::{Complex, ComplexPart};
-pub use data::{Catalog, DataInfo, DataKind};
+pub use data::{Catalog, DataInfo, DataKind, FormInfo, molar_mass_from_formula};
 pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState};
-pub use error::{Error, Result};
+pub use error::{CatalogFileError, Error, Result};
 pub use ion::Ion;
 pub use protolyte::{Protolyte, Step};
 pub use quantity::{Amount, Mass, Temperature, Volume};

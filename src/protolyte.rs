@@ -53,7 +53,8 @@ impl Protolyte {
     /// A family with stepwise `pkas` (most protonated first) at 25 °C, infinite dilution.
     ///
     /// Refuses an empty name, no steps or more than 12, a pKa outside −10..25 or not finite,
-    /// and a charge outside −10..10.
+    /// pKa values out of order (each step's pKa is at least the one before), and a charge
+    /// outside −10..10.
     pub fn new(name: &str, pkas: &[f64], charge_most_protonated: i32) -> Result<Self> {
         let name = name.trim();
         if name.is_empty() {
@@ -72,6 +73,18 @@ impl Protolyte {
             return Err(Error::InconsistentDefinition {
                 name: name.into(),
                 reason: format!("charge of the most protonated form {charge_most_protonated} is outside −10..10"),
+            });
+        }
+        if let Some(k) = pkas.windows(2).position(|w| w[1] < w[0]) {
+            return Err(Error::InconsistentDefinition {
+                name: name.into(),
+                reason: format!(
+                    "pKa values ascend, most protonated form first: pKa{} = {} follows pKa{} = {}",
+                    k + 2,
+                    pkas[k + 1],
+                    k + 1,
+                    pkas[k]
+                ),
             });
         }
         let mut steps = Vec::with_capacity(pkas.len());

@@ -59,6 +59,13 @@ pub struct Sensitivities {
     dln_gamma_di: Vec<f64>,
     ionic_strength: f64,
     forms: Vec<Vec<usize>>,
+    /// d(pH convention shift)/d ln I (0 with the model's own γ(H⁺)).
+    ph_shift_dln_i: f64,
+    /// Where γ depends on the composition (SIT): dm/dp for every species and parameter.
+    dm: Option<DMatrix<f64>>,
+    molal: Vec<f64>,
+    /// (species, ε(Cl⁻, species)) for the Bates–Guggenheim convention under SIT.
+    chloride_eps: Vec<(usize, f64)>,
 }
 
 impl Sensitivities {
@@ -75,15 +82,23 @@ impl Sensitivities {
         }
         let p: Point = eq.point();
         let i = p.ln_i.exp();
-        let mut ev = Evaluation::new(ns);
+        let mut ev = Evaluation::new(sys);
+        ev.hold(eq.species().iter().map(|s| s.molal));
         ev.set_gamma(sys, i);
         ev.set_conc(sys, &p);
         let layout = Layout::new(sys);
-        let jac = jacobian_in(&ev, &layout, &p);
+        let composition = Composition::at(sys, &ev, &layout.act, &p);
+        let jac = match &composition {
+            Some(c) => c.jacobian.clone(),
+            None => jacobian_in(&ev, &layout, &p),
+        };
         let act = layout.act;
         let m = act.len() + 1;
         let np = (nc - 1) + ns + 1;
         let mut dfdp = DMatrix::zeros(m, np);
+        // Under SIT: the species-space part of ∂F/∂p (∂m/∂p at fixed γ), which the
+        // composition operator then carries through to every γ.
+        let mut species_part = DMatrix::zeros(if composition.is_some() { ns } else { 0 }, np);
         // Coefficient of species s in equation row k.
         let row = |s: usize, k: usize| -> f64 {
             let z = f64::from(sys.species[s].charge);
@@ -126,6 +141,9 @@ impl Sensitivities {
                         for k in 0..m {
                             dfdp[(k, col)] += row(s, k) * frac;
                         }
+                        if composition.is_some() {
+                            species_part[(s, col)] += frac;
+                        }
                     }
                 }
             }
@@ -139,7 +157,26 @@ impl Sensitivities {
             for k in 0..m {
                 dfdp[(k, col)] = row(s, k) * c * LN10;
             }
+            if composition.is_some() {
+                species_part[(s, col)] = c * LN10;
+            }
         }
+        // dm = P·(species part): add R·(P − 1)·(species part) to ∂F/∂p.
+        let carried = composition.as_ref().map(|c| {
+            let ps = c.lu.solve(&species_part).unwrap_or_else(|| species_part.clone());
+            let extra = &ps - &species_part;
+            for col in 0..np {
+                for s in 0..ns {
+                    let v = extra[(s, col)];
+                    if v != 0.0 {
+                        for k in 0..m {
+                            dfdp[(k, col)] += row(s, k) * v;
+                        }
+                    }
+                }
+            }
+            ps
+        });
         dfdp[(0, np - 1)] = 1.0;
         dfdp[(m - 1, np - 1)] = 0.5;
         let lu = jac.lu();
@@ -159,7 +196,29 @@ impl Sensitivities {
                 last_ph: eq.ph(),
             });
         }
+        // Under SIT, dm/dp = P·M·N·dy/dp + P·(species part), for d log m.
+        let dm = match (&composition, carried) {
+            (Some(c), Some(ps)) => Some(&c.pmn * &dy + ps),
+            _ => None,
+        };
+        let molal: Vec<f64> = ev.conc.clone();
+        // Bates–Guggenheim under SIT: the trace chloride's Σ ε(Cl⁻, j)·m_j moves the pH too.
+        let chloride_eps = if sys.ph_convention == crate::activity::PhConvention::BatesGuggenheim && dm.is_some() {
+            sys.species
+                .iter()
+                .enumerate()
+                .filter(|(_, sp)| sp.charge > 0)
+                .filter_map(|(s, sp)| {
+                    crate::activity::interaction_coefficient("Cl-", &sp.name).map(|e| (s, e.epsilon_kg_per_mol))
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
         Ok(Sensitivities {
+            dm,
+            molal,
+            chloride_eps,
             dy,
             act,
             nc,
@@ -168,6 +227,7 @@ impl Sensitivities {
             dln_gamma_di: ev.dln_gamma_di.clone(),
             ionic_strength: i,
             forms: sys.families.iter().map(|f| f.forms.clone()).collect(),
+            ph_shift_dln_i: crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, i, &sys.dh),
         })
     }
 
@@ -183,7 +243,16 @@ impl Sensitivities {
     /// d pH / d p; `None` for a parameter index out of range (a total of H⁺, index 0, is
     /// not a parameter).
     pub fn dph(&self, p: Parameter) -> Option<f64> {
-        self.column(p).map(|col| -self.dy[(0, col)] / LN10)
+        let m = self.act.len() + 1;
+        self.column(p).map(|col| {
+            let mut d = -self.dy[(0, col)] / LN10 + self.ph_shift_dln_i * self.dy[(m - 1, col)];
+            if let Some(dm) = &self.dm {
+                for &(s, e) in &self.chloride_eps {
+                    d -= e * dm[(s, col)];
+                }
+            }
+            d
+        })
     }
 
     /// d log₁₀ m(species) / d p; `None` for an index out of range.
@@ -191,6 +260,11 @@ impl Sensitivities {
         let col = self.column(p)?;
         if species >= self.ns {
             return None;
+        }
+        if let Some(dm) = &self.dm
+            && self.molal[species] > 0.0
+        {
+            return Some(dm[(species, col)] / self.molal[species] / LN10);
         }
         let m = self.act.len() + 1;
         let mut d = 0.0;
@@ -260,7 +334,11 @@ impl Equilibrium {
 pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f64> {
     let sys = system;
     let nc = sys.components.len();
-    if (1..nc).any(|c| dt[c] != 0.0 && sys.components[c].total_molal <= 0.0) {
+    // A component brought in from zero, or the Bates–Guggenheim pH under SIT (whose trace
+    // chloride term needs every dm), go through the full sensitivities.
+    let sit_bg =
+        sys.ph_convention == crate::activity::PhConvention::BatesGuggenheim && !sys.interactions.known.is_empty();
+    if sit_bg || (1..nc).any(|c| dt[c] != 0.0 && sys.components[c].total_molal <= 0.0) {
         let sens = eq.sensitivities(sys)?;
         return Ok((1..nc)
             .filter(|&c| dt[c] != 0.0)
@@ -268,11 +346,15 @@ pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) ->
             .sum());
     }
     let p = eq.point();
-    let mut ev = Evaluation::new(sys.species.len());
+    let mut ev = Evaluation::new(sys);
+    ev.hold(eq.species().iter().map(|s| s.molal));
     ev.set_gamma(sys, p.ln_i.exp());
     ev.set_conc(sys, &p);
     let layout = Layout::new(sys);
-    let jac = jacobian_in(&ev, &layout, &p);
+    let jac = match Composition::at(sys, &ev, &layout.act, &p) {
+        Some(c) => c.jacobian,
+        None => jacobian_in(&ev, &layout, &p),
+    };
     // ∂F/∂T_c = −1 in the mass balance of c, so J·dy = +dt there.
     let mut rhs = DVector::zeros(layout.act.len() + 1);
     for (k, &c) in layout.act.iter().enumerate().skip(1) {
@@ -285,5 +367,60 @@ pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) ->
         worst_equation: "singular Jacobian at the solution".into(),
         last_ph: eq.ph(),
     })?;
-    Ok(-x[0] / LN10)
+    let shift = crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, p.ln_i.exp(), &sys.dh);
+    Ok(-x[0] / LN10 + shift * x[layout.act.len()])
+}
+
+/// Where γ depends on the composition (SIT: ln γ_s = ln γ_s(I) + Σ_t Γ_st m_t with
+/// Γ = ln 10·ε), a change of the unknowns moves each molality directly and through every γ:
+/// dm = M·(ν·dy − g·I·d ln I) − M·Γ·dm, so dm = P·M·N·dx with P = (1 + M·Γ)⁻¹ and N the
+/// columns (ν of each active component, −I·d ln γ/dI). The Jacobian is then R·P·M·N (R: the
+/// equations' coefficients z, ν, ½z²), minus I on the ionic-strength diagonal.
+struct Composition {
+    lu: nalgebra::LU<f64, nalgebra::Dyn, nalgebra::Dyn>,
+    /// P·M·N, species × unknowns.
+    pmn: DMatrix<f64>,
+    jacobian: DMatrix<f64>,
+}
+
+impl Composition {
+    fn at(sys: &System, ev: &Evaluation, act: &[usize], p: &Point) -> Option<Self> {
+        if sys.interactions.known.is_empty() {
+            return None;
+        }
+        let ns = sys.species.len();
+        let nc = sys.components.len();
+        let m = act.len() + 1;
+        let i = p.ln_i.exp();
+        let mut a = DMatrix::identity(ns, ns);
+        for &(s, t, e) in &sys.interactions.known {
+            a[(s, t)] += ev.conc[s] * e * LN10;
+            a[(t, s)] += ev.conc[t] * e * LN10;
+        }
+        let mut mn = DMatrix::zeros(ns, m);
+        for s in 0..ns {
+            let c = ev.conc[s];
+            if c == 0.0 {
+                continue;
+            }
+            for (k, &comp) in act.iter().enumerate() {
+                mn[(s, k)] = c * sys.nu[s * nc + comp];
+            }
+            mn[(s, m - 1)] = -c * ev.dln_gamma_di[s] * i;
+        }
+        let lu = a.lu();
+        let pmn = lu.solve(&mn)?;
+        let mut r = DMatrix::zeros(m, ns);
+        for s in 0..ns {
+            let z = sys.charge_f[s];
+            r[(0, s)] = z;
+            r[(m - 1, s)] = 0.5 * z * z;
+            for (k, &comp) in act.iter().enumerate().skip(1) {
+                r[(k, s)] = sys.nu[s * nc + comp];
+            }
+        }
+        let mut jacobian = &r * &pmn;
+        jacobian[(m - 1, m - 1)] -= i;
+        Some(Composition { lu, pmn, jacobian })
+    }
 }

@@ -9,7 +9,8 @@
 
 use std::sync::Arc;
 
-use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants};
+use crate::activity::sit::Interactions;
+use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants, PhConvention};
 use crate::complex::{Complex, ComplexPart};
 use crate::error::{Error, Result};
 use crate::ion::Ion;
@@ -25,16 +26,18 @@ use crate::water;
 const ION_SIZE_H: f64 = 9.0;
 const ION_SIZE_OH: f64 = 3.5;
 
-/// The temperature and activity model a recipe is compiled for.
+/// The temperature, activity model and pH convention a recipe is compiled for.
 ///
 /// # Example
 ///
 /// ```
-/// use protolyte::{ActivityModel, Conditions, Temperature};
+/// use protolyte::{ActivityModel, Conditions, PhConvention, Temperature};
 ///
-/// let c = Conditions::new(Temperature::celsius(37.0), ActivityModel::ExtendedDebyeHuckel);
+/// let c = Conditions::new(Temperature::celsius(37.0), ActivityModel::ExtendedDebyeHuckel)
+///     .with_ph_convention(PhConvention::BatesGuggenheim);
 /// assert_eq!(c.temperature.as_celsius(), 37.0);
 /// assert_eq!(Conditions::default().activity, ActivityModel::Davies);
+/// assert_eq!(Conditions::default().ph_convention, PhConvention::Model);
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Conditions {
@@ -42,12 +45,24 @@ pub struct Conditions {
     pub temperature: Temperature,
     /// Activity-coefficient model.
     pub activity: ActivityModel,
+    /// How the reported pH is tied to a single-ion activity (default: the model's own γ(H⁺)).
+    pub ph_convention: PhConvention,
 }
 
 impl Conditions {
-    /// Conditions at `temperature` with `activity`.
+    /// Conditions at `temperature` with `activity`, pH from the model's own γ(H⁺).
     pub fn new(temperature: Temperature, activity: ActivityModel) -> Self {
-        Conditions { temperature, activity }
+        Conditions {
+            temperature,
+            activity,
+            ph_convention: PhConvention::Model,
+        }
+    }
+
+    /// The same conditions with pH reported under `convention`.
+    pub fn with_ph_convention(mut self, convention: PhConvention) -> Self {
+        self.ph_convention = convention;
+        self
     }
 }
 
@@ -154,6 +169,9 @@ pub struct Family {
 pub struct System {
     pub(crate) temperature: Temperature,
     pub(crate) model: ActivityModel,
+    pub(crate) ph_convention: PhConvention,
+    /// SIT interaction pairs among the species (empty unless the model is SIT).
+    pub(crate) interactions: Interactions,
     pub(crate) dh: DebyeHuckelConstants,
     pub(crate) water_density: f64,
     pub(crate) log10_kw: f64,
@@ -409,9 +427,16 @@ impl System {
             unc().map(|s| nu_h[s].min(0).unsigned_abs() as usize).max().unwrap_or(0),
         );
         let charge_f = species.iter().map(|s| f64::from(s.charge)).collect();
+        let interactions = if conditions.activity.depends_on_composition() {
+            Interactions::pair(species.iter().map(|s| (&*s.name, s.charge)))
+        } else {
+            Interactions::default()
+        };
         Ok(System {
             temperature: t,
             model: conditions.activity,
+            ph_convention: conditions.ph_convention,
+            interactions,
             dh: DebyeHuckelConstants::at(t)?,
             water_density,
             log10_kw,
@@ -443,6 +468,11 @@ impl System {
     /// The activity model.
     pub fn activity_model(&self) -> ActivityModel {
         self.model
+    }
+
+    /// The pH convention of the results.
+    pub fn ph_convention(&self) -> PhConvention {
+        self.ph_convention
     }
 
     /// The Debye–Hückel constants at the system's temperature.

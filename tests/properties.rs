@@ -46,7 +46,8 @@ fn model() -> impl Strategy<Value = ActivityModel> {
     prop_oneof![
         Just(ActivityModel::Ideal),
         Just(ActivityModel::Davies),
-        Just(ActivityModel::ExtendedDebyeHuckel)
+        Just(ActivityModel::ExtendedDebyeHuckel),
+        Just(ActivityModel::Sit)
     ]
 }
 
@@ -177,8 +178,11 @@ proptest! {
         // extended Debye–Hückel equation, stated to about 0.1) the extrapolated γ of highly
         // charged forms falls fast enough with I that a trace of base can lower pH by 1e-8:
         // a property of the extrapolated model, flagged by its warning, not of the solver.
+        // (The ideal model's warning past 0.001 mol/kg does not matter here: γ = 1.)
         let beyond = |eq: &protolyte::Equilibrium| {
-            eq.warnings().iter().any(|w| matches!(w, protolyte::Warning::IonicStrengthBeyondModel { .. }))
+            eq.warnings().iter().any(|w| {
+                matches!(w, protolyte::Warning::IonicStrengthBeyondModel { model, .. } if *model != ActivityModel::Ideal)
+            })
         };
         let mut added = 0.0;
         let first = system(&c, 0.0).solve().unwrap();

@@ -668,6 +668,145 @@ fn ph_standard_saturated_calcium_hydroxide_25c() {
     no_model_warning(&eq);
 }
 
+// ---------------------- 7b. pH reference standards under the Bates–Guggenheim convention
+//
+// The same standards, now reported as the pH(S) values are assigned: under the
+// Bates–Guggenheim convention (R. G. Bates and E. A. Guggenheim, Pure Appl. Chem. 1 (1960)
+// 163; Buck et al. 2002, section 5), pH = −log₁₀(m(H⁺)γ(H⁺)γ(Cl⁻)) + log₁₀ γ(Cl⁻)ᴮᴳ with
+// log₁₀ γ(Cl⁻)ᴮᴳ = −A√I/(1 + 1.5√I). Target: within 0.006 pH (issue 8).
+//
+// Measured deviations at 25 °C (computed − pH(S)), built-in constants:
+//
+// | standard | pH(S) | Davies | ext. Debye–Hückel, Kielland per form | SIT |
+// |---|---|---|---|---|
+// | tetroxalate 0.05 | 1.679 | −0.0056 | — | −0.0077 |
+// | tartrate sat. (0.0341) | 3.557 | −0.0018 | — | −0.0014 |
+// | dihydrogen citrate 0.05 | 3.776 | −0.0075 | — | −0.0076 |
+// | phthalate 0.05 | 4.005 | +0.0069 | — | +0.0069 |
+// | phosphate 0.025/0.025 | 6.865 | +0.0086 | +0.0002 | +0.0028 |
+// | phosphate 0.008695/0.03043 | 7.413 | +0.0046 | −0.0038 | −0.0046 |
+// | borax 0.01 | 9.180 | −0.0034 | −0.0009 | −0.0040 |
+// | carbonate 0.025/0.025 | 10.012 | −0.0115 | −0.0038 | −0.0240 |
+//
+// No single model meets 0.006 on all eight. The best model for each kind of buffer:
+// Davies for the acid buffers (I ≤ 0.06 mol/kg, singly charged buffer anions), the extended
+// Debye–Hückel equation with Kielland's size for each form for the I = 0.1 mol/kg buffers
+// whose pH is set by a divalent anion (phosphate, carbonate), where Davies' linear term is
+// too generous to z = 2. Phthalate and citrate stay just outside 0.006 with every model: see
+// their tests.
+
+fn standard_ph_bg(parts: &[(Reagent, f64)], model: ActivityModel) -> Equilibrium {
+    let mut r = Recipe::new();
+    for (re, m) in parts {
+        r.add(re, Amount::molal(*m)).unwrap();
+    }
+    let conditions =
+        Conditions::new(Temperature::celsius(25.0), model).with_ph_convention(protolyte::PhConvention::BatesGuggenheim);
+    let eq = solve(&r, &conditions);
+    assert_eq!(eq.ph_convention(), protolyte::PhConvention::BatesGuggenheim);
+    eq
+}
+
+const PH_STANDARD_BG_TOL: f64 = 0.006;
+
+/// A built-in family with one ion size per form (most protonated first), as Kielland tabulates
+/// them (J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675, from memory; where Kielland gives a
+/// range, 4.0–4.5 Å, the upper value is used, as the built-in data do for Na⁺).
+fn kielland(family: &str, sizes: &[f64]) -> Protolyte {
+    builtin_family(family).with_form_ion_sizes(sizes).unwrap()
+}
+
+/// Tetroxalate (1.679), saturated potassium hydrogen tartrate (0.0341 mol/kg, 3.557; Buck et
+/// al. 2002, from memory), 0.01 mol/kg borax (9.180) and the 1:3.5 phosphate (7.413) with
+/// Davies under the Bates–Guggenheim convention.
+#[test]
+fn ph_standards_bates_guggenheim_davies_25c() {
+    let tartrate = cat()
+        .reagent("potassium hydrogen tartrate")
+        .expect("built-in potassium hydrogen tartrate");
+    for (what, parts, ph_s) in [
+        ("0.05 mol/kg tetroxalate", vec![(tetroxalate_builtin(), 0.05)], 1.679),
+        ("saturated KH tartrate", vec![(tartrate, 0.0341)], 3.557),
+        ("0.01 mol/kg borax", vec![(borax_builtin(), 0.01)], 9.180),
+        (
+            "0.008695/0.03043 phosphate",
+            vec![(kh2po4_builtin(), 0.008695), (na2hpo4_builtin(), 0.03043)],
+            7.413,
+        ),
+    ] {
+        let eq = standard_ph_bg(&parts, ActivityModel::Davies);
+        assert_close(
+            &format!("{what}, Davies, Bates–Guggenheim"),
+            eq.ph(),
+            ph_s,
+            PH_STANDARD_BG_TOL,
+        );
+        no_model_warning(&eq);
+    }
+}
+
+/// The I = 0.1 mol/kg standards set by a divalent anion, with the extended Debye–Hückel
+/// equation and Kielland's size for each form (H₂PO₄⁻ 4.5, HPO₄²⁻ 4.0, PO₄³⁻ 4.0, HCO₃⁻ 4.5,
+/// CO₃²⁻ 4.5 Å; borate keeps the family's size): 1:1 phosphate 6.865, 1:3.5 phosphate 7.413,
+/// carbonate 10.012, borax 9.180 (Buck et al. 2002).
+#[test]
+fn ph_standards_bates_guggenheim_kielland_per_form_25c() {
+    let k = || ion(&builtin_ion("potassium"));
+    let na = || ion(&builtin_ion("sodium"));
+    let p = kielland("phosphate", &[0.0, 4.5, 4.0, 4.0]);
+    let c = kielland("carbonate", &[0.0, 4.5, 4.5]);
+    let kh2po4 = reagent("KH2PO4 (Kielland)", vec![(k(), 1), (form(&p, 2), 1)]);
+    let na2hpo4 = reagent("Na2HPO4 (Kielland)", vec![(na(), 2), (form(&p, 1), 1)]);
+    let nahco3 = reagent("NaHCO3 (Kielland)", vec![(na(), 1), (form(&c, 1), 1)]);
+    let na2co3 = reagent("Na2CO3 (Kielland)", vec![(na(), 2), (form(&c, 0), 1)]);
+    for (what, parts, ph_s) in [
+        (
+            "0.025/0.025 phosphate",
+            vec![(kh2po4.clone(), 0.025), (na2hpo4.clone(), 0.025)],
+            6.865,
+        ),
+        (
+            "0.008695/0.03043 phosphate",
+            vec![(kh2po4, 0.008695), (na2hpo4, 0.03043)],
+            7.413,
+        ),
+        ("0.025/0.025 carbonate", vec![(nahco3, 0.025), (na2co3, 0.025)], 10.012),
+        ("0.01 mol/kg borax", vec![(borax_builtin(), 0.01)], 9.180),
+    ] {
+        let eq = standard_ph_bg(&parts, ActivityModel::ExtendedDebyeHuckel);
+        assert_close(
+            &format!("{what}, extended Debye–Hückel (Kielland per form), Bates–Guggenheim"),
+            eq.ph(),
+            ph_s,
+            PH_STANDARD_BG_TOL,
+        );
+        // I = 0.100 sits exactly at the model's stated 0.1 mol/kg.
+        assert!(eq.ionic_strength_molal() <= 0.1005);
+    }
+}
+
+/// 0.05 mol/kg potassium hydrogen phthalate (4.005) and 0.05 mol/kg potassium dihydrogen
+/// citrate (3.776; Buck et al. 2002, from memory) miss 0.006 with every model here: Davies
+/// gives +0.0069 and −0.0075. Both pH values are set mainly by ½(pK₁ + pK₂) (amphiprotic
+/// anions), so they rest on the built-in pK values rather than on the activity model (the
+/// extended Debye–Hückel equation with Kielland's 6 Å for phthalate moves the wrong way, to
+/// +0.028). The built-in phthalate pK₁ 2.950 and pK₂ 5.408 (Hamer & Acree, from memory) were
+/// derived with their own activity treatment; a shift of 0.002 in their sum would close the
+/// gap. Held here to the deviation measured, so that a change of constants or model shows.
+#[test]
+fn ph_standards_bates_guggenheim_phthalate_and_citrate_25c() {
+    let citrate = cat()
+        .reagent("potassium dihydrogen citrate")
+        .expect("built-in potassium dihydrogen citrate");
+    for (what, parts, ph_s) in [
+        ("0.05 mol/kg KHP", vec![(khp_builtin(), 0.05)], 4.005),
+        ("0.05 mol/kg KH2 citrate", vec![(citrate, 0.05)], 3.776),
+    ] {
+        let eq = standard_ph_bg(&parts, ActivityModel::Davies);
+        assert_close(&format!("{what}, Davies, Bates–Guggenheim"), eq.ph(), ph_s, 0.008);
+    }
+}
+
 // ------------------------------------------------------ 8. metal–ligand complex (EDTA)
 
 /// Free Ca²⁺ in 0.10 M CaY²⁻ buffered at pH 10.00 and at pH 6.00.

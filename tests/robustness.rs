@@ -480,8 +480,15 @@ mod promise {
     }
 
     fn family() -> impl Strategy<Value = Family> {
-        (1usize..=4)
-            .prop_flat_map(|n| (prop::collection::vec(-10.0f64..25.0, n), -3i32..=3, 0..=n, log_total()))
+        (1usize..=6)
+            .prop_flat_map(|n| {
+                (
+                    prop::collection::vec(-10.0f64..25.0, n),
+                    -10i32..=10,
+                    0..=n,
+                    log_total(),
+                )
+            })
             .prop_map(|(pkas, charge_top, protons, log_total)| Family {
                 pkas,
                 charge_top,
@@ -691,4 +698,15 @@ fn analysis_fractions_outside_their_range_are_refused_not_clamped() {
         t.equivalence_points_with(0.9, indicators()),
         Err(Error::InvalidParameter { .. })
     ));
+}
+
+#[test]
+fn a_solver_tolerance_outside_its_range_is_refused_not_clamped() {
+    use protolyte::Solver;
+    assert!(matches!(
+        Solver::new().tolerance(1.0),
+        Err(Error::InvalidParameter { .. })
+    ));
+    assert!(Solver::new().tolerance(f64::NAN).is_err());
+    assert_eq!(Solver::new().tolerance(1e-9).unwrap().tolerance_value(), 1e-9);
 }

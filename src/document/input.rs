@@ -40,8 +40,8 @@ fn check_count(path: impl FnOnce() -> String, len: usize, max: usize, what: &str
     Ok(())
 }
 
-/// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"` or
-/// `"extended-debye-huckel"`.
+/// The activity-coefficient model, as written in a document: `"ideal"`, `"davies"`,
+/// `"extended-debye-huckel"` or `"sit"`.
 ///
 /// ```
 /// use protolyte::ActivityModel;
@@ -59,6 +59,8 @@ pub enum ActivityDoc {
     Davies,
     /// Extended Debye–Hückel with per-ion sizes.
     ExtendedDebyeHuckel,
+    /// Specific ion interaction theory (to about 3.5 mol/kg).
+    Sit,
 }
 
 impl From<ActivityDoc> for ActivityModel {
@@ -67,6 +69,7 @@ impl From<ActivityDoc> for ActivityModel {
             ActivityDoc::Ideal => ActivityModel::Ideal,
             ActivityDoc::Davies => ActivityModel::Davies,
             ActivityDoc::ExtendedDebyeHuckel => ActivityModel::ExtendedDebyeHuckel,
+            ActivityDoc::Sit => ActivityModel::Sit,
         }
     }
 }
@@ -77,6 +80,7 @@ impl From<ActivityModel> for ActivityDoc {
             ActivityModel::Ideal => ActivityDoc::Ideal,
             ActivityModel::Davies => ActivityDoc::Davies,
             ActivityModel::ExtendedDebyeHuckel => ActivityDoc::ExtendedDebyeHuckel,
+            ActivityModel::Sit => ActivityDoc::Sit,
         }
     }
 }

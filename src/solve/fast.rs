@@ -48,6 +48,8 @@ pub(crate) struct Fast<'a> {
     nc: usize,
     /// Under Davies: ln γ of a singly charged ion at the current I.
     davies_unit: f64,
+    /// The previous ln γ while they are retaken (models other than Davies).
+    old_ln_gamma: Vec<f64>,
     l_ref: f64,
     /// x^k for k = −12..=12 at index k + 12.
     pw: [f64; 2 * NU_SPAN + 1],
@@ -59,11 +61,12 @@ impl<'a> Fast<'a> {
         let ns = sys.species.len();
         Fast {
             sys,
-            ev: Evaluation::without_slopes(ns),
+            ev: Evaluation::without_slopes(sys),
             work: vec![0.0; ns + 2 * nc],
             ns,
             nc,
             davies_unit: 0.0,
+            old_ln_gamma: Vec::new(),
             l_ref: f64::NAN,
             pw: [1.0; 2 * NU_SPAN + 1],
         }
@@ -98,9 +101,10 @@ impl<'a> Fast<'a> {
         self.l_ref = l;
     }
 
-    /// Moves to new activity coefficients at ionic strength `i` without retaking the
-    /// coefficients in log space: each one is multiplied by γ_old/γ_new. Under Davies, ln γ
-    /// is z² times one number, so the factors are integer powers of a single exponential.
+    /// Moves to new activity coefficients at ionic strength `i` (and the held composition,
+    /// where γ depends on it) without retaking the coefficients in log space: each one is
+    /// multiplied by γ_old/γ_new. Under Davies, ln γ is z² times one number, so the factors
+    /// are integer powers of a single exponential.
     fn update_gamma(&mut self, i: f64) {
         let sys = self.sys;
         if sys.model == crate::activity::ActivityModel::Davies {
@@ -117,13 +121,9 @@ impl<'a> Fast<'a> {
             }
             self.davies_unit = unit;
         } else {
-            let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
-            for s in 0..sys.species.len() {
-                let old = self.ev.ln_gamma[s];
-                let sp = &sys.species[s];
-                let (lg, _) = profile.at(sp.charge, sp.ion_size_angstrom);
-                let new = lg * LN10;
-                self.ev.ln_gamma[s] = new;
+            self.old_ln_gamma.clone_from(&self.ev.ln_gamma);
+            self.ev.set_gamma(sys, i);
+            for (s, (&old, &new)) in self.old_ln_gamma.iter().zip(&self.ev.ln_gamma).enumerate() {
                 if new != old {
                     self.work[s] *= (old - new).exp();
                 }
@@ -432,7 +432,10 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
             return Err(beyond_limit(g));
         }
         let h = g - i;
-        if h.abs() <= tol * i {
+        // Where γ depends on the composition (SIT), the composition it was taken at must
+        // also have settled: the residual of that iteration is the change of ln γ.
+        let dc = fast.ev.composition_change(sys);
+        if h.abs() <= tol * i && dc <= tol {
             if accept <= 1e-8 {
                 return Ok((p, fast.ev, evals));
             }
@@ -440,7 +443,8 @@ pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result
             accept = 0.0;
             continue;
         }
-        accept = (0.01 * (h / i).abs()).min(1e-3);
+        fast.ev.hold_composition();
+        accept = (0.01 * (h / i).abs().max(dc)).min(1e-3);
         // Newton on h(I) = G(I) − I with the analytic dG/dI; the fixed point G(I) when the
         // step is not usable.
         let newton = i - h / (dg - 1.0);

@@ -159,34 +159,63 @@ pub(crate) struct Point {
 }
 
 /// Species concentrations and activity terms at a point.
+///
+/// The activity model is seen through one interface, [`Evaluation::set_gamma`]: ln γ of
+/// every species and d ln γ/dI at a fixed composition. Where γ also depends on the
+/// composition (SIT), that part is evaluated at the molalities `held`, which the paths move
+/// to the latest concentrations between solves at fixed γ ([`Evaluation::hold_composition`])
+/// until they agree; [`Evaluation::composition_change`] is the residual of that iteration.
 pub(crate) struct Evaluation {
     /// Molality of each species.
     pub conc: Vec<f64>,
     /// ln γ of each species.
     pub ln_gamma: Vec<f64>,
-    /// d ln γ / dI of each species.
+    /// d ln γ / dI of each species (at fixed composition).
     pub dln_gamma_di: Vec<f64>,
+    /// The molalities at which the composition-dependent part of ln γ is evaluated (empty
+    /// when the model has none).
+    pub held: Vec<f64>,
 }
 
 impl Evaluation {
-    pub(crate) fn new(n_species: usize) -> Self {
+    pub(crate) fn new(sys: &System) -> Self {
+        let n = sys.species.len();
         Evaluation {
-            conc: vec![0.0; n_species],
-            ln_gamma: vec![0.0; n_species],
-            dln_gamma_di: vec![0.0; n_species],
+            conc: vec![0.0; n],
+            ln_gamma: vec![0.0; n],
+            dln_gamma_di: vec![0.0; n],
+            held: Self::first_composition(sys),
         }
     }
 
     /// An evaluation that does not keep d ln γ/dI (the fast path does not need it).
-    pub(crate) fn without_slopes(n_species: usize) -> Self {
+    pub(crate) fn without_slopes(sys: &System) -> Self {
+        let n = sys.species.len();
         Evaluation {
-            conc: vec![0.0; n_species],
-            ln_gamma: vec![0.0; n_species],
+            conc: vec![0.0; n],
+            ln_gamma: vec![0.0; n],
             dln_gamma_di: Vec::new(),
+            held: Self::first_composition(sys),
         }
     }
 
-    /// Fills ln γ and its slope at ionic strength `i` (the slope only where it is kept).
+    /// The first guess at the composition for composition-dependent γ: each simple ion at
+    /// its total (strong electrolytes dominate where SIT matters), everything else 0.
+    fn first_composition(sys: &System) -> Vec<f64> {
+        if sys.interactions.known.is_empty() {
+            return Vec::new();
+        }
+        sys.species
+            .iter()
+            .map(|sp| match sp.kind {
+                crate::system::SpeciesKind::FreeIon { component } => sys.components[component].total_molal,
+                _ => 0.0,
+            })
+            .collect()
+    }
+
+    /// Fills ln γ and its slope at ionic strength `i` (the slope only where it is kept), the
+    /// composition-dependent part at the held molalities.
     pub(crate) fn set_gamma(&mut self, sys: &System, i: f64) {
         let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
         for (s, sp) in sys.species.iter().enumerate() {
@@ -195,6 +224,35 @@ impl Evaluation {
             if let Some(slot) = self.dln_gamma_di.get_mut(s) {
                 *slot = d * LN10;
             }
+        }
+        if !self.held.is_empty() {
+            sys.interactions.add_ln_terms(&self.held, &mut self.ln_gamma);
+        }
+    }
+
+    /// The largest change of any ln γ between the held composition and the current
+    /// concentrations: the residual of the activity-coefficient iteration (0 where γ does not
+    /// depend on the composition).
+    pub(crate) fn composition_change(&self, sys: &System) -> f64 {
+        if self.held.is_empty() {
+            0.0
+        } else {
+            sys.interactions.max_change(sys.species.len(), &self.held, &self.conc)
+        }
+    }
+
+    /// Moves the held composition to the current concentrations (γ is then reset by the next
+    /// [`set_gamma`](Self::set_gamma)).
+    pub(crate) fn hold_composition(&mut self) {
+        if !self.held.is_empty() {
+            self.held.copy_from_slice(&self.conc);
+        }
+    }
+
+    /// Holds the given molalities (a solution's own, for the sensitivities at it).
+    pub(crate) fn hold(&mut self, molal: impl Iterator<Item = f64>) {
+        for (h, m) in self.held.iter_mut().zip(molal) {
+            *h = m;
         }
     }
 
@@ -241,6 +299,7 @@ impl Evaluation {
             charge_scale: scale,
             mass,
             ionic_strength: (ionic - i) / i,
+            activity: self.composition_change(sys),
         }
     }
 }
@@ -252,6 +311,8 @@ pub(crate) struct Residuals {
     pub charge_scale: f64,
     pub mass: Vec<f64>,
     pub ionic_strength: f64,
+    /// Largest change of ln γ between the held and the current composition.
+    pub activity: f64,
 }
 
 impl Residuals {
@@ -273,6 +334,9 @@ impl Residuals {
         }
         if sys.model != crate::activity::ActivityModel::Ideal && self.ionic_strength.abs() > worst.0 {
             worst = (self.ionic_strength.abs(), "ionic-strength equation".into());
+        }
+        if self.activity > worst.0 {
+            worst = (self.activity, "activity-coefficient iteration".into());
         }
         if worst.0.is_nan() {
             worst.0 = f64::INFINITY;

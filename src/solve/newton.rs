@@ -364,9 +364,11 @@ fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f
             return Err(fast::beyond_limit(g));
         }
         let h = g - i;
-        if h.abs() <= tol * i {
+        let dc = ev.composition_change(sys);
+        if h.abs() <= tol * i && dc <= tol {
             return Ok(Some(iters));
         }
+        ev.hold_composition();
         let mut next = g;
         if let Some((ip, hp)) = prev {
             let den = h - hp;
@@ -393,7 +395,7 @@ pub(crate) fn solve(
     let lay = Layout::new(sys);
     let act = &lay.act;
     let nc = sys.components.len();
-    let mut ev = Evaluation::new(sys.species.len());
+    let mut ev = Evaluation::new(sys);
     let mut iters = 0;
     let mut p = match start {
         Some((y, li)) if y.len() == nc && li.is_finite() && y[0].is_finite() => {
@@ -465,7 +467,17 @@ pub(crate) fn solve(
     let mut short_steps = 0;
     while iters < joint_end {
         if max_scaled(&f, &scale, ideal) <= tol && last_step <= 1e-9 {
-            return Ok((p, ev, iters));
+            if ev.composition_change(sys) <= tol {
+                return Ok((p, ev, iters));
+            }
+            // γ depends on the composition (SIT): take it at the new concentrations and go
+            // on from here (the residual of this iteration is the change of ln γ).
+            ev.hold_composition();
+            evaluate(sys, &mut ev, &p);
+            (f, scale) = residual(sys, &ev, &lay, &p);
+            phi = merit(&f, &scale);
+            last_step = f64::INFINITY;
+            continue;
         }
         iters += 1;
         let jac = jacobian_in(&ev, &lay, &p);
@@ -516,7 +528,7 @@ pub(crate) fn solve(
             // No decrease along the Newton direction: at round-off level we are done if the
             // residual is already small; otherwise take fraction sweeps and try again.
             evaluate(sys, &mut ev, &p);
-            if max_scaled(&f, &scale, ideal) <= tol.max(1e-11) {
+            if max_scaled(&f, &scale, ideal) <= tol.max(1e-11) && ev.composition_change(sys) <= tol.max(1e-11) {
                 return Ok((p, ev, iters));
             }
             stalls += 1;
