@@ -519,3 +519,41 @@ fn a_sulfite_solution_sits_where_its_constants_put_it() {
         .unwrap();
     assert!((eq.ph() - 4.716).abs() < 0.01, "{}", eq.ph());
 }
+
+#[test]
+fn the_example_in_the_format_documentation_loads() {
+    let doc = include_str!("../docs/catalog-format.md");
+    let start = doc.find("```toml\n").unwrap() + "```toml\n".len();
+    let end = start + doc[start..].find("```").unwrap();
+    let cat = Catalog::builtin()
+        .with_toml_str(&doc[start..end], "docs/catalog-format.md")
+        .unwrap();
+    let q = cat.protolyte("acid q").unwrap();
+    assert_eq!(q.steps()[1].pka, 6.12);
+    assert_eq!(
+        cat.reagent("sodium hydrogen q").unwrap().molar_mass_g_per_mol(),
+        Some(154.1)
+    );
+    // The error lines shown there are the ones protolyte writes.
+    let text = &doc[start..end];
+    let bad = text.replace("{ pka = 6.12 }", "{ pka = 3.1 }");
+    let e = Catalog::builtin()
+        .with_toml_str(&bad, "lab.toml")
+        .unwrap_err()
+        .to_string();
+    assert!(doc.contains(&e), "{e}");
+    let bad = text.replace("family = \"lab acid q\"", "family = \"lab acid\"");
+    let e = Catalog::builtin()
+        .with_toml_str(&bad, "lab.toml")
+        .unwrap_err()
+        .to_string();
+    assert!(doc.contains(&e), "{e}");
+    let bad = format!(
+        "format = \"protolyte-catalog/1\"\n\n[[family]]\nname = \"acetate\"\ncharge_most_protonated = 0\nsteps = [{{ pka = 4.7 }}]\nsource = \"x\"\n"
+    );
+    let e = Catalog::builtin()
+        .with_toml_str(&bad, "lab.toml")
+        .unwrap_err()
+        .to_string();
+    assert!(doc.contains(&e), "{e}");
+}

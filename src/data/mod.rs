@@ -1011,12 +1011,23 @@ impl Catalog {
         let refs: Vec<&str> = synonyms.iter().map(String::as_str).collect();
         let named = |e: Error| match e {
             Error::NameConflict {
-                kind: k, existing_kind, ..
-            } if k == existing_kind && !replace => entry.error(
-                "name",
-                format!("{e}; write `replace = true` in the entry to replace it"),
-            ),
-            Error::NameConflict { .. } => entry.error("name", e),
+                name,
+                kind: k,
+                existing_kind,
+                existing_name,
+            } => {
+                let hint = if k == existing_kind && !replace {
+                    "; write `replace = true` in the entry to replace it"
+                } else if k == existing_kind {
+                    ""
+                } else {
+                    " (families, ions and complexes share one set of names)"
+                };
+                entry.error(
+                    "name",
+                    format!("the name `{name}` is already used by the {existing_kind} `{existing_name}`{hint}"),
+                )
+            }
             e => entry.wrap(e),
         };
         if replace {
