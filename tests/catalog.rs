@@ -550,7 +550,7 @@ fn the_example_in_the_format_documentation_loads() {
     assert!(doc.contains(&e), "{e}");
     let bad = "format = \"protolyte-catalog/1\"\n\n[[family]]\nname = \"acetate\"\ncharge_most_protonated = 0\nsteps = [{ pka = 4.7 }]\nsource = \"x\"\n";
     let e = Catalog::builtin()
-        .with_toml_str(&bad, "lab.toml")
+        .with_toml_str(bad, "lab.toml")
         .unwrap_err()
         .to_string();
     assert!(doc.contains(&e), "{e}");
