@@ -149,8 +149,9 @@ pub struct Catalog {
     complexes: Vec<Complex>,
     /// Descriptions grouped by kind (in `DataKind` order), each group in definition order.
     info: Vec<DataInfo>,
-    /// (kind, normalised name or synonym) → index in that kind's definition vector.
-    index: HashMap<(DataKind, String), usize>,
+    /// Normalised name or synonym → for each kind (in `DataKind` order), the index in that
+    /// kind's definition vector.
+    index: HashMap<String, [Option<usize>; 4]>,
     /// Citations by key, from every file read so far.
     sources: BTreeMap<String, String>,
     /// Built-in files that could not be read (a data bug; tested empty).
@@ -182,6 +183,11 @@ fn namespace(kind: DataKind) -> &'static [DataKind] {
 
 /// Lower case, single spaces, ASCII hyphens.
 fn normalize(s: &str) -> String {
+    normalized(s).into_owned()
+}
+
+/// [`normalize`] without a copy when the text already is normalised.
+fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names already are (every built-in one): copy them as they are.
     let plain = s
         .bytes()
@@ -190,7 +196,7 @@ fn normalize(s: &str) -> String {
         && !s.ends_with(' ')
         && !s.contains("  ");
     if plain {
-        return s.to_string();
+        return std::borrow::Cow::Borrowed(s);
     }
     let s: String = s
         .trim()
@@ -201,7 +207,7 @@ fn normalize(s: &str) -> String {
         })
         .collect::<String>()
         .to_lowercase();
-    s.split_whitespace().collect::<Vec<_>>().join(" ")
+    std::borrow::Cow::Owned(s.split_whitespace().collect::<Vec<_>>().join(" "))
 }
 
 fn levenshtein(a: &str, b: &str) -> usize {
@@ -366,8 +372,8 @@ impl Catalog {
     }
 
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
-        let key = normalize(name);
-        if let Some(&idx) = self.index.get(&(kind, key.clone())) {
+        let key = normalized(name);
+        if let Some(idx) = self.index.get(key.as_ref()).and_then(|a| a[kind as usize]) {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close. The search is
@@ -469,10 +475,11 @@ impl Catalog {
     fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, DataKind, usize)> {
         let mut out = Vec::new();
         for n in names {
-            let key = normalize(n);
-            for &k in namespace(kind) {
-                if let Some(&idx) = self.index.get(&(k, key.clone())) {
-                    out.push((n.to_string(), k, idx));
+            if let Some(a) = self.index.get(normalized(n).as_ref()) {
+                for &k in namespace(kind) {
+                    if let Some(idx) = a[k as usize] {
+                        out.push((n.to_string(), k, idx));
+                    }
                 }
             }
         }
@@ -636,7 +643,7 @@ impl Catalog {
         let kind = info.kind;
         let idx = self.len_of(kind);
         for k in &info.keys {
-            self.index.entry((kind, k.clone())).or_insert(idx);
+            self.index.entry(k.clone()).or_default()[kind as usize].get_or_insert(idx);
         }
         let at = self.offset(kind) + idx;
         self.info.insert(at, info);
@@ -864,7 +871,7 @@ impl Catalog {
             let idx = per_kind[info.kind as usize];
             per_kind[info.kind as usize] += 1;
             for k in &info.keys {
-                self.index.entry((info.kind, k.clone())).or_insert(idx);
+                self.index.entry(k.clone()).or_default()[info.kind as usize].get_or_insert(idx);
             }
         }
     }
