@@ -84,11 +84,18 @@ impl std::fmt::Display for Warning {
                 ionic_strength_molal,
                 limit_molal,
                 model,
-            } => write!(
-                f,
-                "ionic strength {ionic_strength_molal:.3} mol/kg is above the {} model's stated validity (about {limit_molal} mol/kg); activity coefficients are extrapolated",
-                model.name()
-            ),
+            } => {
+                write!(
+                    f,
+                    "ionic strength {ionic_strength_molal:.3} mol/kg is above the {} model's stated validity (about {limit_molal} mol/kg); activity coefficients are extrapolated",
+                    model.name()
+                )?;
+                let sit = ActivityModel::Sit.validity_limit_molal();
+                if *model != ActivityModel::Sit && *ionic_strength_molal <= sit {
+                    write!(f, "; the SIT model is stated to about {sit} mol/kg")?;
+                }
+                Ok(())
+            }
             Warning::UnknownInteraction {
                 cation,
                 anion,

@@ -334,3 +334,21 @@ fn sit_sensitivities_match_finite_differences() {
         }
     }
 }
+
+/// The warning past a model's range points to the model that covers it (SIT, to about 3.5
+/// mol/kg; Grenthe, Plyasunov & Spahiu 1997) while that one would still be inside its own.
+#[test]
+fn the_warning_names_the_model_to_use() {
+    let eq = solve_salt("sodium chloride", 1.0, ActivityModel::Davies);
+    let text: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
+    assert!(
+        text.iter().any(|t| t.contains("Davies") && t.contains("SIT")),
+        "{text:?}"
+    );
+    let eq = solve_salt("sodium chloride", 4.0, ActivityModel::Sit);
+    let text: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
+    assert!(
+        text.iter().any(|t| t.contains("SIT model's stated validity")),
+        "{text:?}"
+    );
+}

@@ -66,6 +66,7 @@ pub const DAVIES_LINEAR_COEFFICIENT: f64 = 0.3;
 /// let lg = ActivityModel::Davies.log10_gamma(1, 4.0, 0.1, &dh);
 /// assert!((10f64.powf(lg) - 0.78).abs() < 0.01);
 /// assert_eq!(ActivityModel::Ideal.log10_gamma(2, 4.0, 0.1, &dh), 0.0);
+/// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub enum ActivityModel {
@@ -111,8 +112,7 @@ pub enum PhConvention {
     /// measurable product of a Harned cell with the single-ion activity of chloride fixed
     /// by log₁₀ γ(Cl⁻)ᴮᴳ = −A√I/(1 + 1.5√I). γ(H⁺) and γ(Cl⁻) (a trace of chloride) come
     /// from the activity model. The convention is defined for I ≤ 0.1 mol/kg; beyond it a
-    /// result carries [`Warning::IonicStrengthBeyondModel`](crate::Warning::IonicStrengthBeyondModel)
-    /// naming the convention.
+    /// result carries [`Warning::PhConventionBeyondRange`](crate::Warning::PhConventionBeyondRange).
     BatesGuggenheim,
 }
 
@@ -252,6 +252,7 @@ impl GammaProfile {
 /// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0))?;
 /// assert!((dh.a - 0.511).abs() < 0.003);
 /// assert!((dh.b - 0.329).abs() < 0.002);
+/// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct DebyeHuckelConstants {
@@ -284,6 +285,7 @@ impl DebyeHuckelConstants {
 /// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0))?;
 /// // At I = 0.1 mol/kg: −0.511·0.316/(1 + 0.474) ≈ −0.110.
 /// assert!((activity::bates_guggenheim_log10_gamma_chloride(0.1, &dh) + 0.110).abs() < 0.001);
+/// # Ok::<(), protolyte::Error>(())
 /// ```
 pub fn bates_guggenheim_log10_gamma_chloride(i_molal: f64, dh: &DebyeHuckelConstants) -> f64 {
     let s = i_molal.max(0.0).sqrt();

@@ -31,13 +31,15 @@ const EXIT_OUTPUT: u8 = 5;
 
 const AFTER_HELP: &str = "\
 Exit codes:
-  0  success
-  1  batch: some lines failed (each has an error record in the output)
-  2  the command line is wrong (unknown option, missing argument)
-  3  the input cannot be read or is refused (the message names file, line and column, or the
-     field), or is over an input limit (docs/cli.md)
-  4  the solver did not converge
-  5  the output could not be written (with --plot: the result was written, the plot was not)
+    0  success
+    1  batch: some lines failed (each has an error record in the output)
+    2  the command line is wrong (unknown option, missing argument)
+    3  the input cannot be read or is refused (the message names file, line and column, or the
+       field), or is over an input limit (docs/cli.md)
+    4  the solver did not converge
+    5  the output could not be written (with --plot: the result was written, the plot was not)
+  101  an internal failure (a bug; please report it). In batch, a line that hits one gets an
+       \"internal\" error record instead and the run goes on
 
 Documents are JSON or TOML; see docs/recipe-format.md.";
 

@@ -113,7 +113,10 @@ pub struct SolveResult {
     pub temperature_celsius: f64,
     /// Activity model.
     pub activity: ActivityDoc,
-    /// pH = −log₁₀ a(H⁺).
+    /// The pH convention, when it is not the model's own γ(H⁺): `"bates-guggenheim"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<String>,
+    /// pH = −log₁₀ a(H⁺) (under `ph_convention` when given).
     pub ph: f64,
     /// −log₁₀ of the H⁺ molality.
     pub p_h_molal: f64,
@@ -149,6 +152,10 @@ impl SolveResult {
             name: None,
             temperature_celsius: eq.temperature().as_celsius(),
             activity: eq.activity_model().into(),
+            ph_convention: match eq.ph_convention() {
+                crate::PhConvention::Model => None,
+                crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
+            },
             ph: eq.ph(),
             p_h_molal: eq.p_h_molal(),
             poh: eq.poh(),
