@@ -157,8 +157,9 @@ pub struct Catalog {
     complexes: Vec<Complex>,
     /// Descriptions grouped by kind (in `DataKind` order), each group in definition order.
     info: Vec<DataInfo>,
-    /// (kind, normalised name or synonym) → index in that kind's definition vector.
-    index: HashMap<(DataKind, String), usize>,
+    /// Normalised name or synonym → for each kind (in `DataKind` order), the index in that
+    /// kind's definition vector.
+    index: HashMap<String, [Option<usize>; 4]>,
     /// Citations by key, from every file read so far.
     sources: BTreeMap<String, String>,
     /// Built-in files that could not be read (a data bug; tested empty).
@@ -190,6 +191,11 @@ fn namespace(kind: DataKind) -> &'static [DataKind] {
 
 /// Lower case, single spaces, ASCII hyphens.
 fn normalize(s: &str) -> String {
+    normalized(s).into_owned()
+}
+
+/// [`normalize`] without a copy when the text already is normalised.
+fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names already are (every built-in one): copy them as they are.
     let plain = s
         .bytes()
@@ -198,7 +204,7 @@ fn normalize(s: &str) -> String {
         && !s.ends_with(' ')
         && !s.contains("  ");
     if plain {
-        return s.to_string();
+        return std::borrow::Cow::Borrowed(s);
     }
     let s: String = s
         .trim()
@@ -209,7 +215,7 @@ fn normalize(s: &str) -> String {
         })
         .collect::<String>()
         .to_lowercase();
-    s.split_whitespace().collect::<Vec<_>>().join(" ")
+    std::borrow::Cow::Owned(s.split_whitespace().collect::<Vec<_>>().join(" "))
 }
 
 fn levenshtein(a: &str, b: &str) -> usize {
@@ -374,8 +380,8 @@ impl Catalog {
     }
 
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
-        let key = normalize(name);
-        if let Some(&idx) = self.index.get(&(kind, key.clone())) {
+        let key = normalized(name);
+        if let Some(idx) = self.index.get(key.as_ref()).and_then(|a| a[kind as usize]) {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close. The search is
@@ -477,10 +483,11 @@ impl Catalog {
     fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, DataKind, usize)> {
         let mut out = Vec::new();
         for n in names {
-            let key = normalize(n);
-            for &k in namespace(kind) {
-                if let Some(&idx) = self.index.get(&(k, key.clone())) {
-                    out.push((n.to_string(), k, idx));
+            if let Some(a) = self.index.get(normalized(n).as_ref()) {
+                for &k in namespace(kind) {
+                    if let Some(idx) = a[k as usize] {
+                        out.push((n.to_string(), k, idx));
+                    }
                 }
             }
         }
@@ -644,7 +651,7 @@ impl Catalog {
         let kind = info.kind;
         let idx = self.len_of(kind);
         for k in &info.keys {
-            self.index.entry((kind, k.clone())).or_insert(idx);
+            self.index.entry(k.clone()).or_default()[kind as usize].get_or_insert(idx);
         }
         let at = self.offset(kind) + idx;
         self.info.insert(at, info);
@@ -880,7 +887,7 @@ impl Catalog {
             let idx = per_kind[info.kind as usize];
             per_kind[info.kind as usize] += 1;
             for k in &info.keys {
-                self.index.entry((info.kind, k.clone())).or_insert(idx);
+                self.index.entry(k.clone()).or_default()[info.kind as usize].get_or_insert(idx);
             }
         }
     }
@@ -1033,12 +1040,23 @@ impl Catalog {
         let refs: Vec<&str> = synonyms.iter().map(String::as_str).collect();
         let named = |e: Error| match e {
             Error::NameConflict {
-                kind: k, existing_kind, ..
-            } if k == existing_kind && !replace => entry.error(
-                "name",
-                format!("{e}; write `replace = true` in the entry to replace it"),
-            ),
-            Error::NameConflict { .. } => entry.error("name", e),
+                name,
+                kind: k,
+                existing_kind,
+                existing_name,
+            } => {
+                let hint = if k == existing_kind && !replace {
+                    "; write `replace = true` in the entry to replace it"
+                } else if k == existing_kind {
+                    ""
+                } else {
+                    " (families, ions and complexes share one set of names)"
+                };
+                entry.error(
+                    "name",
+                    format!("the name `{name}` is already used by the {existing_kind} `{existing_name}`{hint}"),
+                )
+            }
             e => entry.wrap(e),
         };
         if replace {
