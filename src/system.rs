@@ -289,7 +289,7 @@ impl System {
                     temperature_celsius: tc,
                 });
             }
-            let pkas: Vec<f64> = (0..n).map(|i| p.pka_at(i, t)).collect();
+            let pkas: Vec<f64> = (0..n).map(|i| p.pka_at(i, t)).collect::<Result<_>>()?;
             fam.forms.clear();
             for j in 0..=n {
                 // log β_j = Σ of the last j pKa values (protonation of the base j times).
@@ -298,7 +298,7 @@ impl System {
                 rows.push((
                     Species {
                         name: p.form_name(j).into(),
-                        charge: p.charge_of_form(j),
+                        charge: p.form_charge(j),
                         log10_k: log_beta,
                         ion_size_angstrom: p.form_ion_size_angstrom(j).unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
                         kind: SpeciesKind::Form { family: fi, protons: j },
@@ -335,7 +335,7 @@ impl System {
                     temperature_celsius: tc,
                 });
             }
-            let lk = vant_hoff::log10_k_at(cx.log10_beta(), cx.dh_kj_per_mol().unwrap_or(0.0), 0.0, t);
+            let lk = vant_hoff::log10_k_at(cx.log10_beta(), cx.dh_kj_per_mol().unwrap_or(0.0), 0.0, t)?;
             rows.push((
                 Species {
                     name: cx.name().into(),
@@ -678,7 +678,7 @@ impl Builder {
         let idx = self.components.len();
         self.components.push(Component {
             name: p.name().into(),
-            charge: p.charge_of_form(0),
+            charge: p.form_charge(0),
             total_molal: 0.0,
             kind: ComponentKind::Family(self.families.len()),
         });

@@ -1109,7 +1109,9 @@ impl TitrationDoc {
             if !(d.is_finite() && d > 0.0) {
                 return Err(field_error("max_ph_step", format!("{d}: must be positive")));
             }
-            s = s.max_ph_step(d);
+            s = s
+                .max_ph_step(d)
+                .map_err(|e| field_error("max_ph_step", e.to_string()))?;
         }
         Ok(s)
     }
@@ -1503,7 +1505,9 @@ impl FitDoc {
             if n > 100_000 {
                 return Err(field_error("max_iterations", format!("{n}: at most 100000")));
             }
-            fit = fit.max_iterations(n);
+            fit = fit
+                .max_iterations(n)
+                .map_err(|e| field_error("max_iterations", e.to_string()))?;
         }
         if self.curves.is_empty() {
             return Err(field_error("curves", "at least one measured curve is needed"));
