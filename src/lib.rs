@@ -113,4 +113,4 @@ pub use recipe::{Entry, Recipe};
 pub use sensitivity::{Parameter, Sensitivities};
 pub use solve::{PathChoice, Solver, SolverPath};
 pub use system::{Component, ComponentKind, Conditions, Family, Species, SpeciesKind, System};
-pub use warning::Warning;
+pub use warning::{TemperatureDatum, Warning};

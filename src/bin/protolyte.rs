@@ -687,10 +687,11 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
                 });
                 let fields = match e.kind {
                     DataKind::Protolyte => serde_json::json!({
-                        "steps": e.steps.iter().map(|s| serde_json::json!({
+                        "steps": e.steps.iter().enumerate().map(|(k, s)| serde_json::json!({
                             "pka": s.pka,
                             "dh_kj_per_mol": s.dh_kj_per_mol,
                             "dcp_j_per_mol_k": s.dcp_j_per_mol_k,
+                            "log_k_equation": equation_json(e.log_k_equations.get(k).copied().flatten()),
                         })).collect::<Vec<_>>(),
                         "forms": e.forms.iter().map(|f| serde_json::json!({
                             "name": f.name,
@@ -702,6 +703,8 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
                     DataKind::Complex => serde_json::json!({
                         "log10_beta": e.log10_beta,
                         "dh_kj_per_mol": e.dh_kj_per_mol,
+                        "dcp_j_per_mol_k": e.dcp_j_per_mol_k,
+                        "log_k_equation": equation_json(e.log_k_equations.first().copied().flatten()),
                         "parts": e.parts,
                     }),
                     DataKind::Reagent => serde_json::json!({ "parts": e.parts }),
@@ -728,7 +731,15 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
                 if let Some(c) = s.dcp_j_per_mol_k {
                     line += &format!(", ΔCp° {c} J/(mol·K)");
                 }
+                if let Some(q) = e.log_k_equations.get(k).copied().flatten() {
+                    line += &format!(", {}", equation_text(q));
+                }
                 writeln!(out, "{line}")?;
+            }
+            if e.kind == DataKind::Complex
+                && let Some(q) = e.log_k_equations.first().copied().flatten()
+            {
+                writeln!(out, "          {}", equation_text(q))?;
             }
             if e.forms.iter().any(|f| f.ion_size_angstrom.is_some()) {
                 let sizes: Vec<String> = e
@@ -760,4 +771,28 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
     };
     w(out).map_err(output_failure)?;
     Ok(EXIT_OK)
+}
+
+/// A log K(T) equation as JSON: its coefficients [a, b, c, d, e] and fitted range.
+fn equation_json(q: Option<protolyte::vant_hoff::LogKEquation>) -> serde_json::Value {
+    match q {
+        Some(q) => serde_json::json!({
+            "coefficients": q.coefficients(),
+            "range_celsius": [q.range().min_celsius, q.range().max_celsius],
+        }),
+        None => serde_json::Value::Null,
+    }
+}
+
+/// "log K = a + b·T + c/T + d·log T + e/T² (0–60 °C)" with the coefficients, zero terms left out.
+fn equation_text(q: protolyte::vant_hoff::LogKEquation) -> String {
+    let [a, b, c, d, e] = q.coefficients();
+    let mut t = format!("log K = {a}");
+    for (v, unit) in [(b, "·T"), (c, "/T"), (d, "·log T"), (e, "/T²")] {
+        if v != 0.0 {
+            let sign = if v < 0.0 { '−' } else { '+' };
+            t += &format!(" {sign} {}{unit}", v.abs());
+        }
+    }
+    format!("{t} ({})", q.range())
 }

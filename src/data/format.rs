@@ -49,6 +49,9 @@ pub(crate) struct FamilyEntry {
     pub from_memory: bool,
     #[serde(default)]
     pub replace: bool,
+    /// Analytic log K(T) equations, each naming its step (`[[family.log_k_equation]]`).
+    #[serde(default)]
+    pub log_k_equation: Vec<EquationEntry>,
 }
 
 /// One dissociation step.
@@ -58,6 +61,29 @@ pub(crate) struct StepEntry {
     pub pka: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
+    /// The source of this step's ΔH°/ΔCp° where it is not the family's.
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    /// True when this step's ΔH°/ΔCp° were entered from memory of their source.
+    #[serde(default)]
+    pub from_memory: bool,
+}
+
+/// An analytic equation log₁₀ K = a + b·T + c/T + d·log₁₀ T + e/T² (T in kelvin) for one
+/// reaction, with the range its source fitted.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct EquationEntry {
+    /// The step (1 = the most protonated form's dissociation); families only.
+    pub step: Option<usize>,
+    /// a, b, c, d, e.
+    pub coefficients: [f64; 5],
+    /// Lowest and highest temperature of the fit, °C.
+    pub range_celsius: [f64; 2],
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    #[serde(default)]
+    pub from_memory: bool,
 }
 
 /// A simple ion.
@@ -106,6 +132,9 @@ pub(crate) struct ComplexEntry {
     pub parts: Vec<PartEntry>,
     pub log_beta: f64,
     pub dh_kj_per_mol: Option<f64>,
+    pub dcp_j_per_mol_k: Option<f64>,
+    /// An analytic log β(T) equation (`[complex.log_k_equation]`, without `step`).
+    pub log_k_equation: Option<EquationEntry>,
     pub ion_size_angstrom: Option<f64>,
     pub source: Option<String>,
     pub cite: Option<String>,

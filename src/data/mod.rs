@@ -15,7 +15,9 @@ use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 use std::sync::OnceLock;
 
-use format::{CATALOG_FORMAT, CatalogFile, ComplexEntry, FamilyEntry, IonEntry, Located, PartEntry, ReagentEntry};
+use format::{
+    CATALOG_FORMAT, CatalogFile, ComplexEntry, EquationEntry, FamilyEntry, IonEntry, Located, PartEntry, ReagentEntry,
+};
 use toml::Spanned;
 
 use crate::complex::{Complex, ComplexPart};
@@ -23,6 +25,7 @@ use crate::error::{CatalogFileError, Error, Result};
 use crate::ion::Ion;
 use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
+use crate::vant_hoff::{LogKEquation, ValidityRange};
 
 /// The built-in data files, embedded at build time: (name shown in messages, text).
 const BUILTIN_FILES: [(&str, &str); 4] = [
@@ -119,6 +122,11 @@ pub struct DataInfo {
     pub log10_beta: Option<f64>,
     /// Formation enthalpy ΔH°, kJ/mol (complexes only, where known).
     pub dh_kj_per_mol: Option<f64>,
+    /// Formation heat-capacity change ΔCp°, J/(mol·K) (complexes only, where known).
+    pub dcp_j_per_mol_k: Option<f64>,
+    /// Analytic log K(T) equations: one entry per step for a family, one for a complex
+    /// (`None` where there is none); empty for ions and reagents.
+    pub log_k_equations: Vec<Option<LogKEquation>>,
     /// The constituents of a reagent or the parts of a complex, in words ("2 × sodium").
     pub parts: Vec<String>,
     /// The name and synonyms normalised for lookup.
@@ -149,8 +157,9 @@ pub struct Catalog {
     complexes: Vec<Complex>,
     /// Descriptions grouped by kind (in `DataKind` order), each group in definition order.
     info: Vec<DataInfo>,
-    /// (kind, normalised name or synonym) → index in that kind's definition vector.
-    index: HashMap<(DataKind, String), usize>,
+    /// Normalised name or synonym → for each kind (in `DataKind` order), the index in that
+    /// kind's definition vector.
+    index: HashMap<String, [Option<usize>; 4]>,
     /// Citations by key, from every file read so far.
     sources: BTreeMap<String, String>,
     /// Built-in files that could not be read (a data bug; tested empty).
@@ -182,6 +191,11 @@ fn namespace(kind: DataKind) -> &'static [DataKind] {
 
 /// Lower case, single spaces, ASCII hyphens.
 fn normalize(s: &str) -> String {
+    normalized(s).into_owned()
+}
+
+/// [`normalize`] without a copy when the text already is normalised.
+fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names already are (every built-in one): copy them as they are.
     let plain = s
         .bytes()
@@ -190,7 +204,7 @@ fn normalize(s: &str) -> String {
         && !s.ends_with(' ')
         && !s.contains("  ");
     if plain {
-        return s.to_string();
+        return std::borrow::Cow::Borrowed(s);
     }
     let s: String = s
         .trim()
@@ -201,7 +215,7 @@ fn normalize(s: &str) -> String {
         })
         .collect::<String>()
         .to_lowercase();
-    s.split_whitespace().collect::<Vec<_>>().join(" ")
+    std::borrow::Cow::Owned(s.split_whitespace().collect::<Vec<_>>().join(" "))
 }
 
 fn levenshtein(a: &str, b: &str) -> usize {
@@ -366,8 +380,8 @@ impl Catalog {
     }
 
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
-        let key = normalize(name);
-        if let Some(&idx) = self.index.get(&(kind, key.clone())) {
+        let key = normalized(name);
+        if let Some(idx) = self.index.get(key.as_ref()).and_then(|a| a[kind as usize]) {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close. The search is
@@ -469,10 +483,11 @@ impl Catalog {
     fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, DataKind, usize)> {
         let mut out = Vec::new();
         for n in names {
-            let key = normalize(n);
-            for &k in namespace(kind) {
-                if let Some(&idx) = self.index.get(&(k, key.clone())) {
-                    out.push((n.to_string(), k, idx));
+            if let Some(a) = self.index.get(normalized(n).as_ref()) {
+                for &k in namespace(kind) {
+                    if let Some(idx) = a[k as usize] {
+                        out.push((n.to_string(), k, idx));
+                    }
                 }
             }
         }
@@ -636,7 +651,7 @@ impl Catalog {
         let kind = info.kind;
         let idx = self.len_of(kind);
         for k in &info.keys {
-            self.index.entry((kind, k.clone())).or_insert(idx);
+            self.index.entry(k.clone()).or_default()[kind as usize].get_or_insert(idx);
         }
         let at = self.offset(kind) + idx;
         self.info.insert(at, info);
@@ -699,6 +714,8 @@ impl Catalog {
             ion_size_angstrom: p.ion_size_angstrom(),
             log10_beta: None,
             dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: (0..p.proton_count()).map(|k| p.log_k_equation(k)).collect(),
             parts: Vec::new(),
             keys: Vec::new(),
         };
@@ -733,6 +750,8 @@ impl Catalog {
             ion_size_angstrom: ion.ion_size_angstrom(),
             log10_beta: None,
             dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: Vec::new(),
             parts: Vec::new(),
             keys: Vec::new(),
         };
@@ -786,6 +805,8 @@ impl Catalog {
             molar_mass_g_per_mol: molar_mass,
             log10_beta: None,
             dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: Vec::new(),
             parts,
             keys: Vec::new(),
         };
@@ -832,6 +853,8 @@ impl Catalog {
             molar_mass_g_per_mol: None,
             log10_beta: Some(c.log10_beta()),
             dh_kj_per_mol: c.dh_kj_per_mol(),
+            dcp_j_per_mol_k: c.dcp_j_per_mol_k(),
+            log_k_equations: vec![c.log_k_equation()],
             parts,
             keys: Vec::new(),
         };
@@ -862,7 +885,7 @@ impl Catalog {
             let idx = per_kind[info.kind as usize];
             per_kind[info.kind as usize] += 1;
             for k in &info.keys {
-                self.index.entry((info.kind, k.clone())).or_insert(idx);
+                self.index.entry(k.clone()).or_default()[info.kind as usize].get_or_insert(idx);
             }
         }
     }
@@ -935,6 +958,12 @@ impl Catalog {
                     }
                     if let Some(h) = c.dh_kj_per_mol() {
                         x = x.with_enthalpy_kj_per_mol(h)?;
+                    }
+                    if let Some(cp) = c.dcp_j_per_mol_k() {
+                        x = x.with_heat_capacity_j_per_mol_k(cp)?;
+                    }
+                    if let Some(q) = c.log_k_equation() {
+                        x = x.with_log_k_equation(q)?;
                     }
                     if let Some(a) = c.ion_size_angstrom() {
                         x = x.with_ion_size_angstrom(a)?;
@@ -1009,12 +1038,23 @@ impl Catalog {
         let refs: Vec<&str> = synonyms.iter().map(String::as_str).collect();
         let named = |e: Error| match e {
             Error::NameConflict {
-                kind: k, existing_kind, ..
-            } if k == existing_kind && !replace => entry.error(
-                "name",
-                format!("{e}; write `replace = true` in the entry to replace it"),
-            ),
-            Error::NameConflict { .. } => entry.error("name", e),
+                name,
+                kind: k,
+                existing_kind,
+                existing_name,
+            } => {
+                let hint = if k == existing_kind && !replace {
+                    "; write `replace = true` in the entry to replace it"
+                } else if k == existing_kind {
+                    ""
+                } else {
+                    " (families, ions and complexes share one set of names)"
+                };
+                entry.error(
+                    "name",
+                    format!("the name `{name}` is already used by the {existing_kind} `{existing_name}`{hint}"),
+                )
+            }
             e => entry.wrap(e),
         };
         if replace {
@@ -1108,9 +1148,62 @@ impl Catalog {
                 .with_form_ion_sizes(&filled)
                 .map_err(|err| entry.error("form_ion_sizes_angstrom", err))?;
         }
+        // Temperature data with sources of their own: named in the family's source text.
+        let (mut source, mut from_memory) = (source, e.from_memory);
+        for (k, s) in e.steps.iter().enumerate() {
+            if s.source.is_some() || s.cite.is_some() {
+                let text = self.citation(&entry, &s.source, &s.cite)?;
+                source.push_str(&format!("; step {} ΔH°/ΔCp°: {text}", k + 1));
+                from_memory |= s.from_memory;
+            }
+        }
+        // The line of the i-th [[family.log_k_equation]] table of this entry, for errors.
+        let eq_error = |i: usize, field: &str, message: String| {
+            let start = entry.span.start.min(loc.text.len());
+            let rest = &loc.text[start..];
+            let end = rest
+                .get(1..)
+                .and_then(|r| r.find("\n[[family]]"))
+                .map_or(rest.len(), |e| e + 1);
+            let line = rest[..end]
+                .match_indices("[[family.log_k_equation]]")
+                .nth(i)
+                .map_or_else(|| loc.line_of(start), |(o, _)| loc.line_of(start + o));
+            loc.error(line, &entry.label(), field, message)
+        };
+        for (i, q) in e.log_k_equation.iter().enumerate() {
+            let field = format!("log_k_equation[{i}]");
+            let step = match q.step {
+                Some(k) if (1..=pkas.len()).contains(&k) => k,
+                Some(k) => {
+                    return Err(eq_error(
+                        i,
+                        &format!("{field}.step"),
+                        format!("step {k} of a family with {} steps (1 = most protonated)", pkas.len()),
+                    ));
+                }
+                None => {
+                    return Err(eq_error(
+                        i,
+                        &format!("{field}.step"),
+                        "missing: which step (1 = most protonated)".into(),
+                    ));
+                }
+            };
+            let eq = read_equation(q).map_err(|err| eq_error(i, &field, err.to_string()))?;
+            p = p
+                .with_log_k_equation(step - 1, eq)
+                .map_err(|err| eq_error(i, &field, err.to_string()))?;
+            if q.source.is_some() || q.cite.is_some() {
+                let text = self.citation(&entry, &q.source, &q.cite)?;
+                source.push_str(&format!("; log K(T) equation of step {step}: {text}"));
+            }
+            from_memory |= q.from_memory;
+        }
+        let p = p.with_source(&source);
         let meta = Meta {
             source,
-            from_memory: e.from_memory,
+            from_memory,
             origin: loc.file.to_string(),
             molar_mass: None,
         };
@@ -1229,12 +1322,33 @@ impl Catalog {
         if let Some(h) = e.dh_kj_per_mol {
             c = c.with_enthalpy_kj_per_mol(h).map_err(|err| entry.wrap(err))?;
         }
+        if let Some(cp) = e.dcp_j_per_mol_k {
+            c = c
+                .with_heat_capacity_j_per_mol_k(cp)
+                .map_err(|err| entry.error("dcp_j_per_mol_k", err))?;
+        }
+        let (mut source, mut from_memory) = (source, e.from_memory);
+        if let Some(q) = &e.log_k_equation {
+            if q.step.is_some() {
+                return Err(entry.error("log_k_equation.step", "a complex has one reaction: no step"));
+            }
+            let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
+            c = c
+                .with_log_k_equation(eq)
+                .map_err(|err| entry.error("log_k_equation", err))?;
+            if q.source.is_some() || q.cite.is_some() {
+                let text = self.citation(&entry, &q.source, &q.cite)?;
+                source.push_str(&format!("; log K(T) equation: {text}"));
+                c = c.with_source(&source);
+            }
+            from_memory |= q.from_memory;
+        }
         if let Some(a) = e.ion_size_angstrom {
             c = c.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
         }
         let meta = Meta {
             source,
-            from_memory: e.from_memory,
+            from_memory,
             origin: loc.file.to_string(),
             molar_mass: None,
         };
@@ -1242,6 +1356,14 @@ impl Catalog {
             cat.add_complex_with(c, syn, meta)
         })
     }
+}
+
+/// A log K(T) equation as read from a file.
+fn read_equation(q: &EquationEntry) -> Result<LogKEquation> {
+    LogKEquation::new(
+        q.coefficients,
+        ValidityRange::celsius(q.range_celsius[0], q.range_celsius[1])?,
+    )
 }
 
 /// An entry being read: where it is, for errors.
