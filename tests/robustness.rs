@@ -840,3 +840,14 @@ fn buffer_design_reports_every_residual() {
     assert_eq!(r.balance_residual, res.max_relative());
     assert!(r.balance_residual >= res.ionic_strength_relative.abs());
 }
+
+/// A refused huge amount is written in exponent form, not as hundreds of digits.
+#[test]
+fn a_refused_huge_amount_is_written_short() {
+    let mut r = Recipe::new();
+    let err = r.add(&common::naoh(), Amount::molar(1e305)).unwrap_err();
+    let msg = err.to_string();
+    assert!(matches!(err, Error::AmountTooLarge { .. }), "{msg}");
+    assert!(msg.contains("1e305 mol/L"), "{msg}");
+    assert!(msg.len() < 200, "{msg}");
+}
