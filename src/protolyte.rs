@@ -187,7 +187,7 @@ impl Protolyte {
     /// // (from memory).
     /// let eq = LogKEquation::new([3.1649, -0.013399, -1170.48, 0.0, 0.0], ValidityRange::celsius(0.0, 60.0)?)?;
     /// let acetic = Protolyte::new("acetic", &[4.756], 0)?.with_log_k_equation(0, eq)?;
-    /// assert!((acetic.pka_at(0, Temperature::celsius(50.0)) - 4.787).abs() < 0.001);
+    /// assert!((acetic.pka_at(0, Temperature::celsius(50.0))? - 4.787).abs() < 0.001);
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn with_log_k_equation(mut self, step: usize, equation: LogKEquation) -> Result<Self> {
