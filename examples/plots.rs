@@ -26,7 +26,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
 
     // Titration curve, adaptive steps (dense around the breaks).
     let t = Titration::new(&sample, Volume::milliliters(20.0), &base, &conditions)?;
-    let curve = t.curve_adaptive(&Stepping::new(Volume::milliliters(30.0)).max_ph_step(0.03))?;
+    let curve = t.curve_adaptive(&Stepping::new(Volume::milliliters(30.0)).max_ph_step(0.03)?)?;
     let eps = t.equivalence_points()?;
     let svg = titration_svg(
         &curve,

@@ -90,7 +90,7 @@ fn main() -> Result<(), protolyte::Error> {
         );
     }
 
-    let curve = t.curve_adaptive(&Stepping::new(Volume::milliliters(30.0)).max_ph_step(0.1))?;
+    let curve = t.curve_adaptive(&Stepping::new(Volume::milliliters(30.0)).max_ph_step(0.1)?)?;
     let beta = capacity_along(&t, &curve)?;
     println!(
         "\nThe curve ({} adaptive points; every 8th shown) with buffer capacity β",

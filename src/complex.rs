@@ -22,7 +22,7 @@ pub enum ComplexPart {
 impl ComplexPart {
     fn charge(&self) -> i32 {
         match self {
-            ComplexPart::Base(p) => p.charge_of_form(0),
+            ComplexPart::Base(p) => p.form_charge(0),
             ComplexPart::Ion(i) => i.charge(),
             ComplexPart::Proton => 1,
         }

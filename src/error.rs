@@ -117,7 +117,7 @@ pub enum Error {
     },
     /// An amount or total is larger than the library accepts
     /// ([`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL)), or a sum of volumes overflows.
-    #[error("{} is {value} {unit}, above the accepted maximum of {limit} {unit}", quote(what))]
+    #[error("{} is {} {unit}, above the accepted maximum of {limit} {unit}", quote(what), number(*value))]
     AmountTooLarge {
         /// What the amount belongs to.
         what: String,
@@ -221,6 +221,16 @@ pub(crate) fn quote(s: &str) -> std::borrow::Cow<'_, str> {
     } else {
         let head: String = s.chars().take(60).collect();
         std::borrow::Cow::Owned(format!("{head}… ({n} characters)"))
+    }
+}
+
+/// A number for a message: plain where that is short, in exponent form past 1e15 or below
+/// 1e-6 (so 1e305 is written `1e305`, not as 306 digits).
+pub(crate) fn number(v: f64) -> String {
+    if v != 0.0 && v.is_finite() && !(1e-6..1e15).contains(&v.abs()) {
+        format!("{v:e}")
+    } else {
+        format!("{v}")
     }
 }
 

@@ -765,7 +765,7 @@ pub fn distribution(
                 family: f.protolyte.name().to_string(),
                 forms: (0..=n)
                     .rev()
-                    .map(|j| pretty_formula(&f.protolyte.form_name(j), f.protolyte.charge_of_form(j)))
+                    .map(|j| pretty_formula(&f.protolyte.form_name(j), f.protolyte.form_charge(j)))
                     .collect(),
                 fractions: vec![Vec::with_capacity(points); n + 1],
                 complexed: None,
@@ -1323,7 +1323,7 @@ fn sig3(v: f64) -> String {
 /// # Ok::<(), Box<dyn std::error::Error>>(())
 /// ```
 pub fn titration_plot(titration: &Titration, end: Volume, options: &PlotOptions) -> PlotResult<String> {
-    let curve = titration.curve_adaptive(&Stepping::new(end).max_ph_step(0.05))?;
+    let curve = titration.curve_adaptive(&Stepping::new(end).max_ph_step(0.05)?)?;
     let eps = titration.equivalence_points()?;
     titration_svg(&curve, &eps, options)
 }

@@ -31,7 +31,7 @@ pub struct Step {
 /// let acid = Protolyte::new("lab acid X", &[3.1, 6.2], 0)?
 ///     .with_enthalpies_kj_per_mol(&[-2.0, 1.5])?;
 /// assert_eq!(acid.steps().len(), 2);
-/// assert_eq!(acid.charge_of_form(0), -2);
+/// assert_eq!(acid.charge_of_form(0), Some(-2));
 /// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, PartialEq)]
@@ -187,7 +187,7 @@ impl Protolyte {
     /// // (from memory).
     /// let eq = LogKEquation::new([3.1649, -0.013399, -1170.48, 0.0, 0.0], ValidityRange::celsius(0.0, 60.0)?)?;
     /// let acetic = Protolyte::new("acetic", &[4.756], 0)?.with_log_k_equation(0, eq)?;
-    /// assert!((acetic.pka_at(0, Temperature::celsius(50.0)) - 4.787).abs() < 0.001);
+    /// assert!((acetic.pka_at(0, Temperature::celsius(50.0))? - 4.787).abs() < 0.001);
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn with_log_k_equation(mut self, step: usize, equation: LogKEquation) -> Result<Self> {
@@ -285,7 +285,7 @@ impl Protolyte {
         let mut by_protons = vec![None; n + 1];
         for (k, &a) in sizes_angstrom.iter().enumerate() {
             let protons = n - k;
-            if self.charge_of_form(protons) == 0 {
+            if self.form_charge(protons) == 0 {
                 by_protons[protons] = (a.is_finite() && (0.5..=20.0).contains(&a)).then_some(a);
             } else {
                 let what = format!("{} (form {})", self.name, self.form_name(protons));
@@ -344,9 +344,30 @@ impl Protolyte {
         self.charge_most_protonated
     }
 
-    /// Charge of the form with `protons` bound protons.
-    pub fn charge_of_form(&self, protons: usize) -> i32 {
-        self.charge_most_protonated - (self.steps.len() as i32 - protons as i32)
+    /// Charge of the form with `protons` bound protons, or `None` when the family has no
+    /// such form (`protons` above [`proton_count`](Self::proton_count)).
+    ///
+    /// ```
+    /// use protolyte::Protolyte;
+    /// let glycine = Protolyte::new("glycine", &[2.35, 9.78], 1)?;
+    /// assert_eq!(glycine.charge_of_form(2), Some(1));
+    /// assert_eq!(glycine.charge_of_form(0), Some(-1));
+    /// assert_eq!(glycine.charge_of_form(3), None);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn charge_of_form(&self, protons: usize) -> Option<i32> {
+        // n ≤ 12 and |charge| ≤ 10 (checked by `new`), so the sum cannot overflow.
+        let lost = i32::try_from(self.steps.len().checked_sub(protons)?).ok()?;
+        self.charge_most_protonated.checked_sub(lost)
+    }
+
+    /// Charge of form `protons` for the crate's own loops over the forms (`protons` ≤ n
+    /// there; a larger value is taken as the most protonated form).
+    pub(crate) fn form_charge(&self, protons: usize) -> i32 {
+        debug_assert!(protons <= self.steps.len());
+        let lost = self.steps.len() - protons.min(self.steps.len());
+        // lost ≤ 12 (checked by `new`).
+        self.charge_most_protonated - lost as i32
     }
 
     /// The family's single ion-size parameter, if set.
@@ -382,17 +403,44 @@ impl Protolyte {
     /// for the range each way is trusted over; a solve says in its warnings where a step
     /// falls short.
     ///
+    /// Refuses a `step` the family does not have (`Error::InconsistentDefinition`) and a temperature
+    /// at which van't Hoff gives no finite value (see [`vant_hoff::log10_k_at`]).
+    ///
     /// ```
     /// use protolyte::{Protolyte, Temperature};
     /// let p = Protolyte::new("x", &[7.0], 0)?.with_enthalpies_kj_per_mol(&[20.0])?;
-    /// assert!(p.pka_at(0, Temperature::celsius(37.0)) < 7.0);
+    /// assert!(p.pka_at(0, Temperature::celsius(37.0))? < 7.0);
+    /// assert!(p.pka_at(1, Temperature::celsius(37.0)).is_err());
     /// # Ok::<(), protolyte::Error>(())
     /// ```
-    pub fn pka_at(&self, step: usize, t: Temperature) -> f64 {
-        self.pka_and_gap_at(step, t).0
+    pub fn pka_at(&self, step: usize, t: Temperature) -> Result<f64> {
+        if step >= self.steps.len() {
+            return Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!("has no dissociation step {step} (steps 0..{} exist)", self.steps.len()),
+            });
+        }
+        if !(t.kelvin().is_finite() && t.kelvin() > 0.0) {
+            return Err(Error::OutOfDomain {
+                what: "temperature (K) for a pKa",
+                value: t.kelvin(),
+                domain: "above 0 K",
+            });
+        }
+        let pka = self.pka_and_gap_at(step, t).0;
+        if pka.is_finite() {
+            Ok(pka)
+        } else {
+            Err(Error::OutOfDomain {
+                what: "temperature (K) for a pKa (its temperature data give no finite value)",
+                value: t.kelvin(),
+                domain: "a temperature at which the step's data give a finite pKa",
+            })
+        }
     }
 
-    /// pKa of step `step` at `t` and what falls short in its temperature data at `t`.
+    /// pKa of step `step` at `t` and what falls short in its temperature data at `t`
+    /// (for the crate's own loops over the steps: `step` < n there).
     pub(crate) fn pka_and_gap_at(&self, step: usize, t: Temperature) -> (f64, Option<TemperatureGap>) {
         let i = step.min(self.steps.len() - 1);
         let s = &self.steps[i];
@@ -404,7 +452,8 @@ impl Protolyte {
     /// A display name for the form with `protons` bound protons, built from the formula of
     /// the most protonated form where it shows where the protons sit: a leading Hₙ
     /// ("H3PO4" → "H2PO4-") or a trailing ammonium NHₖ ("NH4+" → "NH3"). Otherwise
-    /// "name(Hj)" with the charge.
+    /// "name(Hj)" with the charge; for a `protons` above n (no such form) "name(Hj)" without
+    /// one.
     ///
     /// ```
     /// use protolyte::Protolyte;
@@ -416,7 +465,10 @@ impl Protolyte {
     /// ```
     pub fn form_name(&self, protons: usize) -> String {
         let n = self.steps.len();
-        let suffix = charge_suffix(self.charge_of_form(protons));
+        let Some(charge) = self.charge_of_form(protons) else {
+            return format!("{}(H{protons})", self.name);
+        };
+        let suffix = charge_suffix(charge);
         if let Some(core) = self
             .formula
             .as_deref()

@@ -37,9 +37,7 @@ impl Constituent {
     /// ```
     pub fn charge(&self) -> Option<i32> {
         match self {
-            Constituent::Form { protolyte, protons } => {
-                (*protons <= protolyte.proton_count()).then(|| protolyte.charge_of_form(*protons))
-            }
+            Constituent::Form { protolyte, protons } => protolyte.charge_of_form(*protons),
             Constituent::Ion(i) => Some(i.charge()),
             Constituent::Proton => Some(1),
             Constituent::Hydroxide => Some(-1),
@@ -150,7 +148,7 @@ impl Reagent {
         let n = protolyte.proton_count();
         let protons = (0..=n)
             .rev()
-            .find(|&j| protolyte.charge_of_form(j) == 0)
+            .find(|&j| protolyte.charge_of_form(j) == Some(0))
             .ok_or_else(|| Error::NotElectroneutral {
                 reagent: protolyte.name().to_string(),
                 charge: i64::from(protolyte.charge_most_protonated()),

@@ -299,7 +299,7 @@ impl System {
                 rows.push((
                     Species {
                         name: p.form_name(j).into(),
-                        charge: p.charge_of_form(j),
+                        charge: p.form_charge(j),
                         log10_k: log_beta,
                         ion_size_angstrom: p.form_ion_size_angstrom(j).unwrap_or(DEFAULT_ION_SIZE_ANGSTROM),
                         kind: SpeciesKind::Form { family: fi, protons: j },
@@ -676,7 +676,7 @@ impl Builder {
         let idx = self.components.len();
         self.components.push(Component {
             name: p.name().into(),
-            charge: p.charge_of_form(0),
+            charge: p.form_charge(0),
             total_molal: 0.0,
             kind: ComponentKind::Family(self.families.len()),
         });

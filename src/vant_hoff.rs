@@ -127,17 +127,45 @@ pub const CONSTANT_HEAT_CAPACITY_RANGE: ValidityRange = ValidityRange {
 /// log₁₀ K at `t`, given log₁₀ K at 25 °C, the reaction enthalpy ΔH° (kJ/mol) and the
 /// heat-capacity change ΔCp° (J/(mol·K)) of the same reaction.
 ///
+/// Refuses (`Error::OutOfDomain`) a temperature that is not finite and above 0 K, and any
+/// input for which the equation gives no finite value (a non-finite argument, or an
+/// overflow from extreme ΔH°, ΔCp° or temperature).
+///
 /// # Example
 ///
 /// ```
 /// use protolyte::{Temperature, vant_hoff};
 ///
 /// // An endothermic reaction (ΔH° > 0) has a larger K when warmer.
-/// let lk = vant_hoff::log10_k_at(-4.756, 0.41, 0.0, Temperature::celsius(37.0));
+/// let lk = vant_hoff::log10_k_at(-4.756, 0.41, 0.0, Temperature::celsius(37.0))?;
 /// assert!(lk > -4.756);
-/// assert_eq!(vant_hoff::log10_k_at(-4.756, 0.41, 0.0, Temperature::STANDARD), -4.756);
+/// assert_eq!(vant_hoff::log10_k_at(-4.756, 0.41, 0.0, Temperature::STANDARD)?, -4.756);
+/// assert!(vant_hoff::log10_k_at(-4.756, 0.41, 0.0, Temperature::kelvin_value(0.0)).is_err());
+/// # Ok::<(), protolyte::Error>(())
 /// ```
-pub fn log10_k_at(log10_k_25: f64, dh_kj_per_mol: f64, dcp_j_per_mol_k: f64, t: Temperature) -> f64 {
+pub fn log10_k_at(log10_k_25: f64, dh_kj_per_mol: f64, dcp_j_per_mol_k: f64, t: Temperature) -> Result<f64> {
+    let v = log10_k_at_unchecked(log10_k_25, dh_kj_per_mol, dcp_j_per_mol_k, t);
+    if !(t.kelvin().is_finite() && t.kelvin() > 0.0) {
+        return Err(Error::OutOfDomain {
+            what: "temperature (K) for van't Hoff",
+            value: t.kelvin(),
+            domain: "above 0 K",
+        });
+    }
+    if !v.is_finite() {
+        let bad = [log10_k_25, dh_kj_per_mol, dcp_j_per_mol_k]
+            .into_iter()
+            .find(|x| !x.is_finite());
+        return Err(Error::OutOfDomain {
+            what: "log K from van't Hoff",
+            value: bad.unwrap_or(v),
+            domain: "finite log K, ΔH° and ΔCp°",
+        });
+    }
+    Ok(v)
+}
+
+fn log10_k_at_unchecked(log10_k_25: f64, dh_kj_per_mol: f64, dcp_j_per_mol_k: f64, t: Temperature) -> f64 {
     let t0 = Temperature::STANDARD.kelvin();
     let tk = t.kelvin();
     if tk == t0 {
@@ -289,12 +317,12 @@ impl TemperatureBasis {
                 (!eq.range().contains(t)).then_some(TemperatureGap::BeyondRange(eq.range())),
             ),
             TemperatureBasis::EnthalpyAndHeatCapacity(h, c) => (
-                log10_k_at(log10_k_25, h, c, t),
+                log10_k_at_unchecked(log10_k_25, h, c, t),
                 (!CONSTANT_HEAT_CAPACITY_RANGE.contains(t))
                     .then_some(TemperatureGap::BeyondRange(CONSTANT_HEAT_CAPACITY_RANGE)),
             ),
             TemperatureBasis::EnthalpyOnly(h) => (
-                log10_k_at(log10_k_25, h, 0.0, t),
+                log10_k_at_unchecked(log10_k_25, h, 0.0, t),
                 (!ENTHALPY_ONLY_RANGE.contains(t)).then_some(TemperatureGap::NoHeatCapacity),
             ),
             TemperatureBasis::Nothing => (log10_k_25, Some(TemperatureGap::NoEnthalpy)),

@@ -85,7 +85,7 @@ fn solve(recipe: &Recipe, conditions: &Conditions) -> Equilibrium {
         .unwrap_or_else(|e| panic!("compile: {e}"))
         .solve()
         .unwrap_or_else(|e| panic!("solve: {e}"));
-    let r = eq.residuals().max_balance_relative();
+    let r = eq.residuals().max_relative();
     assert!(r < 1e-10, "balances not met: max relative residual {r:e}");
     eq
 }

@@ -656,7 +656,7 @@ fn overflowing_mass_amounts_and_fit_budgets_are_refused() {
     use protolyte::Mass;
     use protolyte::analysis::TitrationFit;
     assert!(Amount::from_mass(Mass::grams(1e308), 1e-3, Volume::liters(1e-300)).is_err());
-    let err = TitrationFit::new().max_iterations(usize::MAX).run().unwrap_err();
+    let err = TitrationFit::new().max_iterations(usize::MAX).unwrap_err();
     assert!(matches!(err, Error::InvalidParameter { .. }), "{err}");
 }
 
@@ -709,4 +709,145 @@ fn a_solver_tolerance_outside_its_range_is_refused_not_clamped() {
     ));
     assert!(Solver::new().tolerance(f64::NAN).is_err());
     assert_eq!(Solver::new().tolerance(1e-9).unwrap().tolerance_value(), 1e-9);
+}
+
+/// A form the family does not have has no charge (no overflow for huge proton numbers).
+#[test]
+fn charge_of_form_beyond_the_family_is_none() {
+    let p = Protolyte::new("acid", &[4.0, 9.0], 1).unwrap();
+    assert_eq!(p.charge_of_form(2), Some(1));
+    assert_eq!(p.charge_of_form(0), Some(-1));
+    assert_eq!(p.charge_of_form(3), None);
+    assert_eq!(p.charge_of_form(1 << 31), None);
+    assert_eq!(p.charge_of_form(usize::MAX), None);
+    // The display name of a form that does not exist does not panic either.
+    assert_eq!(p.form_name(usize::MAX), format!("acid(H{})", usize::MAX));
+}
+
+/// pKa of a step the family does not have is refused, not the last step's.
+#[test]
+fn pka_at_an_unknown_step_is_refused() {
+    let p = Protolyte::new("acid", &[4.0, 9.0], 0).unwrap();
+    assert_eq!(p.pka_at(1, Temperature::STANDARD).unwrap(), 9.0);
+    let err = p.pka_at(2, Temperature::STANDARD).unwrap_err();
+    assert!(matches!(err, Error::InconsistentDefinition { .. }), "{err}");
+    assert!(err.to_string().contains("step 2"), "{err}");
+    assert!(p.pka_at(usize::MAX, Temperature::STANDARD).is_err());
+}
+
+/// van't Hoff at or below 0 K, or with inputs that overflow, is refused (no inf, no NaN).
+#[test]
+fn vant_hoff_refuses_what_it_cannot_compute() {
+    use protolyte::vant_hoff::log10_k_at;
+    for k in [0.0, -10.0, f64::NAN, f64::INFINITY] {
+        let r = log10_k_at(-4.756, 0.41, 0.0, Temperature::kelvin_value(k));
+        assert!(matches!(r, Err(Error::OutOfDomain { .. })), "{k} K: {r:?}");
+    }
+    assert!(log10_k_at(-4.756, 1e306, 0.0, Temperature::kelvin_value(1e-300)).is_err());
+    assert!(log10_k_at(f64::NAN, 0.41, 0.0, Temperature::celsius(37.0)).is_err());
+    assert!(
+        log10_k_at(-4.756, 0.41, 0.0, Temperature::kelvin_value(1e-3))
+            .unwrap()
+            .is_finite()
+    );
+    // A protolyte with ΔH° passes the refusal on.
+    let p = Protolyte::new("acid", &[7.0], 0)
+        .unwrap()
+        .with_enthalpies_kj_per_mol(&[20.0])
+        .unwrap();
+    assert!(p.pka_at(0, Temperature::kelvin_value(0.0)).is_err());
+}
+
+/// log γ for a negative or non-finite ionic strength, a non-positive ion size or constants
+/// that give no finite value is refused, never NaN and never a silent I = 0.
+#[test]
+fn log10_gamma_refuses_a_negative_ionic_strength() {
+    use protolyte::{ActivityModel, DebyeHuckelConstants, activity};
+    let dh = DebyeHuckelConstants::at(Temperature::STANDARD).unwrap();
+    for model in [
+        ActivityModel::Ideal,
+        ActivityModel::Davies,
+        ActivityModel::ExtendedDebyeHuckel,
+        ActivityModel::Sit,
+    ] {
+        for i in [-0.1, -1e-300, f64::NAN, f64::INFINITY] {
+            let r = model.log10_gamma(1, 4.0, i, &dh);
+            assert!(
+                matches!(r, Err(Error::OutOfDomain { .. })),
+                "{} at I = {i}: {r:?}",
+                model.name()
+            );
+            assert!(model.log10_gamma_and_slope(1, 4.0, i, &dh).is_err());
+        }
+        assert!(model.log10_gamma(1, -4.0, 0.1, &dh).is_err());
+        assert!(model.log10_gamma(1, f64::NAN, 0.1, &dh).is_err());
+        // Charges far beyond any species: finite, no overflow of z².
+        let lg = model.log10_gamma(i32::MAX, 4.0, 0.1, &dh).unwrap();
+        assert!(lg.is_finite());
+    }
+    let bad = DebyeHuckelConstants { a: f64::NAN, b: 0.33 };
+    assert!(ActivityModel::Davies.log10_gamma(1, 4.0, 0.1, &bad).is_err());
+    assert!(activity::bates_guggenheim_log10_gamma_chloride(-0.1, &dh).is_err());
+    assert!(activity::bates_guggenheim_log10_gamma_chloride(0.1, &dh).unwrap() < 0.0);
+}
+
+/// Stepping and iteration budgets outside their ranges are refused, not clamped.
+#[test]
+fn stepping_and_iteration_budgets_are_refused_not_clamped() {
+    use protolyte::analysis::{Stepping, TitrationFit};
+    let s = Stepping::new(Volume::milliliters(20.0));
+    for d in [0.0, 5e-5, 2.5, -1.0, f64::NAN, f64::INFINITY] {
+        let r = s.max_ph_step(d);
+        assert!(matches!(r, Err(Error::InvalidParameter { .. })), "{d}: {r:?}");
+    }
+    assert_eq!(s.max_ph_step(2.0).unwrap().max_ph_step_value(), 2.0);
+    assert_eq!(s.max_ph_step(1e-4).unwrap().max_ph_step_value(), 1e-4);
+    for v in [0.0, -1.0, f64::NAN, f64::INFINITY] {
+        assert!(s.min_step(Volume::liters(v)).is_err(), "{v}");
+        assert!(s.max_step(Volume::liters(v)).is_err(), "{v}");
+    }
+    assert!(s.max_points(1).is_err());
+    assert!(matches!(s.max_points(usize::MAX), Err(Error::TooManyPoints { .. })));
+    assert!(s.max_points(2).is_ok());
+    assert!(TitrationFit::new().max_iterations(0).is_err());
+    assert!(TitrationFit::new().max_iterations(10_001).is_err());
+    assert!(TitrationFit::new().max_iterations(10_000).is_ok());
+    assert!(protolyte::Solver::new().max_iterations(9).is_err());
+    assert!(protolyte::Solver::new().max_iterations(usize::MAX).is_err());
+    assert!(protolyte::Solver::new().max_iterations(10).is_ok());
+}
+
+/// A designed buffer reports the residual of every equation, ionic strength included.
+#[test]
+fn buffer_design_reports_every_residual() {
+    use protolyte::analysis::{BufferSpec, Ingredients, Stock};
+    let cat = Catalog::builtin();
+    let spec = BufferSpec::new(
+        Ingredients::Adjusted {
+            buffer: vec![Stock::solid(&cat.reagent("acetic acid").unwrap())],
+            adjuster: Stock::solution_molar(&cat.reagent("sodium hydroxide").unwrap(), 1.0),
+        },
+        4.8,
+        Amount::molar(0.1),
+        davies(),
+        Volume::milliliters(100.0),
+    );
+    let r = spec.design().unwrap();
+    let eq = r.recipe.compile(&davies()).unwrap().solve().unwrap();
+    let res = eq.residuals();
+    // Under Davies the ionic-strength equation is solved too, so it is part of the residual.
+    assert!(res.ionic_strength_relative != 0.0 || res.max_relative() == res.max_balance_relative());
+    assert_eq!(r.balance_residual, res.max_relative());
+    assert!(r.balance_residual >= res.ionic_strength_relative.abs());
+}
+
+/// A refused huge amount is written in exponent form, not as hundreds of digits.
+#[test]
+fn a_refused_huge_amount_is_written_short() {
+    let mut r = Recipe::new();
+    let err = r.add(&common::naoh(), Amount::molar(1e305)).unwrap_err();
+    let msg = err.to_string();
+    assert!(matches!(err, Error::AmountTooLarge { .. }), "{msg}");
+    assert!(msg.contains("1e305 mol/L"), "{msg}");
+    assert!(msg.len() < 200, "{msg}");
 }

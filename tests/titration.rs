@@ -154,7 +154,7 @@ fn adaptive_steps_are_bounded_and_dense_at_the_break() {
     )
     .unwrap();
     let curve = t
-        .curve_adaptive(&Stepping::new(Volume::milliliters(50.0)).max_ph_step(0.05))
+        .curve_adaptive(&Stepping::new(Volume::milliliters(50.0)).max_ph_step(0.05).unwrap())
         .unwrap();
     assert_eq!(curve[0].volume_ml, 0.0);
     assert!((curve.last().unwrap().volume_ml - 50.0).abs() < 1e-9);

@@ -28,6 +28,7 @@
 //!
 //! Neutral species get γ = 1 in every model (no salting-out term).
 
+use crate::error::Error;
 use crate::quantity::Temperature;
 use crate::water;
 
@@ -63,9 +64,11 @@ pub const DAVIES_LINEAR_COEFFICIENT: f64 = 0.3;
 ///
 /// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0))?;
 /// // Davies at I = 0.1 mol/kg for a singly charged ion: γ ≈ 0.78.
-/// let lg = ActivityModel::Davies.log10_gamma(1, 4.0, 0.1, &dh);
+/// let lg = ActivityModel::Davies.log10_gamma(1, 4.0, 0.1, &dh)?;
 /// assert!((10f64.powf(lg) - 0.78).abs() < 0.01);
-/// assert_eq!(ActivityModel::Ideal.log10_gamma(2, 4.0, 0.1, &dh), 0.0);
+/// assert_eq!(ActivityModel::Ideal.log10_gamma(2, 4.0, 0.1, &dh)?, 0.0);
+/// // A negative ionic strength is refused, not taken as zero.
+/// assert!(ActivityModel::Davies.log10_gamma(1, 4.0, -0.1, &dh).is_err());
 /// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
@@ -165,19 +168,50 @@ impl ActivityModel {
 
     /// log₁₀ γ for charge `z`, ion size `ion_size_angstrom`, ionic strength `i_molal`; for
     /// SIT the Debye–Hückel part −z²D only (the ε terms need the composition).
-    pub fn log10_gamma(self, z: i32, ion_size_angstrom: f64, i_molal: f64, dh: &DebyeHuckelConstants) -> f64 {
-        self.log10_gamma_and_slope(z, ion_size_angstrom, i_molal, dh).0
+    ///
+    /// Refuses (`Error::OutOfDomain`) an ionic strength that is negative or not finite, and
+    /// (`Error::InvalidParameter`) an ion size that is not finite and positive, or constants
+    /// `dh` for which the formula gives no finite value.
+    pub fn log10_gamma(
+        self,
+        z: i32,
+        ion_size_angstrom: f64,
+        i_molal: f64,
+        dh: &DebyeHuckelConstants,
+    ) -> crate::error::Result<f64> {
+        Ok(self.log10_gamma_and_slope(z, ion_size_angstrom, i_molal, dh)?.0)
     }
 
-    /// log₁₀ γ and its derivative with respect to I (per mol/kg).
+    /// log₁₀ γ and its derivative with respect to I (per mol/kg), with the checks of
+    /// [`log10_gamma`](Self::log10_gamma). At I = 0 the slope of the √I models is
+    /// unbounded; it is reported as 0 there (the solver never evaluates it at I = 0).
     pub fn log10_gamma_and_slope(
         self,
         z: i32,
         ion_size_angstrom: f64,
         i_molal: f64,
         dh: &DebyeHuckelConstants,
-    ) -> (f64, f64) {
-        GammaProfile::new(self, i_molal, dh).at(z, ion_size_angstrom)
+    ) -> crate::error::Result<(f64, f64)> {
+        check_ionic_strength(i_molal)?;
+        crate::error::check_parameter(
+            "activity coefficient",
+            "ion size (Å)",
+            ion_size_angstrom,
+            f64::MIN_POSITIVE,
+            f64::MAX,
+            "must be finite and positive",
+        )?;
+        let (lg, slope) = GammaProfile::new(self, i_molal, dh).at(z, ion_size_angstrom);
+        if lg.is_finite() && slope.is_finite() {
+            Ok((lg, slope))
+        } else {
+            Err(Error::InvalidParameter {
+                what: "activity coefficient".into(),
+                parameter: "Debye–Hückel constants A, B",
+                value: if dh.a.is_finite() { dh.b } else { dh.a },
+                reason: "give no finite log γ (A and B must be finite, 1 + B·å·√I positive)",
+            })
+        }
     }
 }
 
@@ -228,7 +262,7 @@ impl GammaProfile {
         if z == 0 {
             return (0.0, 0.0);
         }
-        let az2 = -self.a * f64::from(z * z);
+        let az2 = -self.a * f64::from(z) * f64::from(z);
         match self.model {
             ActivityModel::Ideal => (0.0, 0.0),
             ActivityModel::Davies | ActivityModel::Sit => (az2 * self.davies.0, az2 * self.davies.1),
@@ -284,10 +318,32 @@ impl DebyeHuckelConstants {
 ///
 /// let dh = DebyeHuckelConstants::at(Temperature::celsius(25.0))?;
 /// // At I = 0.1 mol/kg: −0.511·0.316/(1 + 0.474) ≈ −0.110.
-/// assert!((activity::bates_guggenheim_log10_gamma_chloride(0.1, &dh) + 0.110).abs() < 0.001);
+/// assert!((activity::bates_guggenheim_log10_gamma_chloride(0.1, &dh)? + 0.110).abs() < 0.001);
+/// assert!(activity::bates_guggenheim_log10_gamma_chloride(-0.1, &dh).is_err());
 /// # Ok::<(), protolyte::Error>(())
 /// ```
-pub fn bates_guggenheim_log10_gamma_chloride(i_molal: f64, dh: &DebyeHuckelConstants) -> f64 {
+///
+/// Refuses (`Error::OutOfDomain`) an ionic strength that is negative or not finite.
+pub fn bates_guggenheim_log10_gamma_chloride(i_molal: f64, dh: &DebyeHuckelConstants) -> crate::error::Result<f64> {
+    check_ionic_strength(i_molal)?;
+    Ok(bg_chloride(i_molal, dh))
+}
+
+/// An ionic strength a public γ function accepts: finite and not negative.
+fn check_ionic_strength(i_molal: f64) -> crate::error::Result<f64> {
+    if i_molal.is_finite() && i_molal >= 0.0 {
+        Ok(i_molal)
+    } else {
+        Err(Error::OutOfDomain {
+            what: "ionic strength (mol/kg)",
+            value: i_molal,
+            domain: "finite and not negative",
+        })
+    }
+}
+
+/// The Bates–Guggenheim log γ(Cl⁻) for the solver's own I (never negative there).
+fn bg_chloride(i_molal: f64, dh: &DebyeHuckelConstants) -> f64 {
     let s = i_molal.max(0.0).sqrt();
     -dh.a * s / (1.0 + BATES_GUGGENHEIM_BA * s)
 }
@@ -310,7 +366,7 @@ pub(crate) fn ph_convention_shift(
             if model == ActivityModel::Sit {
                 lg_cl += sit_chloride_term;
             }
-            bates_guggenheim_log10_gamma_chloride(i_molal, dh) - lg_cl
+            bg_chloride(i_molal, dh) - lg_cl
         }
     }
 }

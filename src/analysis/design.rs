@@ -214,7 +214,8 @@ pub struct BufferRecipe {
     pub check_ph: f64,
     /// check pH − target pH.
     pub ph_residual: f64,
-    /// The largest relative charge or mass-balance residual of the check solve.
+    /// The largest relative residual of the check solve over every equation solved (charge,
+    /// mass balances, ionic strength): [`Residuals::max_relative`](crate::Residuals::max_relative).
     pub balance_residual: f64,
     /// Ionic strength of the check solve, mol/kg.
     pub ionic_strength_molal: f64,
@@ -632,7 +633,7 @@ impl BufferSpec {
             target_ph: self.target_ph,
             check_ph: ph,
             ph_residual: ph - self.target_ph,
-            balance_residual: eq.residuals().max_balance_relative(),
+            balance_residual: eq.residuals().max_relative(),
             ionic_strength_molal: eq.ionic_strength_molal(),
             buffer_capacity_mol_per_l: if beta.is_finite() { beta } else { f64::MAX },
             temperature_shifts,

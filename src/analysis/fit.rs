@@ -247,12 +247,26 @@ impl TitrationFit {
         TitrationFit::default()
     }
 
-    /// Sets the iteration budget (at least 1; default 100). A budget above
-    /// [`MAX_FIT_ITERATIONS`](crate::limits::MAX_FIT_ITERATIONS) is refused by
-    /// [`TitrationFit::run`].
-    pub fn max_iterations(mut self, n: usize) -> Self {
-        self.max_iterations = n.max(1);
-        self
+    /// Sets the iteration budget (default 100). Refuses (`Error::InvalidParameter`) 0 and a
+    /// budget above [`MAX_FIT_ITERATIONS`](crate::limits::MAX_FIT_ITERATIONS).
+    ///
+    /// ```
+    /// use protolyte::analysis::TitrationFit;
+    /// assert!(TitrationFit::new().max_iterations(500).is_ok());
+    /// assert!(TitrationFit::new().max_iterations(0).is_err());
+    /// assert!(TitrationFit::new().max_iterations(usize::MAX).is_err());
+    /// ```
+    pub fn max_iterations(mut self, n: usize) -> Result<Self> {
+        crate::error::check_parameter(
+            "titration fit",
+            "iteration budget",
+            n as f64,
+            1.0,
+            crate::limits::MAX_FIT_ITERATIONS as f64,
+            "must be within 1..=MAX_FIT_ITERATIONS (10,000)",
+        )?;
+        self.max_iterations = n;
+        Ok(self)
     }
 
     /// Adds a measured curve: `titration` is the model (its recipes give the starting values

@@ -74,8 +74,11 @@ pub struct TitrationPoint {
 /// use protolyte::analysis::Stepping;
 /// use protolyte::Volume;
 ///
-/// let s = Stepping::new(Volume::milliliters(50.0)).max_ph_step(0.02);
+/// let s = Stepping::new(Volume::milliliters(50.0)).max_ph_step(0.02)?;
 /// assert_eq!(s.max_ph_step_value(), 0.02);
+/// // Outside 1e-4..=2 the step is refused, not clamped.
+/// assert!(Stepping::new(Volume::milliliters(50.0)).max_ph_step(5.0).is_err());
+/// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Stepping {
@@ -100,44 +103,66 @@ impl Stepping {
         }
     }
 
-    /// The largest pH change per step (clamped to 1e-4..2; a non-finite value keeps 0.05).
-    pub fn max_ph_step(mut self, dph: f64) -> Self {
-        if dph.is_finite() {
-            self.max_ph_step = dph.clamp(1e-4, 2.0);
-        }
-        self
+    /// The largest pH change per step. Refuses (`Error::InvalidParameter`) a value that is
+    /// not finite or lies outside 1e-4..=2.
+    pub fn max_ph_step(mut self, dph: f64) -> Result<Self> {
+        self.max_ph_step = crate::error::check_parameter(
+            "titration stepping",
+            "largest pH step",
+            dph,
+            1e-4,
+            2.0,
+            "must be within 1e-4..=2",
+        )?;
+        Ok(self)
     }
 
-    /// The smallest volume step (a non-finite or negative value is ignored).
-    pub fn min_step(mut self, v: Volume) -> Self {
-        let v = v.liters_value();
-        if v.is_finite() && v > 0.0 {
-            self.min_step_l = v;
-        }
-        self
+    /// The smallest volume step. Refuses (`Error::InvalidParameter`) a volume that is not
+    /// finite and positive.
+    pub fn min_step(mut self, v: Volume) -> Result<Self> {
+        self.min_step_l = positive_step("smallest volume step (L)", v)?;
+        Ok(self)
     }
 
-    /// The largest volume step (a non-finite or non-positive value is ignored).
-    pub fn max_step(mut self, v: Volume) -> Self {
-        let v = v.liters_value();
-        if v.is_finite() && v > 0.0 {
-            self.max_step_l = v;
-        }
-        self
+    /// The largest volume step. Refuses (`Error::InvalidParameter`) a volume that is not
+    /// finite and positive.
+    pub fn max_step(mut self, v: Volume) -> Result<Self> {
+        self.max_step_l = positive_step("largest volume step (L)", v)?;
+        Ok(self)
     }
 
-    /// The largest number of points (at least 2). A curve asked with more than
-    /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS) is refused by
-    /// [`Titration::curve_adaptive`].
-    pub fn max_points(mut self, n: usize) -> Self {
-        self.max_points = n.max(2);
-        self
+    /// The largest number of points. Refuses fewer than 2 (`Error::InvalidParameter`) and
+    /// more than [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
+    /// (`Error::TooManyPoints`).
+    pub fn max_points(mut self, n: usize) -> Result<Self> {
+        if n < 2 {
+            return Err(Error::InvalidParameter {
+                what: "titration stepping".into(),
+                parameter: "largest number of points",
+                value: n as f64,
+                reason: "a curve needs at least 2 points",
+            });
+        }
+        self.max_points = crate::error::check_points("adaptive titration curve", n)?;
+        Ok(self)
     }
 
     /// The largest pH change per step.
     pub fn max_ph_step_value(&self) -> f64 {
         self.max_ph_step
     }
+}
+
+/// A volume step of [`Stepping`]: finite and positive, in litres.
+fn positive_step(parameter: &'static str, v: Volume) -> Result<f64> {
+    crate::error::check_parameter(
+        "titration stepping",
+        parameter,
+        v.liters_value(),
+        f64::MIN_POSITIVE,
+        f64::MAX,
+        "must be finite and positive",
+    )
 }
 
 /// A mutable working copy of the system, re-totalled point by point (no clone per point).
@@ -357,7 +382,7 @@ impl Titration {
     /// let mut base = Recipe::new();
     /// base.add(&cat.reagent("sodium hydroxide")?, Amount::molar(0.1))?;
     /// let t = Titration::new(&acid, Volume::milliliters(25.0), &base, &Conditions::default())?;
-    /// let curve = t.curve_adaptive(&Stepping::new(Volume::milliliters(40.0)).max_ph_step(0.1))?;
+    /// let curve = t.curve_adaptive(&Stepping::new(Volume::milliliters(40.0)).max_ph_step(0.1)?)?;
     /// // Every step moves the pH by at most 1.5 × 0.1 (or is a minimal step).
     /// assert!(curve.windows(2).all(|w| (w[1].ph - w[0].ph).abs() < 0.15 + 1e-9
     ///     || w[1].volume_ml - w[0].volume_ml < 1e-3));

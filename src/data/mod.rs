@@ -694,10 +694,8 @@ impl Catalog {
             .map(|j| FormInfo {
                 name: p.form_name(j),
                 protons: j,
-                charge: p.charge_of_form(j),
-                ion_size_angstrom: (p.charge_of_form(j) != 0)
-                    .then(|| p.form_ion_size_angstrom(j))
-                    .flatten(),
+                charge: p.form_charge(j),
+                ion_size_angstrom: (p.form_charge(j) != 0).then(|| p.form_ion_size_angstrom(j)).flatten(),
             })
             .collect();
         let info = DataInfo {
@@ -1130,7 +1128,7 @@ impl Catalog {
             let mut filled = Vec::with_capacity(n + 1);
             for (k, &a) in sizes.iter().enumerate() {
                 let protons = n - k;
-                let charged = p.charge_of_form(protons) != 0;
+                let charged = p.form_charge(protons) != 0;
                 filled.push(match (a == 0.0, charged, p.ion_size_angstrom()) {
                     (true, false, _) => 0.0,
                     (true, true, Some(family)) => family,

@@ -1119,7 +1119,9 @@ impl TitrationDoc {
             if !(d.is_finite() && d > 0.0) {
                 return Err(field_error("max_ph_step", format!("{d}: must be positive")));
             }
-            s = s.max_ph_step(d);
+            s = s
+                .max_ph_step(d)
+                .map_err(|e| field_error("max_ph_step", e.to_string()))?;
         }
         Ok(s)
     }
@@ -1514,7 +1516,9 @@ impl FitDoc {
             if !(1..=max).contains(&n) {
                 return Err(field_error("max_iterations", format!("{n}: must be 1..{max}")));
             }
-            fit = fit.max_iterations(n);
+            fit = fit
+                .max_iterations(n)
+                .map_err(|e| field_error("max_iterations", e.to_string()))?;
         }
         if self.curves.is_empty() {
             return Err(field_error("curves", "at least one measured curve is needed"));

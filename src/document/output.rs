@@ -443,7 +443,8 @@ pub struct DesignResult {
     pub check_ph: f64,
     /// check − target.
     pub ph_residual: f64,
-    /// Largest balance residual of the check solve.
+    /// Largest relative residual of the check solve over every equation solved (charge,
+    /// mass balances, ionic strength).
     pub balance_residual: f64,
     /// Ionic strength, mol/kg.
     pub ionic_strength_mol_per_kg: f64,

@@ -114,10 +114,25 @@ impl Solver {
         self.tolerance
     }
 
-    /// Sets the iteration budget of the general path (at least 10).
-    pub fn max_iterations(mut self, n: usize) -> Self {
-        self.max_iterations = n.max(10);
-        self
+    /// Sets the iteration budget of the general path (default 200). Refuses
+    /// (`Error::InvalidParameter`) a budget outside 10..=100 000.
+    ///
+    /// ```
+    /// use protolyte::Solver;
+    /// assert!(Solver::new().max_iterations(500).is_ok());
+    /// assert!(Solver::new().max_iterations(3).is_err());
+    /// ```
+    pub fn max_iterations(mut self, n: usize) -> crate::error::Result<Self> {
+        crate::error::check_parameter(
+            "solver",
+            "iteration budget",
+            n as f64,
+            10.0,
+            100_000.0,
+            "must be within 10..=100000",
+        )?;
+        self.max_iterations = n;
+        Ok(self)
     }
 
     /// Chooses the path.

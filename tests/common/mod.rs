@@ -34,7 +34,7 @@ pub fn hcl() -> Reagent {
 
 /// The form of `p` with `protons` bound, made neutral with Na⁺ or Cl⁻.
 pub fn salt(p: &Protolyte, protons: usize) -> Reagent {
-    let z = p.charge_of_form(protons);
+    let z = p.charge_of_form(protons).expect("a form of the family");
     let mut parts = vec![(
         Constituent::Form {
             protolyte: p.clone(),
