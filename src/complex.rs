@@ -5,6 +5,8 @@ use crate::error::{Error, Result, check_int, check_ion_size, check_parameter};
 use crate::ion::Ion;
 use crate::limits::{MAX_COMPLEX_CHARGE, MAX_COMPLEX_PARTS, MAX_COMPLEX_PROTONS, MAX_PART_COUNT};
 use crate::protolyte::Protolyte;
+use crate::quantity::Temperature;
+use crate::vant_hoff::{LogKEquation, TemperatureBasis, TemperatureGap};
 
 /// One building block of a complex.
 #[derive(Debug, Clone, PartialEq)]
@@ -48,6 +50,8 @@ pub struct Complex {
     parts: Vec<(ComplexPart, i32)>,
     log10_beta: f64,
     dh_kj_per_mol: Option<f64>,
+    dcp_j_per_mol_k: Option<f64>,
+    equation: Option<LogKEquation>,
     ion_size_angstrom: Option<f64>,
     source: Option<String>,
 }
@@ -150,6 +154,8 @@ impl Complex {
             parts,
             log10_beta,
             dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            equation: None,
             ion_size_angstrom: None,
             source: None,
         })
@@ -167,6 +173,75 @@ impl Complex {
         )?;
         self.dh_kj_per_mol = Some(dh);
         Ok(self)
+    }
+
+    /// Sets the heat-capacity change of formation ΔCp° (J/(mol·K)), used with ΔH°.
+    pub fn with_heat_capacity_j_per_mol_k(mut self, dcp: f64) -> Result<Self> {
+        check_parameter(
+            &self.name,
+            "ΔCp° (J/(mol·K))",
+            dcp,
+            -2000.0,
+            2000.0,
+            "must be finite and within ±2000",
+        )?;
+        self.dcp_j_per_mol_k = Some(dcp);
+        Ok(self)
+    }
+
+    /// Sets an analytic equation for log₁₀ β(T), used instead of ΔH° and ΔCp°; it gives the
+    /// change of log β from 25 °C. Refuses an equation whose log β at 25 °C differs from the
+    /// complex's by more than 0.03.
+    ///
+    /// ```
+    /// use protolyte::{Complex, ComplexPart, Ion, Protolyte, Temperature};
+    /// use protolyte::vant_hoff::{LogKEquation, ValidityRange};
+    ///
+    /// let co3 = Protolyte::new("carbonate", &[6.352, 10.329], 0)?;
+    /// let ca = Ion::new("calcium", 2)?;
+    /// // Ca²⁺ + CO₃²⁻ ⇌ CaCO₃°: L. N. Plummer, E. Busenberg, Geochim. Cosmochim. Acta 46
+    /// // (1982) 1011, log K = −1228.732 − 0.299440 T + 35512.75/T + 485.818 log T, 0–90 °C
+    /// // (from memory).
+    /// let eq = LogKEquation::new([-1228.732, -0.299440, 35512.75, 485.818, 0.0], ValidityRange::celsius(0.0, 90.0)?)?;
+    /// let c = Complex::new("CaCO3(aq)", vec![(ComplexPart::Ion(ca), 1), (ComplexPart::Base(co3), 1)], 3.224)?
+    ///     .with_log_k_equation(eq)?;
+    /// assert!(c.log10_beta_at(Temperature::celsius(60.0)) > 3.224);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn with_log_k_equation(mut self, equation: LogKEquation) -> Result<Self> {
+        let at25 = equation.log10_k(Temperature::STANDARD);
+        if (at25 - self.log10_beta).abs() > 0.03 {
+            return Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!(
+                    "the log K equation gives log β {at25:.3} at 25 °C, the complex has {}",
+                    self.log10_beta
+                ),
+            });
+        }
+        self.equation = Some(equation);
+        Ok(self)
+    }
+
+    /// Formation heat-capacity change, if known.
+    pub fn dcp_j_per_mol_k(&self) -> Option<f64> {
+        self.dcp_j_per_mol_k
+    }
+
+    /// The analytic log β(T) equation, if set.
+    pub fn log_k_equation(&self) -> Option<LogKEquation> {
+        self.equation
+    }
+
+    /// log₁₀ β at `t`: from the analytic equation where set, else by van't Hoff from ΔH°
+    /// (and ΔCp°) where known, else the 25 °C value (see [`crate::vant_hoff`]).
+    pub fn log10_beta_at(&self, t: Temperature) -> f64 {
+        self.log10_beta_and_gap_at(t).0
+    }
+
+    /// log₁₀ β at `t` and what falls short in the temperature data at `t`.
+    pub(crate) fn log10_beta_and_gap_at(&self, t: Temperature) -> (f64, Option<TemperatureGap>) {
+        TemperatureBasis::from_data(self.equation, self.dh_kj_per_mol, self.dcp_j_per_mol_k).log10_k(self.log10_beta, t)
     }
 
     /// Sets the ion-size parameter å (ångström).

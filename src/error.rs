@@ -74,6 +74,10 @@ pub enum Error {
         /// The net charge of one formula unit.
         charge: i64,
     },
+    /// An entry of a catalogue file is refused: the file, the line, the entry and the field
+    /// say where (boxed: the details are rarely needed on the hot paths that pass errors on).
+    #[error("{0}")]
+    CatalogFile(Box<CatalogFileError>),
     /// A condition lies outside the declared domain of the library.
     #[error("{what} = {value} is outside the supported domain {domain}")]
     OutOfDomain {
@@ -163,6 +167,43 @@ pub enum Error {
         /// pH at the last iterate.
         last_ph: f64,
     },
+}
+
+/// Where and why a catalogue file was refused.
+///
+/// ```
+/// use protolyte::{Catalog, Error};
+///
+/// let err = Catalog::empty()
+///     .with_toml_str("format = \"protolyte-catalog/1\"\n[[ion]]\nname = \"x\"\ncharge = 1\n", "mine.toml")
+///     .unwrap_err();
+/// let Error::CatalogFile(e) = &err else { panic!("{err}") };
+/// // A missing field is reported at the entry's header line, `[[ion]]`.
+/// assert_eq!((e.file.as_str(), e.line, e.field.as_str()), ("mine.toml", 2, "source"));
+/// ```
+#[derive(Debug, Clone, PartialEq, Error)]
+#[error("{file}:{line}: {}{message}", catalog_where(entry, field))]
+pub struct CatalogFileError {
+    /// The file (or the origin given for text read from memory).
+    pub file: String,
+    /// Line, 1-based (0 when the file could not be read).
+    pub line: usize,
+    /// The entry at fault ("family `acetate`"), or empty for the file as a whole.
+    pub entry: String,
+    /// The field at fault (`steps[1].pka`), or empty.
+    pub field: String,
+    /// What is wrong.
+    pub message: String,
+}
+
+/// "family `acetate`, field `steps[1].pka`: ", or less when the entry or field is not known.
+fn catalog_where(entry: &str, field: &str) -> String {
+    match (entry.is_empty(), field.is_empty()) {
+        (true, true) => String::new(),
+        (false, true) => format!("{entry}: "),
+        (true, false) => format!("field `{field}`: "),
+        (false, false) => format!("{entry}, field `{field}`: "),
+    }
 }
 
 /// `Result` with protolyte's [`Error`](enum@Error).

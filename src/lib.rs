@@ -102,9 +102,9 @@ pub mod water;
 
 pub use activity::{ActivityModel, DebyeHuckelConstants, PhConvention};
 pub use complex::{Complex, ComplexPart};
-pub use data::{Catalog, DataInfo, DataKind};
+pub use data::{Catalog, DataInfo, DataKind, FormInfo, molar_mass_from_formula};
 pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState};
-pub use error::{Error, Result};
+pub use error::{CatalogFileError, Error, Result};
 pub use ion::Ion;
 pub use protolyte::{Protolyte, Step};
 pub use quantity::{Amount, Mass, Temperature, Volume};
@@ -113,4 +113,4 @@ pub use recipe::{Entry, Recipe};
 pub use sensitivity::{Parameter, Sensitivities};
 pub use solve::{PathChoice, Solver, SolverPath};
 pub use system::{Component, ComponentKind, Conditions, Family, Species, SpeciesKind, System};
-pub use warning::Warning;
+pub use warning::{TemperatureDatum, Warning};

@@ -2,7 +2,7 @@
 
 use crate::error::{Error, Result, check_ion_size, check_parameter};
 use crate::quantity::Temperature;
-use crate::vant_hoff;
+use crate::vant_hoff::{LogKEquation, TemperatureBasis, TemperatureGap};
 
 /// One stepwise dissociation Hₖ A → Hₖ₋₁A + H⁺, with optional thermodynamic data.
 #[derive(Debug, Clone, PartialEq)]
@@ -44,6 +44,8 @@ pub struct Protolyte {
     /// Per-form ion sizes, indexed by the number of bound protons (0 = fully deprotonated).
     form_ion_sizes: Option<Vec<Option<f64>>>,
     source: Option<String>,
+    /// An analytic log K(T) equation per step, where its source gives one.
+    equations: Vec<Option<LogKEquation>>,
 }
 
 /// Range accepted for a pKa (wider than the declared test domain −2..16).
@@ -53,7 +55,8 @@ impl Protolyte {
     /// A family with stepwise `pkas` (most protonated first) at 25 °C, infinite dilution.
     ///
     /// Refuses an empty name, no steps or more than 12, a pKa outside −10..25 or not finite,
-    /// and a charge outside −10..10.
+    /// pKa values out of order (each step's pKa is at least the one before), and a charge
+    /// outside −10..10.
     pub fn new(name: &str, pkas: &[f64], charge_most_protonated: i32) -> Result<Self> {
         let name = name.trim();
         if name.is_empty() {
@@ -72,6 +75,18 @@ impl Protolyte {
             return Err(Error::InconsistentDefinition {
                 name: name.into(),
                 reason: format!("charge of the most protonated form {charge_most_protonated} is outside −10..10"),
+            });
+        }
+        if let Some(k) = pkas.windows(2).position(|w| w[1] < w[0]) {
+            return Err(Error::InconsistentDefinition {
+                name: name.into(),
+                reason: format!(
+                    "pKa values ascend, most protonated form first: pKa{} = {} follows pKa{} = {}",
+                    k + 2,
+                    pkas[k + 1],
+                    k + 1,
+                    pkas[k]
+                ),
             });
         }
         let mut steps = Vec::with_capacity(pkas.len());
@@ -94,6 +109,7 @@ impl Protolyte {
             name: name.to_string(),
             formula: None,
             charge_most_protonated,
+            equations: vec![None; steps.len()],
             steps,
             ion_size_angstrom: None,
             form_ion_sizes: None,
@@ -117,6 +133,92 @@ impl Protolyte {
             s.dcp_j_per_mol_k = Some(check_heat_capacity(&self.name, c)?);
         }
         Ok(self)
+    }
+
+    /// Sets ΔH° (kJ/mol) and ΔCp° (J/(mol·K)) of one step `step` (0-based, most protonated
+    /// first); `None` leaves that datum unknown. Refuses a step index beyond the steps and
+    /// values outside ±500 kJ/mol or ±2000 J/(mol·K).
+    ///
+    /// ```
+    /// use protolyte::Protolyte;
+    /// let p = Protolyte::new("x", &[3.0, 6.0], 0)?.with_step_thermodynamics(1, Some(4.0), None)?;
+    /// assert_eq!(p.steps()[0].dh_kj_per_mol, None);
+    /// assert_eq!(p.steps()[1].dh_kj_per_mol, Some(4.0));
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn with_step_thermodynamics(
+        mut self,
+        step: usize,
+        dh_kj_per_mol: Option<f64>,
+        dcp_j_per_mol_k: Option<f64>,
+    ) -> Result<Self> {
+        if step >= self.steps.len() {
+            return Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!(
+                    "ΔH°/ΔCp° for step {} of a family with {} steps",
+                    step + 1,
+                    self.steps.len()
+                ),
+            });
+        }
+        if let Some(h) = dh_kj_per_mol {
+            check_enthalpy(&self.name, h)?;
+        }
+        if let Some(c) = dcp_j_per_mol_k {
+            check_heat_capacity(&self.name, c)?;
+        }
+        self.steps[step].dh_kj_per_mol = dh_kj_per_mol;
+        self.steps[step].dcp_j_per_mol_k = dcp_j_per_mol_k;
+        Ok(self)
+    }
+
+    /// Sets an analytic equation for log₁₀ Ka(T) of step `step` (0-based, most protonated
+    /// first), used instead of ΔH° and ΔCp° for that step. The equation gives the change of
+    /// log Ka from 25 °C; the step's pKa at 25 °C stays as given.
+    ///
+    /// Refuses a step index beyond the steps and an equation whose pKa at 25 °C differs from
+    /// the step's by more than 0.03 (the two would describe different data).
+    ///
+    /// ```
+    /// use protolyte::{Protolyte, Temperature, vant_hoff::{LogKEquation, ValidityRange}};
+    ///
+    /// // Acetic acid, Harned & Ehlers (1933): pKa = 1170.48/T − 3.1649 + 0.013399·T, 0–60 °C
+    /// // (from memory).
+    /// let eq = LogKEquation::new([3.1649, -0.013399, -1170.48, 0.0, 0.0], ValidityRange::celsius(0.0, 60.0)?)?;
+    /// let acetic = Protolyte::new("acetic", &[4.756], 0)?.with_log_k_equation(0, eq)?;
+    /// assert!((acetic.pka_at(0, Temperature::celsius(50.0)) - 4.787).abs() < 0.001);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn with_log_k_equation(mut self, step: usize, equation: LogKEquation) -> Result<Self> {
+        let Some(s) = self.steps.get(step) else {
+            return Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!(
+                    "a log K equation for step {} of a family with {} steps",
+                    step + 1,
+                    self.steps.len()
+                ),
+            });
+        };
+        let pka_eq = -equation.log10_k(Temperature::STANDARD);
+        if (pka_eq - s.pka).abs() > 0.03 {
+            return Err(Error::InconsistentDefinition {
+                name: self.name.clone(),
+                reason: format!(
+                    "the log K equation of step {} gives pKa {pka_eq:.3} at 25 °C, the step has {}",
+                    step + 1,
+                    s.pka
+                ),
+            });
+        }
+        self.equations[step] = Some(equation);
+        Ok(self)
+    }
+
+    /// The analytic log K(T) equation of step `step` (0-based), if one is set.
+    pub fn log_k_equation(&self, step: usize) -> Option<LogKEquation> {
+        self.equations.get(step).copied().flatten()
     }
 
     /// Sets the steps directly (used by the built-in data, which may lack some enthalpies).
@@ -274,8 +376,11 @@ impl Protolyte {
         self.source.as_deref()
     }
 
-    /// pKa of step `step` (0-based, most protonated first) at temperature `t`, by van't Hoff
-    /// from ΔH° and ΔCp° where known; without ΔH° the 25 °C value is returned unchanged.
+    /// pKa of step `step` (0-based, most protonated first) at temperature `t`: from the
+    /// step's analytic equation where it has one, else by van't Hoff from ΔH° and ΔCp° where
+    /// known; without either the 25 °C value is returned unchanged. See [`crate::vant_hoff`]
+    /// for the range each way is trusted over; a solve says in its warnings where a step
+    /// falls short.
     ///
     /// ```
     /// use protolyte::{Protolyte, Temperature};
@@ -284,11 +389,16 @@ impl Protolyte {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn pka_at(&self, step: usize, t: Temperature) -> f64 {
-        let s = &self.steps[step.min(self.steps.len() - 1)];
-        match s.dh_kj_per_mol {
-            Some(dh) => -vant_hoff::log10_k_at(-s.pka, dh, s.dcp_j_per_mol_k.unwrap_or(0.0), t),
-            None => s.pka,
-        }
+        self.pka_and_gap_at(step, t).0
+    }
+
+    /// pKa of step `step` at `t` and what falls short in its temperature data at `t`.
+    pub(crate) fn pka_and_gap_at(&self, step: usize, t: Temperature) -> (f64, Option<TemperatureGap>) {
+        let i = step.min(self.steps.len() - 1);
+        let s = &self.steps[i];
+        let basis = TemperatureBasis::from_data(self.equations[i], s.dh_kj_per_mol, s.dcp_j_per_mol_k);
+        let (lk, gap) = basis.log10_k(-s.pka, t);
+        (-lk, gap)
     }
 
     /// A display name for the form with `protons` bound protons, built from the formula of

@@ -18,7 +18,6 @@ use crate::protolyte::Protolyte;
 use crate::quantity::Temperature;
 use crate::reagent::Constituent;
 use crate::recipe::Recipe;
-use crate::vant_hoff;
 use crate::warning::Warning;
 use crate::water;
 
@@ -255,7 +254,6 @@ impl System {
             below_floor[c] = floored;
         }
         let mut warnings = Vec::new();
-        let off_standard = (t.kelvin() - Temperature::STANDARD.kelvin()).abs() > 1e-6;
         // Species rows.
         let nc_guess = b.components.len();
         let mut rows: Vec<(Species, Vec<(usize, f64)>)> = Vec::new();
@@ -283,13 +281,16 @@ impl System {
         for (fi, fam) in b.families.iter_mut().enumerate() {
             let p = &fam.protolyte;
             let n = p.proton_count();
-            if off_standard && p.steps().iter().any(|s| s.dh_kj_per_mol.is_none()) {
-                warnings.push(Warning::NoEnthalpyData {
-                    name: p.name().to_string(),
-                    temperature_celsius: tc,
-                });
+            let mut pkas = Vec::with_capacity(n);
+            for i in 0..n {
+                let (pka, gap) = p.pka_and_gap_at(i, t);
+                pkas.push(pka);
+                if let Some(gap) = gap {
+                    // Step i (0-based) takes form n − i to form n − i − 1.
+                    let forms = (p.form_name(n - i), p.form_name(n - i - 1));
+                    warnings.push(Warning::from_gap(p.name(), Some((i + 1, forms)), gap, tc));
+                }
             }
-            let pkas: Vec<f64> = (0..n).map(|i| p.pka_at(i, t)).collect();
             fam.forms.clear();
             for j in 0..=n {
                 // log β_j = Σ of the last j pKa values (protonation of the base j times).
@@ -329,13 +330,10 @@ impl System {
             let Some(stoich) = b.complex_stoichiometry(cx)? else {
                 continue; // a part is absent from the recipe
             };
-            if off_standard && cx.dh_kj_per_mol().is_none() {
-                warnings.push(Warning::NoEnthalpyData {
-                    name: cx.name().to_string(),
-                    temperature_celsius: tc,
-                });
+            let (lk, gap) = cx.log10_beta_and_gap_at(t);
+            if let Some(gap) = gap {
+                warnings.push(Warning::from_gap(cx.name(), None, gap, tc));
             }
-            let lk = vant_hoff::log10_k_at(cx.log10_beta(), cx.dh_kj_per_mol().unwrap_or(0.0), 0.0, t);
             rows.push((
                 Species {
                     name: cx.name().into(),

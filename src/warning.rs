@@ -1,6 +1,7 @@
 //! Warnings: what the caller should know about a result that is nevertheless returned.
 
 use crate::activity::{ActivityModel, PhConvention};
+use crate::vant_hoff::{TemperatureGap, ValidityRange};
 
 /// Something the caller should know about a result that is nevertheless returned.
 #[derive(Debug, Clone, PartialEq)]
@@ -36,11 +37,31 @@ pub enum Warning {
         /// The ionic strength up to which the convention is defined, mol/kg.
         limit_molal: f64,
     },
-    /// A family or complex was used away from 25 °C without enthalpy data: its 25 °C
-    /// constants were used unchanged.
-    NoEnthalpyData {
+    /// One reaction (a family's step or a complex) lacks a datum its constant needs at the
+    /// system's temperature: without ΔH° its 25 °C constant was used unchanged; without
+    /// ΔCp°, van't Hoff with ΔH° alone was used outside the range where that is trusted
+    /// ([`crate::vant_hoff::ENTHALPY_ONLY_RANGE`]).
+    TemperatureDataMissing {
         /// Family or complex name.
         name: String,
+        /// For a family: the step (1 = the most protonated form's dissociation) and its
+        /// form pair (acid form, base form); `None` for a complex.
+        step: Option<(usize, (String, String))>,
+        /// The missing datum.
+        datum: TemperatureDatum,
+        /// The temperature of the system, °C.
+        temperature_celsius: f64,
+    },
+    /// One reaction's constant was computed outside the temperature range its method is
+    /// trusted over: an analytic equation outside its fitted range, or van't Hoff with a
+    /// constant ΔCp° outside [`crate::vant_hoff::CONSTANT_HEAT_CAPACITY_RANGE`].
+    TemperatureBeyondRange {
+        /// Family or complex name.
+        name: String,
+        /// For a family: the step (1 = most protonated) and its form pair; `None` for a complex.
+        step: Option<(usize, (String, String))>,
+        /// The range over which the method is trusted.
+        range: ValidityRange,
         /// The temperature of the system, °C.
         temperature_celsius: f64,
     },
@@ -75,6 +96,52 @@ pub enum Warning {
         /// The promise it misses.
         promise: f64,
     },
+}
+
+/// A thermodynamic datum a constant's temperature dependence needs.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum TemperatureDatum {
+    /// The standard reaction enthalpy ΔH°.
+    Enthalpy,
+    /// The standard heat-capacity change ΔCp°.
+    HeatCapacity,
+}
+
+impl Warning {
+    pub(crate) fn from_gap(
+        name: &str,
+        step: Option<(usize, (String, String))>,
+        gap: TemperatureGap,
+        temperature_celsius: f64,
+    ) -> Warning {
+        let name = name.to_string();
+        match gap {
+            TemperatureGap::NoEnthalpy | TemperatureGap::NoHeatCapacity => Warning::TemperatureDataMissing {
+                name,
+                step,
+                datum: if gap == TemperatureGap::NoEnthalpy {
+                    TemperatureDatum::Enthalpy
+                } else {
+                    TemperatureDatum::HeatCapacity
+                },
+                temperature_celsius,
+            },
+            TemperatureGap::BeyondRange(range) => Warning::TemperatureBeyondRange {
+                name,
+                step,
+                range,
+                temperature_celsius,
+            },
+        }
+    }
+}
+
+/// "phosphate step 2 (H2PO4- → HPO42- + H+)" or the complex's name.
+fn reaction_label(name: &str, step: &Option<(usize, (String, String))>) -> String {
+    match step {
+        Some((k, (acid, base))) => format!("{name} step {k} ({acid} → {base} + H+)"),
+        None => name.to_string(),
+    }
 }
 
 impl std::fmt::Display for Warning {
@@ -113,12 +180,34 @@ impl std::fmt::Display for Warning {
                 "the {} pH convention is defined up to I = {limit_molal} mol/kg; at {ionic_strength_molal:.3} mol/kg the reported pH extrapolates it",
                 convention.name()
             ),
-            Warning::NoEnthalpyData {
+            Warning::TemperatureDataMissing {
                 name,
+                step,
+                datum,
+                temperature_celsius,
+            } => {
+                let what = reaction_label(name, step);
+                match datum {
+                    TemperatureDatum::Enthalpy => write!(
+                        f,
+                        "{what}: no ΔH°, so its 25 °C constant was used unchanged at {temperature_celsius} °C"
+                    ),
+                    TemperatureDatum::HeatCapacity => write!(
+                        f,
+                        "{what}: no ΔCp°, so van't Hoff with ΔH° alone was used at {temperature_celsius} °C, outside {} where that is trusted",
+                        crate::vant_hoff::ENTHALPY_ONLY_RANGE
+                    ),
+                }
+            }
+            Warning::TemperatureBeyondRange {
+                name,
+                step,
+                range,
                 temperature_celsius,
             } => write!(
                 f,
-                "{name}: no enthalpy data, so its 25 °C constants were used unchanged at {temperature_celsius} °C"
+                "{}: its temperature dependence was used at {temperature_celsius} °C, outside its trusted range {range}",
+                reaction_label(name, step)
             ),
             Warning::TotalBelowFloor {
                 component,

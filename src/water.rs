@@ -8,9 +8,35 @@
 //!   **56** (1956) 1–8, 0–100 °C;
 //! - Kw: W. L. Marshall and E. U. Franck, *J. Phys. Chem. Ref. Data* **10** (1981) 295–304,
 //!   log Kw as a function of temperature and the density of water (molal scale).
+//!
+//! Each function states the range its source covers ([`DENSITY_RANGE`],
+//! [`DIELECTRIC_RANGE`], [`KW_RANGE`]). The functions compute only within the library's
+//! temperature domain, 0–100 °C, which lies inside every one of these ranges, and refuse a
+//! temperature outside it; so no result uses them outside their sources' range.
 
 use crate::error::{Result, check_temperature};
 use crate::quantity::Temperature;
+use crate::vant_hoff::ValidityRange;
+
+/// The range of Kell's (1975) 1-atm density equation: 0–150 °C.
+pub const DENSITY_RANGE: ValidityRange = ValidityRange {
+    min_celsius: 0.0,
+    max_celsius: 150.0,
+};
+
+/// The range of Malmberg and Maryott's (1956) measurements and equation: 0–100 °C.
+pub const DIELECTRIC_RANGE: ValidityRange = ValidityRange {
+    min_celsius: 0.0,
+    max_celsius: 100.0,
+};
+
+/// The range of Marshall and Franck's (1981) Kw equation as used here: the equation covers
+/// 0–1000 °C (to 1000 MPa), but here it is evaluated at the 1-atm density of
+/// [`density_kg_per_l`], so the density equation's range (0–150 °C) is the one that binds.
+pub const KW_RANGE: ValidityRange = ValidityRange {
+    min_celsius: 0.0,
+    max_celsius: 150.0,
+};
 
 /// Density of pure liquid water at 1 atm, in kg/L (Kell 1975). Refuses a temperature
 /// outside 0–100 °C with [`Error::OutOfDomain`](crate::Error::OutOfDomain).

@@ -226,6 +226,69 @@ fn data_lists_and_searches_with_sources() {
 }
 
 #[test]
+fn data_json_gives_structured_fields() {
+    // Phosphate as entered from R. N. Goldberg, N. Kishore, R. M. Lennen, J. Phys. Chem. Ref.
+    // Data 31 (2002) 231: pKa 2.148, 7.198, 12.35; ΔH°1 = −8.0 kJ/mol, ΔCp°1 = −141 J/(mol·K).
+    let o = protolyte(&["data", "--json", "orthophosphoric"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    let p = all.iter().find(|e| e["kind"] == "protolyte").unwrap();
+    let pk: Vec<f64> = p["steps"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| s["pka"].as_f64().unwrap())
+        .collect();
+    assert_eq!(pk, [2.148, 7.198, 12.35]);
+    assert_eq!(p["steps"][0]["dh_kj_per_mol"], -8.0);
+    assert_eq!(p["steps"][0]["dcp_j_per_mol_k"], -141.0);
+    assert_eq!(p["forms"][1]["name"], "H2PO4-");
+    assert_eq!(p["forms"][3]["charge"], -3);
+    assert_eq!(p["from_memory"], true);
+    // H3PO4: 97.994 g/mol from the IUPAC 2021 abridged atomic weights.
+    assert!((p["molar_mass_g_per_mol"].as_f64().unwrap() - 97.994).abs() < 1e-9);
+}
+
+#[test]
+fn catalog_option_adds_entries_for_documents_and_names_the_line_of_an_error() {
+    // An invented laboratory acid (demo data).
+    let cat = temp_file(
+        "lab-catalog.toml",
+        "format = \"protolyte-catalog/1\"\n\n[[family]]\nname = \"lab acid q\"\ncharge_most_protonated = 0\nsteps = [{ pka = 5.0 }]\nsource = \"invented\"\n\n[[reagent]]\nname = \"acid q\"\nparts = [{ family = \"lab acid q\", protons = 1 }]\nsource = \"invented\"\n",
+    );
+    let recipe = temp_file(
+        "q.json",
+        r#"{"format": "protolyte-recipe/1", "activity": "ideal", "reagents": [{"reagent": "acid q", "molar": 0.01}]}"#,
+    );
+    let o = protolyte(&[
+        "solve",
+        "--json",
+        "--catalog",
+        cat.to_str().unwrap(),
+        recipe.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let r: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
+    // 0.01 mol/L of a pKa 5 acid: pH 3.5 to within 0.01 (the square-root approximation; common practice).
+    assert!((r.ph - 3.5).abs() < 0.02, "{}", r.ph);
+    // Without the file the reagent is unknown.
+    let o = protolyte(&["solve", recipe.to_str().unwrap()]);
+    assert_ne!(o.status.code(), Some(0));
+    // An error in the catalogue file names its file, line and field.
+    let bad = temp_file(
+        "bad-catalog.toml",
+        "format = \"protolyte-catalog/1\"\n[[family]]\nname = \"y\"\ncharge_most_protonated = 0\nsteps = [{ pka = 7.0 }, { pka = 3.0 }]\nsource = \"s\"\n",
+    );
+    let o = protolyte(&["data", "--catalog", bad.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3), "{}", stderr(&o)); // bad input
+    let msg = stderr(&o);
+    assert!(
+        msg.contains("bad-catalog.toml:5:") && msg.contains("steps[1].pka"),
+        "{msg}"
+    );
+}
+
+#[test]
 fn plot_option_writes_svg() {
     let dir = std::env::temp_dir().join(format!("protolyte-cli-plot-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();

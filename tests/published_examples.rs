@@ -889,7 +889,7 @@ fn metal_ligand_ca_edta_conditional_constant() {
 /// Equimolal phosphate at 37 °C: pH(S) 6.841; at 0 °C 6.984 (Buck et al. 2002; Bates 1973 —
 /// from memory; JIS Z 8802 gives 6.84 at 35 and 40 °C and 6.98 at 0 °C, read from a
 /// reproduction). Physiological phosphate at 37 °C: 7.385 (same sources, from memory).
-/// Phosphate has ΔH° and ΔCp° in the built-in data, so no NoEnthalpyData warning.
+/// Phosphate has ΔH° and ΔCp° in the built-in data, so no TemperatureDataMissing warning.
 #[test]
 fn ph_standard_phosphate_at_37c_and_0c() {
     for (t, published) in [(37.0, 6.841), (0.0, 6.984)] {
@@ -903,7 +903,7 @@ fn ph_standard_phosphate_at_37c_and_0c() {
         assert!(
             !eq.warnings()
                 .iter()
-                .any(|w| matches!(w, Warning::NoEnthalpyData { .. })),
+                .any(|w| matches!(w, Warning::TemperatureDataMissing { .. })),
             "phosphate has enthalpy data: {:?}",
             eq.warnings()
         );
@@ -927,25 +927,26 @@ fn ph_standard_borax_and_carbonate_off_25c() {
 
 /// KHP at 37 °C: pH = 4.000 + 0.0000479 (t − 15)² = 4.023 (W. J. Hamer, G. D. Pinching,
 /// S. F. Acree, J. Res. NBS 36 (1946) 47, equation read from a stored copy of the abstract;
-/// Buck et al. 2002 give 4.022, from memory). The built-in phthalate lacks ΔH° for its first
-/// step, so a NoEnthalpyData warning is expected (the first step matters little at pH 4).
+/// Buck et al. 2002 give 4.022, from memory). A TemperatureDataMissing warning is expected
+/// exactly when a phthalate step has neither ΔH° nor a log K(T) equation.
 #[test]
 fn ph_standard_khp_at_37c_warns_about_missing_enthalpy() {
     let published = 4.000 + 0.0000479 * (37.0f64 - 15.0).powi(2);
     let eq = standard_ph(&[(khp_builtin(), 0.05)], 37.0);
     assert_close("KHP at 37 °C", eq.ph(), published, PH_STANDARD_TOL);
-    let phthalate_has_all = builtin_family("phthalate")
+    let phthalate = builtin_family("phthalate");
+    let phthalate_has_all = phthalate
         .steps()
         .iter()
-        .all(|s| s.dh_kj_per_mol.is_some());
-    let warned = eq
-        .warnings()
-        .iter()
-        .any(|w| matches!(w, Warning::NoEnthalpyData { name, .. } if AsRef::<str>::as_ref(name) == "phthalate"));
+        .enumerate()
+        .all(|(k, s)| s.dh_kj_per_mol.is_some() || phthalate.log_k_equation(k).is_some());
+    let warned = eq.warnings().iter().any(
+        |w| matches!(w, Warning::TemperatureDataMissing { name, .. } if AsRef::<str>::as_ref(name) == "phthalate"),
+    );
     assert_eq!(
         warned,
         !phthalate_has_all,
-        "NoEnthalpyData warning iff a step lacks ΔH°: {:?}",
+        "TemperatureDataMissing warning iff a step lacks ΔH° and an equation: {:?}",
         eq.warnings()
     );
 }

@@ -64,10 +64,19 @@ const ODD: &[&str] = &[
     "acetate ",
 ];
 
+/// A name. The first variant is what an exhausted input gives (zeros): a user name, so that
+/// short inputs still define things.
 #[derive(Arbitrary, Debug, Clone)]
 enum Name {
-    Builtin(u8),
     User(u8),
+    User2(u8),
+    Builtin(u8),
+    Weird(WeirdName),
+}
+
+/// A rarer name: long, odd or free.
+#[derive(Arbitrary, Debug, Clone)]
+enum WeirdName {
     Long(u16),
     Odd(u8),
     Free(String),
@@ -77,11 +86,11 @@ impl Name {
     fn text(&self) -> String {
         match self {
             Name::Builtin(k) => BUILTIN[*k as usize % BUILTIN.len()].to_string(),
-            Name::User(k) => format!("u{}", k % 6),
+            Name::User(k) | Name::User2(k) => format!("u{}", k % 6),
             // Around the 200-character limit.
-            Name::Long(n) => "L".repeat(150 + (*n as usize % 120)),
-            Name::Odd(k) => ODD[*k as usize % ODD.len()].to_string(),
-            Name::Free(s) => s.chars().take(300).collect(),
+            Name::Weird(WeirdName::Long(n)) => "L".repeat(150 + (*n as usize % 120)),
+            Name::Weird(WeirdName::Odd(k)) => ODD[*k as usize % ODD.len()].to_string(),
+            Name::Weird(WeirdName::Free(s)) => s.chars().take(300).collect(),
         }
     }
 }
@@ -110,8 +119,13 @@ const EDGE_INTS: &[i64] = &[
     i64::MAX,
 ];
 
+/// An integer: mostly a small one (−3..3, as counts and charges are), sometimes any `i8`,
+/// sometimes an edge value.
 #[derive(Arbitrary, Debug, Clone, Copy)]
 enum Int {
+    Tiny(u8),
+    Tiny2(u8),
+    Tiny3(u8),
     Small(i8),
     Edge(u8),
 }
@@ -119,6 +133,7 @@ enum Int {
 impl Int {
     fn value(self) -> i64 {
         match self {
+            Int::Tiny(k) | Int::Tiny2(k) | Int::Tiny3(k) => (k % 7) as i64 - 3,
             Int::Small(v) => v as i64,
             Int::Edge(k) => EDGE_INTS[k as usize % EDGE_INTS.len()],
         }
@@ -130,16 +145,19 @@ const NICE: &[f64] = &[
     20.0, 25.0, 37.0, 60.0, 99.9, 100.0, 100.1, 1e3, 1e6, 1e12, 1e305, 1e308, -1.0, -1e-9, -3.0, -273.15,
 ];
 
+/// A number: mostly from the list above, sometimes any `f64`.
 #[derive(Arbitrary, Debug, Clone, Copy)]
 enum Real {
     Nice(u8),
+    Nice2(u8),
+    Nice3(u8),
     Raw(f64),
 }
 
 impl Real {
     fn value(self) -> Value {
         let x = match self {
-            Real::Nice(k) => NICE[k as usize % NICE.len()],
+            Real::Nice(k) | Real::Nice2(k) | Real::Nice3(k) => NICE[k as usize % NICE.len()],
             Real::Raw(x) => x,
         };
         // JSON has no NaN or infinity: they become null (a type error, as a user would get).
@@ -151,7 +169,8 @@ impl Real {
 struct ProtolyteDef {
     name: Name,
     pka: Vec<Real>,
-    many_pka: Option<u8>,
+    /// 250 and above add 60 to 80 more pKa values (past every limit).
+    many_pka: u8,
     charge: Int,
     synonyms: Vec<Name>,
     ion_size: Option<Real>,
@@ -207,9 +226,50 @@ enum AmountDef {
     Two(Real, Real),
 }
 
+/// Reagents of the catalogue for recipe lines (strong acids and bases first, for the sign
+/// checks).
+const REAGENTS: &[&str] = &[
+    "hydrochloric acid",
+    "sodium hydroxide",
+    "nitric acid",
+    "potassium hydroxide",
+    "perchloric acid",
+    "acetic acid",
+    "sodium acetate",
+    "sodium chloride",
+    "ammonium chloride",
+    "calcium chloride",
+    "sodium dihydrogen phosphate",
+    "disodium hydrogen phosphate",
+    "sodium bicarbonate",
+    "sodium carbonate",
+    "tris base",
+    "citric acid",
+    "glycine",
+];
+
+/// The reagent of a recipe line: the catalogue's (first: what zeros give), a user's, or any
+/// name.
+#[derive(Arbitrary, Debug, Clone)]
+enum LineName {
+    Reagent(u8),
+    User(u8),
+    Other(Name),
+}
+
+impl LineName {
+    fn text(&self) -> String {
+        match self {
+            LineName::Reagent(k) => REAGENTS[*k as usize % REAGENTS.len()].to_string(),
+            LineName::User(k) => format!("u{}", k % 6),
+            LineName::Other(n) => n.text(),
+        }
+    }
+}
+
 #[derive(Arbitrary, Debug, Clone)]
 struct Line {
-    reagent: Name,
+    reagent: LineName,
     amount: AmountDef,
 }
 
@@ -231,8 +291,8 @@ struct Doc {
     reagents: Vec<ReagentDef>,
     complexes: Vec<ComplexDef>,
     lines: Vec<Line>,
-    /// Repeats the lines to many entries (past the per-document limit).
-    repeat: Option<u8>,
+    /// 255 repeats the lines to many entries (past the per-document limit).
+    repeat: u8,
     named_complexes: Vec<Name>,
     include_catalog: bool,
     titration: Option<TitrationDef>,
@@ -272,12 +332,9 @@ fn line(l: &Line) -> Value {
     Value::Object(m)
 }
 
-fn lines(v: &[Line], repeat: Option<u8>) -> Value {
+fn lines(v: &[Line], repeat: u8) -> Value {
     let base: Vec<Value> = v.iter().take(6).map(line).collect();
-    let times = match repeat {
-        Some(r) if !base.is_empty() => 1 + (r as usize) * 8,
-        _ => 1,
-    };
+    let times = if repeat == 255 { 200 } else { 1 };
     Value::Array(base.iter().cycle().take(base.len() * times).cloned().collect())
 }
 
@@ -290,8 +347,9 @@ fn definitions(d: &Doc) -> Option<Value> {
             .take(4)
             .map(|p| {
                 let mut pka: Vec<Value> = p.pka.iter().take(6).map(|x| x.value()).collect();
-                if let Some(n) = p.many_pka {
-                    pka.extend((0..n as usize % 80).map(|i| json!(2.0 + i as f64 * 0.1)));
+                if p.many_pka >= 250 {
+                    let n = 60 + 4 * (p.many_pka as usize - 250);
+                    pka.extend((0..n).map(|i| json!(2.0 + i as f64 * 0.1)));
                 }
                 let mut o = json!({
                     "name": p.name.text(),
@@ -432,7 +490,7 @@ fn render(d: &Doc) -> String {
                 "analyte".into(),
                 json!({"volume_ml": t.volume_ml.value(), "reagents": lines(&d.lines, d.repeat)}),
             );
-            m.insert("titrant".into(), json!({"reagents": lines(&t.titrant, None)}));
+            m.insert("titrant".into(), json!({"reagents": lines(&t.titrant, 0)}));
             m.insert("end_volume_ml".into(), t.end_volume_ml.value());
             m.insert("points".into(), json!(t.points as usize % 30));
         }

@@ -338,3 +338,8 @@ pub(crate) fn ph_convention_shift_dln_i(
         }
     }
 }
+
+/// The temperature range of the Debye–Hückel constants A(T) and B(T): that of the relative
+/// permittivity of water they are computed from (Malmberg & Maryott 1956, 0–100 °C,
+/// [`water::DIELECTRIC_RANGE`]); [`DebyeHuckelConstants::at`] refuses a temperature outside it.
+pub const DEBYE_HUCKEL_RANGE: crate::vant_hoff::ValidityRange = water::DIELECTRIC_RANGE;

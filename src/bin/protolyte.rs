@@ -8,6 +8,7 @@ use std::fs::File;
 use std::io::{self, BufRead, BufReader, BufWriter, IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+use std::sync::OnceLock;
 use std::time::Instant;
 
 use clap::{Parser, Subcommand};
@@ -18,7 +19,7 @@ use protolyte::document::{
     TitrationResult,
 };
 use protolyte::plot::{PlotError, PlotOptions, distribution_plot, titration_svg, write_svg};
-use protolyte::{Catalog, Error};
+use protolyte::{Catalog, DataKind, Error};
 
 /// Exit codes.
 const EXIT_OK: u8 = 0;
@@ -30,13 +31,15 @@ const EXIT_OUTPUT: u8 = 5;
 
 const AFTER_HELP: &str = "\
 Exit codes:
-  0  success
-  1  batch: some lines failed (each has an error record in the output)
-  2  the command line is wrong (unknown option, missing argument)
-  3  the input cannot be read or is refused (the message names file, line and column, or the
-     field), or is over an input limit (docs/cli.md)
-  4  the solver did not converge
-  5  the output could not be written (with --plot: the result was written, the plot was not)
+    0  success
+    1  batch: some lines failed (each has an error record in the output)
+    2  the command line is wrong (unknown option, missing argument)
+    3  the input cannot be read or is refused (the message names file, line and column, or the
+       field), or is over an input limit (docs/cli.md)
+    4  the solver did not converge
+    5  the output could not be written (with --plot: the result was written, the plot was not)
+  101  an internal failure (a bug; please report it). In batch, a line that hits one gets an
+       \"internal\" error record instead and the run goes on
 
 Documents are JSON or TOML; see docs/recipe-format.md.";
 
@@ -45,6 +48,31 @@ Documents are JSON or TOML; see docs/recipe-format.md.";
 struct Cli {
     #[command(subcommand)]
     command: Command,
+    /// Also read this catalogue file (`protolyte-catalog/1`, see docs/catalog-format.md):
+    /// entries added beside the built-in ones, or replacing them where an entry says
+    /// `replace = true`. May be given more than once; read in order.
+    #[arg(long, global = true, value_name = "FILE")]
+    catalog: Vec<PathBuf>,
+}
+
+/// The catalogue of this run: the built-in one with the `--catalog` files read in.
+static CATALOG: OnceLock<Catalog> = OnceLock::new();
+
+fn catalog() -> &'static Catalog {
+    CATALOG.get_or_init(Catalog::builtin)
+}
+
+/// Reads the `--catalog` files once, before any command looks a name up.
+fn load_catalog(files: &[PathBuf]) -> Result<(), Failure> {
+    let mut cat = Catalog::builtin();
+    for f in files {
+        cat = cat.with_file(f).map_err(|e| Failure {
+            code: EXIT_BAD_INPUT,
+            message: e.to_string(),
+        })?;
+    }
+    let _ = CATALOG.set(cat);
+    Ok(())
 }
 
 #[derive(Subcommand)]
@@ -102,7 +130,8 @@ enum Command {
         #[arg(long)]
         quiet: bool,
     },
-    /// List or search the built-in catalogue (acid–base families, ions, reagents, complexes)
+    /// List or search the catalogue (acid–base families, ions, reagents, complexes; built in
+    /// and from `--catalog` files)
     /// with the published source of each entry.
     Data {
         /// Part of a name, synonym or formula; without it, everything is listed.
@@ -156,7 +185,7 @@ fn main() -> ExitCode {
         }));
     }
     let cli = Cli::parse();
-    match run(cli.command) {
+    match load_catalog(&cli.catalog).and_then(|()| run(cli.command)) {
         Ok(code) => ExitCode::from(code),
         // A reader that closed the pipe early (e.g. `| head`) wanted no more: no message.
         Err(f) if f.code == EXIT_OUTPUT && f.message.contains("Broken pipe") => ExitCode::from(EXIT_OK),
@@ -224,7 +253,7 @@ fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> 
     let name = display_name(file);
     let doc: RecipeDoc = document::load(file)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let (recipe, conditions) = doc.to_recipe(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let (recipe, conditions) = doc.to_recipe(catalog()).map_err(|e| e.in_file(&name))?;
     let eq = recipe
         .compile(&conditions)
         .and_then(|s| s.solve())
@@ -317,7 +346,7 @@ fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -
     let name = display_name(file);
     let doc: TitrationDoc = document::load(file)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let t = doc.to_titration(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let t = doc.to_titration(catalog()).map_err(|e| e.in_file(&name))?;
     let curve: Vec<TitrationPoint> = match doc.uniform_points().map_err(|e| e.in_file(&name))? {
         Some(n) => t.curve_uniform(doc.end_volume().map_err(|e| e.in_file(&name))?, n),
         None => t.curve_adaptive(&doc.stepping().map_err(|e| e.in_file(&name))?),
@@ -401,7 +430,7 @@ fn design(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> 
     let name = display_name(file);
     let doc: DesignDoc = document::load(file)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let spec = doc.to_spec(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let spec = doc.to_spec(catalog()).map_err(|e| e.in_file(&name))?;
     let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
     let r = spec.design().map_err(|e| chem(&name, e))?;
     let mut result = DesignResult::from_recipe(&r, &conditions);
@@ -475,7 +504,7 @@ fn fit(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     let name = display_name(file);
     let doc: FitDoc = document::load(file)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let f = doc.to_fit(&Catalog::builtin()).map_err(|e| e.in_file(&name))?;
+    let f = doc.to_fit(catalog()).map_err(|e| e.in_file(&name))?;
     let report = f.run().map_err(|e| chem(&name, e))?;
     let mut result = FitResult::from(&report);
     result.name = doc.name.clone();
@@ -573,7 +602,7 @@ fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Res
     let summary = batch::run(
         input,
         sink,
-        &Catalog::builtin(),
+        catalog(),
         &BatchOptions {
             full,
             ..Default::default()
@@ -634,7 +663,7 @@ fn draw_bar(bytes: u64, total: Option<u64>, lines: usize, start: Instant) {
 }
 
 fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
-    let cat = Catalog::builtin();
+    let cat = catalog();
     let entries: Vec<&protolyte::DataInfo> = match query {
         Some(q) => cat.search(q),
         None => cat.entries().iter().collect(),
@@ -643,15 +672,48 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
         let v: Vec<serde_json::Value> = entries
             .iter()
             .map(|e| {
-                serde_json::json!({
+                let mut v = serde_json::json!({
                     "kind": e.kind.name(),
                     "name": e.name,
                     "synonyms": e.synonyms,
                     "formula": e.formula,
+                    "charge": e.charge,
+                    "molar_mass_g_per_mol": e.molar_mass_g_per_mol,
+                    "ion_size_angstrom": e.ion_size_angstrom,
                     "summary": e.summary,
                     "source": e.source,
                     "from_memory": e.from_memory,
-                })
+                    "origin": e.origin,
+                });
+                let fields = match e.kind {
+                    DataKind::Protolyte => serde_json::json!({
+                        "steps": e.steps.iter().enumerate().map(|(k, s)| serde_json::json!({
+                            "pka": s.pka,
+                            "dh_kj_per_mol": s.dh_kj_per_mol,
+                            "dcp_j_per_mol_k": s.dcp_j_per_mol_k,
+                            "log_k_equation": equation_json(e.log_k_equations.get(k).copied().flatten()),
+                        })).collect::<Vec<_>>(),
+                        "forms": e.forms.iter().map(|f| serde_json::json!({
+                            "name": f.name,
+                            "protons": f.protons,
+                            "charge": f.charge,
+                            "ion_size_angstrom": f.ion_size_angstrom,
+                        })).collect::<Vec<_>>(),
+                    }),
+                    DataKind::Complex => serde_json::json!({
+                        "log10_beta": e.log10_beta,
+                        "dh_kj_per_mol": e.dh_kj_per_mol,
+                        "dcp_j_per_mol_k": e.dcp_j_per_mol_k,
+                        "log_k_equation": equation_json(e.log_k_equations.first().copied().flatten()),
+                        "parts": e.parts,
+                    }),
+                    DataKind::Reagent => serde_json::json!({ "parts": e.parts }),
+                    DataKind::Ion => serde_json::json!({}),
+                };
+                if let (Some(v), serde_json::Value::Object(extra)) = (v.as_object_mut(), fields) {
+                    v.extend(extra);
+                }
+                v
             })
             .collect();
         write_json(out, &v)?;
@@ -661,6 +723,40 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
         for e in &entries {
             writeln!(out, "{:<9} {}  [{}]", e.kind.name(), e.name, e.formula)?;
             writeln!(out, "          {}", e.summary)?;
+            for (k, s) in e.steps.iter().enumerate() {
+                let mut line = format!("          step {}: pKa {}", k + 1, s.pka);
+                if let Some(h) = s.dh_kj_per_mol {
+                    line += &format!(", ΔH° {h} kJ/mol");
+                }
+                if let Some(c) = s.dcp_j_per_mol_k {
+                    line += &format!(", ΔCp° {c} J/(mol·K)");
+                }
+                if let Some(q) = e.log_k_equations.get(k).copied().flatten() {
+                    line += &format!(", {}", equation_text(q));
+                }
+                writeln!(out, "{line}")?;
+            }
+            if e.kind == DataKind::Complex
+                && let Some(q) = e.log_k_equations.first().copied().flatten()
+            {
+                writeln!(out, "          {}", equation_text(q))?;
+            }
+            if e.forms.iter().any(|f| f.ion_size_angstrom.is_some()) {
+                let sizes: Vec<String> = e
+                    .forms
+                    .iter()
+                    .map(|f| match f.ion_size_angstrom {
+                        Some(a) => format!("{} {a}", f.name),
+                        None => format!("{} -", f.name),
+                    })
+                    .collect();
+                writeln!(out, "          ion sizes (Å): {}", sizes.join(", "))?;
+            } else if let Some(a) = e.ion_size_angstrom {
+                writeln!(out, "          ion size {a} Å")?;
+            }
+            if !e.parts.is_empty() {
+                writeln!(out, "          parts: {}", e.parts.join(", "))?;
+            }
             if !e.synonyms.is_empty() {
                 writeln!(out, "          also: {}", e.synonyms.join(", "))?;
             }
@@ -675,4 +771,28 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
     };
     w(out).map_err(output_failure)?;
     Ok(EXIT_OK)
+}
+
+/// A log K(T) equation as JSON: its coefficients [a, b, c, d, e] and fitted range.
+fn equation_json(q: Option<protolyte::vant_hoff::LogKEquation>) -> serde_json::Value {
+    match q {
+        Some(q) => serde_json::json!({
+            "coefficients": q.coefficients(),
+            "range_celsius": [q.range().min_celsius, q.range().max_celsius],
+        }),
+        None => serde_json::Value::Null,
+    }
+}
+
+/// "log K = a + b·T + c/T + d·log T + e/T² (0–60 °C)" with the coefficients, zero terms left out.
+fn equation_text(q: protolyte::vant_hoff::LogKEquation) -> String {
+    let [a, b, c, d, e] = q.coefficients();
+    let mut t = format!("log K = {a}");
+    for (v, unit) in [(b, "·T"), (c, "/T"), (d, "·log T"), (e, "/T²")] {
+        if v != 0.0 {
+            let sign = if v < 0.0 { '−' } else { '+' };
+            t += &format!(" {sign} {}{unit}", v.abs());
+        }
+    }
+    format!("{t} ({})", q.range())
 }

@@ -1,25 +1,42 @@
-//! Built-in data: acid–base families, simple ions, reagents and complexes, each row with its
-//! published source, and the [`Catalog`] that looks them up by name or synonym and takes a
-//! user's own definitions beside them.
+//! The catalogue: acid–base families, simple ions, reagents and complexes, each entry with
+//! its published source, looked up by name or synonym.
+//!
+//! The built-in entries live in the data files `data/families.toml`, `data/ions.toml`,
+//! `data/reagents.toml` and `data/complexes.toml` (format `protolyte-catalog/1`, documented in
+//! `docs/catalog-format.md`), embedded at build time and read once. A user's own files in the
+//! same format add entries or replace built-in ones ([`Catalog::with_file`]).
 
-mod complexes;
-mod ions;
-mod protolytes;
-mod reagents;
-mod records;
+mod format;
+mod formula;
 
+pub use formula::molar_mass_from_formula;
+
+use std::collections::{BTreeMap, HashMap};
+use std::path::Path;
 use std::sync::OnceLock;
 
-use records::{ComplexPartRecord, PartRecord};
+use format::{
+    CATALOG_FORMAT, CatalogFile, ComplexEntry, EquationEntry, FamilyEntry, IonEntry, Located, PartEntry, ReagentEntry,
+};
+use toml::Spanned;
 
 use crate::complex::{Complex, ComplexPart};
-use crate::error::{Error, Result};
+use crate::error::{CatalogFileError, Error, Result};
 use crate::ion::Ion;
 use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
+use crate::vant_hoff::{LogKEquation, ValidityRange};
+
+/// The built-in data files, embedded at build time: (name shown in messages, text).
+const BUILTIN_FILES: [(&str, &str); 4] = [
+    ("data/families.toml", include_str!("../../data/families.toml")),
+    ("data/ions.toml", include_str!("../../data/ions.toml")),
+    ("data/reagents.toml", include_str!("../../data/reagents.toml")),
+    ("data/complexes.toml", include_str!("../../data/complexes.toml")),
+];
 
 /// What kind of thing a catalog entry is.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum DataKind {
     /// An acid–base family.
     Protolyte,
@@ -41,9 +58,34 @@ impl DataKind {
             DataKind::Complex => "complex",
         }
     }
+
+    /// The table name of this kind in a catalogue file: "family", "ion", "reagent", "complex".
+    fn table(self) -> &'static str {
+        match self {
+            DataKind::Protolyte => "family",
+            DataKind::Ion => "ion",
+            DataKind::Reagent => "reagent",
+            DataKind::Complex => "complex",
+        }
+    }
 }
 
-/// A description of one catalog entry, for listings.
+/// One form of an acid–base family, for listings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FormInfo {
+    /// Display name of the form ("H2PO4-").
+    pub name: String,
+    /// Bound protons, 0 = fully deprotonated.
+    pub protons: usize,
+    /// Charge number.
+    pub charge: i32,
+    /// Ion-size parameter å the extended Debye–Hückel model uses for this form, ångström: the
+    /// form's own where the entry lists one per form, else the family's (none for a neutral
+    /// form).
+    pub ion_size_angstrom: Option<f64>,
+}
+
+/// A description of one catalog entry, for listings: every number the entry holds.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DataInfo {
     /// What it is.
@@ -52,14 +94,41 @@ pub struct DataInfo {
     pub name: String,
     /// Other names it is found by.
     pub synonyms: Vec<String>,
-    /// Formula, if any.
+    /// Formula (of the most protonated form for a family), or empty.
     pub formula: String,
     /// A one-line summary of its numbers (pKa values, charge, molar mass, log β).
     pub summary: String,
-    /// Its published source ("user" for entries a caller added).
+    /// Its published source ("user" for entries a caller added without one).
     pub source: String,
     /// True when the numbers were entered from memory of the source.
     pub from_memory: bool,
+    /// Where the entry was read: `built-in data/families.toml`, a user's file name, or
+    /// "added in code".
+    pub origin: String,
+    /// Charge: of the most protonated form for a family, of the ion or complex, 0 for a reagent.
+    pub charge: i32,
+    /// Stepwise dissociations, most protonated first (families only): pKa at 25 °C and
+    /// I = 0, ΔH° and ΔCp° where known.
+    pub steps: Vec<Step>,
+    /// The forms of a family, most protonated first (families only).
+    pub forms: Vec<FormInfo>,
+    /// The single ion-size parameter å, ångström, where set.
+    pub ion_size_angstrom: Option<f64>,
+    /// Molar mass, g/mol: a reagent's (stored, or computed from its formula), or computed from
+    /// the formula of an ion or of a family's most protonated form where it is a formula of
+    /// elements (IUPAC 2021 abridged atomic weights).
+    pub molar_mass_g_per_mol: Option<f64>,
+    /// Overall formation constant log₁₀ β (complexes only).
+    pub log10_beta: Option<f64>,
+    /// Formation enthalpy ΔH°, kJ/mol (complexes only, where known).
+    pub dh_kj_per_mol: Option<f64>,
+    /// Formation heat-capacity change ΔCp°, J/(mol·K) (complexes only, where known).
+    pub dcp_j_per_mol_k: Option<f64>,
+    /// Analytic log K(T) equations: one entry per step for a family, one for a complex
+    /// (`None` where there is none); empty for ions and reagents.
+    pub log_k_equations: Vec<Option<LogKEquation>>,
+    /// The constituents of a reagent or the parts of a complex, in words ("2 × sodium").
+    pub parts: Vec<String>,
     /// The name and synonyms normalised for lookup.
     keys: Vec<String>,
 }
@@ -86,31 +155,17 @@ pub struct Catalog {
     ions: Vec<Ion>,
     reagents: Vec<Reagent>,
     complexes: Vec<Complex>,
+    /// Descriptions grouped by kind (in `DataKind` order), each group in definition order.
     info: Vec<DataInfo>,
-    /// Built-in rows that could not be turned into definitions (a data bug; tested empty).
+    /// Normalised name or synonym → for each kind (in `DataKind` order), the index in that
+    /// kind's definition vector.
+    index: HashMap<String, [Option<usize>; 4]>,
+    /// Citations by key, from every file read so far.
+    sources: BTreeMap<String, String>,
+    /// Built-in files that could not be read (a data bug; tested empty).
     problems: Vec<String>,
     /// Entries replaced on purpose, as they were.
     replaced: Vec<DataInfo>,
-}
-
-/// What a replacement puts in place of a family or ion in the entries that use it.
-enum Rebind<'a> {
-    Family(&'a Protolyte),
-    Ion(&'a Ion),
-}
-
-/// The (name, formula, summary) of a family's description.
-fn p_info(p: &Protolyte) -> (String, String, String) {
-    let pk: Vec<String> = p.steps().iter().map(|s| format!("{}", s.pka)).collect();
-    (
-        p.name().to_string(),
-        p.formula().unwrap_or("").to_string(),
-        format!(
-            "pKa {} (25 °C); most protonated charge {:+}",
-            pk.join(", "),
-            p.charge_most_protonated()
-        ),
-    )
 }
 
 /// A dependent entry that the replacement would leave invalid.
@@ -121,8 +176,36 @@ fn dependent(name: &str, e: Error) -> Error {
     }
 }
 
+/// Longest name (characters) for which a lookup that fails searches for a suggestion.
+const MAX_SUGGEST_CHARS: usize = 64;
+
+/// The kinds that share a namespace with `kind`: families, ions and complexes share one
+/// (a recipe matches them by name when it is compiled); reagents have their own (a reagent
+/// may carry the name of the family it delivers, such as "acetic acid").
+fn namespace(kind: DataKind) -> &'static [DataKind] {
+    match kind {
+        DataKind::Reagent => &[DataKind::Reagent],
+        _ => &[DataKind::Protolyte, DataKind::Ion, DataKind::Complex],
+    }
+}
+
 /// Lower case, single spaces, ASCII hyphens.
 fn normalize(s: &str) -> String {
+    normalized(s).into_owned()
+}
+
+/// [`normalize`] without a copy when the text already is normalised.
+fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
+    // Most names already are (every built-in one): copy them as they are.
+    let plain = s
+        .bytes()
+        .all(|b| (b.is_ascii_graphic() || b == b' ') && !b.is_ascii_uppercase())
+        && !s.starts_with(' ')
+        && !s.ends_with(' ')
+        && !s.contains("  ");
+    if plain {
+        return std::borrow::Cow::Borrowed(s);
+    }
     let s: String = s
         .trim()
         .chars()
@@ -132,11 +215,8 @@ fn normalize(s: &str) -> String {
         })
         .collect::<String>()
         .to_lowercase();
-    s.split_whitespace().collect::<Vec<_>>().join(" ")
+    std::borrow::Cow::Owned(s.split_whitespace().collect::<Vec<_>>().join(" "))
 }
-
-/// Longest name (characters) for which a lookup that fails searches for a suggestion.
-const MAX_SUGGEST_CHARS: usize = 64;
 
 fn levenshtein(a: &str, b: &str) -> usize {
     let a: Vec<char> = a.chars().collect();
@@ -153,30 +233,155 @@ fn levenshtein(a: &str, b: &str) -> usize {
     prev[b.len()]
 }
 
+/// Provenance and extras of an entry that its definition does not carry.
+struct Meta {
+    source: String,
+    from_memory: bool,
+    origin: String,
+    molar_mass: Option<f64>,
+}
+
+impl Meta {
+    fn added_in_code(source: Option<&str>) -> Self {
+        Meta {
+            source: source.unwrap_or("user").to_string(),
+            from_memory: false,
+            origin: "added in code".into(),
+            molar_mass: None,
+        }
+    }
+}
+
 impl Catalog {
     /// An empty catalog.
     pub fn empty() -> Self {
         Catalog::default()
     }
 
-    /// The built-in data (built once, then cloned).
+    /// The built-in data (read from the embedded data files once, then cloned).
     pub fn builtin() -> Self {
         static BUILTIN: OnceLock<Catalog> = OnceLock::new();
-        BUILTIN.get_or_init(build_builtin).clone()
+        BUILTIN.get_or_init(Catalog::read_builtin).clone()
     }
 
-    /// Built-in rows that failed to load (always empty in a correct build; the test suite
-    /// checks it).
+    /// Reads the embedded data files (what [`Catalog::builtin`] does once; public for the
+    /// benchmark of reading them).
+    #[doc(hidden)]
+    pub fn read_builtin() -> Self {
+        let mut cat = Catalog::empty();
+        for (name, text) in BUILTIN_FILES {
+            if let Err(e) = cat.load(text, &format!("built-in {name}"), false) {
+                cat.problems.push(e.to_string());
+            }
+        }
+        cat
+    }
+
+    /// Built-in data files that failed to load (always empty in a correct build; the test
+    /// suite checks it).
     pub fn load_problems(&self) -> &[String] {
         &self.problems
     }
 
+    /// This catalog with the entries of the catalogue file at `path` added (format
+    /// `protolyte-catalog/1`, see `docs/catalog-format.md`). An entry whose name is taken is
+    /// refused unless it says `replace = true`; reagents and complexes built on a replaced
+    /// family or ion then use the new definition. Nothing is changed when the file is refused.
+    ///
+    /// Errors name the file, the line and the field ([`Error::CatalogFile`]).
+    pub fn with_file(mut self, path: impl AsRef<Path>) -> Result<Self> {
+        let path = path.as_ref();
+        let name = path.display().to_string();
+        let text = std::fs::read_to_string(path).map_err(|e| {
+            Error::CatalogFile(Box::new(CatalogFileError {
+                file: name.clone(),
+                line: 0,
+                entry: String::new(),
+                field: String::new(),
+                message: format!("cannot read: {e}"),
+            }))
+        })?;
+        self.load_toml_str(&text, &name)?;
+        Ok(self)
+    }
+
+    /// Adds the entries of catalogue text `text`; `origin` names it in errors (a file name).
+    /// All or nothing: when an entry is refused, the catalog is left as it was.
+    ///
+    /// ```
+    /// use protolyte::Catalog;
+    ///
+    /// let mut cat = Catalog::builtin();
+    /// cat.load_toml_str(r#"
+    /// format = "protolyte-catalog/1"
+    ///
+    /// [[family]]
+    /// name = "lab acid Q"
+    /// charge_most_protonated = 0
+    /// steps = [{ pka = 3.9 }, { pka = 6.1 }]
+    /// source = "our own titration, notebook 12"
+    /// "#, "lab.toml")?;
+    /// assert_eq!(cat.protolyte("lab acid q")?.proton_count(), 2);
+    ///
+    /// let err = cat.load_toml_str("format = \"protolyte-catalog/1\"\n[[family]]\nname = \"y\"\n\
+    ///     charge_most_protonated = 0\nsteps = [{ pka = 7.0 }, { pka = 3.0 }]\nsource = \"x\"\n", "bad.toml")
+    ///     .unwrap_err();
+    /// assert!(err.to_string().starts_with("bad.toml:5: family `y`, field `steps[1].pka`"), "{err}");
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn load_toml_str(&mut self, text: &str, origin: &str) -> Result<()> {
+        self.load(text, origin, true)
+    }
+
+    /// Reads catalogue text; `atomic` leaves the catalog unchanged when an entry is refused
+    /// (the built-in files need no copy: a refused entry there is a data bug, tested for).
+    fn load(&mut self, text: &str, origin: &str, atomic: bool) -> Result<()> {
+        let loc = Located { file: origin, text };
+        let file: CatalogFile = toml::from_str(text).map_err(|e| {
+            let line = e.span().map(|s| loc.line_of(s.start)).unwrap_or(1);
+            loc.error(line, "", "", e.message().trim())
+        })?;
+        match &file.format {
+            None => {
+                return Err(loc.error(
+                    1,
+                    "",
+                    "format",
+                    format!("missing: a catalogue file starts with format = \"{CATALOG_FORMAT}\""),
+                ));
+            }
+            Some(f) if f.get_ref() != CATALOG_FORMAT => {
+                return Err(loc.error(
+                    loc.line_of(f.span().start),
+                    "",
+                    "format",
+                    format!(
+                        "`{}` is not a catalogue format this version reads (`{CATALOG_FORMAT}`)",
+                        f.get_ref()
+                    ),
+                ));
+            }
+            Some(_) => {}
+        }
+        if atomic {
+            let mut next = self.clone();
+            next.apply(file, &loc)?;
+            *self = next;
+            Ok(())
+        } else {
+            self.apply(file, &loc)
+        }
+    }
+
+    /// This catalog with the entries of catalogue text `text` added (see [`Catalog::load_toml_str`]).
+    pub fn with_toml_str(mut self, text: &str, origin: &str) -> Result<Self> {
+        self.load_toml_str(text, origin)?;
+        Ok(self)
+    }
+
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
-        let key = normalize(name);
-        let entries = || self.info.iter().filter(|i| i.kind == kind);
-        if let Some(idx) =
-            entries().position(|info| normalize(&info.name) == key || info.synonyms.iter().any(|s| normalize(s) == key))
-        {
+        let key = normalized(name);
+        if let Some(idx) = self.index.get(key.as_ref()).and_then(|a| a[kind as usize]) {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close. The search is
@@ -186,7 +391,7 @@ impl Catalog {
         let limit = (key_len / 3).max(2);
         let mut best: Option<(usize, &str)> = None;
         if key_len <= MAX_SUGGEST_CHARS {
-            for info in entries() {
+            for info in self.info.iter().filter(|i| i.kind == kind) {
                 let d = info
                     .keys
                     .iter()
@@ -232,9 +437,25 @@ impl Catalog {
         &self.complexes
     }
 
-    /// Every entry's description, built-in first.
+    /// Every entry's description, grouped by kind (families, ions, reagents, complexes),
+    /// built-in first within each kind.
     pub fn entries(&self) -> &[DataInfo] {
         &self.info
+    }
+
+    /// The description of the entry of `kind` named `name` (or a synonym).
+    ///
+    /// ```
+    /// use protolyte::{Catalog, DataKind};
+    /// let cat = Catalog::builtin();
+    /// let info = cat.info(DataKind::Protolyte, "phosphoric acid")?;
+    /// assert_eq!(info.steps.len(), 3);
+    /// assert_eq!(info.forms[1].name, "H2PO4-");
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn info(&self, kind: DataKind, name: &str) -> Result<&DataInfo> {
+        let i = self.find(kind, name)?;
+        Ok(&self.info[self.offset(kind) + i])
     }
 
     /// Entries whose name, a synonym or formula contains `query` (case-insensitive).
@@ -257,63 +478,55 @@ impl Catalog {
             .collect()
     }
 
-    /// The entries whose name or synonym equals one of `names` (normalised), among the kinds
-    /// that share a namespace with `kind`: families, ions and complexes share one (they are
-    /// matched by name when a recipe is compiled); reagents have their own (a reagent may
-    /// carry the name of the family it delivers, such as "acetic acid").
-    fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, usize)> {
-        let space = |k: DataKind| k == DataKind::Reagent;
+    /// The entries (kind, index within the kind) whose name or synonym equals one of `names`
+    /// (normalised), among the kinds that share a namespace with `kind`.
+    fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, DataKind, usize)> {
         let mut out = Vec::new();
         for n in names {
-            let key = normalize(n);
-            for (idx, info) in self.info.iter().enumerate() {
-                if space(info.kind) == space(kind) && info.keys.contains(&key) {
-                    out.push((n.to_string(), idx));
+            if let Some(a) = self.index.get(normalized(n).as_ref()) {
+                for &k in namespace(kind) {
+                    if let Some(idx) = a[k as usize] {
+                        out.push((n.to_string(), k, idx));
+                    }
                 }
             }
         }
         out
     }
 
-    fn conflict_error(&self, kind: DataKind, name: &str, idx: usize) -> Error {
+    fn conflict_error(&self, kind: DataKind, name: &str, existing: DataKind, idx: usize) -> Error {
         Error::NameConflict {
             name: name.to_string(),
             kind: kind.name(),
-            existing_kind: self.info[idx].kind.name(),
-            existing_name: self.info[idx].name.clone(),
+            existing_kind: existing.name(),
+            existing_name: self.info[self.offset(existing) + idx].name.clone(),
         }
     }
 
     /// Refuses a name or synonym already taken (see [`Catalog::add_protolyte`]).
     fn check_new(&self, kind: DataKind, names: &[&str]) -> Result<()> {
         match self.conflicts(kind, names).first() {
-            Some((name, idx)) => Err(self.conflict_error(kind, name, *idx)),
+            Some((name, k, idx)) => Err(self.conflict_error(kind, name, *k, *idx)),
             None => Ok(()),
         }
     }
 
-    /// For a replacement: the one entry of the same kind that the names point to (`None`
-    /// when they are all new). Refuses names held by an entry of another kind, or by two
-    /// different entries.
+    /// For a replacement: the one entry of the same kind that the names point to (its index
+    /// within the kind; `None` when they are all new). Refuses names held by an entry of
+    /// another kind, or by two different entries.
     fn replacement_target(&self, kind: DataKind, names: &[&str]) -> Result<Option<usize>> {
         let mut target: Option<usize> = None;
-        for (name, idx) in self.conflicts(kind, names) {
-            if self.info[idx].kind != kind || target.is_some_and(|t| t != idx) {
-                return Err(self.conflict_error(kind, &name, idx));
+        for (name, k, idx) in self.conflicts(kind, names) {
+            if k != kind || target.is_some_and(|t| t != idx) {
+                return Err(self.conflict_error(kind, &name, k, idx));
             }
             target = Some(idx);
         }
         Ok(target)
     }
 
-    /// Position of info entry `idx` within the definitions of its kind.
-    fn slot(&self, idx: usize) -> usize {
-        let kind = self.info[idx].kind;
-        self.info[..idx].iter().filter(|i| i.kind == kind).count()
-    }
-
-    /// The entries replaced by the `replace_*` calls, in order (their descriptions as they
-    /// were before the replacement).
+    /// The entries replaced by the `replace_*` calls and by catalogue files' `replace = true`,
+    /// in order (their descriptions as they were before the replacement).
     pub fn replaced(&self) -> &[DataInfo] {
         &self.replaced
     }
@@ -339,233 +552,109 @@ impl Catalog {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn replace_protolyte(&mut self, p: Protolyte, synonyms: &[&str]) -> Result<Option<DataInfo>> {
-        let mut names = vec![p.name()];
-        names.extend_from_slice(synonyms);
-        let Some(idx) = self.replacement_target(DataKind::Protolyte, &names)? else {
-            self.add_protolyte(p, synonyms)?;
-            return Ok(None);
-        };
-        let mut next = self.clone();
-        let k = next.slot(idx);
-        let old_name = next.protolytes[k].name().to_string();
-        next.rebind(&old_name, Rebind::Family(&p))?;
-        next.protolytes[k] = p.clone();
-        let old = next.info[idx].clone();
-        next.info[idx] = next.replacement_info(DataKind::Protolyte, &old, &p_info(&p), synonyms);
-        next.replaced.push(old.clone());
-        *self = next;
-        Ok(Some(old))
+        let name = p.name().to_string();
+        let meta = Meta::added_in_code(p.source());
+        self.replace_with(DataKind::Protolyte, &name, synonyms, |cat, syn| {
+            cat.add_protolyte_with(p, syn, meta)
+        })
     }
 
     /// Replaces the simple ion that `ion`'s name or one of `synonyms` names, on purpose
     /// (see [`Catalog::replace_protolyte`], which this mirrors: reagents and complexes built
     /// on the old ion are rebuilt on the new one).
     pub fn replace_ion(&mut self, ion: Ion, synonyms: &[&str]) -> Result<Option<DataInfo>> {
-        let mut names = vec![ion.name()];
-        names.extend_from_slice(synonyms);
-        let Some(idx) = self.replacement_target(DataKind::Ion, &names)? else {
-            self.add_ion(ion, synonyms)?;
-            return Ok(None);
-        };
-        let mut next = self.clone();
-        let k = next.slot(idx);
-        let old_name = next.ions[k].name().to_string();
-        next.rebind(&old_name, Rebind::Ion(&ion))?;
-        next.ions[k] = ion.clone();
-        let old = next.info[idx].clone();
-        let fresh = (
-            ion.name().to_string(),
-            ion.display_name().to_string(),
-            format!("charge {:+}", ion.charge()),
-        );
-        next.info[idx] = next.replacement_info(DataKind::Ion, &old, &fresh, synonyms);
-        next.replaced.push(old.clone());
-        *self = next;
-        Ok(Some(old))
+        let name = ion.name().to_string();
+        self.replace_with(DataKind::Ion, &name, synonyms, |cat, syn| {
+            cat.add_ion_with(ion, syn, Meta::added_in_code(None))
+        })
     }
 
     /// Replaces the reagent that `r`'s name or one of `synonyms` names, on purpose (see
     /// [`Catalog::replace_protolyte`]).
     pub fn replace_reagent(&mut self, r: Reagent, synonyms: &[&str]) -> Result<Option<DataInfo>> {
-        let mut names = vec![r.name()];
-        names.extend_from_slice(synonyms);
-        let Some(idx) = self.replacement_target(DataKind::Reagent, &names)? else {
-            self.add_reagent(r, synonyms)?;
-            return Ok(None);
-        };
-        let k = self.slot(idx);
-        let old = self.info[idx].clone();
-        let summary = match r.molar_mass_g_per_mol() {
-            Some(m) => format!("M = {m} g/mol"),
-            None => "no molar mass".into(),
-        };
-        let fresh = (r.name().to_string(), r.formula().unwrap_or("").to_string(), summary);
-        self.info[idx] = self.replacement_info(DataKind::Reagent, &old, &fresh, synonyms);
-        self.reagents[k] = r;
-        self.replaced.push(old.clone());
-        Ok(Some(old))
+        let name = r.name().to_string();
+        self.replace_with(DataKind::Reagent, &name, synonyms, |cat, syn| {
+            cat.add_reagent_with(r, syn, Meta::added_in_code(None))
+        })
     }
 
     /// Replaces the complex that `c`'s name or one of `synonyms` names, on purpose (see
     /// [`Catalog::replace_protolyte`]).
     pub fn replace_complex(&mut self, c: Complex, synonyms: &[&str]) -> Result<Option<DataInfo>> {
-        let mut names = vec![c.name()];
-        names.extend_from_slice(synonyms);
-        let Some(idx) = self.replacement_target(DataKind::Complex, &names)? else {
-            self.add_complex(c, synonyms)?;
-            return Ok(None);
-        };
-        let k = self.slot(idx);
-        let old = self.info[idx].clone();
-        let fresh = (
-            c.name().to_string(),
-            String::new(),
-            format!("log β {} (25 °C); charge {:+}", c.log10_beta(), c.charge()),
-        );
-        self.info[idx] = self.replacement_info(DataKind::Complex, &old, &fresh, synonyms);
-        self.complexes[k] = c;
-        self.replaced.push(old.clone());
-        Ok(Some(old))
+        let name = c.name().to_string();
+        let meta = Meta::added_in_code(c.source());
+        self.replace_with(DataKind::Complex, &name, synonyms, |cat, syn| {
+            cat.add_complex_with(c, syn, meta)
+        })
     }
 
-    /// The description of a replacement: the new (name, formula, summary), its synonyms
-    /// plus the old entry's name and synonyms, source "user".
-    fn replacement_info(
-        &self,
-        kind: DataKind,
-        old: &DataInfo,
-        fresh: &(String, String, String),
-        synonyms: &[&str],
-    ) -> DataInfo {
-        let mut syn: Vec<String> = synonyms.iter().map(|s| s.to_string()).collect();
-        for s in std::iter::once(&old.name).chain(&old.synonyms) {
-            if normalize(s) != normalize(&fresh.0) && !syn.iter().any(|x| normalize(x) == normalize(s)) {
-                syn.push(s.clone());
-            }
-        }
-        let keys = std::iter::once(fresh.0.as_str())
-            .chain(syn.iter().map(String::as_str))
-            .map(normalize)
-            .collect();
-        DataInfo {
-            kind,
-            name: fresh.0.clone(),
-            synonyms: syn,
-            formula: fresh.1.clone(),
-            summary: fresh.2.clone(),
-            source: "user".into(),
-            from_memory: false,
-            keys,
-        }
-    }
-
-    /// Rebuilds every reagent and complex that uses the family or ion named `old_name` on
-    /// its replacement.
-    fn rebind(&mut self, old_name: &str, new: Rebind<'_>) -> Result<()> {
-        for r in &mut self.reagents {
-            let uses = r.parts().iter().any(|(c, _)| match (c, &new) {
-                (Constituent::Form { protolyte, .. }, Rebind::Family(_)) => protolyte.name() == old_name,
-                (Constituent::Ion(i), Rebind::Ion(_)) => i.name() == old_name,
-                _ => false,
-            });
-            if !uses {
-                continue;
-            }
-            let parts = r
-                .parts()
-                .iter()
-                .map(|(c, n)| {
-                    let c = match (c, &new) {
-                        (Constituent::Form { protolyte, protons }, Rebind::Family(p))
-                            if protolyte.name() == old_name =>
-                        {
-                            Constituent::Form {
-                                protolyte: (*p).clone(),
-                                protons: *protons,
-                            }
-                        }
-                        (Constituent::Ion(i), Rebind::Ion(ion)) if i.name() == old_name => {
-                            Constituent::Ion((*ion).clone())
-                        }
-                        (c, _) => c.clone(),
-                    };
-                    (c, *n)
-                })
-                .collect();
-            let mut rebuilt =
-                Reagent::new(r.name(), r.molar_mass_g_per_mol(), parts).map_err(|e| dependent(r.name(), e))?;
-            if let Some(f) = r.formula() {
-                rebuilt = rebuilt.with_formula(f);
-            }
-            *r = rebuilt;
-        }
-        for c in &mut self.complexes {
-            let uses = c.parts().iter().any(|(p, _)| match (p, &new) {
-                (ComplexPart::Base(b), Rebind::Family(_)) => b.name() == old_name,
-                (ComplexPart::Ion(i), Rebind::Ion(_)) => i.name() == old_name,
-                _ => false,
-            });
-            if !uses {
-                continue;
-            }
-            let parts = c
-                .parts()
-                .iter()
-                .map(|(p, n)| {
-                    let p = match (p, &new) {
-                        (ComplexPart::Base(b), Rebind::Family(f)) if b.name() == old_name => {
-                            ComplexPart::Base((*f).clone())
-                        }
-                        (ComplexPart::Ion(i), Rebind::Ion(ion)) if i.name() == old_name => {
-                            ComplexPart::Ion((*ion).clone())
-                        }
-                        (p, _) => p.clone(),
-                    };
-                    (p, *n)
-                })
-                .collect();
-            let rebuild = || -> Result<Complex> {
-                let mut x = Complex::new(c.name(), parts, c.log10_beta())?;
-                if let Some(h) = c.dh_kj_per_mol() {
-                    x = x.with_enthalpy_kj_per_mol(h)?;
-                }
-                if let Some(a) = c.ion_size_angstrom() {
-                    x = x.with_ion_size_angstrom(a)?;
-                }
-                if let Some(s) = c.source() {
-                    x = x.with_source(s);
-                }
-                Ok(x)
-            };
-            *c = rebuild().map_err(|e| dependent(c.name(), e))?;
-        }
-        Ok(())
-    }
-
-    /// Records an entry's description; `provenance` is (source, entered from memory).
-    fn push_info(
+    /// The replacement behind the `replace_*` calls: removes the target (if any), adds the new
+    /// definition with the old entry's name and synonyms beside its own, and rebuilds the
+    /// entries built on the old one. All or nothing.
+    fn replace_with(
         &mut self,
         kind: DataKind,
         name: &str,
         synonyms: &[&str],
-        formula: &str,
-        summary: String,
-        provenance: (&str, bool),
-    ) {
-        let keys = std::iter::once(name)
+        add: impl FnOnce(&mut Catalog, &[&str]) -> Result<()>,
+    ) -> Result<Option<DataInfo>> {
+        let mut names = vec![name];
+        names.extend_from_slice(synonyms);
+        let Some(idx) = self.replacement_target(kind, &names)? else {
+            add(self, synonyms)?;
+            return Ok(None);
+        };
+        let mut next = self.clone();
+        let old = next.remove(kind, idx);
+        let mut all: Vec<String> = synonyms.iter().map(|s| s.to_string()).collect();
+        for s in std::iter::once(&old.name).chain(&old.synonyms) {
+            if normalize(s) != normalize(name) && !all.iter().any(|a| normalize(a) == normalize(s)) {
+                all.push(s.clone());
+            }
+        }
+        let refs: Vec<&str> = all.iter().map(String::as_str).collect();
+        add(&mut next, &refs)?;
+        next.rebind(kind, &old.name, name)?;
+        next.replaced.push(old.clone());
+        *self = next;
+        Ok(Some(old))
+    }
+
+    /// Position of the first entry of `kind` in `info`.
+    fn offset(&self, kind: DataKind) -> usize {
+        let lens = [
+            self.protolytes.len(),
+            self.ions.len(),
+            self.reagents.len(),
+            self.complexes.len(),
+        ];
+        lens[..kind as usize].iter().sum()
+    }
+
+    fn len_of(&self, kind: DataKind) -> usize {
+        match kind {
+            DataKind::Protolyte => self.protolytes.len(),
+            DataKind::Ion => self.ions.len(),
+            DataKind::Reagent => self.reagents.len(),
+            DataKind::Complex => self.complexes.len(),
+        }
+    }
+
+    /// Records an entry's description at the end of its kind's group and indexes its names.
+    /// Call before pushing the definition.
+    fn push_info(&mut self, mut info: DataInfo, synonyms: &[&str]) {
+        info.synonyms = synonyms.iter().map(|s| s.to_string()).collect();
+        info.keys = std::iter::once(info.name.as_str())
             .chain(synonyms.iter().copied())
             .map(normalize)
             .collect();
-        self.info.push(DataInfo {
-            kind,
-            name: name.to_string(),
-            synonyms: synonyms.iter().map(|s| s.to_string()).collect(),
-            formula: formula.to_string(),
-            summary,
-            source: provenance.0.to_string(),
-            from_memory: provenance.1,
-            keys,
-        });
+        let kind = info.kind;
+        let idx = self.len_of(kind);
+        for k in &info.keys {
+            self.index.entry(k.clone()).or_default()[kind as usize].get_or_insert(idx);
+        }
+        let at = self.offset(kind) + idx;
+        self.info.insert(at, info);
     }
 
     /// Adds a user-defined family, found by its name and `synonyms`.
@@ -584,195 +673,821 @@ impl Catalog {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn add_protolyte(&mut self, p: Protolyte, synonyms: &[&str]) -> Result<()> {
+        let meta = Meta::added_in_code(p.source());
+        self.add_protolyte_with(p, synonyms, meta)
+    }
+
+    fn add_protolyte_with(&mut self, p: Protolyte, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![p.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Protolyte, &names)?;
-        let source = p.source().unwrap_or("user").to_string();
-        self.insert_protolyte(p, synonyms, &source, false);
-        Ok(())
-    }
-
-    fn insert_protolyte(&mut self, p: Protolyte, synonyms: &[&str], source: &str, from_memory: bool) {
-        let (name, formula, summary) = p_info(&p);
-        self.protolytes.push(p);
-        self.push_info(
-            DataKind::Protolyte,
-            &name,
-            synonyms,
-            &formula,
-            summary,
-            (source, from_memory),
+        let pk: Vec<String> = p.steps().iter().map(|s| format!("{}", s.pka)).collect();
+        let summary = format!(
+            "pKa {} (25 °C); most protonated charge {:+}",
+            pk.join(", "),
+            p.charge_most_protonated()
         );
-        self.sort_info();
+        let formula = p.formula().unwrap_or("").to_string();
+        let n = p.proton_count();
+        let forms = (0..=n)
+            .rev()
+            .map(|j| FormInfo {
+                name: p.form_name(j),
+                protons: j,
+                charge: p.charge_of_form(j),
+                ion_size_angstrom: (p.charge_of_form(j) != 0)
+                    .then(|| p.form_ion_size_angstrom(j))
+                    .flatten(),
+            })
+            .collect();
+        let info = DataInfo {
+            kind: DataKind::Protolyte,
+            name: p.name().to_string(),
+            synonyms: Vec::new(),
+            molar_mass_g_per_mol: formula::molar_mass_g_per_mol(&formula, p.charge_most_protonated()),
+            formula,
+            summary,
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: p.charge_most_protonated(),
+            steps: p.steps().to_vec(),
+            forms,
+            ion_size_angstrom: p.ion_size_angstrom(),
+            log10_beta: None,
+            dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: (0..p.proton_count()).map(|k| p.log_k_equation(k)).collect(),
+            parts: Vec::new(),
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
+        self.protolytes.push(p);
+        Ok(())
     }
 
     /// Adds a user-defined ion (names as for [`Catalog::add_protolyte`]).
     pub fn add_ion(&mut self, ion: Ion, synonyms: &[&str]) -> Result<()> {
+        self.add_ion_with(ion, synonyms, Meta::added_in_code(None))
+    }
+
+    fn add_ion_with(&mut self, ion: Ion, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![ion.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Ion, &names)?;
-        self.insert_ion(ion, synonyms, "user", false);
-        Ok(())
-    }
-
-    fn insert_ion(&mut self, ion: Ion, synonyms: &[&str], source: &str, from_memory: bool) {
-        let summary = format!("charge {:+}", ion.charge());
-        let name = ion.name().to_string();
         let formula = ion.display_name().to_string();
+        let info = DataInfo {
+            kind: DataKind::Ion,
+            name: ion.name().to_string(),
+            synonyms: Vec::new(),
+            summary: format!("charge {:+}", ion.charge()),
+            molar_mass_g_per_mol: formula::molar_mass_g_per_mol(&formula, ion.charge()),
+            formula,
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: ion.charge(),
+            steps: Vec::new(),
+            forms: Vec::new(),
+            ion_size_angstrom: ion.ion_size_angstrom(),
+            log10_beta: None,
+            dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: Vec::new(),
+            parts: Vec::new(),
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
         self.ions.push(ion);
-        self.push_info(DataKind::Ion, &name, synonyms, &formula, summary, (source, from_memory));
-        self.sort_info();
+        Ok(())
     }
 
     /// Adds a user-defined reagent (its name and synonyms must be new among the reagents).
     pub fn add_reagent(&mut self, r: Reagent, synonyms: &[&str]) -> Result<()> {
+        self.add_reagent_with(r, synonyms, Meta::added_in_code(None))
+    }
+
+    fn add_reagent_with(&mut self, r: Reagent, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![r.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Reagent, &names)?;
-        self.insert_reagent(r, synonyms, "user");
-        Ok(())
-    }
-
-    fn insert_reagent(&mut self, r: Reagent, synonyms: &[&str], source: &str) {
-        let summary = match r.molar_mass_g_per_mol() {
+        let molar_mass = r.molar_mass_g_per_mol().or(meta.molar_mass);
+        let summary = match molar_mass {
             Some(m) => format!("M = {m} g/mol"),
             None => "no molar mass".into(),
         };
-        let name = r.name().to_string();
-        let formula = r.formula().unwrap_or("").to_string();
+        let parts = r
+            .parts()
+            .iter()
+            .map(|(c, n)| {
+                let what = match c {
+                    Constituent::Form { protolyte, protons } => {
+                        format!("{} ({})", protolyte.form_name(*protons), protolyte.name())
+                    }
+                    Constituent::Ion(i) => i.name().to_string(),
+                    Constituent::Proton => "H+".into(),
+                    Constituent::Hydroxide => "OH-".into(),
+                };
+                format!("{n} × {what}")
+            })
+            .collect();
+        let info = DataInfo {
+            kind: DataKind::Reagent,
+            name: r.name().to_string(),
+            synonyms: Vec::new(),
+            formula: r.formula().unwrap_or("").to_string(),
+            summary,
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: 0,
+            steps: Vec::new(),
+            forms: Vec::new(),
+            ion_size_angstrom: None,
+            molar_mass_g_per_mol: molar_mass,
+            log10_beta: None,
+            dh_kj_per_mol: None,
+            dcp_j_per_mol_k: None,
+            log_k_equations: Vec::new(),
+            parts,
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
         self.reagents.push(r);
-        self.push_info(DataKind::Reagent, &name, synonyms, &formula, summary, (source, false));
-        self.sort_info();
+        Ok(())
     }
 
     /// Adds a user-defined complex (names as for [`Catalog::add_protolyte`]).
     pub fn add_complex(&mut self, c: Complex, synonyms: &[&str]) -> Result<()> {
+        let meta = Meta::added_in_code(c.source());
+        self.add_complex_with(c, synonyms, meta)
+    }
+
+    fn add_complex_with(&mut self, c: Complex, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![c.name()];
         names.extend_from_slice(synonyms);
         self.check_new(DataKind::Complex, &names)?;
-        let source = c.source().unwrap_or("user").to_string();
-        self.insert_complex(c, synonyms, &source, false);
+        let parts = c
+            .parts()
+            .iter()
+            .map(|(p, n)| {
+                let what = match p {
+                    ComplexPart::Base(f) => format!("{} ({})", f.form_name(0), f.name()),
+                    ComplexPart::Ion(i) => i.name().to_string(),
+                    ComplexPart::Proton => "H+".into(),
+                };
+                format!("{n} × {what}")
+            })
+            .collect();
+        let info = DataInfo {
+            kind: DataKind::Complex,
+            name: c.name().to_string(),
+            synonyms: Vec::new(),
+            formula: String::new(),
+            summary: format!("log β {} (25 °C); charge {:+}", c.log10_beta(), c.charge()),
+            source: meta.source,
+            from_memory: meta.from_memory,
+            origin: meta.origin,
+            charge: c.charge(),
+            steps: Vec::new(),
+            forms: Vec::new(),
+            ion_size_angstrom: c.ion_size_angstrom(),
+            molar_mass_g_per_mol: None,
+            log10_beta: Some(c.log10_beta()),
+            dh_kj_per_mol: c.dh_kj_per_mol(),
+            dcp_j_per_mol_k: c.dcp_j_per_mol_k(),
+            log_k_equations: vec![c.log_k_equation()],
+            parts,
+            keys: Vec::new(),
+        };
+        self.push_info(info, synonyms);
+        self.complexes.push(c);
         Ok(())
     }
 
-    fn insert_complex(&mut self, c: Complex, synonyms: &[&str], source: &str, from_memory: bool) {
-        let summary = format!("log β {} (25 °C); charge {:+}", c.log10_beta(), c.charge());
-        let name = c.name().to_string();
-        self.complexes.push(c);
-        self.push_info(DataKind::Complex, &name, synonyms, "", summary, (source, from_memory));
-        self.sort_info();
+    /// Removes the entry of `kind` at `idx` (its definition and description) and returns
+    /// its description.
+    fn remove(&mut self, kind: DataKind, idx: usize) -> DataInfo {
+        let at = self.offset(kind) + idx;
+        let info = self.info.remove(at);
+        match kind {
+            DataKind::Protolyte => drop(self.protolytes.remove(idx)),
+            DataKind::Ion => drop(self.ions.remove(idx)),
+            DataKind::Reagent => drop(self.reagents.remove(idx)),
+            DataKind::Complex => drop(self.complexes.remove(idx)),
+        }
+        self.reindex();
+        info
     }
 
-    /// Keeps `info` grouped by kind in the order of the definition vectors.
-    fn sort_info(&mut self) {
-        let order = |k: DataKind| k as u8;
-        self.info.sort_by_key(|i| order(i.kind));
+    fn reindex(&mut self) {
+        self.index.clear();
+        let mut per_kind = [0usize; 4];
+        for info in &self.info {
+            let idx = per_kind[info.kind as usize];
+            per_kind[info.kind as usize] += 1;
+            for k in &info.keys {
+                self.index.entry(k.clone()).or_default()[info.kind as usize].get_or_insert(idx);
+            }
+        }
     }
-}
 
-fn names_of<'a>(name: &'a str, synonyms: &[&'a str]) -> Vec<&'a str> {
-    std::iter::once(name).chain(synonyms.iter().copied()).collect()
-}
-
-fn build_builtin() -> Catalog {
-    let mut cat = Catalog::empty();
-    for r in protolytes::FAMILIES {
-        let pkas: Vec<f64> = r.steps.iter().map(|s| s.pka).collect();
-        let built = Protolyte::new(r.name, &pkas, r.charge_most_protonated).and_then(|p| {
-            let steps = r
-                .steps
+    /// Rebuilds the reagents and complexes that hold the family or ion named `old_name` on
+    /// its replacement, now named `new_name`.
+    fn rebind(&mut self, kind: DataKind, old_name: &str, new_name: &str) -> Result<()> {
+        let (new_family, new_ion) = match kind {
+            DataKind::Protolyte => (self.protolyte(new_name).ok(), None),
+            DataKind::Ion => (None, self.ion(new_name).ok()),
+            _ => return Ok(()),
+        };
+        for r in &mut self.reagents {
+            let mut touched = false;
+            let parts: Vec<(Constituent, u32)> = r
+                .parts()
                 .iter()
-                .map(|s| Step {
-                    pka: s.pka,
-                    dh_kj_per_mol: s.dh_kj_per_mol,
-                    dcp_j_per_mol_k: s.dcp_j_per_mol_k,
+                .map(|(c, n)| {
+                    let c = match (c, &new_family, &new_ion) {
+                        (Constituent::Form { protolyte, protons }, Some(f), _) if protolyte.name() == old_name => {
+                            touched = true;
+                            Constituent::Form {
+                                protolyte: f.clone(),
+                                protons: *protons,
+                            }
+                        }
+                        (Constituent::Ion(i), _, Some(new)) if i.name() == old_name => {
+                            touched = true;
+                            Constituent::Ion(new.clone())
+                        }
+                        (c, _, _) => c.clone(),
+                    };
+                    (c, *n)
                 })
                 .collect();
-            let p = p.with_steps(steps)?.with_formula(r.formula).with_source(r.source);
-            match r.ion_size_angstrom {
-                Some(a) => p.with_ion_size_angstrom(a),
-                None => Ok(p),
+            if touched {
+                let mut rebuilt =
+                    Reagent::new(r.name(), r.molar_mass_g_per_mol(), parts).map_err(|e| dependent(r.name(), e))?;
+                if let Some(f) = r.formula() {
+                    rebuilt = rebuilt.with_formula(f);
+                }
+                *r = rebuilt;
             }
-        });
-        let built = built.and_then(|p| {
-            cat.check_new(DataKind::Protolyte, &names_of(r.name, r.synonyms))
-                .map(|_| p)
-        });
-        match built {
-            Ok(p) => cat.insert_protolyte(p, r.synonyms, r.source, r.from_memory),
-            Err(e) => cat.problems.push(format!("protolyte {}: {e}", r.name)),
         }
-    }
-    for r in ions::IONS {
-        let built = Ion::new(r.name, r.charge)
-            .map(|i| i.with_formula(r.formula))
-            .and_then(|i| match r.ion_size_angstrom {
-                Some(a) => i.with_ion_size_angstrom(a),
-                None => Ok(i),
-            });
-        let built = built.and_then(|i| cat.check_new(DataKind::Ion, &names_of(r.name, r.synonyms)).map(|_| i));
-        match built {
-            Ok(i) => cat.insert_ion(i, r.synonyms, r.source, r.from_memory),
-            Err(e) => cat.problems.push(format!("ion {}: {e}", r.name)),
-        }
-    }
-    for r in reagents::REAGENTS {
-        let parts: Result<Vec<(Constituent, u32)>> = r
-            .parts
-            .iter()
-            .map(|(p, n)| {
-                let c = match p {
-                    PartRecord::Form { family, protons } => Constituent::Form {
-                        protolyte: cat.protolyte(family)?,
-                        protons: *protons as usize,
-                    },
-                    PartRecord::Ion(name) => Constituent::Ion(cat.ion(name)?),
-                    PartRecord::Proton => Constituent::Proton,
-                    PartRecord::Hydroxide => Constituent::Hydroxide,
+        for c in &mut self.complexes {
+            let mut touched = false;
+            let parts: Vec<(ComplexPart, i32)> = c
+                .parts()
+                .iter()
+                .map(|(p, n)| {
+                    let p = match (p, &new_family, &new_ion) {
+                        (ComplexPart::Base(b), Some(f), _) if b.name() == old_name => {
+                            touched = true;
+                            ComplexPart::Base(f.clone())
+                        }
+                        (ComplexPart::Ion(i), _, Some(new)) if i.name() == old_name => {
+                            touched = true;
+                            ComplexPart::Ion(new.clone())
+                        }
+                        (p, _, _) => p.clone(),
+                    };
+                    (p, *n)
+                })
+                .collect();
+            if touched {
+                let rebuild = || -> Result<Complex> {
+                    let mut x = Complex::new(c.name(), parts, c.log10_beta())?;
+                    if let Some(s) = c.source() {
+                        x = x.with_source(s);
+                    }
+                    if let Some(h) = c.dh_kj_per_mol() {
+                        x = x.with_enthalpy_kj_per_mol(h)?;
+                    }
+                    if let Some(cp) = c.dcp_j_per_mol_k() {
+                        x = x.with_heat_capacity_j_per_mol_k(cp)?;
+                    }
+                    if let Some(q) = c.log_k_equation() {
+                        x = x.with_log_k_equation(q)?;
+                    }
+                    if let Some(a) = c.ion_size_angstrom() {
+                        x = x.with_ion_size_angstrom(a)?;
+                    }
+                    Ok(x)
                 };
-                Ok((c, *n))
+                *c = rebuild().map_err(|e| dependent(c.name(), e))?;
+            }
+        }
+        Ok(())
+    }
+
+    /// Adds every entry of a parsed file (families and ions first, so that reagents and
+    /// complexes may refer to them).
+    fn apply(&mut self, file: CatalogFile, loc: &Located) -> Result<()> {
+        let mut sources = self.sources.clone();
+        for (k, v) in &file.sources {
+            if v.trim().is_empty() {
+                return Err(loc.error(
+                    loc.line_of_key(&(0..loc.text.len()), k),
+                    "",
+                    "sources",
+                    format!("`{k}` is empty"),
+                ));
+            }
+            sources.insert(k.clone(), v.clone());
+        }
+        self.sources = sources;
+        for e in &file.family {
+            self.apply_family(e, loc)?;
+        }
+        for e in &file.ion {
+            self.apply_ion(e, loc)?;
+        }
+        for e in &file.reagent {
+            self.apply_reagent(e, loc)?;
+        }
+        for e in &file.complex {
+            self.apply_complex(e, loc)?;
+        }
+        Ok(())
+    }
+
+    /// The citation of an entry: its `source`, or the `[sources]` text its `cite` names.
+    fn citation(&self, entry: &Entry, source: &Option<String>, cite: &Option<String>) -> Result<String> {
+        match (source, cite) {
+            (Some(_), Some(_)) => Err(entry.error("cite", "give either `source` or `cite`, not both")),
+            (None, None) => Err(entry.error(
+                "source",
+                "missing: every entry names its published source (`source = \"...\"` or `cite = \"key\"`)",
+            )),
+            (Some(s), None) if s.trim().is_empty() => Err(entry.error("source", "is empty")),
+            (Some(s), None) => Ok(s.trim().to_string()),
+            (None, Some(k)) => self
+                .sources
+                .get(k)
+                .cloned()
+                .ok_or_else(|| entry.error("cite", format!("no source `{k}` in the [sources] table"))),
+        }
+    }
+
+    /// Adds a definition through the `add_*` functions, or through the `replace_*` machinery
+    /// when the file says `replace = true` (then an entry of that name must exist).
+    fn place(
+        &mut self,
+        kind: DataKind,
+        entry: &Entry,
+        replace: bool,
+        synonyms: &[String],
+        add: impl FnOnce(&mut Catalog, &[&str]) -> Result<()>,
+    ) -> Result<()> {
+        let refs: Vec<&str> = synonyms.iter().map(String::as_str).collect();
+        let named = |e: Error| match e {
+            Error::NameConflict {
+                name,
+                kind: k,
+                existing_kind,
+                existing_name,
+            } => {
+                let hint = if k == existing_kind && !replace {
+                    "; write `replace = true` in the entry to replace it"
+                } else if k == existing_kind {
+                    ""
+                } else {
+                    " (families, ions and complexes share one set of names)"
+                };
+                entry.error(
+                    "name",
+                    format!("the name `{name}` is already used by the {existing_kind} `{existing_name}`{hint}"),
+                )
+            }
+            e => entry.wrap(e),
+        };
+        if replace {
+            let mut names = vec![entry.name];
+            names.extend_from_slice(&refs);
+            if self.replacement_target(kind, &names).map_err(named)?.is_none() {
+                return Err(entry.error(
+                    "replace",
+                    format!("there is no {} named `{}` to replace", kind.name(), entry.name),
+                ));
+            }
+            self.replace_with(kind, entry.name, &refs, add).map_err(|e| match e {
+                Error::InconsistentDefinition { .. } => entry.error("replace", e),
+                e => named(e),
+            })?;
+        } else {
+            add(self, &refs).map_err(named)?;
+        }
+        Ok(())
+    }
+
+    fn apply_family(&mut self, spanned: &Spanned<FamilyEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Protolyte, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        for (k, pair) in e.steps.windows(2).enumerate() {
+            let (a, b) = (pair[0].pka, pair[1].pka);
+            if b < a {
+                return Err(loc.error(
+                    loc.line_of_item(&entry.span, "steps", k + 1),
+                    &entry.label(),
+                    &format!("steps[{}].pka", k + 1),
+                    format!("pKa values ascend, most protonated form first: {b} follows {a}"),
+                ));
+            }
+        }
+        let pkas: Vec<f64> = e.steps.iter().map(|s| s.pka).collect();
+        let steps: Vec<Step> = e
+            .steps
+            .iter()
+            .map(|s| Step {
+                pka: s.pka,
+                dh_kj_per_mol: s.dh_kj_per_mol,
+                dcp_j_per_mol_k: s.dcp_j_per_mol_k,
             })
             .collect();
-        let built = parts
-            .and_then(|p| Reagent::new(r.name, Some(r.molar_mass_g_per_mol), p))
-            .and_then(|x| {
-                cat.check_new(DataKind::Reagent, &names_of(r.name, r.synonyms))
-                    .map(|_| x)
-            });
-        match built {
-            Ok(x) => cat.insert_reagent(x.with_formula(r.formula), r.synonyms, r.source),
-            Err(e) => cat.problems.push(format!("reagent {}: {e}", r.name)),
+        let mut p = Protolyte::new(&e.name, &pkas, e.charge_most_protonated)
+            .and_then(|p| p.with_steps(steps))
+            .map_err(|err| entry.wrap(err))?
+            .with_source(&source);
+        if let Some(f) = &e.formula {
+            p = p.with_formula(f);
         }
-    }
-    for r in complexes::COMPLEXES {
-        let parts: Result<Vec<(ComplexPart, i32)>> = r
-            .parts
-            .iter()
-            .map(|(p, n)| {
-                let c = match p {
-                    ComplexPartRecord::Base(f) => ComplexPart::Base(cat.protolyte(f)?),
-                    ComplexPartRecord::Ion(i) => ComplexPart::Ion(cat.ion(i)?),
-                    ComplexPartRecord::Proton => ComplexPart::Proton,
-                };
-                Ok((c, *n))
-            })
-            .collect();
-        let built = parts.and_then(|p| Complex::new(r.name, p, r.log_beta)).and_then(|c| {
-            let c = c.with_source(r.source);
-            let c = match r.dh_kj_per_mol {
-                Some(h) => c.with_enthalpy_kj_per_mol(h)?,
-                None => c,
+        if let Some(a) = e.ion_size_angstrom {
+            p = p.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
+        }
+        if let Some(sizes) = &e.form_ion_sizes_angstrom {
+            let n = pkas.len();
+            if sizes.len() != n + 1 {
+                return Err(entry.error(
+                    "form_ion_sizes_angstrom",
+                    format!(
+                        "{} values for {} forms (one per form, most protonated first)",
+                        sizes.len(),
+                        n + 1
+                    ),
+                ));
+            }
+            // 0 means "none listed": a neutral form needs none, a charged one takes the
+            // family's single size.
+            let mut filled = Vec::with_capacity(n + 1);
+            for (k, &a) in sizes.iter().enumerate() {
+                let protons = n - k;
+                let charged = p.charge_of_form(protons) != 0;
+                filled.push(match (a == 0.0, charged, p.ion_size_angstrom()) {
+                    (true, false, _) => 0.0,
+                    (true, true, Some(family)) => family,
+                    (true, true, None) => {
+                        return Err(entry.error(
+                            "form_ion_sizes_angstrom",
+                            format!(
+                                "the charged form {} has no size (0) and the family has no ion_size_angstrom to fall back on",
+                                p.form_name(protons)
+                            ),
+                        ));
+                    }
+                    (false, _, _) => a,
+                });
+            }
+            p = p
+                .with_form_ion_sizes(&filled)
+                .map_err(|err| entry.error("form_ion_sizes_angstrom", err))?;
+        }
+        // Temperature data with sources of their own: named in the family's source text.
+        let (mut source, mut from_memory) = (source, e.from_memory);
+        for (k, s) in e.steps.iter().enumerate() {
+            if s.source.is_some() || s.cite.is_some() {
+                let text = self.citation(&entry, &s.source, &s.cite)?;
+                source.push_str(&format!("; step {} ΔH°/ΔCp°: {text}", k + 1));
+                from_memory |= s.from_memory;
+            }
+        }
+        // The line of the i-th [[family.log_k_equation]] table of this entry, for errors.
+        let eq_error = |i: usize, field: &str, message: String| {
+            let start = entry.span.start.min(loc.text.len());
+            let rest = &loc.text[start..];
+            let end = rest
+                .get(1..)
+                .and_then(|r| r.find("\n[[family]]"))
+                .map_or(rest.len(), |e| e + 1);
+            let line = rest[..end]
+                .match_indices("[[family.log_k_equation]]")
+                .nth(i)
+                .map_or_else(|| loc.line_of(start), |(o, _)| loc.line_of(start + o));
+            loc.error(line, &entry.label(), field, message)
+        };
+        for (i, q) in e.log_k_equation.iter().enumerate() {
+            let field = format!("log_k_equation[{i}]");
+            let step = match q.step {
+                Some(k) if (1..=pkas.len()).contains(&k) => k,
+                Some(k) => {
+                    return Err(eq_error(
+                        i,
+                        &format!("{field}.step"),
+                        format!("step {k} of a family with {} steps (1 = most protonated)", pkas.len()),
+                    ));
+                }
+                None => {
+                    return Err(eq_error(
+                        i,
+                        &format!("{field}.step"),
+                        "missing: which step (1 = most protonated)".into(),
+                    ));
+                }
             };
-            match r.ion_size_angstrom {
-                Some(a) => c.with_ion_size_angstrom(a),
-                None => Ok(c),
+            let eq = read_equation(q).map_err(|err| eq_error(i, &field, err.to_string()))?;
+            p = p
+                .with_log_k_equation(step - 1, eq)
+                .map_err(|err| eq_error(i, &field, err.to_string()))?;
+            if q.source.is_some() || q.cite.is_some() {
+                let text = self.citation(&entry, &q.source, &q.cite)?;
+                source.push_str(&format!("; log K(T) equation of step {step}: {text}"));
             }
-        });
-        let built = built.and_then(|c| cat.check_new(DataKind::Complex, &[r.name]).map(|_| c));
-        match built {
-            Ok(c) => cat.insert_complex(c, &[], r.source, r.from_memory),
-            Err(e) => cat.problems.push(format!("complex {}: {e}", r.name)),
+            from_memory |= q.from_memory;
         }
+        let p = p.with_source(&source);
+        let meta = Meta {
+            source,
+            from_memory,
+            origin: loc.file.to_string(),
+            molar_mass: None,
+        };
+        self.place(DataKind::Protolyte, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_protolyte_with(p, syn, meta)
+        })
     }
-    cat
+
+    fn apply_ion(&mut self, spanned: &Spanned<IonEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Ion, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let mut ion = Ion::new(&e.name, e.charge).map_err(|err| entry.wrap(err))?;
+        if let Some(f) = &e.formula {
+            ion = ion.with_formula(f);
+        }
+        if let Some(a) = e.ion_size_angstrom {
+            ion = ion.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
+        }
+        let meta = Meta {
+            source,
+            from_memory: e.from_memory,
+            origin: loc.file.to_string(),
+            molar_mass: None,
+        };
+        self.place(DataKind::Ion, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_ion_with(ion, syn, meta)
+        })
+    }
+
+    fn apply_reagent(&mut self, spanned: &Spanned<ReagentEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Reagent, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let mut parts = Vec::with_capacity(e.parts.len());
+        for (k, part) in e.parts.iter().enumerate() {
+            let at = PartAt { loc, entry: &entry, k };
+            let p = part;
+            let c = match read_part(p, &at)? {
+                PartRef::Family(f, protons) => Constituent::Form {
+                    protolyte: self.protolyte(f).map_err(|err| at.error("family", err))?,
+                    protons: protons as usize,
+                },
+                PartRef::Ion(i) => Constituent::Ion(self.ion(i).map_err(|err| at.error("ion", err))?),
+                PartRef::Proton => Constituent::Proton,
+                PartRef::Hydroxide => Constituent::Hydroxide,
+                PartRef::Base(_) => {
+                    return Err(at.error(
+                        "base",
+                        "a reagent names a family form as { family = \"...\", protons = n }",
+                    ));
+                }
+            };
+            let n = read_count(p, &at)?;
+            let n =
+                u32::try_from(n).map_err(|_| at.error("count", format!("a reagent's counts are positive, got {n}")))?;
+            parts.push((c, n));
+        }
+        let computed = e.formula.as_deref().and_then(|f| formula::molar_mass_g_per_mol(f, 0));
+        if let (Some(stored), Some(m)) = (e.molar_mass_g_per_mol, computed)
+            && (stored - m).abs() > 1e-3 * m
+        {
+            return Err(entry.error(
+                "molar_mass_g_per_mol",
+                format!(
+                    "{stored} g/mol disagrees with {m:.3} g/mol computed from the formula {} (IUPAC 2021 atomic weights)",
+                    e.formula.as_deref().unwrap_or("")
+                ),
+            ));
+        }
+        let mut r = Reagent::new(&e.name, e.molar_mass_g_per_mol.or(computed), parts).map_err(|err| entry.wrap(err))?;
+        if let Some(f) = &e.formula {
+            r = r.with_formula(f);
+        }
+        let meta = Meta {
+            source,
+            from_memory: e.from_memory,
+            origin: loc.file.to_string(),
+            molar_mass: computed,
+        };
+        self.place(DataKind::Reagent, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_reagent_with(r, syn, meta)
+        })
+    }
+
+    fn apply_complex(&mut self, spanned: &Spanned<ComplexEntry>, loc: &Located) -> Result<()> {
+        let e = spanned.get_ref();
+        let entry = Entry::new(loc, spanned.span(), DataKind::Complex, &e.name);
+        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let mut parts = Vec::with_capacity(e.parts.len());
+        for (k, part) in e.parts.iter().enumerate() {
+            let at = PartAt { loc, entry: &entry, k };
+            let p = part;
+            let c = match read_part(p, &at)? {
+                PartRef::Base(f) => ComplexPart::Base(self.protolyte(f).map_err(|err| at.error("base", err))?),
+                PartRef::Ion(i) => ComplexPart::Ion(self.ion(i).map_err(|err| at.error("ion", err))?),
+                PartRef::Proton => ComplexPart::Proton,
+                PartRef::Family(..) => {
+                    return Err(at.error(
+                        "family",
+                        "a complex names its ligand by the fully deprotonated form: { base = \"...\" }",
+                    ));
+                }
+                PartRef::Hydroxide => {
+                    return Err(at.error(
+                        "hydroxide",
+                        "a hydroxo complex loses protons: write { proton = -1 } for each OH",
+                    ));
+                }
+            };
+            parts.push((c, read_count(p, &at)?));
+        }
+        let mut c = Complex::new(&e.name, parts, e.log_beta)
+            .map_err(|err| entry.wrap(err))?
+            .with_source(&source);
+        if let Some(h) = e.dh_kj_per_mol {
+            c = c.with_enthalpy_kj_per_mol(h).map_err(|err| entry.wrap(err))?;
+        }
+        if let Some(cp) = e.dcp_j_per_mol_k {
+            c = c
+                .with_heat_capacity_j_per_mol_k(cp)
+                .map_err(|err| entry.error("dcp_j_per_mol_k", err))?;
+        }
+        let (mut source, mut from_memory) = (source, e.from_memory);
+        if let Some(q) = &e.log_k_equation {
+            if q.step.is_some() {
+                return Err(entry.error("log_k_equation.step", "a complex has one reaction: no step"));
+            }
+            let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
+            c = c
+                .with_log_k_equation(eq)
+                .map_err(|err| entry.error("log_k_equation", err))?;
+            if q.source.is_some() || q.cite.is_some() {
+                let text = self.citation(&entry, &q.source, &q.cite)?;
+                source.push_str(&format!("; log K(T) equation: {text}"));
+                c = c.with_source(&source);
+            }
+            from_memory |= q.from_memory;
+        }
+        if let Some(a) = e.ion_size_angstrom {
+            c = c.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
+        }
+        let meta = Meta {
+            source,
+            from_memory,
+            origin: loc.file.to_string(),
+            molar_mass: None,
+        };
+        self.place(DataKind::Complex, &entry, e.replace, &e.synonyms, |cat, syn| {
+            cat.add_complex_with(c, syn, meta)
+        })
+    }
+}
+
+/// A log K(T) equation as read from a file.
+fn read_equation(q: &EquationEntry) -> Result<LogKEquation> {
+    LogKEquation::new(
+        q.coefficients,
+        ValidityRange::celsius(q.range_celsius[0], q.range_celsius[1])?,
+    )
+}
+
+/// An entry being read: where it is, for errors.
+struct Entry<'a> {
+    loc: &'a Located<'a>,
+    span: std::ops::Range<usize>,
+    kind: DataKind,
+    name: &'a str,
+}
+
+impl<'a> Entry<'a> {
+    fn new(loc: &'a Located<'a>, span: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
+        let span = loc.entry_range(span);
+        Entry { loc, span, kind, name }
+    }
+
+    fn label(&self) -> String {
+        format!("{} `{}`", self.kind.table(), self.name)
+    }
+
+    fn error(&self, field: &str, message: impl std::fmt::Display) -> Error {
+        let key = field.split(['[', '.']).next().unwrap_or(field);
+        let line = self.loc.line_of_key(&self.span, key);
+        self.loc.error(line, &self.label(), field, message)
+    }
+
+    /// A definition's own error, attributed to the field it is about.
+    fn wrap(&self, err: Error) -> Error {
+        let field = match &err {
+            Error::InvalidParameter { parameter, .. } => match *parameter {
+                "pKa" => "steps",
+                "ΔH° (kJ/mol)" if self.kind == DataKind::Protolyte => "steps",
+                "ΔCp° (J/(mol·K))" => "steps",
+                "ΔH° (kJ/mol)" => "dh_kj_per_mol",
+                "ion size (Å)" => "ion_size_angstrom",
+                "log β" => "log_beta",
+                "molar mass (g/mol)" => "molar_mass_g_per_mol",
+                _ => "",
+            },
+            Error::NotElectroneutral { .. } => "parts",
+            Error::InconsistentDefinition { reason, .. } if reason.contains("step") => "steps",
+            Error::InconsistentDefinition { reason, .. } if reason.contains("charge") => match self.kind {
+                DataKind::Protolyte => "charge_most_protonated",
+                DataKind::Ion => "charge",
+                _ => "parts",
+            },
+            Error::InconsistentDefinition { reason, .. } if reason.contains("name") => "name",
+            _ => "parts",
+        };
+        let field = if field.is_empty() { "name" } else { field };
+        self.error(field, err)
+    }
+}
+
+/// One part of a reagent or complex being read.
+struct PartAt<'a> {
+    loc: &'a Located<'a>,
+    entry: &'a Entry<'a>,
+    k: usize,
+}
+
+impl PartAt<'_> {
+    fn error(&self, key: &str, message: impl std::fmt::Display) -> Error {
+        self.loc.error(
+            self.loc.line_of_item(&self.entry.span, "parts", self.k),
+            &self.entry.label(),
+            &format!("parts[{}].{key}", self.k),
+            message,
+        )
+    }
+}
+
+enum PartRef<'a> {
+    Family(&'a str, u32),
+    Base(&'a str),
+    Ion(&'a str),
+    Proton,
+    Hydroxide,
+}
+
+/// Which part this is; exactly one of `family`, `base`, `ion`, `proton`, `hydroxide`.
+fn read_part<'a>(p: &'a PartEntry, at: &PartAt) -> Result<PartRef<'a>> {
+    let given = [
+        p.family.is_some(),
+        p.base.is_some(),
+        p.ion.is_some(),
+        p.proton.is_some(),
+        p.hydroxide.is_some(),
+    ];
+    if given.iter().filter(|&&g| g).count() != 1 {
+        return Err(at.error(
+            "",
+            "a part is exactly one of { family = \"...\", protons = n }, { base = \"...\" }, { ion = \"...\" }, { proton = n }, { hydroxide = n }",
+        ));
+    }
+    if p.protons.is_some() && p.family.is_none() {
+        return Err(at.error("protons", "only a family part takes `protons`"));
+    }
+    if p.count.is_some() && (p.proton.is_some() || p.hydroxide.is_some()) {
+        return Err(at.error("count", "a proton or hydroxide part gives its count as its value"));
+    }
+    Ok(if let Some(f) = &p.family {
+        let protons = p
+            .protons
+            .ok_or_else(|| at.error("protons", "a family part says how many protons the form holds"))?;
+        PartRef::Family(f, protons)
+    } else if let Some(b) = &p.base {
+        PartRef::Base(b)
+    } else if let Some(i) = &p.ion {
+        PartRef::Ion(i)
+    } else if p.proton.is_some() {
+        PartRef::Proton
+    } else {
+        PartRef::Hydroxide
+    })
+}
+
+/// The count of a part: `count` (default 1), or the value of `proton` / `hydroxide`.
+fn read_count(p: &PartEntry, at: &PartAt) -> Result<i32> {
+    let n = p.proton.or(p.hydroxide).or(p.count).unwrap_or(1);
+    if n == 0 {
+        return Err(at.error("count", "a count of 0"));
+    }
+    Ok(n)
 }

@@ -356,6 +356,20 @@ impl Block<'_> {
         let name = doc.name.as_ref().map(|n| n.to_string());
         super::check_format(doc.format.as_deref(), super::RECIPE_FORMAT, false)
             .map_err(|e| Failure::Input(name.clone(), e))?;
+        if doc.reagents.len() > super::limits::MAX_ENTRIES {
+            // Refused before any copy or look-up (the same message as the document path).
+            return Err(Failure::Input(
+                name,
+                super::field_error(
+                    "reagents",
+                    format!(
+                        "{} reagent lines: a document may give at most {}",
+                        doc.reagents.len(),
+                        super::limits::MAX_ENTRIES
+                    ),
+                ),
+            ));
+        }
         if doc.definitions.is_some() {
             // Definitions of its own: read in full and compiled on its own.
             let full: RecipeDoc = serde_json::from_str(text).map_err(syntax)?;

@@ -703,6 +703,16 @@ struct Names {
 
 /// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens.
 fn normalize_name(s: &str) -> String {
+    // Most names are plain ASCII with single spaces: one allocation.
+    let b = s.as_bytes();
+    let plain = s.is_ascii()
+        && b.first() != Some(&b' ')
+        && b.last() != Some(&b' ')
+        && !b.iter().any(|c| (c.is_ascii_whitespace() && *c != b' ') || *c == 0x0b)
+        && !s.contains("  ");
+    if plain {
+        return s.to_ascii_lowercase();
+    }
     let s: String = s
         .trim()
         .chars()
@@ -1500,8 +1510,9 @@ impl FitDoc {
         let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
         let mut fit = TitrationFit::new();
         if let Some(n) = self.max_iterations {
-            if n > 100_000 {
-                return Err(field_error("max_iterations", format!("{n}: at most 100000")));
+            let max = crate::limits::MAX_FIT_ITERATIONS;
+            if !(1..=max).contains(&n) {
+                return Err(field_error("max_iterations", format!("{n}: must be 1..{max}")));
             }
             fit = fit.max_iterations(n);
         }

@@ -297,7 +297,15 @@ pub fn load<T: DeserializeOwned>(path: impl AsRef<Path>) -> Result<T, DocumentEr
     })?;
     let text = match text {
         Ok(t) => t,
-        Err(bytes) => return Err(check_size(bytes, &name).unwrap_err()),
+        Err(()) => {
+            return Err(DocumentError::Read {
+                file: name,
+                message: format!(
+                    "the document is longer than {} bytes (1 MiB), the most a document may hold",
+                    limits::MAX_DOCUMENT_BYTES
+                ),
+            });
+        }
     };
     let is_toml = path.extension().is_some_and(|e| e.eq_ignore_ascii_case("toml"));
     if is_toml {
@@ -307,9 +315,9 @@ pub fn load<T: DeserializeOwned>(path: impl AsRef<Path>) -> Result<T, DocumentEr
     }
 }
 
-/// The text of `path`, or `Err(bytes read)` when it is over the size limit (reading stops
-/// just past the limit).
-fn read_text(path: &Path) -> std::io::Result<Result<String, usize>> {
+/// The text of `path`, or `Err(())` when it is over the size limit (reading stops just past
+/// the limit).
+fn read_text(path: &Path) -> std::io::Result<Result<String, ()>> {
     use std::io::Read;
     let limit = limits::MAX_DOCUMENT_BYTES as u64 + 1;
     let mut bytes = Vec::new();
@@ -323,7 +331,7 @@ fn read_text(path: &Path) -> std::io::Result<Result<String, usize>> {
         f.take(limit).read_to_end(&mut bytes)?;
     }
     if bytes.len() > limits::MAX_DOCUMENT_BYTES {
-        return Ok(Err(bytes.len()));
+        return Ok(Err(()));
     }
     String::from_utf8(bytes).map(Ok).map_err(|e| {
         std::io::Error::new(
