@@ -352,3 +352,18 @@ fn the_warning_names_the_model_to_use() {
         "{text:?}"
     );
 }
+
+/// Only pairs that matter are named: in 1 mol/kg NaOH under SIT (ε(Na⁺, OH⁻) = 0.04 kg/mol,
+/// NEA-TDB, from memory) every pair is known or not counted (H⁺ with OH⁻), so no
+/// `UnknownInteraction` appears.
+#[test]
+fn sit_known_pairs_raise_no_interaction_warning() {
+    let eq = solve_salt("sodium hydroxide", 1.0, ActivityModel::Sit);
+    assert!(
+        !eq.warnings()
+            .iter()
+            .any(|w| matches!(w, Warning::UnknownInteraction { .. })),
+        "{:?}",
+        eq.warnings()
+    );
+}

@@ -17,6 +17,8 @@
 //! partner; each result in which such a pair meets a partner above 0.01 mol/kg carries a
 //! [`Warning::UnknownInteraction`](crate::Warning::UnknownInteraction) naming the pair.
 //!
+//! H⁺ and OH⁻ are not paired with each other (they never meet at comparable molalities).
+//!
 //! **Neutral species** keep γ = 1: SIT gives them no Debye–Hückel term, and salting-out
 //! coefficients of neutral solutes are not tabulated here.
 
@@ -127,7 +129,9 @@ impl Interactions {
                 continue;
             }
             for (b, (nb, zb)) in species.clone().enumerate() {
-                if zb >= 0 {
+                // H⁺ and OH⁻ never meet at comparable molalities (water's ion product): no
+                // interaction is counted between them, and none is missed.
+                if zb >= 0 || (na == "H+" && nb == "OH-") {
                     continue;
                 }
                 match interaction_coefficient(na, nb) {
