@@ -555,3 +555,17 @@ fn the_example_in_the_format_documentation_loads() {
         .to_string();
     assert!(doc.contains(&e), "{e}");
 }
+
+#[cfg(feature = "serde")]
+#[test]
+fn a_documents_own_family_with_pka_values_out_of_order_is_refused() {
+    use protolyte::document::{RecipeDoc, parse};
+    let text = r#"{
+  "format": "protolyte-recipe/1",
+  "definitions": { "protolytes": [ { "name": "dye X", "pka": [6.8, 3.0], "charge_most_protonated": 0 } ] },
+  "reagents": [ { "reagent": "dye X", "millimolar": 0.1 } ]
+}"#;
+    let doc: RecipeDoc = parse(text, "dye.json").unwrap();
+    let err = doc.to_recipe(&Catalog::builtin()).unwrap_err().to_string();
+    assert!(err.contains("ascend") && err.contains("definitions"), "{err}");
+}
