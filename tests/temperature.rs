@@ -239,6 +239,52 @@ fn aces_and_ches_pka_5_to_55_c() {
     assert!(w <= PKA_TOL, "CHES: largest deviation {w:.4}");
 }
 
+/// Published pKa(T) as the change from its own 25 °C value, added to the built-in 25 °C pKa:
+/// the temperature data (ΔH°, ΔCp°) set only that change, and two sources' 25 °C constants
+/// commonly differ by a few thousandths.
+fn change_from_25_c(family: &str, published: impl Fn(f64) -> f64, celsius: &[f64]) -> Vec<(f64, f64)> {
+    let base = pka_of(family, 0, 25.0) - published(25.0);
+    celsius.iter().map(|&t| (t, published(t) + base)).collect()
+}
+
+/// Benzoic acid: L. E. Strong, T. Kinney and P. Fischer, J. Solution Chem. 8 (1979) 329,
+/// from conductances of dilute solutions, pKa = −75.5422 + 3136.34/T + 28.7965·log₁₀ T −
+/// 6.8139×10⁻³·T, 5–80 °C, "fitted to within about 0.01 %" (read from a stored copy of the
+/// abstract; 4.2006 at 25 °C, 4.204 built in). Built-in: ΔH° 0.3 ± 0.3 kJ/mol and ΔCp°
+/// −207 ± 5 J/(mol·K) of R. Kettler, D. J. Wesolowski and D. A. Palmer, J. Solution Chem. 24
+/// (1995) 385, from hydrogen-electrode cells to 250 °C (read from a stored copy of the
+/// abstract), so two methods are compared. Strong et al.'s equation implies ΔH° 0.26 kJ/mol
+/// and ΔCp° −162 J/(mol·K) at 25 °C (its derivatives): the two sources agree on ΔH° and
+/// differ by 45 J/(mol·K) in ΔCp°, which alone parts them by 0.007 at 50 °C and by 0.03 at
+/// 80 °C. Hence the comparison from 5 to 50 °C, with PKA_TOL (0.007 from the ΔCp° difference
+/// plus ±0.3 kJ/mol in ΔH°, which moves pKa by up to 0.005 at 25 K from 25 °C, rounded to the
+/// common 0.01).
+#[test]
+fn benzoic_acid_pka_5_to_50_c() {
+    let strong_1979 = |t: f64| {
+        let k = t + 273.15;
+        -75.5422 + 3136.34 / k + 28.7965 * k.log10() - 6.8139e-3 * k
+    };
+    let published = change_from_25_c("benzoate", strong_1979, &[5.0, 15.0, 35.0, 45.0, 50.0]);
+    let w = worst_pka_deviation("benzoate", 0, &published);
+    assert!(w <= PKA_TOL, "benzoic acid: largest deviation {w:.4}");
+}
+
+/// Lactic acid: A. W. Martin and H. V. Tartar, J. Am. Chem. Soc. 59 (1937) 2672 (citation
+/// from memory), whose 0–50 °C constants are fitted by pKa = 3.857 + 5×10⁻⁵·(t/°C − 22.5)²
+/// (the fit read from a stored copy of a quotation of it). The built-in ΔH° and ΔCp° are this
+/// fit's derivatives at 25 °C, so the test checks the derivation and the van 't Hoff
+/// integration with constant ΔCp°, not an independent measurement. Tolerance 0.005: with a
+/// constant ΔCp°, d²pKa/dT² falls off roughly as T⁻² to T⁻³ away from 25 °C, while the
+/// parabola's is constant; over 25 K that difference of form is worth about 0.004 (at 0 °C).
+#[test]
+fn lactic_acid_pka_0_to_50_c() {
+    let martin_tartar = |t: f64| 3.857 + 5e-5 * (t - 22.5) * (t - 22.5);
+    let published = change_from_25_c("lactate", martin_tartar, &[0.0, 10.0, 20.0, 30.0, 40.0, 50.0]);
+    let w = worst_pka_deviation("lactate", 0, &published);
+    assert!(w <= 0.005, "lactic acid: largest deviation {w:.4}");
+}
+
 // ------------------------------------------------------------------------- warnings
 
 /// A family of our own (invented numbers, a demo) with three steps: step 1 without any
