@@ -404,7 +404,7 @@ impl Protolyte {
     /// falls short.
     ///
     /// Refuses a `step` the family does not have (`Error::InconsistentDefinition`) and a temperature
-    /// at which van't Hoff gives no finite value (see [`vant_hoff::log10_k_at`]).
+    /// at which van't Hoff gives no finite value (see [`crate::vant_hoff::log10_k_at`]).
     ///
     /// ```
     /// use protolyte::{Protolyte, Temperature};

@@ -299,7 +299,7 @@ pub struct DebyeHuckelConstants {
 impl DebyeHuckelConstants {
     /// A and B at temperature `t`. Refuses a temperature outside 0–100 °C (the range of
     /// the water properties they are built from) with
-    /// [`Error::OutOfDomain`](crate::Error::OutOfDomain).
+    /// [`Error::OutOfDomain`].
     pub fn at(t: Temperature) -> crate::Result<Self> {
         let eps = water::dielectric_constant(t)?;
         let rho = water::density_kg_per_l(t)?;
