@@ -701,30 +701,6 @@ struct Names {
     reagents: HashMap<String, (String, bool)>,
 }
 
-/// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens.
-fn normalize_name(s: &str) -> String {
-    // Most names are plain ASCII with single spaces: one allocation.
-    let b = s.as_bytes();
-    let plain = s.is_ascii()
-        && b.first() != Some(&b' ')
-        && b.last() != Some(&b' ')
-        && !b.iter().any(|c| (c.is_ascii_whitespace() && *c != b' ') || *c == 0x0b)
-        && !s.contains("  ");
-    if plain {
-        return s.to_ascii_lowercase();
-    }
-    let s: String = s
-        .trim()
-        .chars()
-        .map(|c| match c {
-            '\u{2010}'..='\u{2015}' | '\u{2212}' => '-',
-            c => c,
-        })
-        .collect::<String>()
-        .to_lowercase();
-    s.split_whitespace().collect::<Vec<_>>().join(" ")
-}
-
 impl Names {
     fn of(cat: &Catalog) -> Self {
         let mut names = Names {
@@ -734,7 +710,7 @@ impl Names {
         for e in cat.entries() {
             let origin = format!("the catalogue's {} `{}`", e.kind.name(), e.name);
             for n in std::iter::once(&e.name).chain(&e.synonyms) {
-                let key = normalize_name(n);
+                let key = crate::data::normalize(n);
                 if e.kind == DataKind::Reagent {
                     names.reagents.entry(key).or_insert_with(|| (origin.clone(), false));
                 } else {
@@ -754,7 +730,7 @@ impl Names {
         let all = || std::iter::once(name).chain(synonyms.iter().map(String::as_str));
         let this = format!("{path} (`{}`)", super::shorten(name));
         for n in all() {
-            let key = normalize_name(n);
+            let key = crate::data::normalize(n);
             let clash = if kind == DataKind::Reagent {
                 match self.reagents.get(&key) {
                     Some((origin, true)) => Some(format!("reagent {origin}")),
@@ -795,7 +771,7 @@ impl Names {
             }
         }
         for n in all() {
-            let key = normalize_name(n);
+            let key = crate::data::normalize(n);
             if kind == DataKind::Reagent {
                 self.reagents.insert(key, (this.clone(), true));
             } else {
