@@ -374,6 +374,50 @@ fn errors_in_a_users_file_name_the_file_line_and_field() {
     );
 }
 
+/// Each part a reagent or a complex does not take is refused at that part's line, with its
+/// field; the first fault met, in the order the parts are written, is the one reported.
+/// (The messages are this crate's own; the chemistry is common practice: a hydroxo complex
+/// is written with the protons its water ligands lost.)
+#[test]
+fn parts_a_definition_does_not_take_are_refused_at_their_line() {
+    let reagent = "[[reagent]]\nname = \"odd salt\"\nformula = \"NaCl\"\n";
+    // A reagent names a family form, not a base.
+    let e = refused(&format!(
+        "{reagent}parts = [\n    {{ ion = \"sodium\" }},\n    {{ base = \"acetate\" }},\n]\nsource = \"s\"\n"
+    ));
+    assert_eq!((e.line, e.field.as_str()), (7, "parts[1].base"), "{e}");
+    assert!(e.message.contains("protons = n"), "{e}");
+    // A reagent's counts are positive.
+    let e = refused(&format!(
+        "{reagent}parts = [\n    {{ ion = \"sodium\", count = -1 }},\n    {{ ion = \"chloride\" }},\n]\nsource = \"s\"\n"
+    ));
+    assert_eq!((e.line, e.field.as_str()), (6, "parts[0].count"), "{e}");
+    assert!(e.message.contains("got -1"), "{e}");
+    // A count of 0 is refused for both.
+    let e = refused(&format!(
+        "{reagent}parts = [\n    {{ ion = \"sodium\", count = 0 }},\n    {{ ion = \"chloride\" }},\n]\nsource = \"s\"\n"
+    ));
+    assert_eq!((e.line, e.field.as_str()), (6, "parts[0].count"), "{e}");
+    // An unknown name is found before a count of 0 in the same part.
+    let e = refused(&format!(
+        "{reagent}parts = [\n    {{ ion = \"sodiun\", count = 0 }},\n    {{ ion = \"chloride\" }},\n]\nsource = \"s\"\n"
+    ));
+    assert_eq!((e.line, e.field.as_str()), (6, "parts[0].ion"), "{e}");
+    let complex = "[[complex]]\nname = \"CuX\"\nlog_beta = 2.0\n";
+    // A complex names its ligand as a base, not a family form.
+    let e = refused(&format!(
+        "{complex}parts = [\n    {{ ion = \"copper\" }},\n    {{ family = \"acetate\", protons = 0 }},\n]\nsource = \"s\"\n"
+    ));
+    assert_eq!((e.line, e.field.as_str()), (7, "parts[1].family"), "{e}");
+    assert!(e.message.contains("base = "), "{e}");
+    // A hydroxo complex is written with { proton = -1 }, not hydroxide.
+    let e = refused(&format!(
+        "{complex}parts = [\n    {{ ion = \"copper\" }},\n    {{ hydroxide = 1 }},\n]\nsource = \"s\"\n"
+    ));
+    assert_eq!((e.line, e.field.as_str()), (7, "parts[1].hydroxide"), "{e}");
+    assert!(e.message.contains("proton = -1"), "{e}");
+}
+
 #[test]
 fn a_refused_file_leaves_the_catalog_unchanged() {
     let mut cat = Catalog::builtin();

@@ -1242,30 +1242,27 @@ impl Catalog {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Reagent, &e.name);
         let source = self.citation(&entry, &e.source, &e.cite)?;
-        let mut parts = Vec::with_capacity(e.parts.len());
-        for (k, part) in e.parts.iter().enumerate() {
-            let at = PartAt { loc, entry: &entry, k };
-            let p = part;
-            let c = match read_part(p, &at)? {
-                PartRef::Family(f, protons) => Constituent::Form {
+        let parts = read_parts(
+            &e.parts,
+            loc,
+            &entry,
+            |part, at| match part {
+                PartRef::Family(f, protons) => Ok(Constituent::Form {
                     protolyte: self.protolyte(f).map_err(|err| at.error("family", err))?,
                     protons: protons as usize,
-                },
-                PartRef::Ion(i) => Constituent::Ion(self.ion(i).map_err(|err| at.error("ion", err))?),
-                PartRef::Proton => Constituent::Proton,
-                PartRef::Hydroxide => Constituent::Hydroxide,
-                PartRef::Base(_) => {
-                    return Err(at.error(
-                        "base",
-                        "a reagent names a family form as { family = \"...\", protons = n }",
-                    ));
-                }
-            };
-            let n = read_count(p, &at)?;
-            let n =
-                u32::try_from(n).map_err(|_| at.error("count", format!("a reagent's counts are positive, got {n}")))?;
-            parts.push((c, n));
-        }
+                }),
+                PartRef::Ion(i) => Ok(Constituent::Ion(self.ion(i).map_err(|err| at.error("ion", err))?)),
+                PartRef::Proton => Ok(Constituent::Proton),
+                PartRef::Hydroxide => Ok(Constituent::Hydroxide),
+                PartRef::Base(_) => Err(at.error(
+                    "base",
+                    "a reagent names a family form as { family = \"...\", protons = n }",
+                )),
+            },
+            |n, at| {
+                u32::try_from(n).map_err(|_| at.error("count", format!("a reagent's counts are positive, got {n}")))
+            },
+        )?;
         let computed = e.formula.as_deref().and_then(|f| formula::molar_mass_g_per_mol(f, 0));
         if let (Some(stored), Some(m)) = (e.molar_mass_g_per_mol, computed)
             && (stored - m).abs() > 1e-3 * m
@@ -1297,29 +1294,27 @@ impl Catalog {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Complex, &e.name);
         let source = self.citation(&entry, &e.source, &e.cite)?;
-        let mut parts = Vec::with_capacity(e.parts.len());
-        for (k, part) in e.parts.iter().enumerate() {
-            let at = PartAt { loc, entry: &entry, k };
-            let p = part;
-            let c = match read_part(p, &at)? {
-                PartRef::Base(f) => ComplexPart::Base(self.protolyte(f).map_err(|err| at.error("base", err))?),
-                PartRef::Ion(i) => ComplexPart::Ion(self.ion(i).map_err(|err| at.error("ion", err))?),
-                PartRef::Proton => ComplexPart::Proton,
-                PartRef::Family(..) => {
-                    return Err(at.error(
-                        "family",
-                        "a complex names its ligand by the fully deprotonated form: { base = \"...\" }",
-                    ));
-                }
-                PartRef::Hydroxide => {
-                    return Err(at.error(
-                        "hydroxide",
-                        "a hydroxo complex loses protons: write { proton = -1 } for each OH",
-                    ));
-                }
-            };
-            parts.push((c, read_count(p, &at)?));
-        }
+        let parts = read_parts(
+            &e.parts,
+            loc,
+            &entry,
+            |part, at| match part {
+                PartRef::Base(f) => Ok(ComplexPart::Base(
+                    self.protolyte(f).map_err(|err| at.error("base", err))?,
+                )),
+                PartRef::Ion(i) => Ok(ComplexPart::Ion(self.ion(i).map_err(|err| at.error("ion", err))?)),
+                PartRef::Proton => Ok(ComplexPart::Proton),
+                PartRef::Family(..) => Err(at.error(
+                    "family",
+                    "a complex names its ligand by the fully deprotonated form: { base = \"...\" }",
+                )),
+                PartRef::Hydroxide => Err(at.error(
+                    "hydroxide",
+                    "a hydroxo complex loses protons: write { proton = -1 } for each OH",
+                )),
+            },
+            |n, _| Ok(n),
+        )?;
         let mut c = Complex::new(&e.name, parts, e.log_beta)
             .map_err(|err| entry.wrap(err))?
             .with_source(&source);
@@ -1483,6 +1478,26 @@ fn read_part<'a>(p: &'a PartEntry, at: &PartAt) -> Result<PartRef<'a>> {
     } else {
         PartRef::Hydroxide
     })
+}
+
+/// The parts of a reagent or complex, in order: for each, which part it is, turned into the
+/// definition's own part by `kind` (which refuses the kinds the definition does not take),
+/// then its count, checked by `count`. The first error met is returned.
+fn read_parts<C, N>(
+    parts: &[PartEntry],
+    loc: &Located,
+    entry: &Entry,
+    mut kind: impl FnMut(PartRef<'_>, &PartAt) -> Result<C>,
+    mut count: impl FnMut(i32, &PartAt) -> Result<N>,
+) -> Result<Vec<(C, N)>> {
+    let mut out = Vec::with_capacity(parts.len());
+    for (k, p) in parts.iter().enumerate() {
+        let at = PartAt { loc, entry, k };
+        let c = kind(read_part(p, &at)?, &at)?;
+        let n = count(read_count(p, &at)?, &at)?;
+        out.push((c, n));
+    }
+    Ok(out)
 }
 
 /// The count of a part: `count` (default 1), or the value of `proton` / `hydroxide`.
