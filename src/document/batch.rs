@@ -740,6 +740,13 @@ fn error_line(out: &mut Vec<u8>, line: usize, kind: &str, error: String) {
     out.push(b'\n');
 }
 
+/// Drops what a worker wrote for this line (from `mark` on) and writes one `"internal"` error
+/// record in its place: the worker panicked or did not write exactly one record.
+fn internal_error_line(out: &mut Vec<u8>, mark: usize, line: usize, error: String) {
+    out.truncate(mark);
+    error_line(out, line, "internal", error);
+}
+
 /// Solves a chunk in parallel blocks: per block, (records as JSON Lines, records, failures).
 fn solve_chunk<M, F>(lines: &[RawLine], first_line: usize, sizes: Sizes, make: &M) -> Vec<(Vec<u8>, usize, usize)>
 where
@@ -794,23 +801,21 @@ where
                         if newlines == 1 && out.last() == Some(&b'\n') {
                             failed += usize::from(f);
                         } else {
-                            out.truncate(mark);
                             failed += 1;
-                            error_line(
+                            internal_error_line(
                                 &mut out,
+                                mark,
                                 line_no,
-                                "internal",
                                 "internal error (a bug in protolyte; please report it): the record could not be written".into(),
                             );
                         }
                     }
                     Err(payload) => {
-                        out.truncate(mark);
                         failed += 1;
-                        error_line(
+                        internal_error_line(
                             &mut out,
+                            mark,
                             line_no,
-                            "internal",
                             format!(
                                 "internal error (a bug in protolyte; please report it with this line): {}",
                                 panic_message(payload.as_ref())
