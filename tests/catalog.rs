@@ -197,6 +197,20 @@ fn structured_information_for_a_family() {
 
 const HEADER: &str = "format = \"protolyte-catalog/1\"\n";
 
+/// The pH of `amount` of one reagent in water at 25 °C, ideal activities.
+fn ideal_ph_at_25c(reagent: &protolyte::Reagent, amount: Amount) -> f64 {
+    let mut r = Recipe::new();
+    r.add(reagent, amount).unwrap();
+    r.compile(&Conditions::new(
+        Temperature::celsius(25.0),
+        protolyte::ActivityModel::Ideal,
+    ))
+    .unwrap()
+    .solve()
+    .unwrap()
+    .ph()
+}
+
 #[test]
 fn a_users_file_adds_entries_that_refer_to_built_in_ones() {
     // An invented lab acid and its sodium salt (demo data).
@@ -232,18 +246,9 @@ source = \"our own preparation\"
     assert_eq!(info.forms[2].ion_size_angstrom, Some(5.0));
     let salt = cat.reagent("sodium hydrogen q").unwrap();
     assert_eq!(salt.molar_mass_g_per_mol(), None); // "H2Q" is not a formula of elements
-    let mut r = Recipe::new();
-    r.add(&salt, Amount::millimolar(10.0)).unwrap();
-    let eq = r
-        .compile(&Conditions::new(
-            Temperature::celsius(25.0),
-            protolyte::ActivityModel::Ideal,
-        ))
-        .unwrap()
-        .solve()
-        .unwrap();
+    let ph = ideal_ph_at_25c(&salt, Amount::millimolar(10.0));
     // An ampholyte HQ⁻ at 10 mM sits near (pKa1 + pKa2)/2 = 5.0 (common practice).
-    assert!((eq.ph() - 5.0).abs() < 0.1, "{}", eq.ph());
+    assert!((ph - 5.0).abs() < 0.1, "{ph}");
 }
 
 #[test]
@@ -550,18 +555,16 @@ fn a_sulfite_solution_sits_where_its_constants_put_it() {
     // formula [H+]^2 = (K1 K2 c + K1 Kw) / (K1 + c) (common practice) gives pH 4.716, not
     // (pKa1 + pKa2)/2 = 4.53, because K1 is not small against c.
     let cat = Catalog::builtin();
-    let mut r = Recipe::new();
-    r.add(&cat.reagent("sodium bisulfite").unwrap(), Amount::millimolar(10.0))
-        .unwrap();
-    let eq = r
-        .compile(&Conditions::new(
-            Temperature::celsius(25.0),
-            protolyte::ActivityModel::Ideal,
-        ))
-        .unwrap()
-        .solve()
-        .unwrap();
-    assert!((eq.ph() - 4.716).abs() < 0.01, "{}", eq.ph());
+    let ph = ideal_ph_at_25c(&cat.reagent("sodium bisulfite").unwrap(), Amount::millimolar(10.0));
+    assert!((ph - 4.716).abs() < 0.01, "{ph}");
+}
+
+/// The message with which the built-in catalogue refuses `text` read as `lab.toml`.
+fn refused_in_lab_toml(text: &str) -> String {
+    Catalog::builtin()
+        .with_toml_str(text, "lab.toml")
+        .unwrap_err()
+        .to_string()
 }
 
 #[test]
@@ -581,22 +584,13 @@ fn the_example_in_the_format_documentation_loads() {
     // The error lines shown there are the ones protolyte writes.
     let text = &doc[start..end];
     let bad = text.replace("{ pka = 6.12 }", "{ pka = 3.1 }");
-    let e = Catalog::builtin()
-        .with_toml_str(&bad, "lab.toml")
-        .unwrap_err()
-        .to_string();
+    let e = refused_in_lab_toml(&bad);
     assert!(doc.contains(&e), "{e}");
     let bad = text.replace("family = \"lab acid q\"", "family = \"lab acid\"");
-    let e = Catalog::builtin()
-        .with_toml_str(&bad, "lab.toml")
-        .unwrap_err()
-        .to_string();
+    let e = refused_in_lab_toml(&bad);
     assert!(doc.contains(&e), "{e}");
     let bad = "format = \"protolyte-catalog/1\"\n\n[[family]]\nname = \"acetate\"\ncharge_most_protonated = 0\nsteps = [{ pka = 4.7 }]\nsource = \"x\"\n";
-    let e = Catalog::builtin()
-        .with_toml_str(bad, "lab.toml")
-        .unwrap_err()
-        .to_string();
+    let e = refused_in_lab_toml(bad);
     assert!(doc.contains(&e), "{e}");
 }
 
