@@ -19,6 +19,18 @@ fn ideal() -> Conditions {
     Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal)
 }
 
+/// 0.01 mol/L acetic acid, and 0.01 mol/L sodium hydroxide to titrate it with.
+fn acetic_acid_and_titrant() -> (Recipe, Recipe) {
+    let cat = Catalog::builtin();
+    let mut acid = Recipe::new();
+    acid.add(&cat.reagent("acetic acid").unwrap(), Amount::molar(0.01))
+        .unwrap();
+    let mut base = Recipe::new();
+    base.add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molar(0.01))
+        .unwrap();
+    (acid, base)
+}
+
 // ---------------------------------------------------------------- integers in the chemistry
 
 #[test]
@@ -382,13 +394,7 @@ fn index_taking_calls_return_none_out_of_range() {
 
 #[test]
 fn curves_and_sweeps_refuse_absurd_sizes() {
-    let cat = Catalog::builtin();
-    let mut acid = Recipe::new();
-    acid.add(&cat.reagent("acetic acid").unwrap(), Amount::molar(0.01))
-        .unwrap();
-    let mut base = Recipe::new();
-    base.add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molar(0.01))
-        .unwrap();
+    let (acid, base) = acetic_acid_and_titrant();
     let t = Titration::new(&acid, Volume::milliliters(10.0), &base, &davies()).unwrap();
     let err = t.curve_uniform(Volume::milliliters(20.0), usize::MAX).unwrap_err();
     assert!(matches!(err, Error::TooManyPoints { .. }), "{err}");
@@ -686,13 +692,7 @@ fn analysis_fractions_outside_their_range_are_refused_not_clamped() {
         Err(Error::InvalidParameter { .. })
     ));
     assert!(derivative_endpoints(&data, f64::NAN).is_err());
-    let cat = Catalog::builtin();
-    let mut acid = Recipe::new();
-    acid.add(&cat.reagent("acetic acid").unwrap(), Amount::molar(0.01))
-        .unwrap();
-    let mut base = Recipe::new();
-    base.add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molar(0.01))
-        .unwrap();
+    let (acid, base) = acetic_acid_and_titrant();
     let t = Titration::new(&acid, Volume::milliliters(10.0), &base, &davies()).unwrap();
     assert!(matches!(
         t.equivalence_points_with(0.9, indicators()),
