@@ -431,53 +431,80 @@ impl TitrationFit {
         let (mut r, mut jac) = work.evaluate(&theta0)?;
         let mut theta = theta0;
         let mut ssr = r.norm_squared();
-        let mut lambda = 1e-3;
         let mut iterations = 0;
         let mut converged = false;
-        let typical: Vec<f64> = start.iter().map(|s| s.abs().max(1e-6)).collect();
+        // Damping D = diag(JᵀJ), each entry the largest met so far (J. J. Moré, "The
+        // Levenberg–Marquardt algorithm: implementation and theory", Lecture Notes in
+        // Mathematics 630 (1978) 105, eq. 6.3): where a point on the steep part of the curve
+        // falls onto a plateau, its column of J shrinks and a damping that followed it would
+        // let the step in that unknown leap across the break and back.
+        let mut damping: Vec<f64> = vec![0.0; p];
+        // λ relative to D, raised and lowered by the gain ratio ρ = actual / predicted drop
+        // of the sum of squares (K. Madsen, H. B. Nielsen and O. Tingleff, *Methods for
+        // Non-linear Least Squares Problems*, 2nd ed., IMM DTU 2004, sec. 3.2, eq. 3.15 and
+        // algorithm 3.16): after a step with ρ near 0 λ rises, so a step that only just
+        // lowered the sum is not followed by the same over-long one.
+        let mut lambda = 1e-3;
+        let mut nu = 2.0;
         while iterations < self.max_iterations {
             let a = jac.transpose() * &jac;
             let g = jac.transpose() * &r;
-            // Gradient test: each component of Jᵀr against √(A_ii·S).
+            // Gradient test, scale-invariant: the cosine between r and each column of J.
             let small_gradient = (0..p).all(|i| g[i].abs() <= 1e-10 * (a[(i, i)] * ssr).sqrt() + 1e-300);
             if small_gradient || ssr == 0.0 {
                 converged = true;
                 break;
             }
-            let dmax = (0..p).map(|i| a[(i, i)]).fold(0.0, f64::max);
+            for (i, d) in damping.iter_mut().enumerate() {
+                *d = d.max(a[(i, i)]);
+            }
+            let dmax = damping.iter().copied().fold(0.0, f64::max);
             let mut accepted = false;
             while lambda < 1e12 {
                 let mut m = a.clone();
                 for i in 0..p {
-                    m[(i, i)] += lambda * a[(i, i)].max(1e-12 * dmax).max(1e-300);
+                    m[(i, i)] += lambda * damping[i].max(1e-12 * dmax).max(1e-300);
                 }
                 let Some(ch) = m.cholesky() else {
-                    lambda *= 10.0;
+                    lambda *= nu;
+                    nu *= 2.0;
                     continue;
                 };
                 let delta = ch.solve(&g);
                 let trial = &theta + &delta;
+                let reject = |lambda: &mut f64, nu: &mut f64| {
+                    *lambda *= *nu;
+                    *nu *= 2.0;
+                };
                 if delta.iter().any(|d| !d.is_finite()) || work.invalid(&trial).is_some() {
-                    lambda *= 10.0;
+                    reject(&mut lambda, &mut nu);
                     continue;
                 }
+                // Predicted drop of the linear model: |r|² − |r − Jδ|² = 2δᵀg − |Jδ|².
+                let predicted = 2.0 * delta.dot(&g) - (&jac * &delta).norm_squared();
                 match work.evaluate(&trial) {
                     Ok((r2, j2)) if r2.norm_squared() < ssr => {
                         let s2 = r2.norm_squared();
-                        let small_step = (0..p).all(|i| delta[i].abs() <= 1e-9 * (theta[i].abs() + typical[i]));
-                        let small_drop = ssr - s2 <= 1e-14 * ssr;
+                        let rho = (ssr - s2) / predicted.max(f64::MIN_POSITIVE);
+                        // Step test in the scaled unknowns (Moré 1978, sec. 8): |D½δ| against |D½θ|.
+                        let scaled = |v: &DVector<f64>| (0..p).map(|i| damping[i] * v[i] * v[i]).sum::<f64>().sqrt();
+                        let small_step = scaled(&delta) <= 1e-9 * scaled(&theta);
+                        // Relative drop test (Moré 1978, sec. 8): both the actual and the
+                        // predicted drop below 1e-14 of the sum of squares.
+                        let small_drop = ssr - s2 <= 1e-14 * ssr && predicted <= 1e-14 * ssr;
                         theta = trial;
                         r = r2;
                         jac = j2;
                         ssr = s2;
-                        lambda = (lambda / 10.0).max(1e-12);
+                        lambda = (lambda * (1.0f64 / 3.0).max(1.0 - (2.0 * rho - 1.0).powi(3))).max(1e-12);
+                        nu = 2.0;
                         accepted = true;
                         if small_step || small_drop {
                             converged = true;
                         }
                         break;
                     }
-                    _ => lambda *= 10.0,
+                    _ => reject(&mut lambda, &mut nu),
                 }
             }
             if !accepted {
