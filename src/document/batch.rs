@@ -140,6 +140,8 @@ struct FastLine<'a> {
     temperature_celsius: Option<f64>,
     #[serde(default)]
     activity: Option<super::ActivityDoc>,
+    #[serde(default)]
+    ph_convention: Option<super::PhConventionDoc>,
     #[serde(borrow, default)]
     reagents: Vec<FastAmount<'a>>,
     #[serde(default)]
@@ -201,6 +203,7 @@ impl FastLine<'_> {
             name: self.name.as_ref().map(|n| n.to_string()),
             temperature_celsius: self.temperature_celsius,
             activity: self.activity,
+            ph_convention: self.ph_convention,
             reagents: self.reagents.iter().map(|l| l.to_line(true)).collect(),
             complexes: self.complexes.clone(),
             include_catalog_complexes: self.include_catalog_complexes,
@@ -214,6 +217,7 @@ impl FastLine<'_> {
 struct Template {
     temperature_bits: u64,
     activity: Option<super::ActivityDoc>,
+    ph_convention: Option<super::PhConventionDoc>,
     include_catalog: bool,
     complexes: Vec<String>,
     names: Vec<String>,
@@ -229,6 +233,7 @@ impl Template {
     fn matches(&self, line: &FastLine) -> bool {
         self.temperature_bits == line.temperature_celsius.unwrap_or(25.0).to_bits()
             && self.activity.unwrap_or_default() == line.activity.unwrap_or_default()
+            && self.ph_convention.unwrap_or_default() == line.ph_convention.unwrap_or_default()
             && self.include_catalog == line.include_catalog_complexes
             && self.complexes == line.complexes
             && self.names.len() == line.reagents.len()
@@ -262,6 +267,7 @@ impl Template {
             Template {
                 temperature_bits: doc.temperature_celsius.unwrap_or(25.0).to_bits(),
                 activity: doc.activity,
+                ph_convention: doc.ph_convention,
                 include_catalog: doc.include_catalog_complexes,
                 complexes: doc.complexes.clone(),
                 names: doc.reagents.iter().map(|l| l.reagent.clone()).collect(),
