@@ -72,6 +72,9 @@ pub struct BatchRecord {
     /// The recipe's `name`, when it had one.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub name: Option<String>,
+    /// The pH convention of `ph`, when it is not the model's own γ(H⁺): `"bates-guggenheim"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<String>,
     /// pH.
     pub ph: f64,
     /// −log₁₀ of the H⁺ molality.
@@ -420,6 +423,10 @@ impl Block<'_> {
                 let rec = BatchRecord {
                     line: line_no,
                     name,
+                    ph_convention: match eq.ph_convention() {
+                        crate::PhConvention::Model => None,
+                        crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
+                    },
                     ph: eq.ph(),
                     p_h_molal: eq.p_h_molal(),
                     ionic_strength_mol_per_kg: eq.ionic_strength_molal(),
