@@ -514,3 +514,99 @@ fn syntax_errors_quote_long_input_short() {
     assert_eq!(o.status.code(), Some(3));
     assert!(stderr(&o).len() < 700, "{} bytes", stderr(&o).len());
 }
+
+#[test]
+fn solve_names_the_bates_guggenheim_convention_and_agrees_with_the_library() {
+    use protolyte::{ActivityModel, Amount, Catalog, Conditions, PhConvention, Recipe, Temperature};
+    // The 0.05 mol/kg potassium hydrogen phthalate reference buffer, pH(S) in the
+    // Bates–Guggenheim convention.
+    let doc = r#"{
+  "format": "protolyte-recipe/1",
+  "activity": "davies",
+  "ph_convention": "bates-guggenheim",
+  "reagents": [{ "reagent": "potassium hydrogen phthalate", "molal": 0.05 }]
+}"#;
+    let path = temp_file("khp_bates_guggenheim.json", doc);
+    let o = protolyte(&["solve", path.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    let conditions_line = out.lines().find(|l| l.starts_with("conditions")).unwrap();
+    assert!(conditions_line.contains("pH convention: Bates–Guggenheim"), "{out}");
+    // The same solution through the library, with the same Conditions.
+    let cat = Catalog::builtin();
+    let mut r = Recipe::new();
+    r.add(
+        &cat.reagent("potassium hydrogen phthalate").unwrap(),
+        Amount::molal(0.05),
+    )
+    .unwrap();
+    let c = Conditions::new(Temperature::celsius(25.0), ActivityModel::Davies)
+        .with_ph_convention(PhConvention::BatesGuggenheim);
+    let lib = r.compile(&c).unwrap().solve().unwrap().ph();
+    let o = protolyte(&["solve", "--json", path.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let res: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert_eq!(res.ph_convention.as_deref(), Some("bates-guggenheim"));
+    assert!((res.ph - lib).abs() < 1e-12, "CLI {} vs library {lib}", res.ph);
+    let text_ph: f64 = out
+        .lines()
+        .find_map(|l| l.strip_prefix("pH "))
+        .unwrap()
+        .trim()
+        .parse()
+        .unwrap();
+    assert!((text_ph - lib).abs() < 1e-4, "table {text_ph} vs library {lib}");
+    // Sanity bound: pH(S) = 4.005 at 25 °C (R. P. Buck et al., Pure Appl. Chem. 74 (2002)
+    // 2169, the primary standard potassium hydrogen phthalate 0.05 mol/kg).
+    assert!((lib - 4.005).abs() < 0.01, "pH {lib}");
+    // Without the field the table names no convention.
+    let plain = temp_file(
+        "khp_model.json",
+        &doc.replace("  \"ph_convention\": \"bates-guggenheim\",\n", ""),
+    );
+    let o = protolyte(&["solve", plain.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(!stdout(&o).contains("convention"), "{}", stdout(&o));
+}
+
+#[test]
+fn titrate_and_design_name_the_bates_guggenheim_convention() {
+    let t = r#"{ "format": "protolyte-titration/1", "ph_convention": "bates-guggenheim",
+  "analyte": { "volume_ml": 25, "reagents": [{ "reagent": "acetic acid", "molar": 0.01 }] },
+  "titrant": { "reagents": [{ "reagent": "sodium hydroxide", "molar": 0.01 }] },
+  "end_volume_ml": 30 }"#;
+    let path = temp_file("titration_bg.json", t);
+    let o = protolyte(&["titrate", path.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(
+        stdout(&o).contains("# pH convention: Bates–Guggenheim"),
+        "{}",
+        stdout(&o)
+    );
+    let o = protolyte(&["titrate", "--json", path.to_str().unwrap()]);
+    let r: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert_eq!(r.ph_convention.as_deref(), Some("bates-guggenheim"));
+    let o = protolyte(&["titrate", "--json", "examples/soft_drink_acidity.json"]);
+    let r: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert_eq!(r.ph_convention, None);
+
+    let design = std::fs::read_to_string("examples/tris_buffer_design.json").unwrap();
+    let design = design.replacen('{', "{\n  \"ph_convention\": \"bates-guggenheim\",", 1);
+    let path = temp_file("design_bg.json", &design);
+    let o = protolyte(&["design", path.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(
+        stdout(&o).contains("pH convention     Bates–Guggenheim"),
+        "{}",
+        stdout(&o)
+    );
+    let o = protolyte(&["design", "--json", path.to_str().unwrap()]);
+    let d: DesignResult = serde_json::from_str(&stdout(&o)).unwrap();
+    let check = d.check.unwrap();
+    assert_eq!(check.ph_convention.as_deref(), Some("bates-guggenheim"));
+    assert!((check.ph - 8.0).abs() < 1e-6);
+    assert_eq!(
+        d.recipe.ph_convention,
+        Some(protolyte::document::PhConventionDoc::BatesGuggenheim)
+    );
+}

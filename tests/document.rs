@@ -523,3 +523,144 @@ fn a_definition_does_not_silently_replace_a_catalogue_entry() {
         other => panic!("{other:?}"),
     }
 }
+
+/// The 0.05 mol/kg potassium hydrogen phthalate standard, in the Bates–Guggenheim convention.
+const KHP_BG_JSON: &str = r#"{
+  "format": "protolyte-recipe/1",
+  "ph_convention": "bates-guggenheim",
+  "reagents": [{ "reagent": "potassium hydrogen phthalate", "molal": 0.05 }]
+}"#;
+
+const KHP_BG_TOML: &str = r#"
+format = "protolyte-recipe/1"
+ph_convention = "bates-guggenheim"
+
+[[reagents]]
+reagent = "potassium hydrogen phthalate"
+molal = 0.05
+"#;
+
+#[test]
+fn ph_convention_is_read_from_json_and_toml() {
+    use protolyte::{Conditions, PhConvention};
+    let j: RecipeDoc = document::parse(KHP_BG_JSON, "khp.json").unwrap();
+    let t: RecipeDoc = document::parse(KHP_BG_TOML, "khp.toml").unwrap();
+    assert_eq!(j, t);
+    assert_eq!(j.ph_convention, Some(document::PhConventionDoc::BatesGuggenheim));
+    let (_, conditions) = j.to_recipe(&cat()).unwrap();
+    assert_eq!(
+        conditions,
+        Conditions::default().with_ph_convention(PhConvention::BatesGuggenheim)
+    );
+    let bg = solve_doc(&j);
+    assert_eq!(bg.ph_convention(), PhConvention::BatesGuggenheim);
+    // "model" written out is the default; the speciation is the same under both conventions,
+    // only the reported pH moves (DEVELOPERS.md, Activity coefficients).
+    let model: RecipeDoc =
+        document::parse(&KHP_BG_JSON.replace("bates-guggenheim", "model"), "khp-model.json").unwrap();
+    assert_eq!(model.conditions().unwrap(), Conditions::default());
+    let own = solve_doc(&model);
+    assert_eq!(own.ph_convention(), PhConvention::Model);
+    assert!((own.p_h_molal() - bg.p_h_molal()).abs() < 1e-12);
+    assert!((own.ph() - bg.ph()).abs() > 1e-6, "{} {}", own.ph(), bg.ph());
+    // The result document names the convention, and the round trip keeps it.
+    assert_eq!(
+        SolveResult::from_equilibrium(&bg).ph_convention.as_deref(),
+        Some("bates-guggenheim")
+    );
+    let (recipe, c) = j.to_recipe(&cat()).unwrap();
+    let back = RecipeDoc::from_recipe(&recipe, &c);
+    assert_eq!(back.to_recipe(&cat()).unwrap().1, c);
+    // Titration, design and fit requests take it too.
+    let tdoc: TitrationDoc = document::parse(
+        r#"{ "ph_convention": "bates-guggenheim",
+             "analyte": { "volume_ml": 25, "reagents": [{ "reagent": "acetic acid", "molar": 0.01 }] },
+             "titrant": { "reagents": [{ "reagent": "sodium hydroxide", "molar": 0.01 }] },
+             "end_volume_ml": 30 }"#,
+        "t.json",
+    )
+    .unwrap();
+    assert_eq!(tdoc.conditions().unwrap().ph_convention, PhConvention::BatesGuggenheim);
+    let ddoc: DesignDoc = document::parse(
+        "ph_convention = \"bates-guggenheim\"\ntarget_ph = 7.0\nfinal_volume_ml = 100.0\n",
+        "d.toml",
+    )
+    .unwrap();
+    assert_eq!(ddoc.conditions().unwrap().ph_convention, PhConvention::BatesGuggenheim);
+    let fdoc: FitDoc = document::parse(
+        r#"{ "ph_convention": "bates-guggenheim", "curves": [], "estimate": [] }"#,
+        "f.json",
+    )
+    .unwrap();
+    assert_eq!(fdoc.ph_convention, Some(document::PhConventionDoc::BatesGuggenheim));
+}
+
+#[test]
+fn an_unknown_ph_convention_is_refused_naming_the_field() {
+    for (text, file) in [
+        (KHP_BG_JSON.replace("bates-guggenheim", "Bates_Guggenheim"), "khp.json"),
+        (KHP_BG_TOML.replace("bates-guggenheim", "bates guggenheim"), "khp.toml"),
+    ] {
+        let err = document::parse::<RecipeDoc>(&text, file).unwrap_err();
+        let m = err.to_string();
+        assert!(m.starts_with(&format!("{file}:")), "{m}");
+        assert!(m.contains("`ph_convention`"), "{m}");
+        assert!(m.contains("did you mean `bates-guggenheim`"), "{m}");
+    }
+    // A value like neither names both that are taken, and suggests nothing.
+    let err = document::parse::<TitrationDoc>(r#"{ "ph_convention": "nbs" }"#, "t.json").unwrap_err();
+    let m = err.to_string();
+    assert!(
+        m.contains("`ph_convention`") && m.contains("`model` or `bates-guggenheim`"),
+        "{m}"
+    );
+    assert!(!m.contains("did you mean"), "{m}");
+}
+
+#[test]
+fn without_ph_convention_documents_read_as_before() {
+    use protolyte::PhConvention;
+    let doc: RecipeDoc = document::parse(BUFFER_JSON, "buffer.json").unwrap();
+    assert_eq!(doc.ph_convention, None);
+    assert_eq!(doc.conditions().unwrap().ph_convention, PhConvention::Model);
+    assert_eq!(solve_doc(&doc).ph_convention(), PhConvention::Model);
+    // Documents written for the default leave the field out, so that they read as before.
+    let (recipe, c) = doc.to_recipe(&cat()).unwrap();
+    let text = serde_json::to_string(&RecipeDoc::from_recipe(&recipe, &c)).unwrap();
+    assert!(!text.contains("ph_convention"), "{text}");
+    let result = serde_json::to_string(&SolveResult::from_equilibrium(&solve_doc(&doc))).unwrap();
+    assert!(!result.contains("ph_convention"), "{result}");
+}
+
+#[cfg(feature = "cli")]
+#[test]
+fn batch_lines_keep_their_own_ph_convention() {
+    use protolyte::document::batch::{BatchOptions, BatchRecord, run};
+    // The same recipe with and without the field, alternating: a compiled system is re-used
+    // only for lines of the same conditions, so each line gets its own convention.
+    let model = r#"{"name":"model","reagents":[{"reagent":"potassium hydrogen phthalate","molal":0.05}]}"#;
+    let bg = r#"{"name":"bg","ph_convention":"bates-guggenheim","reagents":[{"reagent":"potassium hydrogen phthalate","molal":0.05}]}"#;
+    let input: String = (0..6)
+        .map(|i| if i % 2 == 0 { model } else { bg })
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let opts = BatchOptions {
+        full: false,
+        chunk_lines: 64,
+    };
+    let mut out = Vec::new();
+    let s = run(input.as_bytes(), &mut out, &cat(), &opts, |_, _| {}).unwrap();
+    assert_eq!((s.records, s.failed), (6, 0));
+    let expect = |text: &str| solve_doc(&document::parse::<RecipeDoc>(text, "line.json").unwrap()).ph();
+    let (ph_model, ph_bg) = (expect(model), expect(bg));
+    for l in String::from_utf8(out).unwrap().lines() {
+        let r: BatchRecord = serde_json::from_str(l).unwrap();
+        let (want, convention) = if r.name.as_deref() == Some("bg") {
+            (ph_bg, Some("bates-guggenheim"))
+        } else {
+            (ph_model, None)
+        };
+        assert!((r.ph - want).abs() < 1e-9, "line {}: {} vs {want}", r.line, r.ph);
+        assert_eq!(r.ph_convention.as_deref(), convention, "line {}", r.line);
+    }
+}

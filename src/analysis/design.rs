@@ -624,7 +624,13 @@ impl BufferSpec {
         let temperature_shifts = self
             .compare_at
             .iter()
-            .map(|&t| shift_at(Conditions::new(t, self.conditions.activity), &recipe, 1.0))
+            .map(|&t| {
+                let at_t = Conditions {
+                    temperature: t,
+                    ..self.conditions
+                };
+                shift_at(at_t, &recipe, 1.0)
+            })
             .collect::<Result<Vec<_>>>()?;
         let dilution_shift = shift_at(self.conditions, &recipe.diluted(10.0)?, 10.0)?;
         Ok(BufferRecipe {

@@ -285,9 +285,14 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
         document::ActivityDoc::ExtendedDebyeHuckel => "extended Debye–Hückel",
         document::ActivityDoc::Sit => "SIT (specific ion interaction theory)",
     };
+    // The convention is named only when it is not the model's own γ(H⁺).
+    let convention = match r.ph_convention.as_deref() {
+        Some("bates-guggenheim") => ", pH convention: Bates–Guggenheim",
+        Some(_) | None => "",
+    };
     writeln!(
         out,
-        "conditions        {:.2} °C, activity model: {model}",
+        "conditions        {:.2} °C, activity model: {model}{convention}",
         r.temperature_celsius
     )?;
     writeln!(out, "pH                {:.4}", r.ph)?;
@@ -355,9 +360,11 @@ fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -
     let eqs = t.equivalence_points().map_err(|e| chem(&name, e))?;
     let halves = t.half_equivalence_points().map_err(|e| chem(&name, e))?;
     let end = doc.end_volume_ml;
+    let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
     let result = TitrationResult {
         format: document::RESULT_FORMAT.into(),
         name: doc.name.clone(),
+        ph_convention: convention_label(conditions.ph_convention),
         analyte_volume_ml: t.analyte_volume().milliliters_value(),
         points: curve.iter().map(Into::into).collect(),
         equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
@@ -378,6 +385,14 @@ fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -
     Ok(EXIT_OK)
 }
 
+/// The name of a pH convention in a result document, `None` for the model's own γ(H⁺).
+fn convention_label(c: protolyte::PhConvention) -> Option<String> {
+    match c {
+        protolyte::PhConvention::Model => None,
+        protolyte::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
+    }
+}
+
 fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<()> {
     writeln!(out, "volume_ml,ph,dph_dv_per_ml,ionic_strength_mol_per_kg")?;
     for p in &r.points {
@@ -393,6 +408,9 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
     }
     if let Some(n) = &r.name {
         writeln!(out, "# {n}")?;
+    }
+    if r.ph_convention.as_deref() == Some("bates-guggenheim") {
+        writeln!(out, "# pH convention: Bates–Guggenheim")?;
     }
     for (i, e) in r.equivalence_points.iter().enumerate() {
         let step = e.completed_step.as_deref().unwrap_or("strong acid/base");
@@ -453,6 +471,9 @@ fn write_design_table(out: &mut impl Write, result: &DesignResult) -> io::Result
         "buffer for pH {:.3}, made up to {} mL with water",
         result.target_ph, result.final_volume_ml
     )?;
+    if result.recipe.ph_convention == Some(document::PhConventionDoc::BatesGuggenheim) {
+        writeln!(out, "pH convention     Bates–Guggenheim")?;
+    }
     writeln!(out)?;
     writeln!(out, "{:<40} {:<9} {:>12} {:>14}", "reagent", "role", "mol/L", "take")?;
     for l in &result.lines {

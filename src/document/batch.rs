@@ -72,6 +72,9 @@ pub struct BatchRecord {
     /// The recipe's `name`, when it had one.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub name: Option<String>,
+    /// The pH convention of `ph`, when it is not the model's own γ(H⁺): `"bates-guggenheim"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<String>,
     /// pH.
     pub ph: f64,
     /// −log₁₀ of the H⁺ molality.
@@ -140,6 +143,8 @@ struct FastLine<'a> {
     temperature_celsius: Option<f64>,
     #[serde(default)]
     activity: Option<super::ActivityDoc>,
+    #[serde(default)]
+    ph_convention: Option<super::PhConventionDoc>,
     #[serde(borrow, default)]
     reagents: Vec<FastAmount<'a>>,
     #[serde(default)]
@@ -201,6 +206,7 @@ impl FastLine<'_> {
             name: self.name.as_ref().map(|n| n.to_string()),
             temperature_celsius: self.temperature_celsius,
             activity: self.activity,
+            ph_convention: self.ph_convention,
             reagents: self.reagents.iter().map(|l| l.to_line(true)).collect(),
             complexes: self.complexes.clone(),
             include_catalog_complexes: self.include_catalog_complexes,
@@ -214,6 +220,7 @@ impl FastLine<'_> {
 struct Template {
     temperature_bits: u64,
     activity: Option<super::ActivityDoc>,
+    ph_convention: Option<super::PhConventionDoc>,
     include_catalog: bool,
     complexes: Vec<String>,
     names: Vec<String>,
@@ -229,6 +236,7 @@ impl Template {
     fn matches(&self, line: &FastLine) -> bool {
         self.temperature_bits == line.temperature_celsius.unwrap_or(25.0).to_bits()
             && self.activity.unwrap_or_default() == line.activity.unwrap_or_default()
+            && self.ph_convention.unwrap_or_default() == line.ph_convention.unwrap_or_default()
             && self.include_catalog == line.include_catalog_complexes
             && self.complexes == line.complexes
             && self.names.len() == line.reagents.len()
@@ -262,6 +270,7 @@ impl Template {
             Template {
                 temperature_bits: doc.temperature_celsius.unwrap_or(25.0).to_bits(),
                 activity: doc.activity,
+                ph_convention: doc.ph_convention,
                 include_catalog: doc.include_catalog_complexes,
                 complexes: doc.complexes.clone(),
                 names: doc.reagents.iter().map(|l| l.reagent.clone()).collect(),
@@ -414,6 +423,10 @@ impl Block<'_> {
                 let rec = BatchRecord {
                     line: line_no,
                     name,
+                    ph_convention: match eq.ph_convention() {
+                        crate::PhConvention::Model => None,
+                        crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
+                    },
                     ph: eq.ph(),
                     p_h_molal: eq.p_h_molal(),
                     ionic_strength_mol_per_kg: eq.ionic_strength_molal(),

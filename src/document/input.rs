@@ -10,7 +10,7 @@ use super::{DESIGN_FORMAT, DocumentError, FIT_FORMAT, RECIPE_FORMAT, TITRATION_F
 use crate::analysis::{BufferSpec, Ingredients, Scope, Stepping, Stock, Titration, TitrationFit, Unknown};
 use crate::{
     ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, DataKind, Error, Ion, Mass,
-    Protolyte, Reagent, Recipe, Temperature, Volume,
+    PhConvention, Protolyte, Reagent, Recipe, Temperature, Volume,
 };
 
 /// Refuses a name, synonym or formula longer than [`MAX_NAME_CHARS`] (before any look-up, so
@@ -81,6 +81,87 @@ impl From<ActivityModel> for ActivityDoc {
             ActivityModel::Davies => ActivityDoc::Davies,
             ActivityModel::ExtendedDebyeHuckel => ActivityDoc::ExtendedDebyeHuckel,
             ActivityModel::Sit => ActivityDoc::Sit,
+        }
+    }
+}
+
+/// The pH convention, as written in a document: `"model"` (the default: pH = −log₁₀ a(H⁺)
+/// with the activity model's own γ(H⁺)) or `"bates-guggenheim"` (the convention of the
+/// pH(S) values of reference buffers, see [`PhConvention::BatesGuggenheim`]).
+///
+/// Any other value is refused with a message that names the field `ph_convention`, the
+/// values it takes and, where one is close, the value meant.
+///
+/// ```
+/// use protolyte::PhConvention;
+/// use protolyte::document::{PhConventionDoc, RecipeDoc, parse};
+/// assert_eq!(PhConvention::from(PhConventionDoc::BatesGuggenheim), PhConvention::BatesGuggenheim);
+/// let doc: RecipeDoc = parse(r#"{ "ph_convention": "bates-guggenheim" }"#, "r.json")?;
+/// assert_eq!(doc.conditions()?.ph_convention, PhConvention::BatesGuggenheim);
+/// let err = parse::<RecipeDoc>(r#"{ "ph_convention": "bates_guggenheim" }"#, "r.json").unwrap_err();
+/// assert!(err.to_string().contains("did you mean `bates-guggenheim`"));
+/// # Ok::<(), protolyte::document::DocumentError>(())
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case", try_from = "String")]
+pub enum PhConventionDoc {
+    /// pH = −log₁₀ a(H⁺) with the activity model's own γ(H⁺) (the default).
+    #[default]
+    Model,
+    /// The Bates–Guggenheim convention of the pH(S) values of reference buffers.
+    BatesGuggenheim,
+}
+
+impl PhConventionDoc {
+    /// The values a document may write, with their meaning.
+    const VALUES: [(&'static str, PhConventionDoc); 2] = [
+        ("model", PhConventionDoc::Model),
+        ("bates-guggenheim", PhConventionDoc::BatesGuggenheim),
+    ];
+}
+
+impl TryFrom<String> for PhConventionDoc {
+    type Error = String;
+
+    fn try_from(value: String) -> Result<Self, String> {
+        if let Some((_, v)) = Self::VALUES.iter().find(|(n, _)| *n == value) {
+            return Ok(*v);
+        }
+        // A value meant as one of ours but spelt another way (case, `_`, a space or a dash
+        // of another kind between the names, an umlaut): compare the letters alone.
+        let letters = |s: &str| -> String {
+            s.chars()
+                .filter(|c| c.is_alphanumeric())
+                .flat_map(char::to_lowercase)
+                .collect()
+        };
+        let key = letters(&value);
+        let suggestion = Self::VALUES
+            .iter()
+            .find(|(n, _)| !key.is_empty() && (letters(n) == key || (key.len() >= 3 && letters(n).starts_with(&key))))
+            .map(|(n, _)| format!(" (did you mean `{n}`?)"))
+            .unwrap_or_default();
+        Err(format!(
+            "field `ph_convention`: unknown value `{}`; expected `model` or `bates-guggenheim`{suggestion}",
+            super::shorten(&value)
+        ))
+    }
+}
+
+impl From<PhConventionDoc> for PhConvention {
+    fn from(c: PhConventionDoc) -> Self {
+        match c {
+            PhConventionDoc::Model => PhConvention::Model,
+            PhConventionDoc::BatesGuggenheim => PhConvention::BatesGuggenheim,
+        }
+    }
+}
+
+impl From<PhConvention> for PhConventionDoc {
+    fn from(c: PhConvention) -> Self {
+        match c {
+            PhConvention::Model => PhConventionDoc::Model,
+            PhConvention::BatesGuggenheim => PhConventionDoc::BatesGuggenheim,
         }
     }
 }
@@ -798,7 +879,11 @@ fn catalog_with<'a>(
 }
 
 /// The conditions of a document.
-fn conditions_of(temperature_celsius: Option<f64>, activity: Option<ActivityDoc>) -> Result<Conditions, DocumentError> {
+fn conditions_of(
+    temperature_celsius: Option<f64>,
+    activity: Option<ActivityDoc>,
+    ph_convention: Option<PhConventionDoc>,
+) -> Result<Conditions, DocumentError> {
     let t = temperature_celsius.unwrap_or(25.0);
     if !(t.is_finite() && (0.0..=100.0).contains(&t)) {
         return Err(field_error(
@@ -806,10 +891,10 @@ fn conditions_of(temperature_celsius: Option<f64>, activity: Option<ActivityDoc>
             format!("{t} °C is outside the supported domain 0..100 °C"),
         ));
     }
-    Ok(Conditions::new(
-        Temperature::celsius(t),
-        activity.unwrap_or_default().into(),
-    ))
+    Ok(
+        Conditions::new(Temperature::celsius(t), activity.unwrap_or_default().into())
+            .with_ph_convention(ph_convention.unwrap_or_default().into()),
+    )
 }
 
 /// The complexes a document asks for: named ones, the user's, and optionally the whole
@@ -883,6 +968,9 @@ pub struct RecipeDoc {
     /// Activity model (default Davies).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub activity: Option<ActivityDoc>,
+    /// pH convention (default `"model"`: the activity model's own γ(H⁺)).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<PhConventionDoc>,
     /// The recipe's lines.
     #[serde(default)]
     pub reagents: Vec<AmountLine>,
@@ -911,9 +999,9 @@ impl RecipeDoc {
         check_format(self.format.as_deref(), RECIPE_FORMAT, required)
     }
 
-    /// The conditions (temperature and activity model).
+    /// The conditions (temperature, activity model and pH convention).
     pub fn conditions(&self) -> Result<Conditions, DocumentError> {
-        conditions_of(self.temperature_celsius, self.activity)
+        conditions_of(self.temperature_celsius, self.activity, self.ph_convention)
     }
 
     /// The recipe and its conditions, names resolved in `catalog` plus the document's own
@@ -936,6 +1024,10 @@ impl RecipeDoc {
             name: None,
             temperature_celsius: Some(conditions.temperature.as_celsius()),
             activity: Some(conditions.activity.into()),
+            ph_convention: match conditions.ph_convention {
+                PhConvention::Model => None,
+                c => Some(c.into()),
+            },
             reagents: lines_of(recipe),
             complexes: recipe.complexes().iter().map(|c| c.name().to_string()).collect(),
             include_catalog_complexes: false,
@@ -1009,6 +1101,9 @@ pub struct TitrationDoc {
     /// Activity model (default Davies).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub activity: Option<ActivityDoc>,
+    /// pH convention (default `"model"`: the activity model's own γ(H⁺)).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<PhConventionDoc>,
     /// The solution titrated (with `volume_ml`).
     pub analyte: SolutionDoc,
     /// The solution added from the burette.
@@ -1061,9 +1156,9 @@ impl TitrationDoc {
         check_format(self.format.as_deref(), TITRATION_FORMAT, required)
     }
 
-    /// The conditions (temperature and activity model).
+    /// The conditions (temperature, activity model and pH convention).
     pub fn conditions(&self) -> Result<Conditions, DocumentError> {
-        conditions_of(self.temperature_celsius, self.activity)
+        conditions_of(self.temperature_celsius, self.activity, self.ph_convention)
     }
 
     /// The titration, names resolved in `catalog` plus the document's definitions.
@@ -1198,6 +1293,9 @@ pub struct DesignDoc {
     /// Activity model (default Davies).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub activity: Option<ActivityDoc>,
+    /// pH convention (default `"model"`: the activity model's own γ(H⁺)).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<PhConventionDoc>,
     /// The pH to reach.
     pub target_ph: f64,
     /// Buffer concentration, mol/L.
@@ -1240,9 +1338,9 @@ impl DesignDoc {
         check_format(self.format.as_deref(), DESIGN_FORMAT, required)
     }
 
-    /// The conditions (temperature and activity model).
+    /// The conditions (temperature, activity model and pH convention).
     pub fn conditions(&self) -> Result<Conditions, DocumentError> {
-        conditions_of(self.temperature_celsius, self.activity)
+        conditions_of(self.temperature_celsius, self.activity, self.ph_convention)
     }
 
     /// The design specification, names resolved in `catalog` plus the document's definitions.
@@ -1456,6 +1554,9 @@ pub struct FitDoc {
     /// Activity model (default Davies).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub activity: Option<ActivityDoc>,
+    /// pH convention (default `"model"`: the activity model's own γ(H⁺)).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<PhConventionDoc>,
     /// The measured curves.
     pub curves: Vec<FitCurveDoc>,
     /// What to estimate.
@@ -1483,7 +1584,7 @@ impl FitDoc {
     /// The fit, ready to run, names resolved in `catalog` plus the document's definitions.
     pub fn to_fit(&self, catalog: &Catalog) -> Result<TitrationFit, DocumentError> {
         check_format(self.format.as_deref(), FIT_FORMAT, false)?;
-        let conditions = conditions_of(self.temperature_celsius, self.activity)?;
+        let conditions = conditions_of(self.temperature_celsius, self.activity, self.ph_convention)?;
         let (cat, user) = catalog_with(catalog, self.definitions.as_ref())?;
         let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
         let mut fit = TitrationFit::new();

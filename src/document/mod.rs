@@ -48,8 +48,8 @@ use serde::de::DeserializeOwned;
 
 pub use input::{
     ActivityDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc, FitDoc, IonDef,
-    IonicStrengthDoc, MeasuredPoint, ProtolyteDef, ReagentDef, ReagentPartDef, RecipeDoc, SolutionDoc, StockDoc,
-    TitrationDoc, UnknownDoc,
+    IonicStrengthDoc, MeasuredPoint, PhConventionDoc, ProtolyteDef, ReagentDef, ReagentPartDef, RecipeDoc, SolutionDoc,
+    StockDoc, TitrationDoc, UnknownDoc,
 };
 pub use output::{
     DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, HalfEquivalenceResult,

@@ -356,6 +356,10 @@ pub struct TitrationResult {
     /// The request's label.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub name: Option<String>,
+    /// The pH convention of every pH in the result, when it is not the model's own γ(H⁺):
+    /// `"bates-guggenheim"`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ph_convention: Option<String>,
     /// Analyte volume, mL.
     pub analyte_volume_ml: f64,
     /// The curve.
