@@ -128,6 +128,17 @@ pub enum Error {
         /// The largest accepted value.
         limit: f64,
     },
+    /// A volume is positive but smaller than the library accepts
+    /// ([`MIN_VOLUME_LITERS`](crate::limits::MIN_VOLUME_LITERS)).
+    #[error("{} is {} L, below the smallest accepted volume of {min_liters} L", quote(what), number(*liters))]
+    VolumeTooSmall {
+        /// What the volume belongs to.
+        what: String,
+        /// The volume given, litres.
+        liters: f64,
+        /// The smallest accepted volume, litres.
+        min_liters: f64,
+    },
     /// The species of the solution would give an ionic strength above what the solver and
     /// the activity models represent
     /// ([`MAX_IONIC_STRENGTH_MOLAL`](crate::limits::MAX_IONIC_STRENGTH_MOLAL)).

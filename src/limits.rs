@@ -17,6 +17,7 @@
 //! | parts of a complex (list entries) | ≤ [`MAX_COMPLEX_PARTS`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |
 //! | charge of a complex | ±[`MAX_COMPLEX_CHARGE`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |
 //! | count of one constituent of a reagent | 1..=[`MAX_CONSTITUENT_COUNT`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |
+//! | a volume that must be positive (final, analyte, end of a curve) | ≥ [`MIN_VOLUME_LITERS`] (1 nL) | [`Error::VolumeTooSmall`](crate::Error::VolumeTooSmall) |
 //! | points of a curve or sweep | ≤ [`MAX_CURVE_POINTS`] | [`Error::TooManyPoints`](crate::Error::TooManyPoints) |
 //! | iteration budget of a titration fit | ≤ [`MAX_FIT_ITERATIONS`] | [`Error::InvalidParameter`](crate::Error::InvalidParameter) |
 //!
@@ -65,6 +66,13 @@ pub const MAX_COMPLEX_CHARGE: i32 = 12;
 
 /// Largest count of one constituent of a reagent.
 pub const MAX_CONSTITUENT_COUNT: u32 = 100;
+
+/// The smallest volume accepted where a volume must be positive (a final volume, an analyte
+/// volume, the end volume of a titration curve), litres: 1 nL. Smaller volumes are below any
+/// real dispensing, and the dilution arithmetic of a titration curve divided into steps loses
+/// its precision there (volumes that no longer increase). Refused with
+/// [`Error::VolumeTooSmall`](crate::Error::VolumeTooSmall).
+pub const MIN_VOLUME_LITERS: f64 = 1e-9;
 
 /// Largest number of points of a titration curve or a buffer-capacity sweep.
 pub const MAX_CURVE_POINTS: usize = 1_000_000;

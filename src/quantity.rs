@@ -188,17 +188,24 @@ impl Volume {
         self.liters * 1e3
     }
 
-    /// The volume in litres, refusing zero, negative and non-finite volumes.
+    /// The volume in litres, refusing zero, negative and non-finite volumes, and volumes
+    /// below [`MIN_VOLUME_LITERS`](crate::limits::MIN_VOLUME_LITERS).
     pub(crate) fn positive(self, what: &str) -> Result<f64> {
         let v = check_amount(what, self.liters, "L")?;
-        if v > 0.0 {
-            Ok(v)
-        } else {
+        if v <= 0.0 {
             Err(crate::Error::InvalidAmount {
                 what: what.to_string(),
                 value: v,
                 unit: "L",
             })
+        } else if v < crate::limits::MIN_VOLUME_LITERS {
+            Err(crate::Error::VolumeTooSmall {
+                what: what.to_string(),
+                liters: v,
+                min_liters: crate::limits::MIN_VOLUME_LITERS,
+            })
+        } else {
+            Ok(v)
         }
     }
 }

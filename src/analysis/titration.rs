@@ -342,7 +342,8 @@ impl Titration {
     }
 
     /// The curve at `points` evenly spaced volumes from 0 to `end` (both included; fewer
-    /// than 2 points give 2). Refuses more than
+    /// than 2 points give 2). Refuses an end volume that is not positive or is below
+    /// [`MIN_VOLUME_LITERS`](crate::limits::MIN_VOLUME_LITERS), and more than
     /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS)
     /// ([`Error::TooManyPoints`]).
     ///
@@ -363,7 +364,7 @@ impl Titration {
     /// ```
     pub fn curve_uniform(&self, end: Volume, points: usize) -> Result<Vec<TitrationPoint>> {
         crate::error::check_points("titration curve", points)?;
-        let e = crate::error::check_amount("end volume", end.liters_value(), "L")?;
+        let e = end.positive("end volume")?;
         let n = points.max(2);
         let volumes: Vec<Volume> = (0..n).map(|i| Volume::liters(e * i as f64 / (n - 1) as f64)).collect();
         self.curve(&volumes)
