@@ -858,14 +858,7 @@ fn a_refused_huge_amount_is_written_short() {
 /// checked here: the bound is the library's own documented limit.
 #[test]
 fn volumes_below_one_nanolitre_are_refused() {
-    use protolyte::analysis::Titration;
-    let cat = Catalog::builtin();
-    let mut acid = Recipe::new();
-    acid.add(&cat.reagent("acetic acid").unwrap(), Amount::molar(0.01))
-        .unwrap();
-    let mut base = Recipe::new();
-    base.add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molar(0.01))
-        .unwrap();
+    let (acid, base) = acetic_acid_and_titrant();
     let c = Conditions::default();
     let tiny = Volume::milliliters(1e-320);
     assert!(matches!(
