@@ -11,7 +11,7 @@
 //! | an amount in a recipe line, a component's total | ≤ [`MAX_TOTAL_MOLAL`] (mol/L or mol/kg) | [`Error::AmountTooLarge`](crate::Error::AmountTooLarge) |
 //! | a component's total | ≤ [`TESTED_MAX_TOTAL_MOLAR`] mol/L tested | [`Warning::BeyondTestedDomain`](crate::Warning::BeyondTestedDomain) |
 //! | a positive total | ≥ [`MIN_TOTAL_MOLAL`] | taken as exactly 0, [`Warning::TotalBelowFloor`](crate::Warning::TotalBelowFloor) |
-//! | ionic strength of a result (Davies, extended Debye–Hückel) | ≤ [`MAX_IONIC_STRENGTH_MOLAL`] | [`Error::IonicStrengthBeyondLimit`](crate::Error::IonicStrengthBeyondLimit) |
+//! | ionic strength of a result (every activity model but the ideal one) | ≤ [`MAX_IONIC_STRENGTH_MOLAL`] | [`Error::IonicStrengthBeyondLimit`](crate::Error::IonicStrengthBeyondLimit) |
 //! | H⁺ gained or lost by a complex (all its proton parts together) | ±[`MAX_COMPLEX_PROTONS`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |
 //! | count of one non-proton part of a complex | 1..=[`MAX_PART_COUNT`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |
 //! | parts of a complex (list entries) | ≤ [`MAX_COMPLEX_PARTS`] | [`Error::IntegerOutOfRange`](crate::Error::IntegerOutOfRange) |

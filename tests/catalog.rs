@@ -479,6 +479,8 @@ fn per_form_ion_sizes_where_kielland_lists_the_forms() {
             .map(|f| f.ion_size_angstrom)
             .collect()
     };
+    // Kielland's ion sizes, J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675, as entered in the
+    // catalogue (from memory).
     assert_eq!(sizes("phosphate"), [None, Some(4.5), Some(4.0), Some(4.0)]);
     assert_eq!(sizes("citrate"), [None, Some(3.5), Some(4.5), Some(5.0)]);
     assert_eq!(sizes("carbonate"), [None, Some(4.5), Some(4.5)]);

@@ -342,7 +342,7 @@ fn totals_below_the_floor_are_zero_with_a_warning_and_the_residual_promise_holds
             "{m}: {:?}",
             eq.warnings()
         );
-        // Pure water at 25 °C: pH 7.00 (pKw 13.995, Marshall & Franck 1981).
+        // Pure water at 25 °C: pH = pKw/2 = 6.9975 (pKw 13.995, Marshall & Franck 1981).
         assert!((eq.ph() - 6.9975).abs() < 0.01);
     }
     // Just above the floor: solved as given, balances hold.
