@@ -21,8 +21,9 @@ use thiserror::Error;
 pub enum Error {
     /// An amount, concentration, mass or volume was negative, NaN or infinite.
     #[error(
-        "invalid amount for {}: {value} {unit} (amounts must be finite and not negative)",
-        quote(what)
+        "invalid amount for {}: {} {unit} (amounts must be finite and not negative)",
+        quote(what),
+        number(*value)
     )]
     InvalidAmount {
         /// What the amount belongs to.
@@ -33,7 +34,7 @@ pub enum Error {
         unit: &'static str,
     },
     /// A parameter (pKa, enthalpy, ion size, log β, ...) was out of range or not finite.
-    #[error("invalid {parameter} for {}: {value} ({reason})", quote(what))]
+    #[error("invalid {parameter} for {}: {} ({reason})", quote(what), number(*value))]
     InvalidParameter {
         /// What the parameter belongs to.
         what: String,
@@ -79,7 +80,7 @@ pub enum Error {
     #[error("{0}")]
     CatalogFile(Box<CatalogFileError>),
     /// A condition lies outside the declared domain of the library.
-    #[error("{what} = {value} is outside the supported domain {domain}")]
+    #[error("{what} = {} is outside the supported domain {domain}", number(*value))]
     OutOfDomain {
         /// What is out of range.
         what: &'static str,
