@@ -258,7 +258,7 @@ fn example_documents_all_run() {
     assert!(seen >= 5, "only {seen} example documents");
 }
 
-#[cfg(feature = "cli")]
+#[cfg(feature = "batch")]
 mod batch {
     use super::*;
     use protolyte::document::batch::{BatchErrorRecord, BatchOptions, BatchRecord, run};
@@ -632,7 +632,7 @@ fn without_ph_convention_documents_read_as_before() {
     assert!(!result.contains("ph_convention"), "{result}");
 }
 
-#[cfg(feature = "cli")]
+#[cfg(feature = "batch")]
 #[test]
 fn batch_lines_keep_their_own_ph_convention() {
     use protolyte::document::batch::{BatchOptions, BatchRecord, run};

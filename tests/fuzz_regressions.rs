@@ -3,7 +3,7 @@
 //! fuzzer (`tests/fuzz_check/mod.rs`): read as a recipe or titration document, solved directly
 //! and as a batch line, it must end in an error or in finite numbers that meet the residual
 //! and sign checks, never a panic, a NaN or a lost batch record.
-#![cfg(feature = "cli")]
+#![cfg(feature = "batch")]
 
 mod fuzz_check;
 

@@ -1,4 +1,4 @@
-//! Batch runs (feature `cli`): JSON Lines of recipe documents in, JSON Lines of results out.
+//! Batch runs (feature `batch`): JSON Lines of recipe documents in, JSON Lines of results out.
 //!
 //! The input is read in chunks of lines (constant memory whatever its length); each chunk is
 //! cut into blocks solved in parallel (rayon) and written back in input order. Within a

@@ -35,7 +35,7 @@
 //! # Ok::<(), Box<dyn std::error::Error>>(())
 //! ```
 
-#[cfg(feature = "cli")]
+#[cfg(feature = "batch")]
 pub mod batch;
 mod input;
 pub mod limits;

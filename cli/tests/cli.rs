@@ -1,5 +1,4 @@
 //! End-to-end tests of the `protolyte` program: outputs and exit codes.
-#![cfg(feature = "cli")]
 
 use std::io::Write;
 use std::process::{Command, Output, Stdio};
@@ -7,8 +6,14 @@ use std::process::{Command, Output, Stdio};
 use protolyte::document::batch::{BatchErrorRecord, BatchRecord};
 use protolyte::document::{DesignResult, FitResult, SolveResult, TitrationResult};
 
+/// The repository root: the example documents the tests read live there.
+fn repo_root() -> std::path::PathBuf {
+    std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("..")
+}
+
 fn protolyte(args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_protolyte"))
+        .current_dir(repo_root())
         .args(args)
         .output()
         .expect("run protolyte")
@@ -16,6 +21,7 @@ fn protolyte(args: &[&str]) -> Output {
 
 fn with_stdin(args: &[&str], input: &str) -> Output {
     let mut child = Command::new(env!("CARGO_BIN_EXE_protolyte"))
+        .current_dir(repo_root())
         .args(args)
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
@@ -57,7 +63,7 @@ fn solve_json_and_stdin_and_toml_agree() {
     let o = protolyte(&["solve", "--json", "examples/hatchery_makeup.json"]);
     assert_eq!(o.status.code(), Some(0));
     let a: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
-    let text = std::fs::read_to_string("examples/hatchery_makeup.json").unwrap();
+    let text = std::fs::read_to_string(repo_root().join("examples/hatchery_makeup.json")).unwrap();
     let o = with_stdin(&["solve", "--json", "-"], &text);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     let b: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
@@ -174,7 +180,7 @@ fn fit_reports_estimates_and_residuals() {
 
 #[test]
 fn batch_with_a_bad_line_gives_an_error_record_and_exit_1() {
-    let good = std::fs::read_to_string("examples/buffer_screen.jsonl").unwrap();
+    let good = std::fs::read_to_string(repo_root().join("examples/buffer_screen.jsonl")).unwrap();
     let mut lines: Vec<&str> = good.lines().collect();
     lines.insert(2, "{\"reagents\": [{\"reagent\": \"acetic acid\", \"molar\": 0.1},]}");
     let input = lines.join("\n") + "\n";
@@ -474,7 +480,7 @@ fn a_refused_amount_names_its_field() {
 
 #[test]
 fn json_with_a_byte_order_mark_is_read_as_json() {
-    let text = std::fs::read_to_string("examples/hatchery_makeup.json").unwrap();
+    let text = std::fs::read_to_string(repo_root().join("examples/hatchery_makeup.json")).unwrap();
     let p = temp_file("bom.json", &format!("\u{feff}{text}"));
     let o = protolyte(&["solve", "--json", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
@@ -592,7 +598,7 @@ fn titrate_and_design_name_the_bates_guggenheim_convention() {
     let r: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
     assert_eq!(r.ph_convention, None);
 
-    let design = std::fs::read_to_string("examples/tris_buffer_design.json").unwrap();
+    let design = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json")).unwrap();
     let design = design.replacen('{', "{\n  \"ph_convention\": \"bates-guggenheim\",", 1);
     let path = temp_file("design_bg.json", &design);
     let o = protolyte(&["design", path.to_str().unwrap()]);
