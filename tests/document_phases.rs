@@ -185,3 +185,26 @@ fn batch_lines_with_phases_agree_with_single_solves() {
         assert!((ph - eq.ph()).abs() < 1e-9, "{line}: {ph} vs {}", eq.ph());
     }
 }
+
+#[test]
+fn the_schema_knows_every_recipe_field() {
+    // Every field a recipe document can carry (all set, so that none is skipped when written)
+    // is a property of the schema's recipe.
+    let schema: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string("schema/recipe.schema.json").unwrap()).unwrap();
+    let props = &schema["$defs"]["recipe"]["properties"];
+    let doc = parse_json(
+        r#"{ "format": "protolyte-recipe/1", "name": "x", "temperature_celsius": 20, "activity": "davies",
+             "ph_convention": "bates-guggenheim", "reagents": [], "complexes": ["CaCO3(aq)"],
+             "include_catalog_complexes": true, "definitions": { "ions": [{ "name": "q", "charge": 1 }] },
+             "fixed_ph": 7, "partial_pressures": [{ "gas": "CO2(g)", "atm": 1e-3 }], "allow_solids": "all" }"#,
+    );
+    let v = serde_json::to_value(&doc).unwrap();
+    for key in v.as_object().unwrap().keys() {
+        assert!(props.get(key).is_some(), "`{key}` not in the schema");
+    }
+    let pp = &schema["$defs"]["partial_pressure"]["properties"];
+    for key in ["gas", "atm", "bar", "pascal", "microatm"] {
+        assert!(pp.get(key).is_some(), "partial_pressure.{key}");
+    }
+}

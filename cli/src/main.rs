@@ -269,7 +269,19 @@ fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> 
     if let Some(p) = plot {
         out.flush().map_err(output_failure)?;
         let opts = plot_options(&doc.name).mark_ph(eq.ph());
-        let svg = distribution_plot(&recipe, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        // The fractions against pH are those of the closed solution: a fixed pH or partial
+        // pressure, or solids allowed to form, would hold the pH or the totals the sweep
+        // moves. The result's own pH is marked on it.
+        let closed = if doc.has_phase_requests() {
+            let mut c = doc.clone();
+            c.fixed_ph = None;
+            c.partial_pressures.clear();
+            c.allow_solids = None;
+            c.to_recipe(catalog()).map_err(|e| e.in_file(&name))?.0
+        } else {
+            recipe
+        };
+        let svg = distribution_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
