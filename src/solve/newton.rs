@@ -11,6 +11,7 @@ use nalgebra::{DMatrix, DVector};
 
 use super::{Evaluation, I_MAX, I_MIN, LN_AH_MAX, LN_AH_MIN, Point, fast};
 use crate::error::{Error, Result};
+use crate::phase::RowKind;
 use crate::system::System;
 
 const LN10: f64 = std::f64::consts::LN_10;
@@ -614,6 +615,7 @@ fn constrained_convex(
     p: &mut Point,
     working: &[usize],
     lambda: &mut [f64],
+    totals: &[f64],
     tol: f64,
 ) -> Result<usize> {
     let act = &lay.act;
@@ -622,11 +624,6 @@ fn constrained_convex(
     let mut pos = vec![usize::MAX; sys.components.len()];
     for (k, &c) in act.iter().enumerate() {
         pos[c] = k;
-    }
-    let mut totals = vec![0.0; n];
-    for (k, &c) in act.iter().enumerate().skip(1) {
-        totals[k] = sys.components[c].total_molal;
-        totals[0] -= f64::from(sys.components[c].charge) * totals[k];
     }
     // The rows in active positions, and their right-hand sides.
     let mut nmat = DMatrix::<f64>::zeros(r, n);
@@ -781,8 +778,10 @@ fn constrained_convex(
         }
         p.y.clone_from(&trial.y);
     }
-    for l in lambda.iter_mut() {
-        *l = 0.0;
+    for (w, l) in lambda.iter_mut().enumerate() {
+        if sys.phases[w].is_equality() || sys.phases[w].is_inequality() {
+            *l = 0.0;
+        }
     }
     for (j, &w) in working.iter().enumerate() {
         lambda[w] = lam[j];
@@ -811,19 +810,15 @@ fn assemblage(
     working: &mut Vec<usize>,
     allowed: &[usize],
     lambda: &mut [f64],
+    totals: &[f64],
     tol: f64,
 ) -> Result<usize> {
     let nc = sys.components.len();
-    let amount_scale = lay
-        .act
-        .iter()
-        .skip(1)
-        .map(|&c| sys.components[c].total_molal)
-        .fold(1e-30, f64::max);
+    let amount_scale = totals.iter().skip(1).fold(1e-30_f64, |a, t| a.max(t.abs()));
     let mut iters = 0;
     let changes = 8 * allowed.len() + 8;
     for _ in 0..changes {
-        iters += constrained_convex(sys, ev, lay, p, working, lambda, tol)?;
+        iters += constrained_convex(sys, ev, lay, p, working, lambda, totals, tol)?;
         // A solid whose amount came out negative dissolves completely: drop the worst.
         let negative = working
             .iter()
@@ -950,17 +945,140 @@ pub(crate) fn solve_phases(
         }
     }
     let mut lambda = vec![0.0; sys.phases.len()];
+    // The totals of the convex problem (H⁺ included, T_H = −Σ z·T), then the rows whose
+    // amounts are set by the totals: a fixed alkalinity sets T_H (Σ r·T − TA) and leaves the
+    // charge it unbalances as its amount; an ion closing the balance takes it instead.
+    let act = &lay.act;
+    let mut totals = vec![0.0; act.len()];
+    for (k, &c) in act.iter().enumerate().skip(1) {
+        totals[k] = sys.components[c].total_molal;
+        totals[0] -= f64::from(sys.components[c].charge) * totals[k];
+    }
+    let alkalinity_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Alkalinity { .. }));
+    let closure_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Closure { .. }));
+    let ph_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Ph { .. }));
+    let pos_of = |c: usize| act.iter().position(|&a| a == c);
+    let h_charge = totals[0];
+    let apply = |totals: &mut Vec<f64>, w: usize, amount: f64| {
+        for &(c, v) in &sys.phases[w].terms {
+            if let Some(k) = pos_of(c) {
+                totals[k] -= amount * v;
+            }
+        }
+    };
+    if let Some(w) = alkalinity_row
+        && let RowKind::Alkalinity { molal } = sys.phases[w].kind
+    {
+        let mut h_ta = -molal;
+        for (k, &c) in act.iter().enumerate().skip(1) {
+            h_ta += sys.alkalinity_reference[c] * totals[k];
+        }
+        let unbalanced = h_charge - h_ta;
+        match closure_row {
+            Some(cw) => {
+                // δ of the ion with z·δ = the unbalanced H⁺: amount of the closure row −δ.
+                let z = sys.phases[cw].terms.iter().find(|&&(c, _)| c != 0).map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
+                let delta = unbalanced / z;
+                lambda[cw] = -delta;
+                apply(&mut totals, cw, -delta);
+            }
+            None => {
+                lambda[w] = unbalanced;
+                apply(&mut totals, w, unbalanced);
+            }
+        }
+    }
+    if let Some(cw) = closure_row {
+        check_closure(sys, &lay, cw, &totals)?;
+    }
+    // With a fixed pH and an ion closing the balance, the ion's amount is iterated until the
+    // pH row takes no H⁺ (a few passes: the H⁺ in solution hardly depends on the spectator).
+    let passes = if closure_row.is_some() && ph_row.is_some() { 60 } else { 1 };
+    if let (Some(cw), Some(_)) = (closure_row, ph_row) {
+        // A closing ion put in at zero would leave its activity undetermined on the first
+        // pass: start it at 1 µmol/kg; the passes correct it.
+        for &(c, _) in sys.phases[cw].terms.iter().filter(|&&(c, _)| c != 0) {
+            if let Some(k) = pos_of(c)
+                && totals[k] <= 0.0
+            {
+                let start = 1e-6 - totals[k];
+                lambda[cw] -= start;
+                apply(&mut totals, cw, -start);
+            }
+        }
+    }
+    for pass in 0..passes {
+        iters += settle(sys, &mut ev, &lay, &mut p, &mut working, &allowed, &mut lambda, &totals, tol, max_iter)?;
+        let (Some(cw), Some(pw)) = (closure_row, ph_row) else { break };
+        let z = sys.phases[cw].terms.iter().find(|&&(c, _)| c != 0).map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
+        let uptake = lambda[pw];
+        let scale = totals.iter().fold(1e-30_f64, |a, t| a.max(t.abs()));
+        if uptake.abs() <= 1e-14 * scale {
+            break;
+        }
+        if pass + 1 == passes {
+            return Err(Error::NoConvergence {
+                path: "general",
+                iterations: iters,
+                max_residual: uptake.abs() / scale,
+                worst_equation: format!("charge balance closed on {}", sys.phases[cw].name),
+                last_ph: -p.y[0] / LN10,
+            });
+        }
+        // More of the ion by uptake/z; the closure row's amount is −δ.
+        let delta = uptake / z;
+        lambda[cw] -= delta;
+        apply(&mut totals, cw, -delta);
+        check_closure(sys, &lay, cw, &totals)?;
+    }
+    ev.set_conc(sys, &p);
+    ev.phase_amounts = lambda;
+    Ok((p, ev, iters))
+}
+
+/// Refuses a closing ion whose total would be negative.
+fn check_closure(sys: &System, lay: &Layout, cw: usize, totals: &[f64]) -> Result<()> {
+    for &(c, _) in sys.phases[cw].terms.iter().filter(|&&(c, _)| c != 0) {
+        if let Some(k) = lay.act.iter().position(|&a| a == c)
+            && totals[k] < 0.0
+        {
+            return Err(Error::InfeasiblePhases {
+                reason: format!(
+                    "closing the charge balance on {} needs {:e} mol/kg of it: the other ions leave a charge of its own sign",
+                    sys.components[c].name, totals[k]
+                ),
+            });
+        }
+    }
+    Ok(())
+}
+
+/// The ionic strength (and, under SIT, the composition γ depends on) iterated around the
+/// assemblage at fixed γ: a secant-accelerated fixed point, as in [`nested`].
+#[allow(clippy::too_many_arguments)]
+fn settle(
+    sys: &System,
+    ev: &mut Evaluation,
+    lay: &Layout,
+    p: &mut Point,
+    working: &mut Vec<usize>,
+    allowed: &[usize],
+    lambda: &mut [f64],
+    totals: &[f64],
+    tol: f64,
+    max_iter: usize,
+) -> Result<usize> {
     let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     let mut i = p.ln_i.exp().clamp(I_MIN, I_MAX);
     let mut prev: Option<(f64, f64)> = None;
-    let mut settled = false;
+    let mut iters = 0;
     for _ in 0..80 {
         if iters > max_iter.max(200) * 4 {
             break;
         }
         ev.set_gamma(sys, i);
         p.ln_i = i.ln();
-        iters += assemblage(sys, &mut ev, &lay, &mut p, &mut working, &allowed, &mut lambda, tol)?;
+        iters += assemblage(sys, ev, lay, p, working, allowed, lambda, totals, tol)?;
         let g: f64 = lay
             .species
             .iter()
@@ -969,8 +1087,7 @@ pub(crate) fn solve_phases(
             .max(I_MIN);
         if ideal {
             p.ln_i = g.ln();
-            settled = true;
-            break;
+            return Ok(iters);
         }
         if g > I_MAX && i >= I_MAX {
             return Err(fast::beyond_limit(g));
@@ -978,8 +1095,7 @@ pub(crate) fn solve_phases(
         let h = g - i;
         let dc = ev.composition_change(sys);
         if h.abs() <= tol * i && dc <= tol {
-            settled = true;
-            break;
+            return Ok(iters);
         }
         ev.hold_composition();
         let mut next = g;
@@ -995,16 +1111,11 @@ pub(crate) fn solve_phases(
         prev = Some((i, h));
         i = next.clamp(I_MIN, I_MAX);
     }
-    ev.set_conc(sys, &p);
-    ev.phase_amounts = lambda;
-    if !settled {
-        return Err(Error::NoConvergence {
-            path: "general",
-            iterations: iters,
-            max_residual: f64::INFINITY,
-            worst_equation: "ionic-strength equation with phases".into(),
-            last_ph: -p.y[0] / LN10,
-        });
-    }
-    Ok((p, ev, iters))
+    Err(Error::NoConvergence {
+        path: "general",
+        iterations: iters,
+        max_residual: f64::INFINITY,
+        worst_equation: "ionic-strength equation with phases".into(),
+        last_ph: -p.y[0] / LN10,
+    })
 }
