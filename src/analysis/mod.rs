@@ -1,6 +1,6 @@
 //! Analyses built on the solver: titration curves, endpoints, buffer capacity, buffer
 //! design, fitting of measured data, uncertainty propagation, and water analyses (ion
-//! balance, Langelier index). None of them re-derives
+//! balance, Langelier index, calcium carbonate precipitation potential, dose search). None of them re-derives
 //! the chemistry: each compiles or re-totals a [`System`](crate::System), solves it with a
 //! [`Solver`](crate::Solver) and reads derivatives from
 //! [`Sensitivities`](crate::Sensitivities).

@@ -47,13 +47,14 @@ use std::path::Path;
 use serde::de::DeserializeOwned;
 
 pub use input::{
-    ActivityDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc, FitDoc, IonDef,
-    IonicStrengthDoc, MeasuredPoint, PhConventionDoc, ProtolyteDef, ReagentDef, ReagentPartDef, RecipeDoc, SolutionDoc,
-    StockDoc, TitrationDoc, UnknownDoc,
+    ActivityDoc, AllowSolidsDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc,
+    FitDoc, IonDef, IonicStrengthDoc, MeasuredPoint, PartialPressureDoc, PhConventionDoc, ProtolyteDef, ReagentDef,
+    ReagentPartDef, RecipeDoc, SolutionDoc, StockDoc, TitrationDoc, UnknownDoc,
 };
 pub use output::{
-    DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, HalfEquivalenceResult,
-    PhShiftResult, ResidualsResult, SolveResult, SpeciesResult, TitrationPointResult, TitrationResult,
+    DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, GasResult,
+    HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
+    TitrationPointResult, TitrationResult,
 };
 
 /// The format tag of a recipe document.
