@@ -2,10 +2,11 @@
 //! inside `measured`, the only function callgrind collects in (`--toggle-collect`), so that
 //! set-up (catalogue, compilation) is left out and the count per repetition does not depend on
 //! the machine's load. The cases are those of `benches/solve.rs` and `benches/analysis.rs`
-//! (demo scenarios of our own).
+//! (demo scenarios of our own). Natively it prints the heap allocations per repetition
+//! (a counting global allocator).
 //!
 //! Usage: `icount CASE REPETITIONS` with CASE one of `monoprotic_davies`,
-//! `three_families_davies`, `eight_families_complex_edh`, `titration_1000_davies`,
+//! `three_families_davies`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
 //! `lookup_synonym`, `general_three_families_davies`. Run natively it only checks that the case works.
 
 use protolyte::analysis::Titration;
@@ -13,7 +14,40 @@ use protolyte::{
     ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, PathChoice, Reagent, Recipe, Solver,
     System, Temperature, Volume,
 };
+use protolyte::solve::Workspace;
+use std::alloc::{GlobalAlloc, Layout, System as Heap};
 use std::hint::black_box;
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+/// Counts heap allocations (and reallocations), to report allocations per repetition.
+struct Counting;
+static ALLOCATIONS: AtomicUsize = AtomicUsize::new(0);
+
+// SAFETY: every call is forwarded unchanged to the system allocator; only a counter is added.
+unsafe impl GlobalAlloc for Counting {
+    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
+        ALLOCATIONS.fetch_add(1, Ordering::Relaxed);
+        // SAFETY: the caller's contract is passed on.
+        unsafe { Heap.alloc(layout) }
+    }
+    unsafe fn alloc_zeroed(&self, layout: Layout) -> *mut u8 {
+        ALLOCATIONS.fetch_add(1, Ordering::Relaxed);
+        // SAFETY: the caller's contract is passed on.
+        unsafe { Heap.alloc_zeroed(layout) }
+    }
+    unsafe fn realloc(&self, ptr: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
+        ALLOCATIONS.fetch_add(1, Ordering::Relaxed);
+        // SAFETY: the caller's contract is passed on.
+        unsafe { Heap.realloc(ptr, layout, new_size) }
+    }
+    unsafe fn dealloc(&self, ptr: *mut u8, layout: Layout) {
+        // SAFETY: the caller's contract is passed on.
+        unsafe { Heap.dealloc(ptr, layout) }
+    }
+}
+
+#[global_allocator]
+static GLOBAL: Counting = Counting;
 
 fn system(items: &[(&str, f64)], model: ActivityModel) -> System {
     let cat = Catalog::builtin();
@@ -76,9 +110,20 @@ fn eight_families() -> System {
     .expect("compile")
 }
 
-/// The measured region: `n` repetitions of `f`.
-#[inline(never)]
+/// The measured region: `n` repetitions of `f` (after one unmeasured repetition, so that
+/// buffers kept between repetitions have grown), with the allocations per repetition printed.
 fn measured<F: FnMut() -> f64>(n: usize, mut f: F) -> f64 {
+    let mut acc = f();
+    let before = ALLOCATIONS.load(Ordering::Relaxed);
+    acc += repeat(n, &mut f);
+    let count = ALLOCATIONS.load(Ordering::Relaxed) - before;
+    println!("allocations per repetition: {}", count as f64 / n.max(1) as f64);
+    acc
+}
+
+/// The region callgrind collects in.
+#[inline(never)]
+fn repeat<F: FnMut() -> f64>(n: usize, f: &mut F) -> f64 {
     let mut acc = 0.0;
     for _ in 0..n {
         acc += f();
@@ -99,9 +144,10 @@ fn main() {
     run(&args[1], n);
 }
 
-const CASES: [&str; 6] = [
+const CASES: [&str; 7] = [
     "monoprotic_davies",
     "three_families_davies",
+    "three_families_davies_workspace",
     "eight_families_complex_edh",
     "titration_1000_davies",
     "lookup_synonym",
@@ -117,6 +163,17 @@ fn run(case: &str, n: usize) {
         "three_families_davies" => {
             let s = system(&THREE, ActivityModel::Davies);
             measured(n, || black_box(&s).solve().expect("solve").ph())
+        }
+        "three_families_davies_workspace" => {
+            // The same solve through `Solver::solve_ph` in a reused workspace, each repetition
+            // started cold (as `three_families_davies`).
+            let s = system(&THREE, ActivityModel::Davies);
+            let solver = Solver::default();
+            let mut ws = Workspace::new();
+            measured(n, || {
+                ws.forget_start();
+                solver.solve_ph(black_box(&s), &mut ws).expect("solve").ph
+            })
         }
         "general_three_families_davies" => {
             let s = system(&THREE, ActivityModel::Davies);

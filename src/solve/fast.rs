@@ -36,6 +36,31 @@ struct Balance {
 /// lose at most 12 (both checked where they are defined).
 const NU_SPAN: usize = 12;
 
+/// The fast path's working buffers, kept between solves (per thread, or in a
+/// [`Workspace`](super::Workspace)) so that a repeated solve does not allocate them again.
+#[derive(Debug, Default)]
+pub(crate) struct Buffers {
+    work: Vec<f64>,
+    old_ln_gamma: Vec<f64>,
+    coef: Vec<[f64; 4]>,
+    sig: Vec<f64>,
+    /// The point's component activities (given to the point; a caller that is done with it
+    /// hands it back with [`Buffers::keep_y`]).
+    y: Vec<f64>,
+}
+
+impl Buffers {
+    /// Keeps `y` (a point's activities, no longer needed) for the next solve.
+    pub(crate) fn keep_y(&mut self, y: Vec<f64>) {
+        self.y = y;
+    }
+}
+
+thread_local! {
+    /// The buffers of the last fast solve on this thread, taken by the next one.
+    static SPARE: std::cell::Cell<Option<Buffers>> = const { std::cell::Cell::new(None) };
+}
+
 /// Working state of the fast path for one system.
 pub(crate) struct Fast<'a> {
     sys: &'a System,
@@ -53,6 +78,8 @@ pub(crate) struct Fast<'a> {
     l_ref: f64,
     /// x^k for k = −12..=12 at index k + 12.
     pw: [f64; 2 * NU_SPAN + 1],
+    /// The buffer the next point's activities are written into.
+    y: Vec<f64>,
     /// Per species for the joint step: (ν(H⁺), z⁺, z⁻, z²) with z⁺ = max(z, 0) and
     /// z⁻ = max(−z, 0).
     coef: Vec<[f64; 4]>,
@@ -78,22 +105,53 @@ struct Joint {
 }
 
 impl<'a> Fast<'a> {
+    #[cfg(test)]
     pub(crate) fn new(sys: &'a System) -> Self {
+        Self::with(sys, Buffers::default(), Evaluation::without_slopes(sys))
+    }
+
+    /// The fast path on `sys` in the given buffers (resized as needed) and evaluation (which
+    /// must have one entry per species in `conc` and `ln_gamma`).
+    pub(crate) fn with(sys: &'a System, bufs: Buffers, ev: Evaluation) -> Self {
         let nc = sys.components.len();
         let ns = sys.species.len();
+        let Buffers {
+            mut work,
+            old_ln_gamma,
+            coef,
+            sig,
+            y,
+        } = bufs;
+        work.clear();
+        work.resize(ns + 2 * nc, 0.0);
         Fast {
             sys,
-            ev: Evaluation::without_slopes(sys),
-            work: vec![0.0; ns + 2 * nc],
+            ev,
+            work,
             ns,
             nc,
             davies_unit: 0.0,
-            old_ln_gamma: Vec::new(),
+            old_ln_gamma,
             l_ref: f64::NAN,
             pw: [1.0; 2 * NU_SPAN + 1],
-            coef: Vec::new(),
-            sig: Vec::new(),
+            coef,
+            sig,
+            y,
         }
+    }
+
+    /// The buffers and the evaluation back.
+    pub(crate) fn into_parts(self) -> (Buffers, Evaluation) {
+        (
+            Buffers {
+                work: self.work,
+                old_ln_gamma: self.old_ln_gamma,
+                coef: self.coef,
+                sig: self.sig,
+                y: self.y,
+            },
+            self.ev,
+        )
     }
 
     /// Prepares the per-species tables of the joint step.
@@ -227,7 +285,9 @@ impl<'a> Fast<'a> {
         let sys = self.sys;
         let (ns, nc) = (self.ns, self.nc);
         self.ev.conc.fill(0.0);
-        let mut y = vec![f64::NEG_INFINITY; nc];
+        let mut y = std::mem::take(&mut self.y);
+        y.clear();
+        y.resize(nc, f64::NEG_INFINITY);
         y[0] = l;
         let mut ionic = 0.0;
         for &s in &sys.members[0] {
@@ -578,7 +638,35 @@ fn no_root(l: f64, evals: usize) -> Error {
 /// (ln a(H⁺), ln I); `tol` the relative ionic-strength tolerance. Returns the point, the
 /// evaluation at it and the number of pH-equation evaluations.
 pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result<(Point, Evaluation, usize)> {
-    solve_with(sys, start, tol, true)
+    let bufs = SPARE.take().unwrap_or_default();
+    let fast = Fast::with(sys, bufs, Evaluation::without_slopes(sys));
+    let (result, fast) = run(fast, start, tol, true);
+    let (bufs, ev) = fast.into_parts();
+    SPARE.set(Some(bufs));
+    result.map(|(p, n)| (p, ev, n))
+}
+
+/// [`solve`] in caller-owned buffers and evaluation (sized for `sys`, as
+/// [`Evaluation::without_slopes`] makes it). Gives the point and the evaluations spent.
+pub(crate) fn solve_in(
+    sys: &System,
+    start: Option<(f64, f64)>,
+    tol: f64,
+    bufs: &mut Buffers,
+    ev: &mut Evaluation,
+) -> Result<(Point, usize)> {
+    let empty = Evaluation {
+        conc: Vec::new(),
+        ln_gamma: Vec::new(),
+        dln_gamma_di: Vec::new(),
+        held: Vec::new(),
+    };
+    let fast = Fast::with(sys, std::mem::take(bufs), std::mem::replace(ev, empty));
+    let (result, fast) = run(fast, start, tol, true);
+    let (b, e) = fast.into_parts();
+    *bufs = b;
+    *ev = e;
+    result
 }
 
 /// The largest joint step accepted on L (ln units, 0.43 in pH) before the bracketed 1-D
@@ -590,13 +678,25 @@ const JOINT_MAX_STEPS: usize = 30;
 /// [`solve`], with the joint step on (L, ln I) (`joint`) or with the 1-D charge balance
 /// solved at each ionic strength and I iterated around it (the reference the joint step is
 /// tested against).
+#[cfg(test)]
 pub(crate) fn solve_with(
     sys: &System,
     start: Option<(f64, f64)>,
     tol: f64,
     joint: bool,
 ) -> Result<(Point, Evaluation, usize)> {
-    let mut fast = Fast::new(sys);
+    let (result, fast) = run(Fast::new(sys), start, tol, joint);
+    result.map(|(p, n)| (p, fast.into_parts().1, n))
+}
+
+/// The fast path in `fast`'s buffers; gives them back with the result.
+fn run<'a>(mut fast: Fast<'a>, start: Option<(f64, f64)>, tol: f64, joint: bool) -> (Result<(Point, usize)>, Fast<'a>) {
+    let r = iterate(&mut fast, start, tol, joint);
+    (r, fast)
+}
+
+fn iterate(fast: &mut Fast<'_>, start: Option<(f64, f64)>, tol: f64, joint: bool) -> Result<(Point, usize)> {
+    let sys = fast.sys;
     let (mut l, mut i) = match start {
         Some((l, li)) if l.is_finite() && li.is_finite() => (l, li.exp().clamp(I_MIN, I_MAX)),
         _ => {
@@ -623,7 +723,7 @@ pub(crate) fn solve_with(
         // γ does not depend on I: one charge balance, and the I of the solution reported.
         let (ln_ah, n) = fast.solve_l(l, 0.0)?;
         let (p, g) = fast.fill(ln_ah, i);
-        return Ok((Point { y: p.y, ln_i: g.ln() }, fast.ev, evals + n));
+        return Ok((Point { y: p.y, ln_i: g.ln() }, evals + n));
     }
     // γ depends on I only: Newton on (L, ln I) jointly, from a bracketed loose solve of L.
     // (A loose tolerance is the general path asking for its start: it gets the 1-D
@@ -635,7 +735,7 @@ pub(crate) fn solve_with(
         l = ln_ah;
         first = false;
         if let Some(done) = fast.joint_newton(&mut l, &mut i, tol, &mut evals) {
-            return Ok((done, fast.ev, evals));
+            return Ok((done, evals));
         }
     }
     for iteration in 0..100 {
@@ -657,7 +757,7 @@ pub(crate) fn solve_with(
         let dc = fast.ev.composition_change(sys);
         if h.abs() <= tol * i && dc <= tol {
             if accept <= 1e-8 {
-                return Ok((p, fast.ev, evals));
+                return Ok((p, evals));
             }
             // I has settled while L was solved loosely: solve L tightly at this I.
             accept = 0.0;
