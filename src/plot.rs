@@ -477,8 +477,11 @@ fn finish(buf: String) -> PlotResult<String> {
 
 /// A titration curve: pH against titrant volume (left axis), dpH/dV (dashed, right axis), and
 /// each equivalence point inside the volume range marked with a dot on the curve, a dotted
-/// vertical line and a label "EP*n*: *v* mL, pH *x*" (a hollow dot and "weak break" for a
-/// break flagged as not usable).
+/// vertical line and a label "EP*n*: *v* mL, pH *x*". The dot is filled when the endpoint's
+/// verdict ([`EquivalencePoint::usable`], read from the curve by
+/// [`EndpointCriterion`](crate::analysis::EndpointCriterion)) says it is usable and hollow,
+/// with "not usable" in its label, when it is not: the same field the text and JSON outputs
+/// read.
 ///
 /// Points with a non-finite volume, pH or slope are left out. Errors: fewer than two finite
 /// points, or options out of range.
@@ -554,7 +557,7 @@ pub fn titration_svg(
     }
     if eps.iter().any(|e| !e.usable()) {
         entries.push(LegendEntry {
-            text: "equivalence point, weak break".into(),
+            text: "equivalence point, not usable".into(),
             colour: INK,
             kind: LegendKind::Ring,
         });
@@ -638,7 +641,11 @@ pub fn titration_svg(
             };
             area.draw(&Circle::new((e.volume_ml, ph), 5, style)).map_err(drawing)?;
             let first = format!("EP{}: {:.2} mL", k + 1, e.volume_ml);
-            labels.push((vec![first, format!("pH {:.2}", e.ph)], c));
+            let mut lines = vec![first, format!("pH {:.2}", e.ph)];
+            if !e.usable() {
+                lines.push("not usable".into());
+            }
+            labels.push((lines, c));
         }
         // Below-right of the point for a rising curve (the curve has jumped up), above-right
         // for a falling one.

@@ -357,7 +357,14 @@ fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -
         None => t.curve_adaptive(&doc.stepping().map_err(|e| e.in_file(&name))?),
     }
     .map_err(|e| chem(&name, e))?;
-    let eqs = t.equivalence_points().map_err(|e| chem(&name, e))?;
+    let criterion = doc.endpoint_criterion().map_err(|e| e.in_file(&name))?;
+    let eqs = t
+        .equivalence_points_judged(
+            protolyte::analysis::endpoints::DEFAULT_STEEP_FRACTION,
+            protolyte::analysis::indicators(),
+            &criterion,
+        )
+        .map_err(|e| chem(&name, e))?;
     let halves = t.half_equivalence_points().map_err(|e| chem(&name, e))?;
     let end = doc.end_volume_ml;
     let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
@@ -414,11 +421,6 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
     }
     for (i, e) in r.equivalence_points.iter().enumerate() {
         let step = e.completed_step.as_deref().unwrap_or("strong acid/base");
-        let flags = if e.flags.is_empty() {
-            "usable".to_string()
-        } else {
-            e.flags.join("; ")
-        };
         let ind = match (&e.nearest_indicator, e.nearest_indicator_error) {
             (Some(n), Some(err)) => format!("; nearest indicator {n} (titration error {:+.2} %)", err * 100.0),
             (Some(n), None) => format!("; nearest indicator {n}"),
@@ -426,13 +428,17 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
         };
         writeln!(
             out,
-            "# equivalence point {}: {:.4} mL, pH {:.3} ({step}); steep part pH {:.2}–{:.2}; {flags}{ind}",
+            "# equivalence point {}: {:.4} mL, pH {:.3} ({step}); steep part pH {:.2}–{:.2}; {}{ind}",
             i + 1,
             e.volume_ml,
             e.ph,
             e.steep_ph[0],
-            e.steep_ph[1]
+            e.steep_ph[1],
+            verdict_text(&e.verdict, e.volume_ml),
         )?;
+        if !e.flags.is_empty() {
+            writeln!(out, "#   why: {}", e.flags.join("; "))?;
+        }
     }
     for h in &r.half_equivalence_points {
         writeln!(
@@ -442,6 +448,38 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
         )?;
     }
     Ok(())
+}
+
+/// The verdict in words: usable or not, and the numbers it was decided from.
+fn verdict_text(v: &document::VerdictResult, volume_ml: f64) -> String {
+    let word = if v.usable { "usable" } else { "not usable" };
+    let located = match v.locating_error_ml {
+        Some(d) => format!(
+            "pH ±{} locates it to ±{d:.3} mL (±{} %)",
+            v.ph_window,
+            significant(100.0 * d / volume_ml, 2)
+        ),
+        None => format!("the curve does not move ±{} pH around it", v.ph_window),
+    };
+    format!(
+        "{word}: {located}, tolerance ±{:.3} mL (pH change {:.2} over it, slope {} pH/mL)",
+        v.tolerance_ml,
+        v.break_ph,
+        significant(v.slope_per_ml, 3)
+    )
+}
+
+/// `x` with `digits` significant digits, plain notation between 1e-3 and 1e6.
+fn significant(x: f64, digits: usize) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
+    }
+    let mag = x.abs().log10().floor() as i32;
+    if !(-3..6).contains(&mag) {
+        return format!("{:.*e}", digits.saturating_sub(1), x);
+    }
+    let decimals = (digits as i32 - 1 - mag).max(0) as usize;
+    format!("{x:.decimals$}")
 }
 
 fn design(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {

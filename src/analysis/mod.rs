@@ -16,8 +16,8 @@ pub mod uncertainty;
 pub use capacity::{CapacityCurve, CapacityPeak, CapacityPoint, capacity_along};
 pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};
 pub use endpoints::{
-    BreakFlag, DerivativeEndpoint, DeviationCause, EquivalencePoint, GranFit, GranFunction, HalfEquivalencePoint,
-    Inflection, StepRef, derivative_endpoints, gran_fit,
+    BreakFlag, DerivativeEndpoint, DeviationCause, EndpointCriterion, EndpointVerdict, EquivalencePoint, GranFit,
+    GranFunction, HalfEquivalencePoint, Inflection, StepRef, derivative_endpoints, gran_fit,
 };
 pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
 pub use indicators::{Indicator, indicators, indicators_within};

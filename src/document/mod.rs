@@ -53,7 +53,7 @@ pub use input::{
 };
 pub use output::{
     DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, HalfEquivalenceResult,
-    PhShiftResult, ResidualsResult, SolveResult, SpeciesResult, TitrationPointResult, TitrationResult,
+    PhShiftResult, ResidualsResult, SolveResult, SpeciesResult, TitrationPointResult, TitrationResult, VerdictResult,
 };
 
 /// The format tag of a recipe document.
