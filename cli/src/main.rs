@@ -24,7 +24,8 @@ use protolyte::{Catalog, DataKind, Error};
 /// Exit codes.
 const EXIT_OK: u8 = 0;
 const EXIT_BATCH_FAILURES: u8 = 1;
-// 2 is clap's: the command line itself is wrong.
+/// The command line is wrong: clap's own code, also used for a plot name that is not `.svg`.
+const EXIT_USAGE: u8 = 2;
 const EXIT_BAD_INPUT: u8 = 3;
 const EXIT_NO_CONVERGENCE: u8 = 4;
 const EXIT_OUTPUT: u8 = 5;
@@ -95,6 +96,11 @@ enum Command {
         /// Write the curve and endpoints as JSON instead of CSV.
         #[arg(long)]
         json: bool,
+        /// Write the endpoint report (equivalence points with their verdicts, half-equivalence
+        /// points, notes) to this file instead of standard error; standard output then holds
+        /// the curve as pure CSV either way.
+        #[arg(long, value_name = "FILE")]
+        endpoints: Option<PathBuf>,
         /// Also draw the curve with its equivalence points and dpH/dV as SVG.
         #[arg(long, value_name = "FILE.svg")]
         plot: Option<PathBuf>,
@@ -209,7 +215,12 @@ fn run(cmd: Command) -> Result<u8, Failure> {
     let mut out = BufWriter::new(stdout.lock());
     let code = match cmd {
         Command::Solve { file, json, plot } => solve(&file, json, plot.as_deref(), &mut out)?,
-        Command::Titrate { file, json, plot } => titrate(&file, json, plot.as_deref(), &mut out)?,
+        Command::Titrate {
+            file,
+            json,
+            endpoints,
+            plot,
+        } => titrate(&file, json, endpoints.as_deref(), plot.as_deref(), &mut out)?,
         Command::Design { file, json } => design(&file, json, &mut out)?,
         Command::Fit { file, json } => fit(&file, json, &mut out)?,
         Command::Batch {
@@ -250,8 +261,9 @@ fn plot_options(name: &Option<String>) -> PlotOptions {
 }
 
 fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
+    check_svg_name(plot)?;
     let name = display_name(file);
-    let doc: RecipeDoc = document::load(file)?;
+    let doc: RecipeDoc = document::load_expecting(file, document::RECIPE_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
     let (recipe, conditions) = doc.to_recipe(catalog()).map_err(|e| e.in_file(&name))?;
     let eq = recipe
@@ -347,9 +359,16 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
     Ok(())
 }
 
-fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
+fn titrate(
+    file: &Path,
+    json: bool,
+    endpoints: Option<&Path>,
+    plot: Option<&Path>,
+    out: &mut impl Write,
+) -> Result<u8, Failure> {
+    check_svg_name(plot)?;
     let name = display_name(file);
-    let doc: TitrationDoc = document::load(file)?;
+    let doc: TitrationDoc = document::load_expecting(file, document::TITRATION_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
     let t = doc.to_titration(catalog()).map_err(|e| e.in_file(&name))?;
     let curve: Vec<TitrationPoint> = match doc.uniform_points().map_err(|e| e.in_file(&name))? {
@@ -376,11 +395,29 @@ fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -
         points: curve.iter().map(Into::into).collect(),
         equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
         half_equivalence_points: halves.iter().filter(|h| h.volume_ml <= end).map(Into::into).collect(),
+        notes: titration_notes(&eqs, end),
     };
     if json {
         write_json(out, &result)?;
     } else {
         write_titration_csv(out, &result).map_err(output_failure)?;
+        out.flush().map_err(output_failure)?;
+        match endpoints {
+            Some(p) => {
+                let f = File::create(p).map_err(|e| Failure {
+                    code: EXIT_OUTPUT,
+                    message: format!("{}: cannot create the endpoint report: {e}", p.display()),
+                })?;
+                let mut w = BufWriter::new(f);
+                write_endpoint_report(&mut w, &result)
+                    .and_then(|()| w.flush())
+                    .map_err(|e| Failure {
+                        code: EXIT_OUTPUT,
+                        message: format!("{}: cannot write the endpoint report: {e}", p.display()),
+                    })?;
+            }
+            None => write_endpoint_report(&mut io::stderr().lock(), &result).map_err(output_failure)?,
+        }
     }
     // After the result, as for `solve`.
     if let Some(p) = plot {
@@ -400,6 +437,36 @@ fn convention_label(c: protolyte::PhConvention) -> Option<String> {
     }
 }
 
+/// Refuses a plot file whose name does not end in `.svg` (the only format drawn), before
+/// anything is computed.
+fn check_svg_name(plot: Option<&Path>) -> Result<(), Failure> {
+    match plot {
+        Some(p) if !p.extension().is_some_and(|e| e.eq_ignore_ascii_case("svg")) => Err(Failure {
+            code: EXIT_USAGE,
+            message: format!(
+                "{}: plots are drawn as SVG only; give a file name ending in .svg",
+                p.display()
+            ),
+        }),
+        _ => Ok(()),
+    }
+}
+
+/// Notes on the curve as asked for: an end volume short of the first equivalence point.
+fn titration_notes(eqs: &[protolyte::analysis::EquivalencePoint], end_ml: f64) -> Vec<String> {
+    let mut notes = Vec::new();
+    if let Some(first) = eqs.first()
+        && first.volume_ml > end_ml
+    {
+        notes.push(format!(
+            "the curve stops at {end_ml} mL, before its first equivalence point ({:.4} mL): raise end_volume_ml to see it",
+            first.volume_ml
+        ));
+    }
+    notes
+}
+
+/// The curve as pure CSV: a header and one row a point, nothing else.
 fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<()> {
     writeln!(out, "volume_ml,ph,dph_dv_per_ml,ionic_strength_mol_per_kg")?;
     for p in &r.points {
@@ -413,11 +480,20 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
             p.ionic_strength_mol_per_kg
         )?;
     }
+    Ok(())
+}
+
+/// The endpoints in words: the name, the equivalence points with their verdicts, the
+/// half-equivalence points and the notes, one a line.
+fn write_endpoint_report(out: &mut impl Write, r: &TitrationResult) -> io::Result<()> {
     if let Some(n) = &r.name {
-        writeln!(out, "# {n}")?;
+        writeln!(out, "{n}")?;
     }
     if r.ph_convention.as_deref() == Some("bates-guggenheim") {
-        writeln!(out, "# pH convention: Bates–Guggenheim")?;
+        writeln!(out, "pH convention: Bates–Guggenheim")?;
+    }
+    for n in &r.notes {
+        writeln!(out, "note: {n}")?;
     }
     for (i, e) in r.equivalence_points.iter().enumerate() {
         let step = e.completed_step.as_deref().unwrap_or("strong acid/base");
@@ -428,7 +504,7 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
         };
         writeln!(
             out,
-            "# equivalence point {}: {:.4} mL, pH {:.3} ({step}); steep part pH {:.2}–{:.2}; {}{ind}",
+            "equivalence point {}: {:.4} mL, pH {:.3} ({step}); steep part pH {:.2}–{:.2}; {}{ind}",
             i + 1,
             e.volume_ml,
             e.ph,
@@ -437,13 +513,13 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
             verdict_text(&e.verdict, e.volume_ml),
         )?;
         if !e.flags.is_empty() {
-            writeln!(out, "#   why: {}", e.flags.join("; "))?;
+            writeln!(out, "  why (rules of thumb): {}", e.flags.join("; "))?;
         }
     }
     for h in &r.half_equivalence_points {
         writeln!(
             out,
-            "# half-equivalence {} pKa{}: {:.4} mL, pH {:.3}, pH − pKa {:+.3} (mainly {})",
+            "half-equivalence {} pKa{}: {:.4} mL, pH {:.3}, pH − pKa {:+.3} (mainly {})",
             h.family, h.step, h.volume_ml, h.ph, h.deviation, h.main_cause
         )?;
     }
@@ -484,7 +560,7 @@ fn significant(x: f64, digits: usize) -> String {
 
 fn design(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     let name = display_name(file);
-    let doc: DesignDoc = document::load(file)?;
+    let doc: DesignDoc = document::load_expecting(file, document::DESIGN_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
     let spec = doc.to_spec(catalog()).map_err(|e| e.in_file(&name))?;
     let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
@@ -561,7 +637,7 @@ fn write_design_table(out: &mut impl Write, result: &DesignResult) -> io::Result
 
 fn fit(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     let name = display_name(file);
-    let doc: FitDoc = document::load(file)?;
+    let doc: FitDoc = document::load_expecting(file, document::FIT_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
     let f = doc.to_fit(catalog()).map_err(|e| e.in_file(&name))?;
     let report = f.run().map_err(|e| chem(&name, e))?;

@@ -121,11 +121,91 @@ fn titrate_writes_csv_with_endpoints() {
         lines.next(),
         Some("volume_ml,ph,dph_dv_per_ml,ionic_strength_mol_per_kg")
     );
-    let rows: Vec<&str> = out.lines().skip(1).filter(|l| !l.starts_with('#')).collect();
+    // Pure CSV: every line after the header is a row of four numbers.
+    let rows: Vec<&str> = out.lines().skip(1).collect();
     assert!(rows.len() > 50);
-    assert!(rows.iter().all(|r| r.split(',').count() == 4 && !r.contains("NaN")));
-    assert!(out.contains("# equivalence point 1:"));
-    assert!(out.contains("# half-equivalence phosphate pKa1"));
+    assert!(
+        rows.iter()
+            .all(|r| r.split(',').count() == 4 && r.split(',').all(|x| x.parse::<f64>().is_ok()))
+    );
+    // The endpoint report goes to standard error, or to the file asked for.
+    let err = stderr(&o);
+    assert!(err.contains("equivalence point 1:"), "{err}");
+    assert!(err.contains("half-equivalence phosphate pKa1"));
+    let report = std::env::temp_dir().join(format!("protolyte-cli-endpoints-{}.txt", std::process::id()));
+    let o = protolyte(&[
+        "titrate",
+        "examples/soft_drink_acidity.json",
+        "--endpoints",
+        report.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stderr(&o).is_empty());
+    assert!(
+        std::fs::read_to_string(&report)
+            .unwrap()
+            .contains("equivalence point 1:")
+    );
+}
+
+#[test]
+fn text_json_and_plot_read_the_same_verdict() {
+    // The issue's maleic acid case: 25 mL of 20 mmol/L maleic acid with 0.1 mol/L NaOH.
+    let doc = temp_file(
+        "maleic.json",
+        r#"{"format":"protolyte-titration/1","name":"maleic acid",
+            "analyte":{"volume_ml":25,"reagents":[{"reagent":"maleic acid","millimolar":20}]},
+            "titrant":{"reagents":[{"reagent":"sodium hydroxide","molar":0.1}]},"end_volume_ml":15}"#,
+    );
+    let svg = doc.with_file_name("maleic.svg");
+    let o = protolyte(&["titrate", doc.to_str().unwrap(), "--plot", svg.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = stderr(&o);
+    let lines: Vec<&str> = text.lines().filter(|l| l.starts_with("equivalence point")).collect();
+    assert_eq!(lines.len(), 2, "{text}");
+    assert!(lines[0].contains("not usable"), "{}", lines[0]);
+    assert!(lines[1].contains("; usable"), "{}", lines[1]);
+    let o = protolyte(&["titrate", "--json", doc.to_str().unwrap()]);
+    let t: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
+    let verdicts: Vec<bool> = t.equivalence_points.iter().map(|e| e.verdict.usable).collect();
+    assert_eq!(verdicts, [false, true]);
+    let svg = std::fs::read_to_string(&svg).unwrap();
+    assert_eq!(svg.matches("not usable").count(), 2, "one label and the legend");
+}
+
+#[test]
+fn documents_of_another_kind_and_non_svg_plots_are_refused_clearly() {
+    let o = protolyte(&["titrate", "examples/hatchery_makeup.json"]);
+    assert_eq!(o.status.code(), Some(3));
+    let err = stderr(&o);
+    assert!(err.contains("a recipe") && err.contains("protolyte solve"), "{err}");
+    let o = protolyte(&["solve", "examples/soft_drink_acidity.json"]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("protolyte titrate"), "{}", stderr(&o));
+    let o = protolyte(&["titrate", "examples/soft_drink_acidity.json", "--plot", "curve.png"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("SVG"), "{}", stderr(&o));
+    assert!(stdout(&o).is_empty());
+}
+
+#[test]
+fn a_curve_that_stops_before_its_first_equivalence_point_says_so() {
+    let doc = temp_file(
+        "short.json",
+        r#"{"format":"protolyte-titration/1",
+            "analyte":{"volume_ml":25,"reagents":[{"reagent":"acetic acid","molar":0.1}]},
+            "titrant":{"reagents":[{"reagent":"sodium hydroxide","molar":0.1}]},"end_volume_ml":10}"#,
+    );
+    let o = protolyte(&["titrate", doc.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0));
+    assert!(
+        stderr(&o).contains("before its first equivalence point (25.0000 mL)"),
+        "{}",
+        stderr(&o)
+    );
+    let o = protolyte(&["titrate", "--json", doc.to_str().unwrap()]);
+    let t: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert_eq!(t.notes.len(), 1);
 }
 
 #[test]
@@ -586,11 +666,8 @@ fn titrate_and_design_name_the_bates_guggenheim_convention() {
     let path = temp_file("titration_bg.json", t);
     let o = protolyte(&["titrate", path.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
-    assert!(
-        stdout(&o).contains("# pH convention: Bates–Guggenheim"),
-        "{}",
-        stdout(&o)
-    );
+    // In the endpoint report (standard error): the curve on standard output is pure CSV.
+    assert!(stderr(&o).contains("pH convention: Bates–Guggenheim"), "{}", stderr(&o));
     let o = protolyte(&["titrate", "--json", path.to_str().unwrap()]);
     let r: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
     assert_eq!(r.ph_convention.as_deref(), Some("bates-guggenheim"));

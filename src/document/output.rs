@@ -425,6 +425,10 @@ pub struct TitrationResult {
     pub equivalence_points: Vec<EquivalenceResult>,
     /// Half-equivalence points.
     pub half_equivalence_points: Vec<HalfEquivalenceResult>,
+    /// What the reader should know about the curve as asked for (for example that it stops
+    /// before its first equivalence point), as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notes: Vec<String>,
 }
 
 /// One line of a designed buffer recipe.
