@@ -9,6 +9,7 @@ pub mod design;
 pub mod endpoints;
 pub mod fit;
 pub mod indicators;
+pub mod measured;
 pub mod target;
 pub mod titration;
 pub mod uncertainty;
