@@ -121,6 +121,28 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Calibrate a pH electrode from buffer readings (`protolyte-calibration/1`): slope as %
+    /// of the Nernst slope, offset at pH 7, residuals.
+    Calibrate {
+        /// The calibration request (JSON or TOML), or `-`.
+        file: PathBuf,
+        /// Write the result as JSON.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Analyse a measured titration (`protolyte-measured/1`): the data file read (pH or mV),
+    /// endpoints by derivative and Gran, the content with its uncertainty budget, and the
+    /// model fit when asked.
+    Analyze {
+        /// The request (JSON or TOML), or `-`; its data file is found relative to it.
+        file: PathBuf,
+        /// Write the result as JSON.
+        #[arg(long)]
+        json: bool,
+        /// Also draw the data, the model, the endpoints and the residuals as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
+    },
     /// Solve many recipes: JSON Lines in (one recipe document per line), JSON Lines out, in
     /// input order, in parallel.
     Batch {
@@ -223,6 +245,8 @@ fn run(cmd: Command) -> Result<u8, Failure> {
         } => titrate(&file, json, endpoints.as_deref(), plot.as_deref(), &mut out)?,
         Command::Design { file, json } => design(&file, json, &mut out)?,
         Command::Fit { file, json } => fit(&file, json, &mut out)?,
+        Command::Calibrate { file, json } => calibrate(&file, json, &mut out)?,
+        Command::Analyze { file, json, plot } => analyze(&file, json, plot.as_deref(), &mut out)?,
         Command::Batch {
             file,
             output,
@@ -689,6 +713,9 @@ fn write_fit_table(out: &mut impl Write, result: &FitResult, doc: &FitDoc) -> io
             "stopped on the iteration budget"
         }
     )?;
+    for w in &result.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
     writeln!(out)?;
     writeln!(out, "curve,point,volume_ml,measured_ph,residual_ph")?;
     for (k, (c, res)) in doc.curves.iter().zip(&result.residuals).enumerate() {
@@ -697,6 +724,227 @@ fn write_fit_table(out: &mut impl Write, result: &FitResult, doc: &FitDoc) -> io
         }
     }
     Ok(())
+}
+
+fn calibrate(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+    let name = display_name(file);
+    let doc: document::CalibrationDoc = document::load_expecting(file, document::CALIBRATION_FORMAT)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let cal = doc.to_calibration().map_err(|e| e.in_file(&name))?;
+    let mut r = document::CalibrationResult::from(&cal);
+    r.name = doc.name.clone();
+    if json {
+        write_json(out, &r)?;
+    } else {
+        write_calibration(out, &r).map_err(output_failure)?;
+    }
+    Ok(EXIT_OK)
+}
+
+fn write_calibration(out: &mut impl Write, r: &document::CalibrationResult) -> io::Result<()> {
+    if let Some(n) = &r.name {
+        writeln!(out, "{n}")?;
+    }
+    let se = |x: Option<f64>, unit: &str| {
+        x.map(|s| format!(" ± {s:.2} {unit} (standard error)"))
+            .unwrap_or_default()
+    };
+    writeln!(
+        out,
+        "slope      {:.2} mV/pH = {:.2} % of the Nernst slope ({:.3} mV/pH at {} °C){}",
+        r.slope_mv_per_ph,
+        r.slope_percent,
+        r.nernst_slope_mv_per_ph,
+        r.temperature_celsius,
+        se(r.slope_standard_error_percent, "%")
+    )?;
+    writeln!(
+        out,
+        "offset     {:+.2} mV at pH 7{}",
+        r.offset_mv,
+        se(r.offset_standard_error_mv, "mV")
+    )?;
+    let res: Vec<String> = r.residuals_mv.iter().map(|x| format!("{x:+.2}")).collect();
+    writeln!(out, "residuals  {} mV", res.join(", "))?;
+    for w in &r.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
+    Ok(())
+}
+
+fn analyze(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
+    check_svg_name(plot)?;
+    let name = display_name(file);
+    let doc: document::MeasuredDoc = document::load_expecting(file, document::MEASURED_FORMAT)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let base = if file == Path::new("-") {
+        PathBuf::from(".")
+    } else {
+        file.parent().map(Path::to_path_buf).unwrap_or_default()
+    };
+    let data_path = base.join(&doc.data.file);
+    let text = read_data_file(&data_path)?;
+    let r = doc.analyze(&text, catalog()).map_err(|e| match e {
+        // An error in the data names the data file; any other names the request.
+        DocumentError::Read { .. } => Failure {
+            code: EXIT_BAD_INPUT,
+            message: e.in_file(&data_path.display().to_string()).to_string(),
+        },
+        other => Failure {
+            code: EXIT_BAD_INPUT,
+            message: other.in_file(&name).to_string(),
+        },
+    })?;
+    if json {
+        write_json(out, &r)?;
+    } else {
+        write_measured(out, &r).map_err(output_failure)?;
+    }
+    if let Some(p) = plot {
+        out.flush().map_err(output_failure)?;
+        let pts: Vec<(f64, f64)> = r.points.iter().map(|p| (p[0], p[1])).collect();
+        // The model's pH at each point: measured − residual.
+        let model: Option<Vec<f64>> = r.fit.as_ref().and_then(|f| {
+            f.residuals
+                .first()
+                .filter(|res| res.len() == pts.len())
+                .map(|res| pts.iter().zip(res).map(|(p, e)| p.1 - e).collect())
+        });
+        let mut marks: Vec<(String, f64)> = r
+            .derivative_endpoints
+            .iter()
+            .map(|e| ("derivative".to_string(), e.volume_ml))
+            .collect();
+        if let Some(g) = &r.gran_before {
+            marks.push(("Gran before".into(), g.endpoint_ml));
+        }
+        if let Some(g) = &r.gran_after {
+            marks.push(("Gran after".into(), g.endpoint_ml));
+        }
+        let svg = protolyte::plot::measured_svg(&pts, model.as_deref(), &marks, &plot_options(&doc.name))
+            .map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
+    }
+    Ok(EXIT_OK)
+}
+
+/// The text of a measured-data file, at most 16 MiB.
+fn read_data_file(path: &Path) -> Result<String, Failure> {
+    use std::io::Read;
+    const LIMIT: u64 = 16 << 20;
+    let bad = |m: String| Failure {
+        code: EXIT_BAD_INPUT,
+        message: format!("{}: {m}", path.display()),
+    };
+    let f = File::open(path).map_err(|e| bad(format!("cannot read the data file: {e}")))?;
+    let mut bytes = Vec::new();
+    f.take(LIMIT + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| bad(format!("cannot read the data file: {e}")))?;
+    if bytes.len() as u64 > LIMIT {
+        return Err(bad("the data file is longer than 16 MiB".into()));
+    }
+    String::from_utf8(bytes).map_err(|e| bad(format!("the data file is not UTF-8 text ({e})")))
+}
+
+fn write_measured(out: &mut impl Write, r: &document::MeasuredResult) -> io::Result<()> {
+    if let Some(n) = &r.name {
+        writeln!(out, "{n}")?;
+    }
+    if let Some(c) = &r.calibration {
+        writeln!(
+            out,
+            "calibration        slope {:.2} % of Nernst, offset {:+.2} mV at pH 7 ({} °C)",
+            c.slope_percent, c.offset_mv, c.temperature_celsius
+        )?;
+    }
+    writeln!(out, "points             {}", r.points.len())?;
+    writeln!(out, "smoothing          {}", r.smoothing)?;
+    for (i, e) in r.derivative_endpoints.iter().enumerate() {
+        writeln!(
+            out,
+            "derivative EP{}     {:.3} mL (second derivative zero), pH {:.2}, largest dpH/dV {:.3} per mL at {:.3} mL",
+            i + 1,
+            e.volume_ml,
+            e.ph,
+            e.slope_per_ml,
+            e.first_derivative_volume_ml
+        )?;
+    }
+    for (label, g) in [("Gran before", &r.gran_before), ("Gran after ", &r.gran_after)] {
+        if let Some(g) = g {
+            writeln!(
+                out,
+                "{label}        {:.4} ± {:.4} mL (standard error), {} on {:.3}–{:.3} mL ({} points, r² {:.5}; window chosen automatically)",
+                g.endpoint_ml,
+                g.endpoint_standard_error_ml,
+                g.function,
+                g.window_ml[0],
+                g.window_ml[1],
+                g.points,
+                g.r_squared
+            )?;
+        }
+    }
+    writeln!(
+        out,
+        "reported from      {}: endpoint {:.4} mL",
+        r.reported_method, r.endpoint_ml
+    )?;
+    writeln!(out)?;
+    writeln!(out, "{} (expanded uncertainty, k = 2)", r.analyte)?;
+    let v = |x: &document::ValueResult| format!("{:.5} ± {:.5}", x.value, x.expanded_uncertainty);
+    writeln!(out, "  {} mol/L", v(&r.mol_per_l))?;
+    writeln!(out, "  {} g/L", v(&r.g_per_l))?;
+    writeln!(out, "  {} g/100 mL", v(&r.g_per_100_ml))?;
+    if let Some(p) = &r.percent_w_w {
+        writeln!(out, "  {} % w/w", v(p))?;
+    }
+    writeln!(
+        out,
+        "  relative standard uncertainty {:.3} %",
+        100.0 * r.relative_standard_uncertainty
+    )?;
+    writeln!(out)?;
+    writeln!(
+        out,
+        "{:<24} {:>12} {:>12} {:>9} {:>7}  basis",
+        "uncertainty budget", "value", "std. unc.", "relative", "share"
+    )?;
+    for b in &r.budget {
+        writeln!(
+            out,
+            "{:<24} {:>12.6} {:>12.3e} {:>8.3}% {:>6.1}%  {}",
+            b.source,
+            b.value,
+            b.standard_uncertainty,
+            100.0 * b.relative,
+            100.0 * b.share,
+            b.basis
+        )?;
+    }
+    if let Some(f) = &r.fit {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "model fit on the same data (residual SD {} pH)",
+            f.residual_sd.map(|s| format!("{s:.4}")).unwrap_or_else(|| "-".into())
+        )?;
+        for e in &f.estimates {
+            let se = e
+                .standard_error
+                .map(|s| format!("{s:.4e}"))
+                .unwrap_or_else(|| "-".into());
+            writeln!(out, "  {:<44} {:>14.6} ± {se}", e.unknown, e.value)?;
+        }
+    }
+    for w in &r.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
+    writeln!(
+        out,
+        "caution: report a result only under the laboratory's validated procedure."
+    )
 }
 
 fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Result<u8, Failure> {

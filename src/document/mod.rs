@@ -39,6 +39,7 @@
 pub mod batch;
 mod input;
 pub mod limits;
+mod measured;
 mod output;
 
 use std::borrow::Cow;
@@ -50,6 +51,10 @@ pub use input::{
     ActivityDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc, FitDoc, IonDef,
     IonicStrengthDoc, MeasuredPoint, PhConventionDoc, ProtolyteDef, ReagentDef, ReagentPartDef, RecipeDoc, SolutionDoc,
     StockDoc, TitrationDoc, UnknownDoc,
+};
+pub use measured::{
+    AnalyteDoc, BudgetResult, BufferDoc, CalibrationDoc, CalibrationResult, ColumnDoc, DataDoc, DerivativeResult,
+    GranResult, MeasuredDoc, MeasuredResult, ModelDoc, SampleDoc, ValueResult,
 };
 pub use output::{
     DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, HalfEquivalenceResult,

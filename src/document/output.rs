@@ -634,6 +634,9 @@ pub struct FitResult {
     pub iterations: usize,
     /// True when the fit stopped on convergence rather than the iteration budget.
     pub converged: bool,
+    /// Warnings about the fit (estimates correlated beyond |r| = 0.99), as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 impl From<&FitReport> for FitResult {
@@ -672,6 +675,7 @@ impl From<&FitReport> for FitResult {
             degrees_of_freedom: f.degrees_of_freedom,
             iterations: f.iterations,
             converged: f.converged,
+            warnings: f.warnings(),
         }
     }
 }
