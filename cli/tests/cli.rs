@@ -695,3 +695,68 @@ fn titrate_and_design_name_the_bates_guggenheim_convention() {
         Some(protolyte::document::PhConventionDoc::BatesGuggenheim)
     );
 }
+
+#[test]
+fn calibrate_and_analyze_the_example_measured_titration() {
+    let o = protolyte(&["calibrate", "examples/electrode_calibration.json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stdout(&o).contains("% of the Nernst slope"), "{}", stdout(&o));
+    let svg = std::env::temp_dir().join(format!("protolyte-cli-measured-{}.svg", std::process::id()));
+    let o = protolyte(&[
+        "analyze",
+        "examples/vinegar_analysis.json",
+        "--plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(
+        out.contains("Gran after") && out.contains("% w/w") && out.contains("ISO 385"),
+        "{out}"
+    );
+    assert!(std::fs::read_to_string(&svg).unwrap().contains("residual"));
+    let o = protolyte(&["analyze", "--json", "examples/vinegar_analysis.json"]);
+    let r: protolyte::document::MeasuredResult = serde_json::from_str(&stdout(&o)).unwrap();
+    // The file was made from 5.00 % w/w acetic acid (examples/make_measured.rs): the reported
+    // content covers it within its expanded uncertainty.
+    let p = r.percent_w_w.unwrap();
+    assert!((p.value - 5.0).abs() <= p.expanded_uncertainty, "{p:?}");
+    assert!(r.gran_before.is_some() && r.gran_after.is_some());
+    assert!(r.fit.is_some());
+}
+
+#[test]
+fn a_bad_data_line_is_named_with_its_file_and_line() {
+    let csv = temp_file("bad.csv", "volume_ml,ph\n1,4.0\n2,4.2\n3,x\n");
+    let req = temp_file(
+        "bad_measured.json",
+        r#"{"format":"protolyte-measured/1","data":{"file":"bad.csv"},"aliquot_ml":25,
+            "titrant_molar":0.1,"titrant_standard_uncertainty_molar":0.0001,
+            "analyte":{"name":"acetic acid"}}"#,
+    );
+    let o = protolyte(&["analyze", req.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    let err = stderr(&o);
+    assert!(err.contains(csv.to_str().unwrap()) && err.contains("line 4"), "{err}");
+}
+
+#[test]
+fn fit_warns_when_two_estimates_correlate() {
+    // One curve cannot separate the analyte's and the titrant's concentrations: only their
+    // ratio (the endpoint) is fixed, so the two estimates correlate beyond 0.99.
+    let doc = r#"{"format":"protolyte-fit/1",
+      "curves":[{"analyte":{"volume_ml":25,"reagents":[{"reagent":"acetic acid","molar":0.1}]},
+                 "titrant":{"reagents":[{"reagent":"sodium hydroxide","molar":0.1}]},
+                 "measured":[{"volume_ml":5,"ph":4.16},{"volume_ml":10,"ph":4.57},{"volume_ml":15,"ph":4.93},
+                             {"volume_ml":20,"ph":5.36},{"volume_ml":24,"ph":6.13},{"volume_ml":26,"ph":11.29},
+                             {"volume_ml":30,"ph":11.96}]}],
+      "estimate":[{"analyte_total":"acetate"},{"titrant_total":"sodium"}]}"#;
+    let p = temp_file("correlated_fit.json", doc);
+    let o = protolyte(&["fit", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(
+        stdout(&o).contains("warning:") && stdout(&o).contains("correlate"),
+        "{}",
+        stdout(&o)
+    );
+}
