@@ -660,6 +660,7 @@ pub(crate) fn solve_in(
         ln_gamma: Vec::new(),
         dln_gamma_di: Vec::new(),
         held: Vec::new(),
+        phase_amounts: Vec::new(),
     };
     let fast = Fast::with(sys, std::mem::take(bufs), std::mem::replace(ev, empty));
     let (result, fast) = run(fast, start, tol, true);
