@@ -51,7 +51,7 @@ def result_meta() -> pd.DataFrame:
             "ionic_strength_mol_per_kg": pd.Series(dtype="float64"),
             "max_residual": pd.Series(dtype="float64"),
             "warnings": pd.Series(dtype="int64"),
-            "error": pd.Series(dtype="object"),
+            "error": pd.Series(dtype="string"),
         }
     )
 

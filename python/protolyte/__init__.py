@@ -434,7 +434,7 @@ class ManyResult:
         err: List[Optional[str]] = [None] * len(self.ph)
         for i, _, m in self.errors:
             err[i] = m
-        cols["error"] = err
+        cols["error"] = pd.array(err, dtype="string")
         if self.species_molal is not None:
             for k, name in enumerate(self.species_names):
                 cols[name] = self.species_molal[:, k]
@@ -456,7 +456,7 @@ def _many(batch: "_native.Batch", values: Any, columns: int, amounts: bool, thre
         np.frombuffer(phm, dtype="<f8"),
         np.frombuffer(ionic, dtype="<f8"),
         np.frombuffer(resid, dtype="<f8"),
-        np.frombuffer(warn, dtype="<f8").astype(np.int64),
+        np.nan_to_num(np.frombuffer(warn, dtype="<f8"), nan=0.0).astype(np.int64),
         np.frombuffer(sp, dtype="<f8").reshape(rows, len(names)) if species else None,
         names,
         [(int(i), k, m) for i, k, m in errors],

@@ -90,7 +90,7 @@ fn detached<T: Send>(py: Python<'_>, f: impl FnOnce() -> Result<T, Failure> + Se
 }
 
 fn floats(bytes: &[u8]) -> PyResult<Vec<f64>> {
-    if bytes.len() % 8 != 0 {
+    if !bytes.len().is_multiple_of(8) {
         return Err(InputError::new_err("array bytes are not a whole number of float64 values"));
     }
     Ok(bytes
