@@ -188,7 +188,14 @@ fn titrate(text: &str) -> Result<TitrationResult, Failure> {
         None => t.curve_adaptive(&doc.stepping().map_err(|e| e.in_file(name))?),
     }
     .map_err(solve_failure)?;
-    let eqs = t.equivalence_points().map_err(solve_failure)?;
+    let criterion = doc.endpoint_criterion().map_err(|e| e.in_file(name))?;
+    let eqs = t
+        .equivalence_points_judged(
+            protolyte::analysis::endpoints::DEFAULT_STEEP_FRACTION,
+            protolyte::analysis::indicators(),
+            &criterion,
+        )
+        .map_err(solve_failure)?;
     let halves = t.half_equivalence_points().map_err(solve_failure)?;
     let end = doc.end_volume_ml;
     let conditions = doc.conditions().map_err(|e| e.in_file(name))?;
@@ -200,6 +207,7 @@ fn titrate(text: &str) -> Result<TitrationResult, Failure> {
         points: curve.iter().map(Into::into).collect(),
         equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
         half_equivalence_points: halves.iter().filter(|h| h.volume_ml <= end).map(Into::into).collect(),
+        notes: Vec::new(),
     })
 }
 
@@ -393,7 +401,13 @@ impl Composition {
         Ok(out)
     }
 
-    fn solve_range(&self, input: &[f64], columns: usize, amounts: bool, with_species: bool) -> Vec<Result<Row, Failure>> {
+    fn solve_range(
+        &self,
+        input: &[f64],
+        columns: usize,
+        amounts: bool,
+        with_species: bool,
+    ) -> Vec<Result<Row, Failure>> {
         let mut sys = self.system.clone();
         let mut totals = vec![0.0; self.total_columns()];
         let mut warm: Option<Equilibrium> = None;

@@ -39,7 +39,11 @@ impl Constraint {
         match self {
             Constraint::Ph(ph) => format!("pH fixed at {ph}"),
             Constraint::PartialPressure { gas, pressure } => {
-                format!("partial pressure of {} fixed at {:e} atm", gas.name(), pressure.as_atm())
+                format!(
+                    "partial pressure of {} fixed at {:e} atm",
+                    gas.name(),
+                    pressure.as_atm()
+                )
             }
         }
     }

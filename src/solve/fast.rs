@@ -927,7 +927,10 @@ mod tests {
                     let di = (p0.ln_i - p1.ln_i).abs();
                     assert!(di <= 1e-10, "case {case}: ln I differs by {di:e}");
                     for (a, b) in e0.conc.iter().zip(&e1.conc) {
-                        assert!((a - b).abs() <= 1e-9 * a.abs().max(1e-300), "case {case}: {a:e} vs {b:e}");
+                        assert!(
+                            (a - b).abs() <= 1e-9 * a.abs().max(1e-300),
+                            "case {case}: {a:e} vs {b:e}"
+                        );
                     }
                     compared += 1;
                 }
