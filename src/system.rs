@@ -819,7 +819,10 @@ impl Builder {
         let mut open = vec![false; nc];
         let mut rows: Vec<PhaseRow> = Vec::new();
         let charge_of = |terms: &[(usize, f64)]| -> f64 {
-            terms.iter().map(|&(c, v)| v * f64::from(self.components[c].charge)).sum()
+            terms
+                .iter()
+                .map(|&(c, v)| v * f64::from(self.components[c].charge))
+                .sum()
         };
         let sorted = |mut terms: Vec<(usize, f64)>| {
             terms.sort_by_key(|&(c, _)| c);
@@ -848,7 +851,8 @@ impl Builder {
             if let Some(gap) = gap {
                 warnings.push(Warning::from_gap(solid.name(), None, gap, tc));
             }
-            let allowed = recipe.allows_all_solids() || recipe.allowed_solids().iter().any(|s| s.name() == solid.name());
+            let allowed =
+                recipe.allows_all_solids() || recipe.allowed_solids().iter().any(|s| s.name() == solid.name());
             let terms = sorted(terms);
             rows.push(PhaseRow {
                 name: solid.name().into(),

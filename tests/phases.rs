@@ -74,7 +74,11 @@ fn built_in_solids_and_gases_load() {
             "mine.toml",
         )
         .unwrap_err();
-    assert!(err.to_string().starts_with("mine.toml:3: solid `calcium`, field `name`"), "{err}");
+    assert!(
+        err.to_string()
+            .starts_with("mine.toml:3: solid `calcium`, field `name`"),
+        "{err}"
+    );
     assert!(err.to_string().contains("ion `calcium`"), "{err}");
     // A charged dissolution reaction is refused at its field.
     let err = cat
@@ -161,20 +165,29 @@ fn supersaturated_solutions_are_never_silent() {
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     let si = eq.saturation_index("calcite").unwrap();
     assert!(si > 1.0);
-    assert!(eq.warnings().iter().any(|w| matches!(w, Warning::Supersaturated { solid, .. } if solid == "calcite")));
+    assert!(
+        eq.warnings()
+            .iter()
+            .any(|w| matches!(w, Warning::Supersaturated { solid, .. } if solid == "calcite"))
+    );
     // Allowed to form, it precipitates to saturation and the warning goes.
     r.allow_all_solids();
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     assert!(eq.saturation_index("calcite").unwrap().abs() < 1e-8);
     assert!(eq.solid("calcite").unwrap().amount_molal > 4e-3);
-    assert!(!eq.warnings().iter().any(|w| matches!(w, Warning::Supersaturated { .. })));
+    assert!(
+        !eq.warnings()
+            .iter()
+            .any(|w| matches!(w, Warning::Supersaturated { .. }))
+    );
 }
 
 #[test]
 fn fixed_ph_and_conflicting_constraints() {
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
-    r.add(&cat.reagent("acetic acid").unwrap(), Amount::molal(0.01)).unwrap();
+    r.add(&cat.reagent("acetic acid").unwrap(), Amount::molal(0.01))
+        .unwrap();
     r.fix_ph(4.76).unwrap();
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     assert!((eq.ph() - 4.76).abs() < 1e-10);
@@ -194,7 +207,8 @@ fn fixed_ph_and_conflicting_constraints() {
 fn closed_system_reports_partial_pressure_alkalinity_and_dic() {
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
-    r.add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(0.002)).unwrap();
+    r.add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(0.002))
+        .unwrap();
     let eq = r
         .compile(&Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal))
         .unwrap()

@@ -10,6 +10,7 @@ pub mod design;
 pub mod endpoints;
 pub mod fit;
 pub mod indicators;
+pub mod measured;
 pub mod target;
 pub mod titration;
 pub mod uncertainty;
@@ -18,8 +19,8 @@ pub mod water;
 pub use capacity::{CapacityCurve, CapacityPeak, CapacityPoint, capacity_along};
 pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};
 pub use endpoints::{
-    BreakFlag, DerivativeEndpoint, DeviationCause, EquivalencePoint, GranFit, GranFunction, HalfEquivalencePoint,
-    Inflection, StepRef, derivative_endpoints, gran_fit,
+    BreakFlag, DerivativeEndpoint, DeviationCause, EndpointCriterion, EndpointVerdict, EquivalencePoint, GranFit,
+    GranFunction, HalfEquivalencePoint, Inflection, StepRef, derivative_endpoints, gran_fit,
 };
 pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
 pub use indicators::{Indicator, indicators, indicators_within};

@@ -1347,6 +1347,14 @@ pub struct TitrationDoc {
     /// Largest pH change per adaptive step (default 0.05).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_ph_step: Option<f64>,
+    /// The pH-reading precision (±) with which endpoints are judged (default 0.2; see
+    /// [`EndpointCriterion`](crate::analysis::EndpointCriterion)).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub endpoint_ph_window: Option<f64>,
+    /// The relative volume precision (±, fraction) an endpoint must reach to be usable
+    /// (default 0.005).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub endpoint_relative_precision: Option<f64>,
     /// Complexes to consider, by name.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub complexes: Vec<String>,
@@ -1426,6 +1434,22 @@ impl TitrationDoc {
                 .map_err(|e| field_error("max_ph_step", e.to_string()))?;
         }
         Ok(s)
+    }
+
+    /// The endpoint criterion asked for (defaults where a field is absent).
+    pub fn endpoint_criterion(&self) -> Result<crate::analysis::EndpointCriterion, DocumentError> {
+        let mut c = crate::analysis::EndpointCriterion::default();
+        if let Some(w) = self.endpoint_ph_window {
+            c = c
+                .ph_window(w)
+                .map_err(|e| field_error("endpoint_ph_window", e.to_string()))?;
+        }
+        if let Some(f) = self.endpoint_relative_precision {
+            c = c
+                .relative_volume(f)
+                .map_err(|e| field_error("endpoint_relative_precision", e.to_string()))?;
+        }
+        Ok(c)
     }
 
     /// The number of evenly spaced points, checked (2..=[`MAX_POINTS`]).

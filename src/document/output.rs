@@ -8,8 +8,8 @@ use serde::{Deserialize, Serialize};
 use super::input::{ActivityDoc, RecipeDoc};
 use super::{RESULT_FORMAT, finite};
 use crate::analysis::{
-    BreakFlag, BufferRecipe, DeviationCause, EquivalencePoint, FitReport, HalfEquivalencePoint, Measure, PhShift, Role,
-    Scope, TitrationPoint,
+    BreakFlag, BufferRecipe, DeviationCause, EndpointVerdict, EquivalencePoint, FitReport, HalfEquivalencePoint,
+    Measure, PhShift, Role, Scope, TitrationPoint,
 };
 use crate::{Conditions, Equilibrium, Warning};
 
@@ -343,7 +343,12 @@ pub struct EquivalenceResult {
     pub completed_step: Option<String>,
     /// pH at the start and the end of the steep part.
     pub steep_ph: [f64; 2],
-    /// Why the break may not be usable (empty when usable).
+    /// The verdict from the curve: whether the endpoint can be located. The text output and
+    /// the plot read the same field.
+    #[serde(default)]
+    pub verdict: VerdictResult,
+    /// Rules of thumb that explain a weak or absent break (empty when none applies); the
+    /// verdict does not depend on them.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub flags: Vec<String>,
     /// Indicators whose range lies inside the steep part.
@@ -355,6 +360,46 @@ pub struct EquivalenceResult {
     /// Its titration error, relative.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub nearest_indicator_error: Option<f64>,
+}
+
+/// The verdict on one endpoint, from the computed curve (see
+/// [`EndpointCriterion`](crate::analysis::EndpointCriterion)).
+///
+/// ```
+/// use protolyte::document::VerdictResult;
+/// let v = VerdictResult::default();
+/// assert!(!v.usable);
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct VerdictResult {
+    /// True when reading the pH to ±`ph_window` locates the endpoint within ±`tolerance_ml`.
+    pub usable: bool,
+    /// The pH-reading precision (±).
+    pub ph_window: f64,
+    /// The volume tolerance (±, mL).
+    pub tolerance_ml: f64,
+    /// How far from the equivalence volume the curve reaches pH_eq ± `ph_window` (the larger
+    /// side, mL); absent when the curve does not move that far before the neighbouring
+    /// equivalence point.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub locating_error_ml: Option<f64>,
+    /// The pH change across the equivalence volume ± `tolerance_ml`.
+    pub break_ph: f64,
+    /// |dpH/dV| at the equivalence volume, per mL.
+    pub slope_per_ml: f64,
+}
+
+impl From<&EndpointVerdict> for VerdictResult {
+    fn from(v: &EndpointVerdict) -> Self {
+        VerdictResult {
+            usable: v.usable,
+            ph_window: v.ph_window,
+            tolerance_ml: v.tolerance_ml,
+            locating_error_ml: v.locating_error_ml.and_then(finite),
+            break_ph: finite(v.break_ph).unwrap_or(0.0),
+            slope_per_ml: finite(v.slope_per_ml).unwrap_or(0.0),
+        }
+    }
 }
 
 fn flag_text(f: &BreakFlag) -> String {
@@ -372,6 +417,7 @@ impl From<&EquivalencePoint> for EquivalenceResult {
             ph: e.ph,
             completed_step: e.completed.as_ref().map(|s| format!("{} pKa{}", s.family, s.step + 1)),
             steep_ph: [e.steep_ph.0, e.steep_ph.1],
+            verdict: (&e.verdict).into(),
             flags: e.flags.iter().map(flag_text).collect(),
             indicators: e.indicators.iter().map(|i| i.name.to_string()).collect(),
             nearest_indicator: e.nearest_indicator.as_ref().map(|(i, _)| i.name.to_string()),
@@ -405,9 +451,16 @@ pub struct HalfEquivalenceResult {
     pub activity_part: f64,
     /// Share from overlapping steps.
     pub overlap_part: f64,
-    /// Share from free H⁺ and OH⁻.
+    /// Share from the acid form's dissociation (free H⁺).
+    #[serde(default)]
+    pub dissociation_part: f64,
+    /// Share from the base form's protonation by water (free OH⁻).
+    #[serde(default)]
+    pub protonation_part: f64,
+    /// Share from water autoprotolysis beyond those two.
     pub water_part: f64,
-    /// The largest share: "activity", "overlapping steps" or "water and dilution".
+    /// The largest share: "activity", "overlapping steps", "the acid's own dissociation",
+    /// "the base's own protonation" or "water autoprotolysis".
     pub main_cause: String,
 }
 
@@ -422,11 +475,15 @@ impl From<&HalfEquivalencePoint> for HalfEquivalenceResult {
             deviation: h.deviation,
             activity_part: h.activity_part,
             overlap_part: h.overlap_part,
+            dissociation_part: h.dissociation_part,
+            protonation_part: h.protonation_part,
             water_part: h.water_part,
             main_cause: match h.main_cause {
                 DeviationCause::Activity => "activity",
                 DeviationCause::OverlappingSteps => "overlapping steps",
-                DeviationCause::WaterAndDilution => "water and dilution",
+                DeviationCause::AcidDissociation => "the acid's own dissociation",
+                DeviationCause::BaseProtonation => "the base's own protonation",
+                DeviationCause::Water => "water autoprotolysis",
             }
             .into(),
         }
@@ -460,6 +517,10 @@ pub struct TitrationResult {
     pub equivalence_points: Vec<EquivalenceResult>,
     /// Half-equivalence points.
     pub half_equivalence_points: Vec<HalfEquivalenceResult>,
+    /// What the reader should know about the curve as asked for (for example that it stops
+    /// before its first equivalence point), as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notes: Vec<String>,
 }
 
 /// One line of a designed buffer recipe.
@@ -665,6 +726,9 @@ pub struct FitResult {
     pub iterations: usize,
     /// True when the fit stopped on convergence rather than the iteration budget.
     pub converged: bool,
+    /// Warnings about the fit (estimates correlated beyond |r| = 0.99), as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 impl From<&FitReport> for FitResult {
@@ -703,6 +767,7 @@ impl From<&FitReport> for FitResult {
             degrees_of_freedom: f.degrees_of_freedom,
             iterations: f.iterations,
             converged: f.converged,
+            warnings: f.warnings(),
         }
     }
 }

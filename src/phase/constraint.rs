@@ -54,7 +54,11 @@ impl Constraint {
         match self {
             Constraint::Ph(ph) => format!("pH fixed at {ph}"),
             Constraint::PartialPressure { gas, pressure } => {
-                format!("partial pressure of {} fixed at {:e} atm", gas.name(), pressure.as_atm())
+                format!(
+                    "partial pressure of {} fixed at {:e} atm",
+                    gas.name(),
+                    pressure.as_atm()
+                )
             }
             Constraint::Alkalinity(a) => format!("total alkalinity fixed at {a} mol/kg"),
             Constraint::Dic(d) => format!("DIC fixed at {d} mol/kg"),

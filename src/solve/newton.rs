@@ -840,17 +840,20 @@ fn assemblage(
         let Some((w, _)) = over else {
             return Ok(iters);
         };
-        let rows_of = |set: &[usize]| -> Vec<&[(usize, f64)]> { set.iter().map(|&x| &sys.phases[x].terms[..]).collect() };
+        let rows_of =
+            |set: &[usize]| -> Vec<&[(usize, f64)]> { set.iter().map(|&x| &sys.phases[x].terms[..]).collect() };
         let mut next = working.clone();
         next.push(w);
         if !independent(&rows_of(&next), nc) {
             // Phase rule: replace a solid the new one depends on.
-            let swap = (0..working.len()).filter(|&k| sys.phases[working[k]].is_inequality()).find(|&k| {
-                let mut t = working.clone();
-                t.remove(k);
-                t.push(w);
-                independent(&rows_of(&t), nc)
-            });
+            let swap = (0..working.len())
+                .filter(|&k| sys.phases[working[k]].is_inequality())
+                .find(|&k| {
+                    let mut t = working.clone();
+                    t.remove(k);
+                    t.push(w);
+                    independent(&rows_of(&t), nc)
+                });
             match swap {
                 Some(k) => {
                     next = working.clone();
@@ -927,7 +930,12 @@ pub(crate) fn solve_phases(
     }
     // Rows whose components are all active: the equalities always hold, the allowed solids
     // may enter.
-    let usable_row = |w: usize| sys.phases[w].terms.iter().all(|&(c, _)| c == 0 || sys.component_active(c));
+    let usable_row = |w: usize| {
+        sys.phases[w]
+            .terms
+            .iter()
+            .all(|&(c, _)| c == 0 || sys.component_active(c))
+    };
     let mut working: Vec<usize> = (0..sys.phases.len())
         .filter(|&w| sys.phases[w].is_equality() && usable_row(w))
         .collect();
