@@ -410,12 +410,21 @@ fn write_phase_tables(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
         writeln!(out, "DIC               {:.4} mmol/kg", 1e3 * r.dic_mol_per_kg)?;
     }
     if let Some(u) = r.proton_uptake_mol_per_kg {
-        let what = if u >= 0.0 {
-            "acid (H+) added"
-        } else {
-            "base (OH-) added"
-        };
-        writeln!(out, "fixed pH          {what}: {:.4e} mol/kg", u.abs())?;
+        let what = if u >= 0.0 { "acid (H+)" } else { "base (OH-)" };
+        writeln!(
+            out,
+            "acid or base      {:.4e} mol/kg of {what} added to hold the constraints",
+            u.abs()
+        )?;
+    }
+    if let Some(c) = &r.charge_balance_ion {
+        let what = if c.added_mol_per_kg >= 0.0 { "added" } else { "removed" };
+        writeln!(
+            out,
+            "charge balance    closed on {}: {:.4e} mol/kg {what}",
+            c.ion,
+            c.added_mol_per_kg.abs()
+        )?;
     }
     if !r.gases.is_empty() {
         writeln!(out)?;
