@@ -58,7 +58,7 @@ pub use measured::{
 };
 pub use output::{
     ChargeBalanceIonResult, DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult,
-    GasResult, HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
+    GasResult, HalfEquivalenceResult, IonBalanceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
     TitrationPointResult, TitrationResult, VerdictResult,
 };
 
