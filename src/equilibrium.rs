@@ -642,7 +642,10 @@ impl Equilibrium {
 
     /// The dissolved total of the component named `name`, mol/kg.
     pub fn dissolved_total_molal(&self, name: &str) -> Option<f64> {
-        self.dissolved_totals.iter().find(|(n, _)| &**n == name).map(|(_, v)| *v)
+        self.dissolved_totals
+            .iter()
+            .find(|(n, _)| &**n == name)
+            .map(|(_, v)| *v)
     }
 
     /// Dissolved inorganic carbon, mol/kg: the dissolved total of the carbonate family (0

@@ -711,7 +711,9 @@ impl System {
     /// True when the system holds a fixed pH, a fixed partial pressure or a solid allowed to
     /// form: it is then solved on the general path with those relations.
     pub(crate) fn has_phase_constraints(&self) -> bool {
-        self.phases.iter().any(|r| r.is_equality() || r.is_inequality() || r.is_amount())
+        self.phases
+            .iter()
+            .any(|r| r.is_equality() || r.is_inequality() || r.is_amount())
     }
 
     /// The names of the solids whose saturation index this system reports, in order.
@@ -819,7 +821,10 @@ impl Builder {
         let mut open = vec![false; nc];
         let mut rows: Vec<PhaseRow> = Vec::new();
         let charge_of = |terms: &[(usize, f64)]| -> f64 {
-            terms.iter().map(|&(c, v)| v * f64::from(self.components[c].charge)).sum()
+            terms
+                .iter()
+                .map(|&(c, v)| v * f64::from(self.components[c].charge))
+                .sum()
         };
         let sorted = |mut terms: Vec<(usize, f64)>| {
             terms.sort_by_key(|&(c, _)| c);
@@ -848,7 +853,8 @@ impl Builder {
             if let Some(gap) = gap {
                 warnings.push(Warning::from_gap(solid.name(), None, gap, tc));
             }
-            let allowed = recipe.allows_all_solids() || recipe.allowed_solids().iter().any(|s| s.name() == solid.name());
+            let allowed =
+                recipe.allows_all_solids() || recipe.allowed_solids().iter().any(|s| s.name() == solid.name());
             let terms = sorted(terms);
             rows.push(PhaseRow {
                 name: solid.name().into(),

@@ -246,7 +246,9 @@ impl std::fmt::Display for Warning {
                 "the {equation} holds only to {residual:.3e} (relative), above the promised {promise:e}"
             ),
             Warning::Supersaturated {
-                solid, saturation_index, ..
+                solid,
+                saturation_index,
+                ..
             } => write!(
                 f,
                 "supersaturated in {solid} (saturation index {saturation_index:+.3}): it may precipitate; allow it to form to find the equilibrium with it"

@@ -74,7 +74,11 @@ fn built_in_solids_and_gases_load() {
             "mine.toml",
         )
         .unwrap_err();
-    assert!(err.to_string().starts_with("mine.toml:3: solid `calcium`, field `name`"), "{err}");
+    assert!(
+        err.to_string()
+            .starts_with("mine.toml:3: solid `calcium`, field `name`"),
+        "{err}"
+    );
     assert!(err.to_string().contains("ion `calcium`"), "{err}");
     // A charged dissolution reaction is refused at its field.
     let err = cat
@@ -161,20 +165,29 @@ fn supersaturated_solutions_are_never_silent() {
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     let si = eq.saturation_index("calcite").unwrap();
     assert!(si > 1.0);
-    assert!(eq.warnings().iter().any(|w| matches!(w, Warning::Supersaturated { solid, .. } if solid == "calcite")));
+    assert!(
+        eq.warnings()
+            .iter()
+            .any(|w| matches!(w, Warning::Supersaturated { solid, .. } if solid == "calcite"))
+    );
     // Allowed to form, it precipitates to saturation and the warning goes.
     r.allow_all_solids();
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     assert!(eq.saturation_index("calcite").unwrap().abs() < 1e-8);
     assert!(eq.solid("calcite").unwrap().amount_molal > 4e-3);
-    assert!(!eq.warnings().iter().any(|w| matches!(w, Warning::Supersaturated { .. })));
+    assert!(
+        !eq.warnings()
+            .iter()
+            .any(|w| matches!(w, Warning::Supersaturated { .. }))
+    );
 }
 
 #[test]
 fn fixed_ph_and_conflicting_constraints() {
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
-    r.add(&cat.reagent("acetic acid").unwrap(), Amount::molal(0.01)).unwrap();
+    r.add(&cat.reagent("acetic acid").unwrap(), Amount::molal(0.01))
+        .unwrap();
     r.fix_ph(4.76).unwrap();
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     assert!((eq.ph() - 4.76).abs() < 1e-10);
@@ -194,7 +207,8 @@ fn fixed_ph_and_conflicting_constraints() {
 fn closed_system_reports_partial_pressure_alkalinity_and_dic() {
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
-    r.add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(0.002)).unwrap();
+    r.add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(0.002))
+        .unwrap();
     let eq = r
         .compile(&Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal))
         .unwrap()
@@ -251,7 +265,10 @@ fn water_analysis_from_alkalinity_and_dic() {
     r.fix_dic(1e-3).unwrap().fix_alkalinity(5e-3).unwrap();
     r.close_charge_balance_on(&cat.ion("chloride").unwrap()).unwrap();
     let err = r.compile(&ideal()).unwrap().solve().unwrap_err();
-    assert!(matches!(err, Error::InfeasiblePhases { .. }) && err.to_string().contains("chloride"), "{err}");
+    assert!(
+        matches!(err, Error::InfeasiblePhases { .. }) && err.to_string().contains("chloride"),
+        "{err}"
+    );
 }
 
 #[test]
@@ -259,7 +276,10 @@ fn fixed_ph_with_the_balance_closed_on_an_ion() {
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
     r.add(&cat.reagent("ammonia").unwrap(), Amount::molal(0.01)).unwrap();
-    r.fix_ph(9.0).unwrap().close_charge_balance_on(&cat.ion("chloride").unwrap()).unwrap();
+    r.fix_ph(9.0)
+        .unwrap()
+        .close_charge_balance_on(&cat.ion("chloride").unwrap())
+        .unwrap();
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     assert!((eq.ph() - 9.0).abs() < 1e-10);
     assert!(eq.residuals().max_relative() < 1e-10, "{:?}", eq.residuals());
@@ -276,11 +296,16 @@ fn fixed_ph_with_the_balance_closed_on_an_ion() {
     let mut r = Recipe::new();
     r.fix_ph(7.0).unwrap();
     let err = r.fix_alkalinity(1e-3).unwrap_err();
-    assert!(err.to_string().contains("pH fixed at 7") && err.to_string().contains("alkalinity"), "{err}");
+    assert!(
+        err.to_string().contains("pH fixed at 7") && err.to_string().contains("alkalinity"),
+        "{err}"
+    );
     // DIC beside a fixed pCO2 would set the carbonate total twice.
     let mut r = Recipe::new();
     r.fix_dic(1e-3).unwrap();
-    let err = r.fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(1e-3)).unwrap_err();
+    let err = r
+        .fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(1e-3))
+        .unwrap_err();
     assert!(matches!(err, Error::ConflictingConstraints { .. }), "{err}");
 }
 

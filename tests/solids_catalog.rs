@@ -20,7 +20,8 @@ fn solids() -> (toml::Table, Vec<toml::Table>) {
 }
 
 fn float(t: &toml::Table, key: &str) -> Option<f64> {
-    t.get(key).and_then(|v| v.as_float().or(v.as_integer().map(|i| i as f64)))
+    t.get(key)
+        .and_then(|v| v.as_float().or(v.as_integer().map(|i| i as f64)))
 }
 
 /// Charge of the dissolved parts of a solid: each part's charge times its count.
@@ -35,9 +36,7 @@ fn charge_of_parts(cat: &Catalog, name: &str, parts: &[toml::Value]) -> i64 {
         let count = p.get("count").and_then(|c| c.as_integer()).unwrap_or(1);
         assert!((1..=12).contains(&count), "{name}: part count {count}");
         if let Some(ion) = p.get("ion").and_then(|v| v.as_str()) {
-            let ion = cat
-                .ion(ion)
-                .unwrap_or_else(|e| panic!("{name}: ion part {ion}: {e}"));
+            let ion = cat.ion(ion).unwrap_or_else(|e| panic!("{name}: ion part {ion}: {e}"));
             z += count * i64::from(ion.charge());
         } else if let Some(base) = p.get("base").and_then(|v| v.as_str()) {
             let fam = cat
@@ -58,10 +57,7 @@ fn the_solids_file_has_the_agreed_shape_and_size() {
     assert_eq!(doc["format"].as_str(), Some("protolyte-catalog/1"));
     // Issue 9 asks for at least 25 solids, naming these.
     assert!(list.len() >= 25, "{} solids", list.len());
-    let names: BTreeSet<String> = list
-        .iter()
-        .map(|s| s["name"].as_str().unwrap().to_string())
-        .collect();
+    let names: BTreeSet<String> = list.iter().map(|s| s["name"].as_str().unwrap().to_string()).collect();
     assert_eq!(names.len(), list.len(), "duplicate solid names");
     for required in [
         "calcite",
@@ -158,8 +154,7 @@ fn every_solid_names_its_source_and_has_a_molar_mass() {
         }
         assert!(s["from_memory"].as_bool().is_some(), "{name}: from_memory");
         let formula = s["formula"].as_str().unwrap();
-        let m = molar_mass_from_formula(formula, 0)
-            .unwrap_or_else(|e| panic!("{name}: formula {formula}: {e}"));
+        let m = molar_mass_from_formula(formula, 0).unwrap_or_else(|e| panic!("{name}: formula {formula}: {e}"));
         assert!(m > 1.0 && m < 2000.0, "{name}: molar mass {m}");
         let k = float(s, "log_k").unwrap_or_else(|| panic!("{name}: log_k"));
         assert!(k.is_finite() && k.abs() < 100.0, "{name}: log_k {k}");
@@ -223,6 +218,9 @@ fn the_enthalpy_agrees_with_the_equation_where_both_are_given() {
         let t = 298.15_f64;
         let dlogk_dt = c[1] - c[2] / (t * t) + c[3] / (t * std::f64::consts::LN_10) - 2.0 * c[4] / (t * t * t);
         let dh_eq = std::f64::consts::LN_10 * 8.314_462_618e-3 * t * t * dlogk_dt;
-        assert!((dh_eq - dh).abs() < 4.0, "{name}: ΔH° {dh} vs equation {dh_eq:.2} kJ/mol");
+        assert!(
+            (dh_eq - dh).abs() < 4.0,
+            "{name}: ΔH° {dh} vs equation {dh_eq:.2} kJ/mol"
+        );
     }
 }

@@ -5,7 +5,9 @@
 use toml::Spanned;
 
 use super::format::{GasEntry, Located, SolidEntry};
-use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, levenshtein, normalize, normalized, read_equation, read_parts};
+use super::{
+    Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, levenshtein, normalize, normalized, read_equation, read_parts,
+};
 use crate::complex::ComplexPart;
 use crate::error::{Error, Result};
 use crate::phase::{Gas, Solid};
@@ -157,13 +159,21 @@ impl Catalog {
         self.check_new_phase("solid", &names)?;
         let idx = self.solids.len();
         self.add_phase_names(false, idx, solid.name(), synonyms);
-        let parts: Vec<String> = solid.parts().iter().map(|(p, n)| format!("{n} × {}", part_name(p))).collect();
+        let parts: Vec<String> = solid
+            .parts()
+            .iter()
+            .map(|(p, n)| format!("{n} × {}", part_name(p)))
+            .collect();
         self.solid_entries.push(PhaseEntry {
             kind: "solid",
             name: solid.name().to_string(),
             synonyms: synonyms.iter().map(|s| s.to_string()).collect(),
             formula: solid.formula().unwrap_or("").to_string(),
-            summary: format!("log K {} (25 °C) of dissolution to {}", solid.log10_k(), parts.join(" + ")),
+            summary: format!(
+                "log K {} (25 °C) of dissolution to {}",
+                solid.log10_k(),
+                parts.join(" + ")
+            ),
             source: meta.source,
             from_memory: meta.from_memory,
             origin: meta.origin,
@@ -197,7 +207,12 @@ impl Catalog {
     }
 
     /// Rebuilds the solids and gases built on a replaced family or ion.
-    pub(super) fn rebind_phases(&mut self, old_name: &str, family: Option<&crate::Protolyte>, ion: Option<&crate::Ion>) -> Result<()> {
+    pub(super) fn rebind_phases(
+        &mut self,
+        old_name: &str,
+        family: Option<&crate::Protolyte>,
+        ion: Option<&crate::Ion>,
+    ) -> Result<()> {
         for s in &mut self.solids {
             if !s.parts().iter().any(|(p, _)| part_is(p, old_name)) {
                 continue;
@@ -235,7 +250,9 @@ impl Catalog {
             loc,
             &entry,
             |part, at| match part {
-                PartRef::Base(f) => Ok(ComplexPart::Base(self.protolyte(f).map_err(|err| at.error("base", err))?)),
+                PartRef::Base(f) => Ok(ComplexPart::Base(
+                    self.protolyte(f).map_err(|err| at.error("base", err))?,
+                )),
                 PartRef::Ion(i) => Ok(ComplexPart::Ion(self.ion(i).map_err(|err| at.error("ion", err))?)),
                 PartRef::Proton => Ok(ComplexPart::Proton),
                 PartRef::Family(..) => Err(at.error(
@@ -257,7 +274,9 @@ impl Catalog {
             s = s.with_formula(f);
         }
         if let Some(h) = e.dh_kj_per_mol {
-            s = s.with_enthalpy_kj_per_mol(h).map_err(|err| entry.error("dh_kj_per_mol", err))?;
+            s = s
+                .with_enthalpy_kj_per_mol(h)
+                .map_err(|err| entry.error("dh_kj_per_mol", err))?;
         }
         if let Some(cp) = e.dcp_j_per_mol_k {
             s = s
@@ -270,7 +289,9 @@ impl Catalog {
                 return Err(entry.error("log_k_equation.step", "a solid has one reaction: no step"));
             }
             let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
-            s = s.with_log_k_equation(eq).map_err(|err| entry.error("log_k_equation", err))?;
+            s = s
+                .with_log_k_equation(eq)
+                .map_err(|err| entry.error("log_k_equation", err))?;
             if q.source.is_some() || q.cite.is_some() {
                 let text = self.citation(&entry, &q.source, &q.cite)?;
                 source.push_str(&format!("; log K(T) equation: {text}"));
@@ -285,7 +306,8 @@ impl Catalog {
             molar_mass: None,
         };
         let refs: Vec<&str> = e.synonyms.iter().map(String::as_str).collect();
-        self.add_solid_with(s, &refs, meta).map_err(|err| phase_conflict(&entry, err))
+        self.add_solid_with(s, &refs, meta)
+            .map_err(|err| phase_conflict(&entry, err))
     }
 
     pub(super) fn apply_gas(&mut self, spanned: &Spanned<GasEntry>, loc: &Located) -> Result<()> {
@@ -307,7 +329,9 @@ impl Catalog {
             g = g.with_formula(fm);
         }
         if let Some(h) = e.dh_kj_per_mol {
-            g = g.with_enthalpy_kj_per_mol(h).map_err(|err| entry.error("dh_kj_per_mol", err))?;
+            g = g
+                .with_enthalpy_kj_per_mol(h)
+                .map_err(|err| entry.error("dh_kj_per_mol", err))?;
         }
         if let Some(cp) = e.dcp_j_per_mol_k {
             g = g
@@ -320,7 +344,9 @@ impl Catalog {
                 return Err(entry.error("log_k_equation.step", "a gas has one reaction: no step"));
             }
             let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
-            g = g.with_log_k_equation(eq).map_err(|err| entry.error("log_k_equation", err))?;
+            g = g
+                .with_log_k_equation(eq)
+                .map_err(|err| entry.error("log_k_equation", err))?;
             if q.source.is_some() || q.cite.is_some() {
                 let text = self.citation(&entry, &q.source, &q.cite)?;
                 source.push_str(&format!("; log K_H(T) equation: {text}"));
@@ -335,7 +361,8 @@ impl Catalog {
             molar_mass: None,
         };
         let refs: Vec<&str> = e.synonyms.iter().map(String::as_str).collect();
-        self.add_gas_with(g, &refs, meta).map_err(|err| phase_conflict(&entry, err))
+        self.add_gas_with(g, &refs, meta)
+            .map_err(|err| phase_conflict(&entry, err))
     }
 }
 

@@ -30,6 +30,7 @@ use crate::ion::Ion;
 /// ```
 #[derive(Debug, Clone, PartialEq)]
 #[non_exhaustive]
+#[allow(clippy::large_enum_variant)] // a handful per recipe; the gas is kept whole for messages
 pub enum Constraint {
     /// pH fixed at this value.
     Ph(f64),
@@ -54,7 +55,11 @@ impl Constraint {
         match self {
             Constraint::Ph(ph) => format!("pH fixed at {ph}"),
             Constraint::PartialPressure { gas, pressure } => {
-                format!("partial pressure of {} fixed at {:e} atm", gas.name(), pressure.as_atm())
+                format!(
+                    "partial pressure of {} fixed at {:e} atm",
+                    gas.name(),
+                    pressure.as_atm()
+                )
             }
             Constraint::Alkalinity(a) => format!("total alkalinity fixed at {a} mol/kg"),
             Constraint::Dic(d) => format!("DIC fixed at {d} mol/kg"),

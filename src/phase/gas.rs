@@ -64,7 +64,14 @@ impl Pressure {
     /// Refuses a pressure that is not finite and positive, or above 1000 bar (the ideal-gas
     /// reading of Henry's law is far outside its use there), naming `what`.
     pub(crate) fn checked(self, what: &str) -> Result<f64> {
-        check_parameter(what, "partial pressure (bar)", self.bar, f64::MIN_POSITIVE, 1000.0, "must be positive and at most 1000 bar")
+        check_parameter(
+            what,
+            "partial pressure (bar)",
+            self.bar,
+            f64::MIN_POSITIVE,
+            1000.0,
+            "must be positive and at most 1000 bar",
+        )
     }
 }
 
@@ -106,7 +113,11 @@ impl Gas {
     pub fn new(name: &str, family: &Protolyte, protons: usize, log10_kh: f64) -> Result<Self> {
         let name = name.trim();
         let bad = |reason: String| Error::InconsistentDefinition {
-            name: if name.is_empty() { "(unnamed gas)".into() } else { name.into() },
+            name: if name.is_empty() {
+                "(unnamed gas)".into()
+            } else {
+                name.into()
+            },
             reason,
         };
         if name.is_empty() {
@@ -141,7 +152,14 @@ impl Gas {
 
     /// Sets ΔH° of dissolution (gas → aqueous form), kJ/mol.
     pub fn with_enthalpy_kj_per_mol(mut self, dh: f64) -> Result<Self> {
-        check_parameter(&self.name, "ΔH° (kJ/mol)", dh, -1000.0, 1000.0, "must be finite and within ±1000")?;
+        check_parameter(
+            &self.name,
+            "ΔH° (kJ/mol)",
+            dh,
+            -1000.0,
+            1000.0,
+            "must be finite and within ±1000",
+        )?;
         self.dh_kj_per_mol = Some(dh);
         Ok(self)
     }
@@ -167,7 +185,10 @@ impl Gas {
         if (at25 - self.log10_kh).abs() > 0.03 {
             return Err(Error::InconsistentDefinition {
                 name: self.name.clone(),
-                reason: format!("the log K equation gives {at25:.3} at 25 °C, the gas has {}", self.log10_kh),
+                reason: format!(
+                    "the log K equation gives {at25:.3} at 25 °C, the gas has {}",
+                    self.log10_kh
+                ),
             });
         }
         self.equation = Some(equation);

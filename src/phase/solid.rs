@@ -48,7 +48,13 @@ pub(crate) fn check_reaction_parts(name: &str, parts: &[(ComplexPart, i32)]) -> 
             )?;
             protons += n;
         } else {
-            check_int(name, &format!("count of part {}", k + 1), n, 1, i64::from(MAX_PART_COUNT))?;
+            check_int(
+                name,
+                &format!("count of part {}", k + 1),
+                n,
+                1,
+                i64::from(MAX_PART_COUNT),
+            )?;
             heavy += n;
         }
         charge += i64::from(part_charge(p)) * n;
@@ -61,7 +67,9 @@ pub(crate) fn check_reaction_parts(name: &str, parts: &[(ComplexPart, i32)]) -> 
         i64::from(MAX_COMPLEX_PROTONS),
     )?;
     if heavy == 0 {
-        return Err(bad("the dissolution reaction needs at least one ion or base part".into()));
+        return Err(bad(
+            "the dissolution reaction needs at least one ion or base part".into()
+        ));
     }
     if charge != 0 {
         return Err(Error::NotElectroneutral {
@@ -139,7 +147,14 @@ impl Solid {
 
     /// Sets the standard enthalpy ΔH° of the dissolution reaction (kJ/mol).
     pub fn with_enthalpy_kj_per_mol(mut self, dh: f64) -> Result<Self> {
-        check_parameter(&self.name, "ΔH° (kJ/mol)", dh, -1000.0, 1000.0, "must be finite and within ±1000")?;
+        check_parameter(
+            &self.name,
+            "ΔH° (kJ/mol)",
+            dh,
+            -1000.0,
+            1000.0,
+            "must be finite and within ±1000",
+        )?;
         self.dh_kj_per_mol = Some(dh);
         Ok(self)
     }

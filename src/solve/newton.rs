@@ -608,6 +608,7 @@ fn independent(rows: &[&[(usize, f64)]], nc: usize) -> bool {
 /// Jacobi-scaled, with backtracking on G once the iterate is feasible (the rows are linear,
 /// so a full step makes it feasible and later steps keep it so). λ_r is the amount in phase r
 /// (mol/kg): at the solution Σ_s ν_s·m_s + Σ_r λ_r·ν_r = T. Returns the iterations used.
+#[allow(clippy::too_many_arguments)]
 fn constrained_convex(
     sys: &System,
     ev: &mut Evaluation,
@@ -802,6 +803,7 @@ fn names(sys: &System, rows: &[usize]) -> String {
 /// negative (a primal–dual active-set iteration on the convex problem; the phase rule is kept
 /// by refusing a solid whose relation depends on those already held, replacing the one it
 /// depends on). Returns the iterations used.
+#[allow(clippy::too_many_arguments)]
 fn assemblage(
     sys: &System,
     ev: &mut Evaluation,
@@ -840,17 +842,20 @@ fn assemblage(
         let Some((w, _)) = over else {
             return Ok(iters);
         };
-        let rows_of = |set: &[usize]| -> Vec<&[(usize, f64)]> { set.iter().map(|&x| &sys.phases[x].terms[..]).collect() };
+        let rows_of =
+            |set: &[usize]| -> Vec<&[(usize, f64)]> { set.iter().map(|&x| &sys.phases[x].terms[..]).collect() };
         let mut next = working.clone();
         next.push(w);
         if !independent(&rows_of(&next), nc) {
             // Phase rule: replace a solid the new one depends on.
-            let swap = (0..working.len()).filter(|&k| sys.phases[working[k]].is_inequality()).find(|&k| {
-                let mut t = working.clone();
-                t.remove(k);
-                t.push(w);
-                independent(&rows_of(&t), nc)
-            });
+            let swap = (0..working.len())
+                .filter(|&k| sys.phases[working[k]].is_inequality())
+                .find(|&k| {
+                    let mut t = working.clone();
+                    t.remove(k);
+                    t.push(w);
+                    independent(&rows_of(&t), nc)
+                });
             match swap {
                 Some(k) => {
                     next = working.clone();
@@ -927,7 +932,12 @@ pub(crate) fn solve_phases(
     }
     // Rows whose components are all active: the equalities always hold, the allowed solids
     // may enter.
-    let usable_row = |w: usize| sys.phases[w].terms.iter().all(|&(c, _)| c == 0 || sys.component_active(c));
+    let usable_row = |w: usize| {
+        sys.phases[w]
+            .terms
+            .iter()
+            .all(|&(c, _)| c == 0 || sys.component_active(c))
+    };
     let mut working: Vec<usize> = (0..sys.phases.len())
         .filter(|&w| sys.phases[w].is_equality() && usable_row(w))
         .collect();
@@ -954,8 +964,14 @@ pub(crate) fn solve_phases(
         totals[k] = sys.components[c].total_molal;
         totals[0] -= f64::from(sys.components[c].charge) * totals[k];
     }
-    let alkalinity_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Alkalinity { .. }));
-    let closure_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Closure { .. }));
+    let alkalinity_row = sys
+        .phases
+        .iter()
+        .position(|r| matches!(r.kind, RowKind::Alkalinity { .. }));
+    let closure_row = sys
+        .phases
+        .iter()
+        .position(|r| matches!(r.kind, RowKind::Closure));
     let ph_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Ph { .. }));
     let pos_of = |c: usize| act.iter().position(|&a| a == c);
     let h_charge = totals[0];
@@ -977,7 +993,11 @@ pub(crate) fn solve_phases(
         match closure_row {
             Some(cw) => {
                 // δ of the ion with z·δ = the unbalanced H⁺: amount of the closure row −δ.
-                let z = sys.phases[cw].terms.iter().find(|&&(c, _)| c != 0).map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
+                let z = sys.phases[cw]
+                    .terms
+                    .iter()
+                    .find(|&&(c, _)| c != 0)
+                    .map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
                 let delta = unbalanced / z;
                 lambda[cw] = -delta;
                 apply(&mut totals, cw, -delta);
@@ -993,7 +1013,11 @@ pub(crate) fn solve_phases(
     }
     // With a fixed pH and an ion closing the balance, the ion's amount is iterated until the
     // pH row takes no H⁺ (a few passes: the H⁺ in solution hardly depends on the spectator).
-    let passes = if closure_row.is_some() && ph_row.is_some() { 60 } else { 1 };
+    let passes = if closure_row.is_some() && ph_row.is_some() {
+        60
+    } else {
+        1
+    };
     if let (Some(cw), Some(_)) = (closure_row, ph_row) {
         // A closing ion put in at zero would leave its activity undetermined on the first
         // pass: start it at 1 µmol/kg; the passes correct it.
@@ -1008,9 +1032,26 @@ pub(crate) fn solve_phases(
         }
     }
     for pass in 0..passes {
-        iters += settle(sys, &mut ev, &lay, &mut p, &mut working, &allowed, &mut lambda, &totals, tol, max_iter)?;
-        let (Some(cw), Some(pw)) = (closure_row, ph_row) else { break };
-        let z = sys.phases[cw].terms.iter().find(|&&(c, _)| c != 0).map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
+        iters += settle(
+            sys,
+            &mut ev,
+            &lay,
+            &mut p,
+            &mut working,
+            &allowed,
+            &mut lambda,
+            &totals,
+            tol,
+            max_iter,
+        )?;
+        let (Some(cw), Some(pw)) = (closure_row, ph_row) else {
+            break;
+        };
+        let z = sys.phases[cw]
+            .terms
+            .iter()
+            .find(|&&(c, _)| c != 0)
+            .map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
         let uptake = lambda[pw];
         let scale = totals.iter().fold(1e-30_f64, |a, t| a.max(t.abs()));
         if uptake.abs() <= 1e-14 * scale {
@@ -1072,6 +1113,27 @@ fn settle(
     let mut i = p.ln_i.exp().clamp(I_MIN, I_MAX);
     let mut prev: Option<(f64, f64)> = None;
     let mut iters = 0;
+    if !ideal && sys.interactions.known.is_empty() {
+        // The assemblage at the start's γ, then the joint Newton with I; a change of the
+        // assemblage on the way sends it round again, a failure to the fixed point below.
+        ev.set_gamma(sys, i);
+        p.ln_i = i.ln();
+        for _ in 0..4 {
+            // The joint Newton polishes: the assemblage needs only its phases and amounts' signs.
+            iters += assemblage(sys, ev, lay, p, working, allowed, lambda, totals, tol.max(1e-7))?;
+            match joint_phases(sys, ev, lay, p, working, lambda, totals, tol) {
+                Some(n) => {
+                    iters += n;
+                    if assemblage_holds(sys, p, working, allowed, lambda, totals) {
+                        return Ok(iters);
+                    }
+                    ev.set_gamma(sys, p.ln_i.exp());
+                }
+                None => break,
+            }
+        }
+        i = p.ln_i.exp().clamp(I_MIN, I_MAX);
+    }
     for _ in 0..80 {
         if iters > max_iter.max(200) * 4 {
             break;
@@ -1118,4 +1180,202 @@ fn settle(
         worst_equation: "ionic-strength equation with phases".into(),
         last_ph: -p.y[0] / LN10,
     })
+}
+
+/// The joint Newton of the general path with the phase rows of `working` held as equalities:
+/// unknowns (ln a of the active components, the amounts λ of the rows, ln I), equations
+/// (the mass balances over aqueous + phases, H⁺'s included, the rows, the ionic strength),
+/// with the analytic Jacobian. From the assemblage at the start's activity coefficients it
+/// converges quadratically where the fixed point on I converges linearly. Returns `None`
+/// when it does not converge (the caller falls back to the fixed point), else the
+/// iterations used. Models whose γ depends on the composition use the fixed point.
+#[allow(clippy::too_many_arguments)]
+fn joint_phases(
+    sys: &System,
+    ev: &mut Evaluation,
+    lay: &Layout,
+    p: &mut Point,
+    working: &[usize],
+    lambda: &mut [f64],
+    totals: &[f64],
+    tol: f64,
+) -> Option<usize> {
+    let act = &lay.act;
+    let n = act.len();
+    let r = working.len();
+    let m = n + r + 1;
+    let mut pos = vec![usize::MAX; sys.components.len()];
+    for (k, &c) in act.iter().enumerate() {
+        pos[c] = k;
+    }
+    let mut nmat = DMatrix::<f64>::zeros(r, n);
+    let mut rhs_c = vec![0.0; r];
+    for (j, &w) in working.iter().enumerate() {
+        for &(c, v) in &sys.phases[w].terms {
+            nmat[(j, pos[c])] += v;
+        }
+        rhs_c[j] = sys.phases[w].rhs();
+    }
+    let mut lam: Vec<f64> = working.iter().map(|&w| lambda[w]).collect();
+    let ln_i_max = I_MAX.ln();
+    // Residual and scales at the current evaluation.
+    let residual = |ev: &Evaluation, y: &[f64], lam: &[f64], ln_i: f64| -> (Vec<f64>, Vec<f64>) {
+        let mut f = vec![0.0; m];
+        let mut sc = vec![0.0; m];
+        for k in 0..n {
+            f[k] = -totals[k];
+            sc[k] = totals[k].abs();
+        }
+        let mut ionic = 0.0;
+        for (idx, &s) in lay.species.iter().enumerate() {
+            let c = ev.conc[s];
+            for &(k, v) in &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]] {
+                f[k] += v * c;
+                sc[k] += v.abs() * c;
+            }
+            ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * c;
+        }
+        for j in 0..r {
+            let mut g = -rhs_c[j];
+            for k in 0..n {
+                let a = nmat[(j, k)];
+                if a != 0.0 {
+                    f[k] += lam[j] * a;
+                    sc[k] += (lam[j] * a).abs();
+                    g += a * y[act[k]];
+                }
+            }
+            f[n + j] = g;
+            sc[n + j] = 1.0;
+        }
+        let i = ln_i.exp();
+        f[m - 1] = ionic - i;
+        sc[m - 1] = i;
+        (f, sc)
+    };
+    let merit = |f: &[f64], sc: &[f64]| -> f64 {
+        f.iter()
+            .zip(sc)
+            .map(|(a, s)| if *s > 0.0 { (a / s) * (a / s) } else { 0.0 })
+            .sum::<f64>()
+    };
+    let worst = |f: &[f64], sc: &[f64]| -> f64 {
+        f.iter()
+            .zip(sc)
+            .map(|(a, s)| if *s > 0.0 { (a / s).abs() } else { 0.0 })
+            .fold(0.0, f64::max)
+    };
+    evaluate(sys, ev, p);
+    let (mut f, mut sc) = residual(ev, &p.y, &lam, p.ln_i);
+    let mut phi = merit(&f, &sc);
+    let mut last_step = f64::INFINITY;
+    let mut trial = p.clone();
+    for it in 0..40 {
+        if worst(&f, &sc) <= tol && last_step <= 1e-9 {
+            for (j, &w) in working.iter().enumerate() {
+                lambda[w] = lam[j];
+            }
+            return Some(it);
+        }
+        let i = p.ln_i.exp();
+        let mut jac = DMatrix::<f64>::zeros(m, m);
+        for (idx, &s) in lay.species.iter().enumerate() {
+            let c = ev.conc[s];
+            if c == 0.0 {
+                continue;
+            }
+            let gi = -ev.dln_gamma_di[s] * i;
+            let half_z2 = 0.5 * sys.charge_f[s] * sys.charge_f[s];
+            let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
+            for &(a, va) in cols {
+                for &(b, vb) in cols {
+                    jac[(a, b)] += va * vb * c;
+                }
+                jac[(a, m - 1)] += va * c * gi;
+                jac[(m - 1, a)] += half_z2 * c * va;
+            }
+            jac[(m - 1, m - 1)] += half_z2 * c * gi;
+        }
+        jac[(m - 1, m - 1)] -= i;
+        for j in 0..r {
+            for k in 0..n {
+                jac[(k, n + j)] = nmat[(j, k)];
+                jac[(n + j, k)] = nmat[(j, k)];
+            }
+        }
+        // Row scaling by the residual scales keeps trace components' digits.
+        let mut rhs = DVector::from_iterator(m, f.iter().map(|v| -v));
+        for row in 0..m {
+            let s = if sc[row] > 0.0 { 1.0 / sc[row] } else { 1.0 };
+            for col in 0..m {
+                jac[(row, col)] *= s;
+            }
+            rhs[row] *= s;
+        }
+        let mut dx = jac.lu().solve(&rhs)?;
+        if dx.iter().any(|v| !v.is_finite()) {
+            return None;
+        }
+        let big = (0..n).map(|k| dx[k].abs()).fold(dx[m - 1].abs(), f64::max);
+        if big > MAX_STEP {
+            dx *= MAX_STEP / big;
+        }
+        let mut alpha = 1.0;
+        let mut accepted = false;
+        let mut tlam = lam.clone();
+        for _ in 0..30 {
+            for (k, &c) in act.iter().enumerate() {
+                trial.y[c] = p.y[c] + alpha * dx[k];
+            }
+            for j in 0..r {
+                tlam[j] = lam[j] + alpha * dx[n + j];
+            }
+            trial.ln_i = (p.ln_i + alpha * dx[m - 1]).clamp(I_MIN.ln(), ln_i_max);
+            evaluate(sys, ev, &trial);
+            let (tf, ts) = residual(ev, &trial.y, &tlam, trial.ln_i);
+            let tphi = merit(&tf, &ts);
+            if tphi.is_finite() && tphi <= (1.0 - 1e-4 * alpha) * phi {
+                last_step = alpha * dx.amax();
+                p.clone_from(&trial);
+                lam.clone_from(&tlam);
+                f = tf;
+                sc = ts;
+                phi = tphi;
+                accepted = true;
+                break;
+            }
+            alpha *= 0.5;
+        }
+        if !accepted {
+            evaluate(sys, ev, p);
+            if worst(&f, &sc) <= tol.max(1e-11) {
+                for (j, &w) in working.iter().enumerate() {
+                    lambda[w] = lam[j];
+                }
+                return Some(it);
+            }
+            return None;
+        }
+    }
+    None
+}
+
+/// True when the working set is the assemblage: every solid held has a non-negative amount
+/// and no allowed solid outside it is supersaturated.
+fn assemblage_holds(
+    sys: &System,
+    p: &Point,
+    working: &[usize],
+    allowed: &[usize],
+    lambda: &[f64],
+    totals: &[f64],
+) -> bool {
+    let amount_scale = totals.iter().skip(1).fold(1e-30_f64, |a, t| a.max(t.abs()));
+    working
+        .iter()
+        .all(|&w| !sys.phases[w].is_inequality() || lambda[w] >= -1e-13 * amount_scale)
+        && allowed
+            .iter()
+            .filter(|w| !working.contains(w))
+            .all(|&w| sys.phases[w].ln_q(&p.y) <= 1e-10)
 }
