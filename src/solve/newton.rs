@@ -649,12 +649,23 @@ fn constrained_convex(
     let mut trial = p.clone();
     ev.set_conc(sys, p);
     let mut value = objective(ev, &p.y);
-    let mut lam = DVector::<f64>::zeros(r);
+    let mut lam = vec![0.0; r];
+    // Work space, allocated once a call.
+    let mut grad = vec![0.0; n];
+    let mut scale = vec![0.0; n];
+    let mut h = vec![0.0; n * n];
+    let mut e = vec![0.0; r];
+    let mut d_inv = vec![0.0; n];
+    let mut row_scale = vec![1.0; r];
+    let mut d = vec![0.0; n];
+    let mut rhs = DVector::<f64>::zeros(n + r);
     while iters < 300 {
         iters += 1;
-        let mut grad = DVector::from_iterator(n, totals.iter().map(|t| -t));
-        let mut scale = DVector::from_iterator(n, totals.iter().map(|t| t.abs()));
-        let mut h: DMatrix<f64> = DMatrix::zeros(n, n);
+        for k in 0..n {
+            grad[k] = -totals[k];
+            scale[k] = totals[k].abs();
+        }
+        h.fill(0.0);
         for (idx, &s) in lay.species.iter().enumerate() {
             let m = ev.conc[s];
             let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
@@ -662,12 +673,11 @@ fn constrained_convex(
                 grad[a] += va * m;
                 scale[a] += va.abs() * m;
                 for &(b, vb) in cols {
-                    h[(a, b)] += va * vb * m;
+                    h[a * n + b] += va * vb * m;
                 }
             }
         }
         let mut feas = 0.0f64;
-        let mut e = DVector::<f64>::zeros(r);
         for j in 0..r {
             let mut v = rhs_c[j];
             for (k, &c) in act.iter().enumerate() {
@@ -676,57 +686,49 @@ fn constrained_convex(
             e[j] = v;
             feas = feas.max(v.abs() / (1.0 + rhs_c[j].abs()));
         }
-        let d_inv: Vec<f64> = (0..n)
-            .map(|k| 1.0 / (h[(k, k)] * (1.0 + 1e-14) + 1e-300_f64).sqrt())
-            .collect();
-        let mut kkt = DMatrix::<f64>::zeros(n + r, n + r);
-        for a in 0..n {
-            for b in 0..n {
-                kkt[(a, b)] = h[(a, b)] * d_inv[a] * d_inv[b];
-            }
-            kkt[(a, a)] += 1e-14;
+        for k in 0..n {
+            d_inv[k] = 1.0 / (h[k * n + k] * (1.0 + 1e-14) + 1e-300_f64).sqrt();
         }
-        let mut row_scale = vec![1.0; r];
         for j in 0..r {
             let norm = (0..n).map(|k| (nmat[(j, k)] * d_inv[k]).powi(2)).sum::<f64>().sqrt();
             row_scale[j] = if norm > 0.0 { 1.0 / norm } else { 1.0 };
-            for k in 0..n {
-                let v = nmat[(j, k)] * d_inv[k] * row_scale[j];
-                kkt[(n + j, k)] = v;
-                kkt[(k, n + j)] = v;
-            }
         }
-        let mut rhs = DVector::<f64>::zeros(n + r);
+        let kkt = DMatrix::<f64>::from_fn(n + r, n + r, |a, b| match (a < n, b < n) {
+            (true, true) => h[a * n + b] * d_inv[a] * d_inv[b] + if a == b { 1e-14 } else { 0.0 },
+            (true, false) => nmat[(b - n, a)] * d_inv[a] * row_scale[b - n],
+            (false, true) => nmat[(a - n, b)] * d_inv[b] * row_scale[a - n],
+            (false, false) => 0.0,
+        });
         for k in 0..n {
             rhs[k] = -grad[k] * d_inv[k];
         }
         for j in 0..r {
             rhs[n + j] = e[j] * row_scale[j];
         }
-        let Some(sol) = kkt.lu().solve(&rhs) else {
+        if !kkt.lu().solve_mut(&mut rhs) || rhs.iter().any(|v| !v.is_finite()) {
             return Err(Error::InfeasiblePhases {
                 reason: format!(
                     "the relations of {} cannot hold together (singular system)",
                     names(sys, working)
                 ),
             });
-        };
-        if sol.iter().any(|v| !v.is_finite()) {
-            return Err(Error::InfeasiblePhases {
-                reason: format!("the relations of {} cannot hold together", names(sys, working)),
-            });
         }
-        let mut d = DVector::from_iterator(n, (0..n).map(|k| sol[k] * d_inv[k]));
+        for k in 0..n {
+            d[k] = rhs[k] * d_inv[k];
+        }
         for j in 0..r {
-            lam[j] = sol[n + j] * row_scale[j];
+            lam[j] = rhs[n + j] * row_scale[j];
         }
         // Stationarity of the Lagrangian with the new multipliers: ∇G + Nᵀλ = −H·Δy.
-        let hd = &h * &d;
-        let worst = (0..n)
-            .map(|k| if scale[k] > 0.0 { (hd[k] / scale[k]).abs() } else { 0.0 })
-            .fold(0.0, f64::max);
-        let small = d.amax() <= 1e-6;
-        if worst <= tol && feas <= 1e-13 && small {
+        let mut worst = 0.0f64;
+        for k in 0..n {
+            if scale[k] > 0.0 {
+                let hd: f64 = (0..n).map(|b| h[k * n + b] * d[b]).sum();
+                worst = worst.max((hd / scale[k]).abs());
+            }
+        }
+        let big = d.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+        if worst <= tol && feas <= 1e-13 && big <= 1e-6 {
             // Polish with the (tiny) full step and stop.
             for (k, &c) in act.iter().enumerate() {
                 p.y[c] += d[k];
@@ -734,12 +736,12 @@ fn constrained_convex(
             ev.set_conc(sys, p);
             break;
         }
-        let big = d.amax();
         if !big.is_finite() {
             break;
         }
         if big > CONVEX_MAX_STEP {
-            d *= CONVEX_MAX_STEP / big;
+            let f = CONVEX_MAX_STEP / big;
+            d.iter_mut().for_each(|v| *v *= f);
         }
         if feas > 1e-13 {
             // Not yet on the rows: the step (full, or as long as allowed) moves onto them.
@@ -750,7 +752,7 @@ fn constrained_convex(
             value = objective(ev, &p.y);
             continue;
         }
-        let slope = grad.dot(&d);
+        let slope: f64 = grad.iter().zip(&d).map(|(g, v)| g * v).sum();
         let mass_sum: f64 = lay.species.iter().map(|&s| ev.conc[s]).sum();
         let mut alpha = 1.0;
         let mut accepted = false;
