@@ -956,6 +956,23 @@ pub(crate) fn solve_phases(
             });
         }
     }
+    // Solids supersaturated at the start enter together (most supersaturated first, each
+    // only if its row is independent of those held): the active-set loop then drops any that
+    // should not be there, and most assemblages need no further change.
+    let mut over: Vec<(usize, f64)> = allowed
+        .iter()
+        .map(|&w| (w, sys.phases[w].ln_q(&p.y)))
+        .filter(|&(_, q)| q > 0.0)
+        .collect();
+    over.sort_by(|a, b| b.1.total_cmp(&a.1));
+    for (w, _) in over {
+        let mut next = working.clone();
+        next.push(w);
+        let rows: Vec<&[(usize, f64)]> = next.iter().map(|&x| &sys.phases[x].terms[..]).collect();
+        if independent(&rows, nc) {
+            working = next;
+        }
+    }
     let mut lambda = vec![0.0; sys.phases.len()];
     // The totals of the convex problem (H⁺ included, T_H = −Σ z·T), then the rows whose
     // amounts are set by the totals: a fixed alkalinity sets T_H (Σ r·T − TA) and leaves the
