@@ -305,7 +305,19 @@ fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> 
     if let Some(p) = plot {
         out.flush().map_err(output_failure)?;
         let opts = plot_options(&doc.name).mark_ph(eq.ph());
-        let svg = distribution_plot(&recipe, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        // The fractions against pH are those of the closed solution: a fixed pH or partial
+        // pressure, or solids allowed to form, would hold the pH or the totals the sweep
+        // moves. The result's own pH is marked on it.
+        let closed = if doc.has_phase_requests() {
+            let mut c = doc.clone();
+            c.fixed_ph = None;
+            c.partial_pressures.clear();
+            c.allow_solids = None;
+            c.to_recipe(catalog()).map_err(|e| e.in_file(&name))?.0
+        } else {
+            recipe
+        };
+        let svg = distribution_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
@@ -398,12 +410,21 @@ fn write_phase_tables(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
         writeln!(out, "DIC               {:.4} mmol/kg", 1e3 * r.dic_mol_per_kg)?;
     }
     if let Some(u) = r.proton_uptake_mol_per_kg {
-        let what = if u >= 0.0 {
-            "acid (H+) added"
-        } else {
-            "base (OH-) added"
-        };
-        writeln!(out, "fixed pH          {what}: {:.4e} mol/kg", u.abs())?;
+        let what = if u >= 0.0 { "acid (H+)" } else { "base (OH-)" };
+        writeln!(
+            out,
+            "acid or base      {:.4e} mol/kg of {what} added to hold the constraints",
+            u.abs()
+        )?;
+    }
+    if let Some(c) = &r.charge_balance_ion {
+        let what = if c.added_mol_per_kg >= 0.0 { "added" } else { "removed" };
+        writeln!(
+            out,
+            "charge balance    closed on {}: {:.4e} mol/kg {what}",
+            c.ion,
+            c.added_mol_per_kg.abs()
+        )?;
     }
     if !r.gases.is_empty() {
         writeln!(out)?;

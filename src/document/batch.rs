@@ -131,8 +131,9 @@ pub struct BatchSummary {
 
 /// A batch line as read on the fast path: names borrowed from the input text where they can
 /// be (no allocation per name). The fields are those of [`RecipeDoc`]; a line with
-/// `definitions` or phase requests (`fixed_ph`, `partial_pressures`, `allow_solids`) is read
-/// again as a [`RecipeDoc`] and compiled on its own.
+/// `definitions` or phase requests (`fixed_ph`, `partial_pressures`, `allow_solids`, a fixed
+/// alkalinity or DIC, `charge_balance_on`) is read again as a [`RecipeDoc`] and compiled on
+/// its own.
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct FastLine<'a> {
@@ -160,6 +161,12 @@ struct FastLine<'a> {
     partial_pressures: Option<serde::de::IgnoredAny>,
     #[serde(default)]
     allow_solids: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    fixed_alkalinity_meq_per_kg: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    fixed_dic_mmol_per_kg: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    charge_balance_on: Option<serde::de::IgnoredAny>,
 }
 
 /// One line of a [`FastLine`]: the fields of [`AmountLine`] with a borrowed name.
@@ -221,6 +228,9 @@ impl FastLine<'_> {
             fixed_ph: None,
             partial_pressures: Vec::new(),
             allow_solids: None,
+            fixed_alkalinity_meq_per_kg: None,
+            fixed_dic_mmol_per_kg: None,
+            charge_balance_on: None,
         }
     }
 }
@@ -393,6 +403,9 @@ impl Block<'_> {
             || doc.fixed_ph.is_some()
             || doc.partial_pressures.is_some()
             || doc.allow_solids.is_some()
+            || doc.fixed_alkalinity_meq_per_kg.is_some()
+            || doc.fixed_dic_mmol_per_kg.is_some()
+            || doc.charge_balance_on.is_some()
         {
             // Definitions of its own, or phase requests (a fixed pH or partial pressure,
             // solids allowed to form): read in full and compiled on its own.

@@ -57,8 +57,8 @@ pub use measured::{
     GranResult, MeasuredDoc, MeasuredResult, ModelDoc, SampleDoc, ValueResult,
 };
 pub use output::{
-    DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, GasResult,
-    HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
+    ChargeBalanceIonResult, DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult,
+    GasResult, HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
     TitrationPointResult, TitrationResult, VerdictResult,
 };
 

@@ -112,6 +112,21 @@ pub struct SolidResult {
     pub amount_mol_per_kg: f64,
 }
 
+/// The ion that closed the charge balance and how much of it the balance took.
+///
+/// ```
+/// use protolyte::document::ChargeBalanceIonResult;
+/// let c = ChargeBalanceIonResult { ion: "sodium".into(), added_mol_per_kg: 2e-3 };
+/// assert_eq!(c.ion, "sodium");
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ChargeBalanceIonResult {
+    /// The ion's name.
+    pub ion: String,
+    /// The amount of it the charge balance added, mol per kg of water (negative: removed).
+    pub added_mol_per_kg: f64,
+}
+
 /// The state of one gas in a result.
 ///
 /// ```
@@ -194,6 +209,10 @@ pub struct SolveResult {
     /// left out when zero (no fixed pH).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proton_uptake_mol_per_kg: Option<f64>,
+    /// With the charge balance closed on an ion: that ion and the amount of it the balance
+    /// added, mol per kg of water.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub charge_balance_ion: Option<ChargeBalanceIonResult>,
     /// Every reported gas whose family is present.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub gases: Vec<GasResult>,
@@ -262,6 +281,12 @@ impl SolveResult {
             carbonate_alkalinity_eq_per_kg: eq.carbonate_alkalinity_molal(),
             dic_mol_per_kg: eq.dic_molal(),
             proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0).then(|| eq.proton_uptake_molal()),
+            charge_balance_ion: eq
+                .charge_balance_ion_added_molal()
+                .map(|(ion, v)| ChargeBalanceIonResult {
+                    ion: ion.to_string(),
+                    added_mol_per_kg: v,
+                }),
             gases: eq
                 .gases()
                 .iter()
