@@ -38,7 +38,7 @@ const NU_SPAN: usize = 12;
 
 /// The fast path's working buffers, kept between solves (per thread, or in a
 /// [`Workspace`](super::Workspace)) so that a repeated solve does not allocate them again.
-#[derive(Debug, Default)]
+#[derive(Debug, Default, Clone)]
 pub(crate) struct Buffers {
     work: Vec<f64>,
     old_ln_gamma: Vec<f64>,
