@@ -10,11 +10,11 @@
 //! `lookup_synonym`, `general_three_families_davies`. Run natively it only checks that the case works.
 
 use protolyte::analysis::Titration;
+use protolyte::solve::Workspace;
 use protolyte::{
     ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, PathChoice, Reagent, Recipe, Solver,
     System, Temperature, Volume,
 };
-use protolyte::solve::Workspace;
 use std::alloc::{GlobalAlloc, Layout, System as Heap};
 use std::hint::black_box;
 use std::sync::atomic::{AtomicUsize, Ordering};

@@ -660,6 +660,7 @@ pub(crate) fn solve_in(
         ln_gamma: Vec::new(),
         dln_gamma_di: Vec::new(),
         held: Vec::new(),
+        phase_amounts: Vec::new(),
     };
     let fast = Fast::with(sys, std::mem::take(bufs), std::mem::replace(ev, empty));
     let (result, fast) = run(fast, start, tol, true);
@@ -940,7 +941,10 @@ mod tests {
                     let di = (p0.ln_i - p1.ln_i).abs();
                     assert!(di <= 1e-10, "case {case}: ln I differs by {di:e}");
                     for (a, b) in e0.conc.iter().zip(&e1.conc) {
-                        assert!((a - b).abs() <= 1e-9 * a.abs().max(1e-300), "case {case}: {a:e} vs {b:e}");
+                        assert!(
+                            (a - b).abs() <= 1e-9 * a.abs().max(1e-300),
+                            "case {case}: {a:e} vs {b:e}"
+                        );
                     }
                     compared += 1;
                 }

@@ -82,6 +82,7 @@ impl Workspace {
             ln_gamma,
             dln_gamma_di: Vec::new(),
             held: Vec::new(),
+            phase_amounts: Vec::new(),
         }
     }
 }
