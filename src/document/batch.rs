@@ -5,7 +5,10 @@
 //! block, recipes with the same reagent names, complexes and conditions share one compiled
 //! [`System`] (as a template): only the totals are reset from the amounts
 //! ([`System::set_total_molal`]), and each solve starts from
-//! the previous one of its kind in the block ([`Solver::solve_from`]).
+//! the previous one of its kind in the block ([`Solver::solve_from`]). A record without the
+//! full result is solved in the template's [`Workspace`](crate::solve::Workspace)
+//! ([`Solver::solve_ph`]), without building the full result, wherever that result would carry
+//! no warning (otherwise, and with `full`, the line is solved in full).
 //! Blocks are fixed by line numbers, so the output does not depend on the thread schedule.
 //!
 //! Every non-blank input line gives exactly one output line, in input order: a [`BatchRecord`]
@@ -250,6 +253,8 @@ struct Template {
     sys: System,
     totals: Vec<f64>,
     warm: Option<Equilibrium>,
+    /// Buffers and warm start of the lean solves (records without the full result).
+    ws: crate::solve::Workspace,
 }
 
 impl Template {
@@ -299,6 +304,7 @@ impl Template {
                 sys,
                 totals,
                 warm: None,
+                ws: crate::solve::Workspace::new(),
             },
             conditions,
         ))
@@ -348,6 +354,13 @@ struct Block<'a> {
     solver: Solver,
 }
 
+/// A solved line: the full result, or (for a record without it, where the full result would
+/// carry no warning) the numbers the record gives, from a solve in the template's workspace.
+enum Solved {
+    Full(Equilibrium),
+    Lean(crate::solve::PhSolution, crate::PhConvention),
+}
+
 enum Failure {
     Syntax(String),
     Input(Option<String>, DocumentError),
@@ -372,8 +385,8 @@ impl Block<'_> {
     }
 
     /// Solves one line: its name, the template it used (to keep the result as the next warm
-    /// start) and the equilibrium.
-    fn solve_line(&mut self, text: &str) -> Result<(Option<String>, Option<usize>, Equilibrium), Failure> {
+    /// start) and the result (in full where `full` asks for it or a warning may come with it).
+    fn solve_line(&mut self, text: &str, full: bool) -> Result<(Option<String>, Option<usize>, Solved), Failure> {
         let syntax = |e: serde_json::Error| {
             Failure::Syntax(format!(
                 "column {}: {}",
@@ -417,7 +430,7 @@ impl Block<'_> {
                 .compile(&conditions)
                 .and_then(|s| self.solver.solve(&s))
                 .map_err(|e| Failure::Solve(name.clone(), e))?;
-            return Ok((name, None, eq));
+            return Ok((name, None, Solved::Full(eq)));
         }
         let idx = match self.templates.iter().position(|t| t.matches(&doc)) {
             Some(i) => i,
@@ -434,27 +447,51 @@ impl Block<'_> {
         };
         let t = &mut self.templates[idx];
         t.retotal(&doc).map_err(|e| Failure::Input(name.clone(), e))?;
+        if !full {
+            match self.solver.solve_ph_unwarned(&t.sys, &mut t.ws) {
+                Ok(Some(s)) => return Ok((name, Some(idx), Solved::Lean(s, t.sys.ph_convention))),
+                Ok(None) => {}
+                Err(e) => return Err(Failure::Solve(name, e)),
+            }
+        }
         let eq = match &t.warm {
             Some(w) => self.solver.solve_from(&t.sys, w),
             None => self.solver.solve(&t.sys),
         }
         .map_err(|e| Failure::Solve(name.clone(), e))?;
-        Ok((name, Some(idx), eq))
+        t.ws.start_from(&eq);
+        Ok((name, Some(idx), Solved::Full(eq)))
     }
 
     /// Solves one line and appends its record (with a newline) to `out`; true when it
     /// failed.
     fn run_line(&mut self, line_no: usize, text: &str, full: bool, out: &mut Vec<u8>) -> bool {
-        let failed = match self.solve_line(text) {
-            Ok((name, idx, eq)) => {
+        let convention_name = |c: crate::PhConvention| match c {
+            crate::PhConvention::Model => None,
+            crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".to_string()),
+        };
+        let failed = match self.solve_line(text, full) {
+            Ok((name, _, Solved::Lean(s, convention))) => {
+                let rec = BatchRecord {
+                    line: line_no,
+                    name,
+                    ph_convention: convention_name(convention),
+                    ph: s.ph,
+                    p_h_molal: s.p_h_molal,
+                    ionic_strength_mol_per_kg: s.ionic_strength_molal,
+                    max_balance_residual: s.max_residual,
+                    warnings: Vec::new(),
+                    result: None,
+                };
+                write_record(out, &rec);
+                false
+            }
+            Ok((name, idx, Solved::Full(eq))) => {
                 let warnings: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
                 let rec = BatchRecord {
                     line: line_no,
                     name,
-                    ph_convention: match eq.ph_convention() {
-                        crate::PhConvention::Model => None,
-                        crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
-                    },
+                    ph_convention: convention_name(eq.ph_convention()),
                     ph: eq.ph(),
                     p_h_molal: eq.p_h_molal(),
                     ionic_strength_mol_per_kg: eq.ionic_strength_molal(),
