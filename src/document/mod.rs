@@ -41,6 +41,7 @@ mod input;
 pub mod limits;
 mod measured;
 mod output;
+mod requests;
 
 use std::borrow::Cow;
 use std::path::Path;
@@ -60,6 +61,7 @@ pub use output::{
     DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, HalfEquivalenceResult,
     PhShiftResult, ResidualsResult, SolveResult, SpeciesResult, TitrationPointResult, TitrationResult, VerdictResult,
 };
+pub use requests::{RequestError, RequestRecord, TitrationRun, run_design, run_titration};
 
 /// The format tag of a recipe document.
 pub const RECIPE_FORMAT: &str = "protolyte-recipe/1";
