@@ -806,3 +806,18 @@ fn batch_runs_titration_and_design_requests_beside_recipes() {
     assert_eq!(lines[3]["kind"], "input");
     assert_eq!(lines[3]["line"], 4);
 }
+
+#[test]
+fn a_buffer_far_from_its_pka_carries_a_warning() {
+    // Tris (pKa 8.07 at 25 °C) asked for pH 6.0: two units away.
+    let doc = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json"))
+        .unwrap()
+        .replace("\"target_ph\": 8.0", "\"target_ph\": 6.0");
+    assert!(doc.contains("\"target_ph\": 6.0"));
+    let p = temp_file("tris_far.json", &doc);
+    let o = protolyte(&["design", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
+    let o = protolyte(&["design", "examples/tris_buffer_design.json"]);
+    assert!(!stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
+}

@@ -8,7 +8,7 @@
 //! (twice its quadratic term). An endpoint is a local maximum of |dpH/dV| at least a given
 //! fraction of the largest, located between points by the zero crossing of the second
 //! derivative (linear interpolation). With k = 0 the plain differences of
-//! [`derivative_endpoints`](crate::analysis::derivative_endpoints) are used.
+//! [`derivative_endpoints`] are used.
 //!
 //! The default k = 2 (five points) is the smallest window that smooths at all with a
 //! quadratic; a wider one lowers the noise but flattens a sharp break more.
