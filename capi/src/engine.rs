@@ -342,7 +342,7 @@ impl Composition {
             }
             return Ok(Vec::new());
         }
-        if input.len() % columns != 0 {
+        if !input.len().is_multiple_of(columns) {
             return Err(Failure::new(
                 Kind::Argument,
                 format!(
@@ -393,7 +393,13 @@ impl Composition {
         Ok(out)
     }
 
-    fn solve_range(&self, input: &[f64], columns: usize, amounts: bool, with_species: bool) -> Vec<Result<Row, Failure>> {
+    fn solve_range(
+        &self,
+        input: &[f64],
+        columns: usize,
+        amounts: bool,
+        with_species: bool,
+    ) -> Vec<Result<Row, Failure>> {
         let mut sys = self.system.clone();
         let mut totals = vec![0.0; self.total_columns()];
         let mut warm: Option<Equilibrium> = None;

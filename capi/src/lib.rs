@@ -399,8 +399,10 @@ unsafe fn solve_many(
                 }
                 if !out.species_molal.is_null() {
                     for k in 0..species {
-                        *out.species_molal.add(i * species + k) =
-                            row.as_ref().and_then(|r| r.species_molal.get(k).copied()).unwrap_or(nan);
+                        *out.species_molal.add(i * species + k) = row
+                            .as_ref()
+                            .and_then(|r| r.species_molal.get(k).copied())
+                            .unwrap_or(nan);
                     }
                 }
                 if !out.status.is_null() {
@@ -411,7 +413,10 @@ unsafe fn solve_many(
         match first {
             None => Ok(PTL_OK),
             Some((i, f)) => {
-                set_error(&format!("{failed} of {rows} rows failed; the first, row {i}: {}", f.message));
+                set_error(&format!(
+                    "{failed} of {rows} rows failed; the first, row {i}: {}",
+                    f.message
+                ));
                 Ok(PTL_ERR_SOME_ROWS)
             }
         }

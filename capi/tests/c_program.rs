@@ -8,7 +8,10 @@ use std::process::Command;
 /// target/<profile>/, where cargo put libprotolyte_c.so before running this test.
 fn library_dir() -> PathBuf {
     let exe = std::env::current_exe().expect("test executable path");
-    exe.parent().and_then(Path::parent).expect("target/<profile>/").to_path_buf()
+    exe.parent()
+        .and_then(Path::parent)
+        .expect("target/<profile>/")
+        .to_path_buf()
 }
 
 #[test]
@@ -18,7 +21,11 @@ fn c_program_passes_under_valgrind() {
     // Integration tests link the rlib; the shared library is built here (the same profile).
     let status = Command::new(env!("CARGO"))
         .args(["build", "-p", "protolyte-c", "--lib"])
-        .args(if lib.ends_with("release") { &["--release"][..] } else { &[][..] })
+        .args(if lib.ends_with("release") {
+            &["--release"][..]
+        } else {
+            &[][..]
+        })
         .current_dir(dir)
         .status()
         .expect("cargo runs");

@@ -39,7 +39,12 @@ create_exception!(
     InputError,
     "A name that is not in the catalogue (the message suggests the nearest one)."
 );
-create_exception!(_native, NoConvergenceError, ProtolyteError, "The solver did not converge.");
+create_exception!(
+    _native,
+    NoConvergenceError,
+    ProtolyteError,
+    "The solver did not converge."
+);
 create_exception!(
     _native,
     ChemistryError,
@@ -91,7 +96,9 @@ fn detached<T: Send>(py: Python<'_>, f: impl FnOnce() -> Result<T, Failure> + Se
 
 fn floats(bytes: &[u8]) -> PyResult<Vec<f64>> {
     if !bytes.len().is_multiple_of(8) {
-        return Err(InputError::new_err("array bytes are not a whole number of float64 values"));
+        return Err(InputError::new_err(
+            "array bytes are not a whole number of float64 values",
+        ));
     }
     Ok(bytes
         .chunks_exact(8)
@@ -315,12 +322,20 @@ impl Batch {
 
     /// Component names but H⁺ (the total columns).
     fn total_names(&self) -> Vec<String> {
-        self.comp.system().components()[1..].iter().map(|c| c.name.to_string()).collect()
+        self.comp.system().components()[1..]
+            .iter()
+            .map(|c| c.name.to_string())
+            .collect()
     }
 
     /// Species names.
     fn species_names(&self) -> Vec<String> {
-        self.comp.system().species().iter().map(|s| s.name.to_string()).collect()
+        self.comp
+            .system()
+            .species()
+            .iter()
+            .map(|s| s.name.to_string())
+            .collect()
     }
 
     /// Solves the rows of `values` (row-major float64 bytes: amounts in mol/L when `amounts`,
@@ -370,7 +385,11 @@ fn ph_sweep<'py>(
     text: String,
     ph: &[u8],
     threads: usize,
-) -> PyResult<(Bound<'py, PyBytes>, Bound<'py, PyBytes>, Vec<(usize, &'static str, String)>)> {
+) -> PyResult<(
+    Bound<'py, PyBytes>,
+    Bound<'py, PyBytes>,
+    Vec<(usize, &'static str, String)>,
+)> {
     let ph = floats(ph)?;
     let out = detached(py, move || {
         let curve = engine::capacity_curve(&engine::recipe_doc(&text)?)?;
