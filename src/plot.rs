@@ -477,8 +477,11 @@ fn finish(buf: String) -> PlotResult<String> {
 
 /// A titration curve: pH against titrant volume (left axis), dpH/dV (dashed, right axis), and
 /// each equivalence point inside the volume range marked with a dot on the curve, a dotted
-/// vertical line and a label "EP*n*: *v* mL, pH *x*" (a hollow dot and "weak break" for a
-/// break flagged as not usable).
+/// vertical line and a label "EP*n*: *v* mL, pH *x*". The dot is filled when the endpoint's
+/// verdict ([`EquivalencePoint::usable`], read from the curve by
+/// [`EndpointCriterion`](crate::analysis::EndpointCriterion)) says it is usable and hollow,
+/// with "not usable" in its label, when it is not: the same field the text and JSON outputs
+/// read.
 ///
 /// Points with a non-finite volume, pH or slope are left out. Errors: fewer than two finite
 /// points, or options out of range.
@@ -554,7 +557,7 @@ pub fn titration_svg(
     }
     if eps.iter().any(|e| !e.usable()) {
         entries.push(LegendEntry {
-            text: "equivalence point, weak break".into(),
+            text: "equivalence point, not usable".into(),
             colour: INK,
             kind: LegendKind::Ring,
         });
@@ -638,7 +641,11 @@ pub fn titration_svg(
             };
             area.draw(&Circle::new((e.volume_ml, ph), 5, style)).map_err(drawing)?;
             let first = format!("EP{}: {:.2} mL", k + 1, e.volume_ml);
-            labels.push((vec![first, format!("pH {:.2}", e.ph)], c));
+            let mut lines = vec![first, format!("pH {:.2}", e.ph)];
+            if !e.usable() {
+                lines.push("not usable".into());
+            }
+            labels.push((lines, c));
         }
         // Below-right of the point for a rising curve (the curve has jumped up), above-right
         // for a falling one.
@@ -1374,4 +1381,187 @@ pub fn capacity_plot(recipe: &Recipe, conditions: &Conditions, options: &PlotOpt
     let sweep = c.sweep(1.0, 13.0, 241)?;
     let peaks = c.peaks(1.0, 13.0)?;
     capacity_svg(&sweep, &peaks, &options)
+}
+
+// ---------------------------------------------------------------------------------------
+// Measured titration.
+
+/// A measured titration: the data as dots, the model (when a fit was made) as a line, each
+/// endpoint as a dotted vertical line with its label, and, below, the residuals
+/// (measured − model pH) when there is a model.
+///
+/// `points` are (volume mL, pH); `model_ph`, when given, holds the model's pH at each point;
+/// `endpoints` are (label, volume mL). Points with a non-finite value are left out. Errors:
+/// fewer than two finite points, a model of another length, or options out of range.
+///
+/// ```
+/// use protolyte::plot::{PlotOptions, measured_svg};
+/// let pts: Vec<(f64, f64)> = (0..40).map(|i| {
+///     let v = 0.5 * i as f64;
+///     (v, 7.0 + 2.0 * (2.0 * (v - 10.0)).atan())
+/// }).collect();
+/// let model: Vec<f64> = pts.iter().map(|p| p.1 + 0.01).collect();
+/// let svg = measured_svg(&pts, Some(&model), &[("Gran".into(), 10.0)], &PlotOptions::new())?;
+/// assert!(svg.contains("residual") && svg.contains("Gran: 10.00 mL"));
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn measured_svg(
+    points: &[(f64, f64)],
+    model_ph: Option<&[f64]>,
+    endpoints: &[(String, f64)],
+    options: &PlotOptions,
+) -> PlotResult<String> {
+    options.check()?;
+    if let Some(m) = model_ph
+        && m.len() != points.len()
+    {
+        return Err(PlotError::NoData("the model needs one pH for each measured point"));
+    }
+    let rows: Vec<(f64, f64, Option<f64>)> = points
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.0.is_finite() && p.1.is_finite())
+        .map(|(i, p)| (p.0, p.1, model_ph.map(|m| m[i]).filter(|x| x.is_finite())))
+        .collect();
+    if rows.len() < 2 {
+        return Err(PlotError::NoData("a measured curve needs at least two finite points"));
+    }
+    let (vmin, vmax) = rows
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| (a.min(p.0), b.max(p.0)));
+    let (pmin, pmax) = rows.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
+        let m = p.2.unwrap_or(p.1);
+        (a.min(p.1).min(m), b.max(p.1).max(m))
+    });
+    let (x0, x1) = snapped(vmin, vmax, 0.0);
+    let (y0, y1) = span(pmin, pmax, 0.06);
+    let residuals: Vec<(f64, f64)> = rows.iter().filter_map(|p| p.2.map(|m| (p.0, p.1 - m))).collect();
+    let rmax = residuals.iter().map(|r| r.1.abs()).fold(0.0, f64::max).max(1e-3);
+    let eps: Vec<&(String, f64)> = endpoints
+        .iter()
+        .filter(|e| e.1.is_finite() && e.1 >= x0 && e.1 <= x1)
+        .collect();
+    let mut entries = vec![LegendEntry {
+        text: "measured".into(),
+        colour: colour(0),
+        kind: LegendKind::Dot,
+    }];
+    if !residuals.is_empty() {
+        entries.push(LegendEntry {
+            text: "model fit".into(),
+            colour: colour(1),
+            kind: LegendKind::Line,
+        });
+    }
+    if !eps.is_empty() {
+        entries.push(LegendEntry {
+            text: "endpoint".into(),
+            colour: MARK,
+            kind: LegendKind::Dashed,
+        });
+    }
+    let left = 78;
+    framed(options, &entries, left, |root, body| {
+        let (top, bottom) = if residuals.is_empty() {
+            (body.clone(), None)
+        } else {
+            let h = body.dim_in_pixel().1;
+            let (a, b) = body.split_vertically((h as f64 * 0.7) as u32);
+            (a, Some(b))
+        };
+        let mut chart = ChartBuilder::on(&top)
+            .margin_top(6)
+            .margin_bottom(6)
+            .margin_left(12)
+            .margin_right(24)
+            .x_label_area_size(if bottom.is_some() { 30 } else { 52 })
+            .y_label_area_size(left - 12)
+            .build_cartesian_2d(x0..x1, y0..y1)
+            .map_err(drawing)?;
+        let (dx, dy) = (decimals(x1 - x0), decimals(y1 - y0));
+        chart
+            .configure_mesh()
+            .x_desc(if bottom.is_some() { "" } else { "titrant volume / mL" })
+            .y_desc("pH")
+            .axis_desc_style(axis_desc(AXIS_PX))
+            .label_style(axis_desc(TICK_PX))
+            .x_label_formatter(&|v| tick(*v, dx))
+            .y_label_formatter(&|v| tick(*v, dy))
+            .bold_line_style(GRID)
+            .light_line_style(GRID_MINOR)
+            .axis_style(INK)
+            .draw()
+            .map_err(drawing)?;
+        for e in &eps {
+            chart
+                .draw_series(DashedLineSeries::new(
+                    vec![(e.1, y0), (e.1, y1)],
+                    3,
+                    4,
+                    ShapeStyle::from(&MARK).stroke_width(1),
+                ))
+                .map_err(drawing)?;
+        }
+        if !residuals.is_empty() {
+            chart
+                .draw_series(LineSeries::new(
+                    rows.iter().filter_map(|p| p.2.map(|m| (p.0, m))),
+                    ShapeStyle::from(&colour(1)).stroke_width(2),
+                ))
+                .map_err(drawing)?;
+        }
+        chart
+            .draw_series(
+                rows.iter()
+                    .map(|p| Circle::new((p.0, p.1), 3, ShapeStyle::from(&colour(0)).filled())),
+            )
+            .map_err(drawing)?;
+        let area = chart.plotting_area();
+        let (px_x, px_y) = area.get_pixel_range();
+        let bounds = (px_x.start + 2, px_y.start + 2, px_x.end - 2, px_y.end - 2);
+        let mut placed: Vec<Placed> = Vec::new();
+        let mut curves: Vec<(i32, i32)> = rows.iter().map(|p| area.map_coordinate(&(p.0, p.1))).collect();
+        densify(&mut curves);
+        for (k, e) in eps.iter().enumerate() {
+            // Labels stacked from the top, one row each, beside their line.
+            let at = area.map_coordinate(&(e.1, y1 - (y1 - y0) * (0.06 + 0.1 * k as f64)));
+            let lines = vec![format!("{}: {:.2} mL", e.0, e.1)];
+            let at = place_label(&lines, at, 1, bounds, &curves, &mut placed);
+            draw_label(root, &lines, at)?;
+        }
+        if let Some(b) = bottom {
+            let mut rc = ChartBuilder::on(&b)
+                .margin_top(4)
+                .margin_bottom(10)
+                .margin_left(12)
+                .margin_right(24)
+                .x_label_area_size(52)
+                .y_label_area_size(left - 12)
+                .build_cartesian_2d(x0..x1, -1.15 * rmax..1.15 * rmax)
+                .map_err(drawing)?;
+            let dr = decimals(2.3 * rmax);
+            rc.configure_mesh()
+                .x_desc("titrant volume / mL")
+                .y_desc("residual pH")
+                .axis_desc_style(axis_desc(AXIS_PX))
+                .label_style(axis_desc(TICK_PX))
+                .x_label_formatter(&|v| tick(*v, dx))
+                .y_label_formatter(&|v| tick(*v, dr))
+                .y_labels(5)
+                .bold_line_style(GRID)
+                .light_line_style(GRID_MINOR)
+                .axis_style(INK)
+                .draw()
+                .map_err(drawing)?;
+            rc.draw_series(LineSeries::new(vec![(x0, 0.0), (x1, 0.0)], ShapeStyle::from(&MARK)))
+                .map_err(drawing)?;
+            rc.draw_series(
+                residuals
+                    .iter()
+                    .map(|r| Circle::new(*r, 3, ShapeStyle::from(&colour(0)).filled())),
+            )
+            .map_err(drawing)?;
+        }
+        Ok(())
+    })
 }

@@ -1,5 +1,6 @@
 //! Analyses built on the solver: titration curves, endpoints, buffer capacity, buffer
-//! design, fitting of measured data and uncertainty propagation. None of them re-derives
+//! design, fitting of measured data, uncertainty propagation, and water analyses (ion
+//! balance, Langelier index, calcium carbonate precipitation potential, dose search). None of them re-derives
 //! the chemistry: each compiles or re-totals a [`System`](crate::System), solves it with a
 //! [`Solver`](crate::Solver) and reads derivatives from
 //! [`Sensitivities`](crate::Sensitivities).
@@ -9,15 +10,17 @@ pub mod design;
 pub mod endpoints;
 pub mod fit;
 pub mod indicators;
+pub mod measured;
 pub mod target;
 pub mod titration;
 pub mod uncertainty;
+pub mod water;
 
 pub use capacity::{CapacityCurve, CapacityPeak, CapacityPoint, capacity_along};
 pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};
 pub use endpoints::{
-    BreakFlag, DerivativeEndpoint, DeviationCause, EquivalencePoint, GranFit, GranFunction, HalfEquivalencePoint,
-    Inflection, StepRef, derivative_endpoints, gran_fit,
+    BreakFlag, DerivativeEndpoint, DeviationCause, EndpointCriterion, EndpointVerdict, EquivalencePoint, GranFit,
+    GranFunction, HalfEquivalencePoint, Inflection, StepRef, derivative_endpoints, gran_fit,
 };
 pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
 pub use indicators::{Indicator, indicators, indicators_within};
