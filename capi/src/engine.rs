@@ -14,6 +14,9 @@ use protolyte::document::{
 };
 use protolyte::{Catalog, Conditions, Constituent, Equilibrium, Error, PhConvention, Solver, System};
 
+/// The document kinds [`run_document`] runs.
+const KINDS: &str = "\"protolyte-recipe/1\", \"protolyte-titration/1\", \"protolyte-design/1\", \"protolyte-fit/1\", \"protolyte-calibration/1\", \"protolyte-measured/1\"";
+
 /// The name a document read from memory is given in messages.
 pub const DOCUMENT_NAME: &str = "<document>";
 
@@ -105,13 +108,7 @@ fn format_of(text: &str) -> Result<String, Failure> {
         )),
         None if value.is_object() => Err(Failure::new(
             Kind::Input,
-            format!(
-                "{DOCUMENT_NAME}: field `format`: missing; a document names its kind: \"{}\", \"{}\", \"{}\" or \"{}\"",
-                document::RECIPE_FORMAT,
-                document::TITRATION_FORMAT,
-                document::DESIGN_FORMAT,
-                document::FIT_FORMAT
-            ),
+            format!("{DOCUMENT_NAME}: field `format`: missing; a document names its kind, one of {KINDS}"),
         )),
         None => Err(Failure::new(
             Kind::Syntax,
@@ -128,7 +125,8 @@ fn convention_label(c: PhConvention) -> Option<String> {
     }
 }
 
-/// Runs any document (a recipe, titration, design or fit request, told by its `format`) and
+/// Runs any document (a recipe, titration, design, fit, calibration or measured-titration
+/// request, told by its `format`) and
 /// returns its result document as JSON: the same result the command line writes with
 /// `--json`.
 pub fn run_document(text: &str) -> Result<String, Failure> {
@@ -159,14 +157,34 @@ pub fn run_document(text: &str) -> Result<String, Failure> {
             result.name = doc.name.clone();
             to_json(&result)
         }
+        document::CALIBRATION_FORMAT => {
+            let doc: document::CalibrationDoc = document::parse(text, DOCUMENT_NAME)?;
+            doc.check_format(true).map_err(|e| e.in_file(DOCUMENT_NAME))?;
+            let cal = doc.to_calibration().map_err(|e| e.in_file(DOCUMENT_NAME))?;
+            let mut r = document::CalibrationResult::from(&cal);
+            r.name = doc.name.clone();
+            to_json(&r)
+        }
+        document::MEASURED_FORMAT => {
+            let doc: document::MeasuredDoc = document::parse(text, DOCUMENT_NAME)?;
+            doc.check_format(true).map_err(|e| e.in_file(DOCUMENT_NAME))?;
+            // A document from memory has no folder: its data file is read from the working
+            // directory (or an absolute path).
+            let path = std::path::Path::new(&doc.data.file);
+            let data = std::fs::read_to_string(path).map_err(|e| {
+                Failure::new(Kind::Input, format!("{}: cannot read the data file: {e}", path.display()))
+            })?;
+            let r = doc.analyze(&data, catalog()).map_err(|e| match e {
+                DocumentError::Read { .. } => Failure::from(e.in_file(&path.display().to_string())),
+                other => Failure::from(other.in_file(DOCUMENT_NAME)),
+            })?;
+            to_json(&r)
+        }
         other => Err(Failure::new(
             Kind::Input,
             format!(
-                "{DOCUMENT_NAME}: field `format`: unknown document kind {other:?}; expected \"{}\", \"{}\", \"{}\" or \"{}\"",
-                document::RECIPE_FORMAT,
-                document::TITRATION_FORMAT,
-                document::DESIGN_FORMAT,
-                document::FIT_FORMAT
+                "{DOCUMENT_NAME}: field `format`: unknown document kind {other:?}; expected one of {}",
+                KINDS
             ),
         )),
     }?;
@@ -199,6 +217,15 @@ fn titrate(text: &str) -> Result<TitrationResult, Failure> {
     let halves = t.half_equivalence_points().map_err(solve_failure)?;
     let end = doc.end_volume_ml;
     let conditions = doc.conditions().map_err(|e| e.in_file(name))?;
+    let mut notes = Vec::new();
+    if let Some(first) = eqs.first()
+        && first.volume_ml > end
+    {
+        notes.push(format!(
+            "the curve stops at {end} mL, before its first equivalence point ({:.4} mL): raise end_volume_ml to see it",
+            first.volume_ml
+        ));
+    }
     Ok(TitrationResult {
         format: document::RESULT_FORMAT.into(),
         name: doc.name.clone(),
@@ -206,6 +233,7 @@ fn titrate(text: &str) -> Result<TitrationResult, Failure> {
         analyte_volume_ml: t.analyte_volume().milliliters_value(),
         points: curve.iter().map(Into::into).collect(),
         equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
+        notes,
         half_equivalence_points: halves.iter().filter(|h| h.volume_ml <= end).map(Into::into).collect(),
         notes: Vec::new(),
     })
@@ -350,7 +378,7 @@ impl Composition {
             }
             return Ok(Vec::new());
         }
-        if input.len() % columns != 0 {
+        if !input.len().is_multiple_of(columns) {
             return Err(Failure::new(
                 Kind::Argument,
                 format!(
