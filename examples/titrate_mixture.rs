@@ -39,7 +39,7 @@ fn main() -> Result<(), protolyte::Error> {
         for f in &e.flags {
             match f {
                 BreakFlag::StepsMerge { delta_pka } => {
-                    println!("      merges with the next step (ΔpKa {delta_pka:.2} < 3): not usable")
+                    println!("      merges with the next step (ΔpKa {delta_pka:.2} < 3)")
                 }
                 BreakFlag::StepsClose { delta_pka } => println!("      weak break (ΔpKa {delta_pka:.2} < 4)"),
                 BreakFlag::WeakStep { c_k } => println!("      no sharp endpoint (C·K = {c_k:.1e} < 1e-8)"),
@@ -54,6 +54,19 @@ fn main() -> Result<(), protolyte::Error> {
                 ind.ph_high,
                 100.0 * err
             );
+        }
+        let v = &e.verdict;
+        match v.locating_error_ml {
+            Some(d) => println!(
+                "      {}: ±{} pH locates it to ±{d:.3} mL (tolerance ±{:.3} mL)",
+                if v.usable { "usable" } else { "not usable" },
+                v.ph_window,
+                v.tolerance_ml
+            ),
+            None => println!(
+                "      not usable: the curve does not move ±{} pH around it",
+                v.ph_window
+            ),
         }
         if e.usable() {
             let names: Vec<&str> = e.indicators.iter().take(3).map(|i| i.name).collect();
@@ -76,7 +89,7 @@ fn main() -> Result<(), protolyte::Error> {
     println!("\nHalf-equivalence points: pH − pKa and its causes");
     for h in t.half_equivalence_points()? {
         println!(
-            "  {} step {} at {:6.3} mL: pH {:5.2}, pKa {:5.2}, Δ {:+.3} (activity {:+.3}, overlap {:+.3}, water {:+.3}; mainly {:?})",
+            "  {} step {} at {:6.3} mL: pH {:5.2}, pKa {:5.2}, Δ {:+.3} (activity {:+.3}, overlap {:+.3}, dissociation {:+.3}, protonation {:+.3}, water {:+.3}; mainly {:?})",
             h.step.family,
             h.step.step + 1,
             h.volume_ml,
@@ -85,6 +98,8 @@ fn main() -> Result<(), protolyte::Error> {
             h.deviation,
             h.activity_part,
             h.overlap_part,
+            h.dissociation_part,
+            h.protonation_part,
             h.water_part,
             h.main_cause
         );

@@ -124,7 +124,8 @@ fn half_equivalence_accounting() {
     .unwrap();
     let h = &t.half_equivalence_points().unwrap()[0];
     assert!(h.deviation.abs() < 1e-3 && h.activity_part == 0.0);
-    // A fairly strong acid (pKa 2) at 1 mmol/L: its own dissociation moves the half point up.
+    // A fairly strong acid (pKa 2) at 1 mmol/L: its own dissociation moves the half point up
+    // (named as such since the causes were split; it was "water and dilution" before).
     let t = Titration::new(
         &weak_acid(&[2.0], 1e-3),
         Volume::milliliters(25.0),
@@ -133,7 +134,7 @@ fn half_equivalence_accounting() {
     )
     .unwrap();
     let h = &t.half_equivalence_points().unwrap()[0];
-    assert_eq!(h.main_cause, DeviationCause::WaterAndDilution);
+    assert_eq!(h.main_cause, DeviationCause::AcidDissociation);
     assert!(h.deviation > 0.5);
     // Close steps (pKa 4.0 and 4.6): overlap dominates.
     let t = Titration::new(
@@ -145,7 +146,8 @@ fn half_equivalence_accounting() {
     .unwrap();
     for h in t.half_equivalence_points().unwrap() {
         assert_eq!(h.main_cause, DeviationCause::OverlappingSteps);
-        assert!((h.activity_part + h.overlap_part + h.water_part - h.deviation).abs() < 1e-12);
+        let sum = h.activity_part + h.overlap_part + h.dissociation_part + h.protonation_part + h.water_part;
+        assert!((sum - h.deviation).abs() < 1e-12);
     }
 }
 

@@ -224,3 +224,31 @@ fn the_enthalpy_agrees_with_the_equation_where_both_are_given() {
         );
     }
 }
+
+#[test]
+fn the_catalogue_loads_every_solid_of_the_file() {
+    // The loader of the `phases` branch reads data/solids.toml with the checks a user's file
+    // gets; every entry must come out as a Solid with its constant and molar mass.
+    let cat = Catalog::builtin();
+    assert!(cat.load_problems().is_empty(), "{:?}", cat.load_problems());
+    let (_, list) = solids();
+    assert_eq!(cat.solids().len(), list.len());
+    let t25 = protolyte::Temperature::celsius(25.0);
+    for s in &list {
+        let name = s["name"].as_str().unwrap();
+        let solid = cat.solid(name).unwrap_or_else(|e| panic!("{name}: {e}"));
+        let k = float(s, "log_k").unwrap();
+        assert!((solid.log10_k() - k).abs() < 1e-12, "{name}");
+        assert!(
+            (solid.log10_k_at(t25) - k).abs() <= 0.03,
+            "{name}: {}",
+            solid.log10_k_at(t25)
+        );
+        assert!(solid.molar_mass_g_per_mol().is_some(), "{name}: molar mass");
+        if let Some(syn) = s.get("synonyms") {
+            for n in syn.as_array().unwrap() {
+                assert_eq!(cat.solid(n.as_str().unwrap()).unwrap().name(), solid.name());
+            }
+        }
+    }
+}

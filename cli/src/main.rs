@@ -12,19 +12,19 @@ use std::sync::OnceLock;
 use std::time::Instant;
 
 use clap::{Parser, Subcommand};
-use protolyte::analysis::TitrationPoint;
 use protolyte::document::batch::{self, BatchOptions};
 use protolyte::document::{
     self, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
     TitrationResult,
 };
-use protolyte::plot::{PlotError, PlotOptions, distribution_plot, titration_svg, write_svg};
+use protolyte::plot::{PlotError, PlotOptions, capacity_plot, distribution_plot, titration_svg, write_svg};
 use protolyte::{Catalog, DataKind, Error};
 
 /// Exit codes.
 const EXIT_OK: u8 = 0;
 const EXIT_BATCH_FAILURES: u8 = 1;
-// 2 is clap's: the command line itself is wrong.
+/// The command line is wrong: clap's own code, also used for a plot name that is not `.svg`.
+const EXIT_USAGE: u8 = 2;
 const EXIT_BAD_INPUT: u8 = 3;
 const EXIT_NO_CONVERGENCE: u8 = 4;
 const EXIT_OUTPUT: u8 = 5;
@@ -87,6 +87,9 @@ enum Command {
         /// Also draw the distribution diagram (fraction of each form against pH) as SVG.
         #[arg(long, value_name = "FILE.svg")]
         plot: Option<PathBuf>,
+        /// Also draw the buffer capacity against pH (pH 1–13, local maxima marked) as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        capacity_plot: Option<PathBuf>,
     },
     /// Simulate a titration (`protolyte-titration/1`): the curve as CSV, then its endpoints.
     Titrate {
@@ -95,6 +98,11 @@ enum Command {
         /// Write the curve and endpoints as JSON instead of CSV.
         #[arg(long)]
         json: bool,
+        /// Write the endpoint report (equivalence points with their verdicts, half-equivalence
+        /// points, notes) to this file instead of standard error; standard output then holds
+        /// the curve as pure CSV either way.
+        #[arg(long, value_name = "FILE")]
+        endpoints: Option<PathBuf>,
         /// Also draw the curve with its equivalence points and dpH/dV as SVG.
         #[arg(long, value_name = "FILE.svg")]
         plot: Option<PathBuf>,
@@ -114,6 +122,28 @@ enum Command {
         /// Write the report as JSON.
         #[arg(long)]
         json: bool,
+    },
+    /// Calibrate a pH electrode from buffer readings (`protolyte-calibration/1`): slope as %
+    /// of the Nernst slope, offset at pH 7, residuals.
+    Calibrate {
+        /// The calibration request (JSON or TOML), or `-`.
+        file: PathBuf,
+        /// Write the result as JSON.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Analyse a measured titration (`protolyte-measured/1`): the data file read (pH or mV),
+    /// endpoints by derivative and Gran, the content with its uncertainty budget, and the
+    /// model fit when asked.
+    Analyze {
+        /// The request (JSON or TOML), or `-`; its data file is found relative to it.
+        file: PathBuf,
+        /// Write the result as JSON.
+        #[arg(long)]
+        json: bool,
+        /// Also draw the data, the model, the endpoints and the residuals as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
     },
     /// Solve many recipes: JSON Lines in (one recipe document per line), JSON Lines out, in
     /// input order, in parallel.
@@ -169,6 +199,15 @@ fn chem(file: &str, e: Error) -> Failure {
     }
 }
 
+/// A refused request: its document (exit 3) or its chemistry (exit 3, or 4 when the solver
+/// did not converge), attributed to `file`.
+fn request_failure(file: &str, e: document::RequestError) -> Failure {
+    match e {
+        document::RequestError::Input(d) => d.in_file(file).into(),
+        document::RequestError::Chemistry(c) => chem(file, c),
+    }
+}
+
 fn output_failure(e: io::Error) -> Failure {
     Failure {
         code: EXIT_OUTPUT,
@@ -208,10 +247,22 @@ fn run(cmd: Command) -> Result<u8, Failure> {
     let stdout = io::stdout();
     let mut out = BufWriter::new(stdout.lock());
     let code = match cmd {
-        Command::Solve { file, json, plot } => solve(&file, json, plot.as_deref(), &mut out)?,
-        Command::Titrate { file, json, plot } => titrate(&file, json, plot.as_deref(), &mut out)?,
+        Command::Solve {
+            file,
+            json,
+            plot,
+            capacity_plot,
+        } => solve(&file, json, plot.as_deref(), capacity_plot.as_deref(), &mut out)?,
+        Command::Titrate {
+            file,
+            json,
+            endpoints,
+            plot,
+        } => titrate(&file, json, endpoints.as_deref(), plot.as_deref(), &mut out)?,
         Command::Design { file, json } => design(&file, json, &mut out)?,
         Command::Fit { file, json } => fit(&file, json, &mut out)?,
+        Command::Calibrate { file, json } => calibrate(&file, json, &mut out)?,
+        Command::Analyze { file, json, plot } => analyze(&file, json, plot.as_deref(), &mut out)?,
         Command::Batch {
             file,
             output,
@@ -249,9 +300,17 @@ fn plot_options(name: &Option<String>) -> PlotOptions {
     }
 }
 
-fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
+fn solve(
+    file: &Path,
+    json: bool,
+    plot: Option<&Path>,
+    capacity: Option<&Path>,
+    out: &mut impl Write,
+) -> Result<u8, Failure> {
+    check_svg_name(plot)?;
+    check_svg_name(capacity)?;
     let name = display_name(file);
-    let doc: RecipeDoc = document::load(file)?;
+    let doc: RecipeDoc = document::load_expecting(file, document::RECIPE_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
     let (recipe, conditions) = doc.to_recipe(catalog()).map_err(|e| e.in_file(&name))?;
     let eq = recipe
@@ -266,10 +325,34 @@ fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> 
     }
     // The plot comes after the result, so that a plot that cannot be drawn or written (exit 5)
     // does not take the result with it.
+    if plot.is_none() && capacity.is_none() {
+        return Ok(EXIT_OK);
+    }
+    // The fractions and the buffer capacity against pH are those of the closed solution: a
+    // fixed pH or partial pressure, or solids allowed to form, would hold the pH or the totals
+    // the sweep moves. The result's own pH is marked on each plot.
+    let closed = if doc.has_phase_requests() {
+        let mut c = doc.clone();
+        c.fixed_ph = None;
+        c.partial_pressures.clear();
+        c.allow_solids = None;
+        c.fixed_alkalinity_meq_per_kg = None;
+        c.fixed_dic_mmol_per_kg = None;
+        c.charge_balance_on = None;
+        c.to_recipe(catalog()).map_err(|e| e.in_file(&name))?.0
+    } else {
+        recipe
+    };
     if let Some(p) = plot {
         out.flush().map_err(output_failure)?;
         let opts = plot_options(&doc.name).mark_ph(eq.ph());
-        let svg = distribution_plot(&recipe, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        let svg = distribution_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
+    }
+    if let Some(p) = capacity {
+        out.flush().map_err(output_failure)?;
+        let opts = plot_options(&doc.name).mark_ph(eq.ph());
+        let svg = capacity_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
@@ -341,58 +424,170 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
             )?;
         }
     }
+    write_phase_tables(out, r)?;
     for w in &r.warnings {
         writeln!(out, "warning: {w}")?;
     }
     Ok(())
 }
 
-fn titrate(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
-    let name = display_name(file);
-    let doc: TitrationDoc = document::load(file)?;
-    doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let t = doc.to_titration(catalog()).map_err(|e| e.in_file(&name))?;
-    let curve: Vec<TitrationPoint> = match doc.uniform_points().map_err(|e| e.in_file(&name))? {
-        Some(n) => t.curve_uniform(doc.end_volume().map_err(|e| e.in_file(&name))?, n),
-        None => t.curve_adaptive(&doc.stepping().map_err(|e| e.in_file(&name))?),
+/// Alkalinity, DIC, the acid or base a fixed pH took, the gases and the saturation state of
+/// the solids of a solve.
+fn write_phase_tables(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
+    if r.total_alkalinity_eq_per_kg != 0.0 || r.dic_mol_per_kg > 0.0 {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "total alkalinity  {:.4} meq/kg (carbonate alkalinity {:.4} meq/kg; end point near pH 4.5)",
+            1e3 * r.total_alkalinity_eq_per_kg,
+            1e3 * r.carbonate_alkalinity_eq_per_kg
+        )?;
+        writeln!(out, "DIC               {:.4} mmol/kg", 1e3 * r.dic_mol_per_kg)?;
     }
-    .map_err(|e| chem(&name, e))?;
-    let eqs = t.equivalence_points().map_err(|e| chem(&name, e))?;
-    let halves = t.half_equivalence_points().map_err(|e| chem(&name, e))?;
-    let end = doc.end_volume_ml;
-    let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
-    let result = TitrationResult {
-        format: document::RESULT_FORMAT.into(),
-        name: doc.name.clone(),
-        ph_convention: convention_label(conditions.ph_convention),
-        analyte_volume_ml: t.analyte_volume().milliliters_value(),
-        points: curve.iter().map(Into::into).collect(),
-        equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
-        half_equivalence_points: halves.iter().filter(|h| h.volume_ml <= end).map(Into::into).collect(),
-    };
+    if let Some(u) = r.proton_uptake_mol_per_kg {
+        let what = if u >= 0.0 { "acid (H+)" } else { "base (OH-)" };
+        writeln!(
+            out,
+            "acid or base      {:.4e} mol/kg of {what} added to hold the constraints",
+            u.abs()
+        )?;
+    }
+    if let Some(c) = &r.charge_balance_ion {
+        let what = if c.added_mol_per_kg >= 0.0 { "added" } else { "removed" };
+        writeln!(
+            out,
+            "charge balance    closed on {}: {:.4e} mol/kg {what}",
+            c.ion,
+            c.added_mol_per_kg.abs()
+        )?;
+    }
+    if !r.gases.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "{:<22} {:>14} {:>14}  exchange with the gas phase",
+            "gas", "p / atm", "p / µatm"
+        )?;
+        for g in &r.gases {
+            let (atm, uatm) = match g.partial_pressure_atm {
+                Some(p) => (format!("{p:.4e}"), format!("{:.4}", p * 1e6)),
+                None => ("-".into(), "-".into()),
+            };
+            let exchange = if g.fixed {
+                let verb = if g.taken_up_mol_per_kg >= 0.0 {
+                    "taken up"
+                } else {
+                    "given off"
+                };
+                format!("fixed (open system): {verb} {:.4e} mol/kg", g.taken_up_mol_per_kg.abs())
+            } else {
+                "in equilibrium with the solution (closed system)".into()
+            };
+            writeln!(out, "{:<22} {atm:>14} {uatm:>14}  {exchange}", g.name)?;
+        }
+    }
+    if !r.solids.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "{:<30} {:>9} {:>10} {:>10}  state",
+            "solid", "SI", "log IAP", "log K"
+        )?;
+        let num = |v: Option<f64>, prec: usize| v.map_or_else(|| "-".to_string(), |v| format!("{v:.prec$}"));
+        for s in &r.solids {
+            let state = match (s.allowed, s.amount_mol_per_kg > 0.0, s.saturation_index) {
+                (true, true, _) => format!("present: {:.4e} mol/kg", s.amount_mol_per_kg),
+                (_, _, Some(si)) if si > 1e-6 => {
+                    if s.allowed {
+                        "supersaturated".to_string()
+                    } else {
+                        "supersaturated (not allowed to form)".to_string()
+                    }
+                }
+                (_, _, Some(si)) if si < -1e-6 => "undersaturated".to_string(),
+                (_, _, Some(_)) => "saturated".to_string(),
+                (_, _, None) => "-".to_string(),
+            };
+            writeln!(
+                out,
+                "{:<30} {:>9} {:>10} {:>10}  {state}",
+                s.name,
+                num(s.saturation_index, 3),
+                num(s.log10_iap, 3),
+                num(s.log10_k, 3)
+            )?;
+        }
+    }
+    Ok(())
+}
+
+fn titrate(
+    file: &Path,
+    json: bool,
+    endpoints: Option<&Path>,
+    plot: Option<&Path>,
+    out: &mut impl Write,
+) -> Result<u8, Failure> {
+    check_svg_name(plot)?;
+    let name = display_name(file);
+    let doc: TitrationDoc = document::load_expecting(file, document::TITRATION_FORMAT)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let run = document::run_titration(&doc, catalog()).map_err(|e| request_failure(&name, e))?;
+    let result = &run.result;
     if json {
         write_json(out, &result)?;
     } else {
-        write_titration_csv(out, &result).map_err(output_failure)?;
+        write_titration_csv(out, result).map_err(output_failure)?;
+        out.flush().map_err(output_failure)?;
+        match endpoints {
+            Some(p) => {
+                let f = File::create(p).map_err(|e| Failure {
+                    code: EXIT_OUTPUT,
+                    message: format!("{}: cannot create the endpoint report: {e}", p.display()),
+                })?;
+                let mut w = BufWriter::new(f);
+                write_endpoint_report(&mut w, result)
+                    .and_then(|()| w.flush())
+                    .map_err(|e| Failure {
+                        code: EXIT_OUTPUT,
+                        message: format!("{}: cannot write the endpoint report: {e}", p.display()),
+                    })?;
+            }
+            None => write_endpoint_report(&mut io::stderr().lock(), result).map_err(output_failure)?,
+        }
     }
     // After the result, as for `solve`.
     if let Some(p) = plot {
         out.flush().map_err(output_failure)?;
-        let shown: Vec<_> = eqs.iter().filter(|e| e.volume_ml <= end).cloned().collect();
-        let svg = titration_svg(&curve, &shown, &plot_options(&doc.name)).map_err(|e| plot_failure(p, e))?;
+        let end = doc.end_volume_ml;
+        let shown: Vec<_> = run
+            .equivalence_points
+            .iter()
+            .filter(|e| e.volume_ml <= end)
+            .cloned()
+            .collect();
+        let svg = titration_svg(&run.curve, &shown, &plot_options(&doc.name)).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
 }
 
-/// The name of a pH convention in a result document, `None` for the model's own γ(H⁺).
-fn convention_label(c: protolyte::PhConvention) -> Option<String> {
-    match c {
-        protolyte::PhConvention::Model => None,
-        protolyte::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
+/// Refuses a plot file whose name does not end in `.svg` (the only format drawn), before
+/// anything is computed.
+fn check_svg_name(plot: Option<&Path>) -> Result<(), Failure> {
+    match plot {
+        Some(p) if !p.extension().is_some_and(|e| e.eq_ignore_ascii_case("svg")) => Err(Failure {
+            code: EXIT_USAGE,
+            message: format!(
+                "{}: plots are drawn as SVG only; give a file name ending in .svg",
+                p.display()
+            ),
+        }),
+        _ => Ok(()),
     }
 }
 
+/// The curve as pure CSV: a header and one row a point, nothing else.
 fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<()> {
     writeln!(out, "volume_ml,ph,dph_dv_per_ml,ionic_strength_mol_per_kg")?;
     for p in &r.points {
@@ -406,19 +601,23 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
             p.ionic_strength_mol_per_kg
         )?;
     }
+    Ok(())
+}
+
+/// The endpoints in words: the name, the equivalence points with their verdicts, the
+/// half-equivalence points and the notes, one a line.
+fn write_endpoint_report(out: &mut impl Write, r: &TitrationResult) -> io::Result<()> {
     if let Some(n) = &r.name {
-        writeln!(out, "# {n}")?;
+        writeln!(out, "{n}")?;
     }
     if r.ph_convention.as_deref() == Some("bates-guggenheim") {
-        writeln!(out, "# pH convention: Bates–Guggenheim")?;
+        writeln!(out, "pH convention: Bates–Guggenheim")?;
+    }
+    for n in &r.notes {
+        writeln!(out, "note: {n}")?;
     }
     for (i, e) in r.equivalence_points.iter().enumerate() {
         let step = e.completed_step.as_deref().unwrap_or("strong acid/base");
-        let flags = if e.flags.is_empty() {
-            "usable".to_string()
-        } else {
-            e.flags.join("; ")
-        };
         let ind = match (&e.nearest_indicator, e.nearest_indicator_error) {
             (Some(n), Some(err)) => format!("; nearest indicator {n} (titration error {:+.2} %)", err * 100.0),
             (Some(n), None) => format!("; nearest indicator {n}"),
@@ -426,33 +625,65 @@ fn write_titration_csv(out: &mut impl Write, r: &TitrationResult) -> io::Result<
         };
         writeln!(
             out,
-            "# equivalence point {}: {:.4} mL, pH {:.3} ({step}); steep part pH {:.2}–{:.2}; {flags}{ind}",
+            "equivalence point {}: {:.4} mL, pH {:.3} ({step}); steep part pH {:.2}–{:.2}; {}{ind}",
             i + 1,
             e.volume_ml,
             e.ph,
             e.steep_ph[0],
-            e.steep_ph[1]
+            e.steep_ph[1],
+            verdict_text(&e.verdict, e.volume_ml),
         )?;
+        if !e.flags.is_empty() {
+            writeln!(out, "  why (rules of thumb): {}", e.flags.join("; "))?;
+        }
     }
     for h in &r.half_equivalence_points {
         writeln!(
             out,
-            "# half-equivalence {} pKa{}: {:.4} mL, pH {:.3}, pH − pKa {:+.3} (mainly {})",
+            "half-equivalence {} pKa{}: {:.4} mL, pH {:.3}, pH − pKa {:+.3} (mainly {})",
             h.family, h.step, h.volume_ml, h.ph, h.deviation, h.main_cause
         )?;
     }
     Ok(())
 }
 
+/// The verdict in words: usable or not, and the numbers it was decided from.
+fn verdict_text(v: &document::VerdictResult, volume_ml: f64) -> String {
+    let word = if v.usable { "usable" } else { "not usable" };
+    let located = match v.locating_error_ml {
+        Some(d) => format!(
+            "pH ±{} locates it to ±{d:.3} mL (±{} %)",
+            v.ph_window,
+            significant(100.0 * d / volume_ml, 2)
+        ),
+        None => format!("the curve does not move ±{} pH around it", v.ph_window),
+    };
+    format!(
+        "{word}: {located}, tolerance ±{:.3} mL (pH change {:.2} over it, slope {} pH/mL)",
+        v.tolerance_ml,
+        v.break_ph,
+        significant(v.slope_per_ml, 3)
+    )
+}
+
+/// `x` with `digits` significant digits, plain notation between 1e-3 and 1e6.
+fn significant(x: f64, digits: usize) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
+    }
+    let mag = x.abs().log10().floor() as i32;
+    if !(-3..6).contains(&mag) {
+        return format!("{:.*e}", digits.saturating_sub(1), x);
+    }
+    let decimals = (digits as i32 - 1 - mag).max(0) as usize;
+    format!("{x:.decimals$}")
+}
+
 fn design(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     let name = display_name(file);
-    let doc: DesignDoc = document::load(file)?;
+    let doc: DesignDoc = document::load_expecting(file, document::DESIGN_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let spec = doc.to_spec(catalog()).map_err(|e| e.in_file(&name))?;
-    let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
-    let r = spec.design().map_err(|e| chem(&name, e))?;
-    let mut result = DesignResult::from_recipe(&r, &conditions);
-    result.name = doc.name.clone();
+    let result = document::run_design(&doc, catalog()).map_err(|e| request_failure(&name, e))?;
     if json {
         write_json(out, &result)?;
     } else {
@@ -523,7 +754,7 @@ fn write_design_table(out: &mut impl Write, result: &DesignResult) -> io::Result
 
 fn fit(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     let name = display_name(file);
-    let doc: FitDoc = document::load(file)?;
+    let doc: FitDoc = document::load_expecting(file, document::FIT_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
     let f = doc.to_fit(catalog()).map_err(|e| e.in_file(&name))?;
     let report = f.run().map_err(|e| chem(&name, e))?;
@@ -575,6 +806,9 @@ fn write_fit_table(out: &mut impl Write, result: &FitResult, doc: &FitDoc) -> io
             "stopped on the iteration budget"
         }
     )?;
+    for w in &result.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
     writeln!(out)?;
     writeln!(out, "curve,point,volume_ml,measured_ph,residual_ph")?;
     for (k, (c, res)) in doc.curves.iter().zip(&result.residuals).enumerate() {
@@ -583,6 +817,227 @@ fn write_fit_table(out: &mut impl Write, result: &FitResult, doc: &FitDoc) -> io
         }
     }
     Ok(())
+}
+
+fn calibrate(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
+    let name = display_name(file);
+    let doc: document::CalibrationDoc = document::load_expecting(file, document::CALIBRATION_FORMAT)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let cal = doc.to_calibration().map_err(|e| e.in_file(&name))?;
+    let mut r = document::CalibrationResult::from(&cal);
+    r.name = doc.name.clone();
+    if json {
+        write_json(out, &r)?;
+    } else {
+        write_calibration(out, &r).map_err(output_failure)?;
+    }
+    Ok(EXIT_OK)
+}
+
+fn write_calibration(out: &mut impl Write, r: &document::CalibrationResult) -> io::Result<()> {
+    if let Some(n) = &r.name {
+        writeln!(out, "{n}")?;
+    }
+    let se = |x: Option<f64>, unit: &str| {
+        x.map(|s| format!(" ± {s:.2} {unit} (standard error)"))
+            .unwrap_or_default()
+    };
+    writeln!(
+        out,
+        "slope      {:.2} mV/pH = {:.2} % of the Nernst slope ({:.3} mV/pH at {} °C){}",
+        r.slope_mv_per_ph,
+        r.slope_percent,
+        r.nernst_slope_mv_per_ph,
+        r.temperature_celsius,
+        se(r.slope_standard_error_percent, "%")
+    )?;
+    writeln!(
+        out,
+        "offset     {:+.2} mV at pH 7{}",
+        r.offset_mv,
+        se(r.offset_standard_error_mv, "mV")
+    )?;
+    let res: Vec<String> = r.residuals_mv.iter().map(|x| format!("{x:+.2}")).collect();
+    writeln!(out, "residuals  {} mV", res.join(", "))?;
+    for w in &r.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
+    Ok(())
+}
+
+fn analyze(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
+    check_svg_name(plot)?;
+    let name = display_name(file);
+    let doc: document::MeasuredDoc = document::load_expecting(file, document::MEASURED_FORMAT)?;
+    doc.check_format(true).map_err(|e| e.in_file(&name))?;
+    let base = if file == Path::new("-") {
+        PathBuf::from(".")
+    } else {
+        file.parent().map(Path::to_path_buf).unwrap_or_default()
+    };
+    let data_path = base.join(&doc.data.file);
+    let text = read_data_file(&data_path)?;
+    let r = doc.analyze(&text, catalog()).map_err(|e| match e {
+        // An error in the data names the data file; any other names the request.
+        DocumentError::Read { .. } => Failure {
+            code: EXIT_BAD_INPUT,
+            message: e.in_file(&data_path.display().to_string()).to_string(),
+        },
+        other => Failure {
+            code: EXIT_BAD_INPUT,
+            message: other.in_file(&name).to_string(),
+        },
+    })?;
+    if json {
+        write_json(out, &r)?;
+    } else {
+        write_measured(out, &r).map_err(output_failure)?;
+    }
+    if let Some(p) = plot {
+        out.flush().map_err(output_failure)?;
+        let pts: Vec<(f64, f64)> = r.points.iter().map(|p| (p[0], p[1])).collect();
+        // The model's pH at each point: measured − residual.
+        let model: Option<Vec<f64>> = r.fit.as_ref().and_then(|f| {
+            f.residuals
+                .first()
+                .filter(|res| res.len() == pts.len())
+                .map(|res| pts.iter().zip(res).map(|(p, e)| p.1 - e).collect())
+        });
+        let mut marks: Vec<(String, f64)> = r
+            .derivative_endpoints
+            .iter()
+            .map(|e| ("derivative".to_string(), e.volume_ml))
+            .collect();
+        if let Some(g) = &r.gran_before {
+            marks.push(("Gran before".into(), g.endpoint_ml));
+        }
+        if let Some(g) = &r.gran_after {
+            marks.push(("Gran after".into(), g.endpoint_ml));
+        }
+        let svg = protolyte::plot::measured_svg(&pts, model.as_deref(), &marks, &plot_options(&doc.name))
+            .map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
+    }
+    Ok(EXIT_OK)
+}
+
+/// The text of a measured-data file, at most 16 MiB.
+fn read_data_file(path: &Path) -> Result<String, Failure> {
+    use std::io::Read;
+    const LIMIT: u64 = 16 << 20;
+    let bad = |m: String| Failure {
+        code: EXIT_BAD_INPUT,
+        message: format!("{}: {m}", path.display()),
+    };
+    let f = File::open(path).map_err(|e| bad(format!("cannot read the data file: {e}")))?;
+    let mut bytes = Vec::new();
+    f.take(LIMIT + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| bad(format!("cannot read the data file: {e}")))?;
+    if bytes.len() as u64 > LIMIT {
+        return Err(bad("the data file is longer than 16 MiB".into()));
+    }
+    String::from_utf8(bytes).map_err(|e| bad(format!("the data file is not UTF-8 text ({e})")))
+}
+
+fn write_measured(out: &mut impl Write, r: &document::MeasuredResult) -> io::Result<()> {
+    if let Some(n) = &r.name {
+        writeln!(out, "{n}")?;
+    }
+    if let Some(c) = &r.calibration {
+        writeln!(
+            out,
+            "calibration        slope {:.2} % of Nernst, offset {:+.2} mV at pH 7 ({} °C)",
+            c.slope_percent, c.offset_mv, c.temperature_celsius
+        )?;
+    }
+    writeln!(out, "points             {}", r.points.len())?;
+    writeln!(out, "smoothing          {}", r.smoothing)?;
+    for (i, e) in r.derivative_endpoints.iter().enumerate() {
+        writeln!(
+            out,
+            "derivative EP{}     {:.3} mL (second derivative zero), pH {:.2}, largest dpH/dV {:.3} per mL at {:.3} mL",
+            i + 1,
+            e.volume_ml,
+            e.ph,
+            e.slope_per_ml,
+            e.first_derivative_volume_ml
+        )?;
+    }
+    for (label, g) in [("Gran before", &r.gran_before), ("Gran after ", &r.gran_after)] {
+        if let Some(g) = g {
+            writeln!(
+                out,
+                "{label}        {:.4} ± {:.4} mL (standard error), {} on {:.3}–{:.3} mL ({} points, r² {:.5}; window chosen automatically)",
+                g.endpoint_ml,
+                g.endpoint_standard_error_ml,
+                g.function,
+                g.window_ml[0],
+                g.window_ml[1],
+                g.points,
+                g.r_squared
+            )?;
+        }
+    }
+    writeln!(
+        out,
+        "reported from      {}: endpoint {:.4} mL",
+        r.reported_method, r.endpoint_ml
+    )?;
+    writeln!(out)?;
+    writeln!(out, "{} (expanded uncertainty, k = 2)", r.analyte)?;
+    let v = |x: &document::ValueResult| format!("{:.5} ± {:.5}", x.value, x.expanded_uncertainty);
+    writeln!(out, "  {} mol/L", v(&r.mol_per_l))?;
+    writeln!(out, "  {} g/L", v(&r.g_per_l))?;
+    writeln!(out, "  {} g/100 mL", v(&r.g_per_100_ml))?;
+    if let Some(p) = &r.percent_w_w {
+        writeln!(out, "  {} % w/w", v(p))?;
+    }
+    writeln!(
+        out,
+        "  relative standard uncertainty {:.3} %",
+        100.0 * r.relative_standard_uncertainty
+    )?;
+    writeln!(out)?;
+    writeln!(
+        out,
+        "{:<24} {:>12} {:>12} {:>9} {:>7}  basis",
+        "uncertainty budget", "value", "std. unc.", "relative", "share"
+    )?;
+    for b in &r.budget {
+        writeln!(
+            out,
+            "{:<24} {:>12.6} {:>12.3e} {:>8.3}% {:>6.1}%  {}",
+            b.source,
+            b.value,
+            b.standard_uncertainty,
+            100.0 * b.relative,
+            100.0 * b.share,
+            b.basis
+        )?;
+    }
+    if let Some(f) = &r.fit {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "model fit on the same data (residual SD {} pH)",
+            f.residual_sd.map(|s| format!("{s:.4}")).unwrap_or_else(|| "-".into())
+        )?;
+        for e in &f.estimates {
+            let se = e
+                .standard_error
+                .map(|s| format!("{s:.4e}"))
+                .unwrap_or_else(|| "-".into());
+            writeln!(out, "  {:<44} {:>14.6} ± {se}", e.unknown, e.value)?;
+        }
+    }
+    for w in &r.warnings {
+        writeln!(out, "warning: {w}")?;
+    }
+    writeln!(
+        out,
+        "caution: report a result only under the laboratory's validated procedure."
+    )
 }
 
 fn run_batch(file: &Path, output: Option<&Path>, full: bool, quiet: bool) -> Result<u8, Failure> {

@@ -121,11 +121,91 @@ fn titrate_writes_csv_with_endpoints() {
         lines.next(),
         Some("volume_ml,ph,dph_dv_per_ml,ionic_strength_mol_per_kg")
     );
-    let rows: Vec<&str> = out.lines().skip(1).filter(|l| !l.starts_with('#')).collect();
+    // Pure CSV: every line after the header is a row of four numbers.
+    let rows: Vec<&str> = out.lines().skip(1).collect();
     assert!(rows.len() > 50);
-    assert!(rows.iter().all(|r| r.split(',').count() == 4 && !r.contains("NaN")));
-    assert!(out.contains("# equivalence point 1:"));
-    assert!(out.contains("# half-equivalence phosphate pKa1"));
+    assert!(
+        rows.iter()
+            .all(|r| r.split(',').count() == 4 && r.split(',').all(|x| x.parse::<f64>().is_ok()))
+    );
+    // The endpoint report goes to standard error, or to the file asked for.
+    let err = stderr(&o);
+    assert!(err.contains("equivalence point 1:"), "{err}");
+    assert!(err.contains("half-equivalence phosphate pKa1"));
+    let report = std::env::temp_dir().join(format!("protolyte-cli-endpoints-{}.txt", std::process::id()));
+    let o = protolyte(&[
+        "titrate",
+        "examples/soft_drink_acidity.json",
+        "--endpoints",
+        report.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stderr(&o).is_empty());
+    assert!(
+        std::fs::read_to_string(&report)
+            .unwrap()
+            .contains("equivalence point 1:")
+    );
+}
+
+#[test]
+fn text_json_and_plot_read_the_same_verdict() {
+    // The issue's maleic acid case: 25 mL of 20 mmol/L maleic acid with 0.1 mol/L NaOH.
+    let doc = temp_file(
+        "maleic.json",
+        r#"{"format":"protolyte-titration/1","name":"maleic acid",
+            "analyte":{"volume_ml":25,"reagents":[{"reagent":"maleic acid","millimolar":20}]},
+            "titrant":{"reagents":[{"reagent":"sodium hydroxide","molar":0.1}]},"end_volume_ml":15}"#,
+    );
+    let svg = doc.with_file_name("maleic.svg");
+    let o = protolyte(&["titrate", doc.to_str().unwrap(), "--plot", svg.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = stderr(&o);
+    let lines: Vec<&str> = text.lines().filter(|l| l.starts_with("equivalence point")).collect();
+    assert_eq!(lines.len(), 2, "{text}");
+    assert!(lines[0].contains("not usable"), "{}", lines[0]);
+    assert!(lines[1].contains("; usable"), "{}", lines[1]);
+    let o = protolyte(&["titrate", "--json", doc.to_str().unwrap()]);
+    let t: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
+    let verdicts: Vec<bool> = t.equivalence_points.iter().map(|e| e.verdict.usable).collect();
+    assert_eq!(verdicts, [false, true]);
+    let svg = std::fs::read_to_string(&svg).unwrap();
+    assert_eq!(svg.matches("not usable").count(), 2, "one label and the legend");
+}
+
+#[test]
+fn documents_of_another_kind_and_non_svg_plots_are_refused_clearly() {
+    let o = protolyte(&["titrate", "examples/hatchery_makeup.json"]);
+    assert_eq!(o.status.code(), Some(3));
+    let err = stderr(&o);
+    assert!(err.contains("a recipe") && err.contains("protolyte solve"), "{err}");
+    let o = protolyte(&["solve", "examples/soft_drink_acidity.json"]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(stderr(&o).contains("protolyte titrate"), "{}", stderr(&o));
+    let o = protolyte(&["titrate", "examples/soft_drink_acidity.json", "--plot", "curve.png"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("SVG"), "{}", stderr(&o));
+    assert!(stdout(&o).is_empty());
+}
+
+#[test]
+fn a_curve_that_stops_before_its_first_equivalence_point_says_so() {
+    let doc = temp_file(
+        "short.json",
+        r#"{"format":"protolyte-titration/1",
+            "analyte":{"volume_ml":25,"reagents":[{"reagent":"acetic acid","molar":0.1}]},
+            "titrant":{"reagents":[{"reagent":"sodium hydroxide","molar":0.1}]},"end_volume_ml":10}"#,
+    );
+    let o = protolyte(&["titrate", doc.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0));
+    assert!(
+        stderr(&o).contains("before its first equivalence point (25.0000 mL)"),
+        "{}",
+        stderr(&o)
+    );
+    let o = protolyte(&["titrate", "--json", doc.to_str().unwrap()]);
+    let t: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
+    assert_eq!(t.notes.len(), 1);
 }
 
 #[test]
@@ -586,11 +666,8 @@ fn titrate_and_design_name_the_bates_guggenheim_convention() {
     let path = temp_file("titration_bg.json", t);
     let o = protolyte(&["titrate", path.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
-    assert!(
-        stdout(&o).contains("# pH convention: Bates–Guggenheim"),
-        "{}",
-        stdout(&o)
-    );
+    // In the endpoint report (standard error): the curve on standard output is pure CSV.
+    assert!(stderr(&o).contains("pH convention: Bates–Guggenheim"), "{}", stderr(&o));
     let o = protolyte(&["titrate", "--json", path.to_str().unwrap()]);
     let r: TitrationResult = serde_json::from_str(&stdout(&o)).unwrap();
     assert_eq!(r.ph_convention.as_deref(), Some("bates-guggenheim"));
@@ -617,4 +694,130 @@ fn titrate_and_design_name_the_bates_guggenheim_convention() {
         d.recipe.ph_convention,
         Some(protolyte::document::PhConventionDoc::BatesGuggenheim)
     );
+}
+
+#[test]
+fn calibrate_and_analyze_the_example_measured_titration() {
+    let o = protolyte(&["calibrate", "examples/electrode_calibration.json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stdout(&o).contains("% of the Nernst slope"), "{}", stdout(&o));
+    let svg = std::env::temp_dir().join(format!("protolyte-cli-measured-{}.svg", std::process::id()));
+    let o = protolyte(&[
+        "analyze",
+        "examples/vinegar_analysis.json",
+        "--plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(
+        out.contains("Gran after") && out.contains("% w/w") && out.contains("ISO 385"),
+        "{out}"
+    );
+    assert!(std::fs::read_to_string(&svg).unwrap().contains("residual"));
+    let o = protolyte(&["analyze", "--json", "examples/vinegar_analysis.json"]);
+    let r: protolyte::document::MeasuredResult = serde_json::from_str(&stdout(&o)).unwrap();
+    // The file was made from 5.00 % w/w acetic acid (examples/make_measured.rs): the reported
+    // content covers it within its expanded uncertainty.
+    let p = r.percent_w_w.unwrap();
+    assert!((p.value - 5.0).abs() <= p.expanded_uncertainty, "{p:?}");
+    assert!(r.gran_before.is_some() && r.gran_after.is_some());
+    assert!(r.fit.is_some());
+}
+
+#[test]
+fn a_bad_data_line_is_named_with_its_file_and_line() {
+    let csv = temp_file("bad.csv", "volume_ml,ph\n1,4.0\n2,4.2\n3,x\n");
+    let req = temp_file(
+        "bad_measured.json",
+        r#"{"format":"protolyte-measured/1","data":{"file":"bad.csv"},"aliquot_ml":25,
+            "titrant_molar":0.1,"titrant_standard_uncertainty_molar":0.0001,
+            "analyte":{"name":"acetic acid"}}"#,
+    );
+    let o = protolyte(&["analyze", req.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3));
+    let err = stderr(&o);
+    assert!(err.contains(csv.to_str().unwrap()) && err.contains("line 4"), "{err}");
+}
+
+#[test]
+fn fit_warns_when_two_estimates_correlate() {
+    // One curve cannot separate the analyte's and the titrant's concentrations: only their
+    // ratio (the endpoint) is fixed, so the two estimates correlate beyond 0.99.
+    let doc = r#"{"format":"protolyte-fit/1",
+      "curves":[{"analyte":{"volume_ml":25,"reagents":[{"reagent":"acetic acid","molar":0.1}]},
+                 "titrant":{"reagents":[{"reagent":"sodium hydroxide","molar":0.1}]},
+                 "measured":[{"volume_ml":5,"ph":4.16},{"volume_ml":10,"ph":4.57},{"volume_ml":15,"ph":4.93},
+                             {"volume_ml":20,"ph":5.36},{"volume_ml":24,"ph":6.13},{"volume_ml":26,"ph":11.29},
+                             {"volume_ml":30,"ph":11.96}]}],
+      "estimate":[{"analyte_total":"acetate"},{"titrant_total":"sodium"}]}"#;
+    let p = temp_file("correlated_fit.json", doc);
+    let o = protolyte(&["fit", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(
+        stdout(&o).contains("warning:") && stdout(&o).contains("correlate"),
+        "{}",
+        stdout(&o)
+    );
+}
+
+#[test]
+fn solve_draws_the_buffer_capacity_plot() {
+    let svg = std::env::temp_dir().join(format!("protolyte-cli-capacity-{}.svg", std::process::id()));
+    let o = protolyte(&[
+        "solve",
+        "examples/hatchery_makeup.json",
+        "--capacity-plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = std::fs::read_to_string(&svg).unwrap();
+    assert!(
+        text.starts_with("<svg") && text.contains("local maximum"),
+        "{}",
+        &text[..200.min(text.len())]
+    );
+}
+
+#[test]
+fn batch_runs_titration_and_design_requests_beside_recipes() {
+    let titration = std::fs::read_to_string(repo_root().join("examples/soft_drink_acidity.json")).unwrap();
+    let design = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json")).unwrap();
+    let one_line = |t: &str| serde_json::to_string(&serde_json::from_str::<serde_json::Value>(t).unwrap()).unwrap();
+    let input = format!(
+        "{}\n{}\n{}\n{}\n",
+        r#"{"reagents": [{"reagent": "acetic acid", "millimolar": 10}]}"#,
+        one_line(&titration),
+        one_line(&design),
+        r#"{"format": "protolyte-titration/1", "analyte": {"volume_ml": 25, "reagents": []}, "titrant": {"reagents": [{"reagent": "no such thing", "molar": 0.1}]}, "end_volume_ml": 5}"#
+    );
+    let o = with_stdin(&["batch", "-"], &input);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let out = stdout(&o);
+    let lines: Vec<serde_json::Value> = out.lines().map(|l| serde_json::from_str(l).unwrap()).collect();
+    assert_eq!(lines.len(), 4);
+    assert!(lines[0]["ph"].as_f64().unwrap() > 3.0);
+    assert_eq!(lines[1]["kind"], "titration");
+    let t: TitrationResult = serde_json::from_value(lines[1]["result"].clone()).unwrap();
+    assert!(!t.equivalence_points.is_empty());
+    assert_eq!(lines[2]["kind"], "design");
+    let d: DesignResult = serde_json::from_value(lines[2]["result"].clone()).unwrap();
+    assert!((d.check_ph - 8.0).abs() < 1e-6);
+    assert_eq!(lines[3]["kind"], "input");
+    assert_eq!(lines[3]["line"], 4);
+}
+
+#[test]
+fn a_buffer_far_from_its_pka_carries_a_warning() {
+    // Tris (pKa 8.07 at 25 °C) asked for pH 6.0: two units away.
+    let doc = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json"))
+        .unwrap()
+        .replace("\"target_ph\": 8.0", "\"target_ph\": 6.0");
+    assert!(doc.contains("\"target_ph\": 6.0"));
+    let p = temp_file("tris_far.json", &doc);
+    let o = protolyte(&["design", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
+    let o = protolyte(&["design", "examples/tris_buffer_design.json"]);
+    assert!(!stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
 }

@@ -42,6 +42,119 @@ pub const MIN_C_K: f64 = 1e-8;
 /// Default half-width of the steep part of a break, as a fraction of the equivalence volume
 /// (±0.5 %).
 pub const DEFAULT_STEEP_FRACTION: f64 = 0.005;
+/// pKa given to H₃O⁺/H₂O when a strong acid's step is checked for overlap with a weak step
+/// (the aqueous levelling convention, common practice); the strong base's step OH⁻/H₂O takes
+/// pKw at the titration's temperature.
+pub const STRONG_ACID_PKA: f64 = 0.0;
+
+/// How an endpoint is judged from the computed curve.
+///
+/// An endpoint is **usable** when reading the pH to within ±`ph_window` of the equivalence
+/// pH locates the titrant volume to within ±`relative_volume` of the equivalence volume.
+/// The volumes at which the curve reaches pH_eq ± `ph_window` are found on the model curve
+/// itself (a bracketed bisection on the monotone curve between the neighbouring equivalence
+/// points), so the verdict reads the curve, not a rule of thumb. This is the titration-error
+/// criterion of A. Ringbom, *Complexation in Analytical Chemistry* (Interscience, New York,
+/// 1963), ch. 3 (cited from memory): the error of an endpoint read ΔpH away from the
+/// equivalence pH, required to stay within a stated relative precision. For one weak acid
+/// with ΔpH = ±0.2 and a 0.1 % error it reduces to the rule of thumb C·Ka ≥ 10⁻⁸
+/// ([`MIN_C_K`]).
+///
+/// Defaults: ±0.2 pH (the reading precision of an endpoint that Ringbom assumes, from
+/// memory) and ±0.5 % of the equivalence volume (routine volumetric work, common practice;
+/// set 0.001 for the ±0.1 % of the best work). The burette's own reading error is a separate
+/// part of a result's uncertainty, not of the endpoint's verdict.
+///
+/// ```
+/// use protolyte::analysis::EndpointCriterion;
+/// let c = EndpointCriterion::default().ph_window(0.1)?.relative_volume(0.001)?;
+/// assert_eq!(c.ph_window_value(), 0.1);
+/// assert!((c.tolerance_ml(20.0) - 0.02).abs() < 1e-15);
+/// assert!(EndpointCriterion::default().ph_window(0.0).is_err());
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct EndpointCriterion {
+    ph_window: f64,
+    relative_volume: f64,
+}
+
+impl Default for EndpointCriterion {
+    fn default() -> Self {
+        EndpointCriterion {
+            ph_window: 0.2,
+            relative_volume: 5e-3,
+        }
+    }
+}
+
+impl EndpointCriterion {
+    /// The pH-reading precision (±, pH units), 1e-3..=2; refused outside.
+    pub fn ph_window(mut self, dph: f64) -> Result<Self> {
+        self.ph_window = crate::error::check_parameter(
+            "endpoint criterion",
+            "pH window",
+            dph,
+            1e-3,
+            2.0,
+            "must be within 1e-3..=2",
+        )?;
+        Ok(self)
+    }
+
+    /// The relative volume precision (±, fraction of the equivalence volume), 1e-5..=0.1;
+    /// refused outside.
+    pub fn relative_volume(mut self, f: f64) -> Result<Self> {
+        self.relative_volume = crate::error::check_parameter(
+            "endpoint criterion",
+            "relative volume precision",
+            f,
+            1e-5,
+            0.1,
+            "must be within 1e-5..=0.1",
+        )?;
+        Ok(self)
+    }
+
+    /// The pH-reading precision.
+    pub fn ph_window_value(&self) -> f64 {
+        self.ph_window
+    }
+
+    /// The relative volume precision.
+    pub fn relative_volume_value(&self) -> f64 {
+        self.relative_volume
+    }
+
+    /// The volume tolerance (±, mL) for an endpoint at `volume_ml`.
+    pub fn tolerance_ml(&self, volume_ml: f64) -> f64 {
+        self.relative_volume * volume_ml.abs()
+    }
+}
+
+/// The verdict on one endpoint, read from the computed curve (see [`EndpointCriterion`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct EndpointVerdict {
+    /// True when the endpoint is located within the tolerance: both `ph_window_volumes_ml`
+    /// are found and each lies within `tolerance_ml` of the equivalence volume.
+    pub usable: bool,
+    /// The pH-reading precision used (±).
+    pub ph_window: f64,
+    /// The volume tolerance (±, mL).
+    pub tolerance_ml: f64,
+    /// Where the curve reaches pH_eq ∓ `ph_window` before and pH_eq ± `ph_window` after the
+    /// equivalence volume (mL); `None` on a side where the curve does not move that far before
+    /// the neighbouring equivalence point (or zero, or twice the volume for the last one).
+    pub ph_window_volumes_ml: (Option<f64>, Option<f64>),
+    /// The larger distance of the two volumes from the equivalence volume (mL): how well
+    /// reading the pH to ±`ph_window` locates the endpoint; `None` when a side is not found.
+    pub locating_error_ml: Option<f64>,
+    /// The pH change across the equivalence volume ± `tolerance_ml` (the steepness of the
+    /// break where it matters).
+    pub break_ph: f64,
+    /// |dpH/dV| at the equivalence volume, per mL.
+    pub slope_per_ml: f64,
+}
 
 /// One dissociation step of one family, with its thermodynamic pKa at the titration's
 /// temperature.
@@ -55,11 +168,14 @@ pub struct StepRef {
     pub pka: f64,
 }
 
-/// Why a break may not be usable (rules of thumb of the trade, common practice).
+/// Rules of thumb of the trade (common practice) that explain a break: why it is weak or
+/// absent. They do not decide whether an endpoint is usable; [`EndpointVerdict`] does, from
+/// the curve.
 #[derive(Debug, Clone, PartialEq)]
 #[non_exhaustive]
 pub enum BreakFlag {
-    /// The steps on both sides are closer than [`MERGE_DELTA_PKA`]: no separate break.
+    /// The steps on both sides are closer than [`MERGE_DELTA_PKA`]: no separate break. A
+    /// strong acid counts as a step of pKa [`STRONG_ACID_PKA`], a strong base as one of pKw.
     StepsMerge {
         /// pKa difference of the two steps.
         delta_pka: f64,
@@ -92,8 +208,10 @@ pub struct EquivalencePoint {
     pub next: Option<StepRef>,
     /// pH at (1 − f)·v and (1 + f)·v, the steep part of the break (f the steep fraction).
     pub steep_ph: (f64, f64),
-    /// Rule-of-thumb warnings; empty when none applies.
+    /// Rules of thumb that explain a weak or absent break; empty when none applies.
     pub flags: Vec<BreakFlag>,
+    /// The verdict from the curve: whether the endpoint can be located.
+    pub verdict: EndpointVerdict,
     /// Indicators whose whole transition range lies inside the steep part, nearest to the
     /// equivalence pH first.
     pub indicators: Vec<Indicator>,
@@ -109,9 +227,10 @@ impl EquivalencePoint {
         self.steep_ph.1 - self.steep_ph.0
     }
 
-    /// True when no rule of thumb flags the break.
+    /// True when the curve locates the endpoint within the criterion's tolerance
+    /// ([`EndpointVerdict::usable`]).
     pub fn usable(&self) -> bool {
-        self.flags.is_empty()
+        self.verdict.usable
     }
 }
 
@@ -122,16 +241,24 @@ pub enum DeviationCause {
     Activity,
     /// Other steps (of this family or others) taking or giving protons.
     OverlappingSteps,
-    /// Free H⁺ and OH⁻: the acid's own dissociation and water autoprotolysis, which grow
-    /// with dilution.
-    WaterAndDilution,
+    /// The step's acid form giving its proton to water: free H⁺ moves the half point up
+    /// (strong enough acids, dilute solutions).
+    AcidDissociation,
+    /// The step's base form taking a proton from water: free OH⁻ moves the half point down
+    /// (strong enough bases, dilute solutions).
+    BaseProtonation,
+    /// Water's own ions beyond those two effects (autoprotolysis, which matters in very
+    /// dilute solutions of steps near pKw/2).
+    Water,
 }
 
 /// A half-equivalence point and the model's account of how far its pH lies from pKa.
 ///
-/// pH(half) − pKa = activity + overlap + water, where activity = pH(model) − pH(ideal),
-/// overlap = pH(ideal) − pH(the step alone, ideal, same concentration and half
-/// neutralised), water = pH(step alone) − pKa.
+/// pH(half) − pKa = activity + overlap + dissociation + protonation + water, where
+/// activity = pH(model) − pH(ideal), overlap = pH(ideal) − pH(the step alone, ideal, same
+/// concentration C, half neutralised). The step alone obeys
+/// Ka = h·(C/2 + h − oh)/(C/2 − h + oh); dissociation is its pH with oh left out minus
+/// pKa, protonation its pH with h left out minus pKa, and water the rest.
 #[derive(Debug, Clone, PartialEq)]
 pub struct HalfEquivalencePoint {
     /// The step half titrated.
@@ -146,9 +273,13 @@ pub struct HalfEquivalencePoint {
     pub activity_part: f64,
     /// Share from overlapping steps.
     pub overlap_part: f64,
-    /// Share from free H⁺ and OH⁻ (dissociation, autoprotolysis, dilution).
+    /// Share from the acid form's dissociation (free H⁺).
+    pub dissociation_part: f64,
+    /// Share from the base form's protonation by water (free OH⁻).
+    pub protonation_part: f64,
+    /// The rest: water autoprotolysis coupling both.
     pub water_part: f64,
-    /// The largest of the three in magnitude.
+    /// The largest of the five in magnitude.
     pub main_cause: DeviationCause,
 }
 
@@ -267,6 +398,35 @@ impl Titration {
     /// ±`steep_fraction` of its volume (1e-5..0.5; refused outside) and indicators chosen
     /// from `table`.
     pub fn equivalence_points_with(&self, steep_fraction: f64, table: &[Indicator]) -> Result<Vec<EquivalencePoint>> {
+        self.equivalence_points_judged(steep_fraction, table, &EndpointCriterion::default())
+    }
+
+    /// The stoichiometric equivalence points as [`Titration::equivalence_points_with`], each
+    /// judged from the curve by `criterion` ([`EndpointVerdict`]).
+    ///
+    /// ```
+    /// use protolyte::analysis::{EndpointCriterion, Titration, indicators};
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe, Volume};
+    ///
+    /// let cat = Catalog::builtin();
+    /// let mut acid = Recipe::new();
+    /// acid.add(&cat.reagent("hydrochloric acid")?, Amount::molar(0.1))?;
+    /// let mut base = Recipe::new();
+    /// base.add(&cat.reagent("sodium hydroxide")?, Amount::molar(0.1))?;
+    /// let t = Titration::new(&acid, Volume::milliliters(25.0), &base, &Conditions::default())?;
+    /// let e = &t.equivalence_points_judged(0.005, indicators(), &EndpointCriterion::default())?[0];
+    /// // Strong acid, strong base: ±0.2 pH locates the endpoint far inside ±0.5 %.
+    /// assert!(e.usable());
+    /// assert!(e.verdict.locating_error_ml.unwrap() < 1e-3);
+    /// assert!(e.verdict.break_ph > 4.0);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn equivalence_points_judged(
+        &self,
+        steep_fraction: f64,
+        table: &[Indicator],
+        criterion: &EndpointCriterion,
+    ) -> Result<Vec<EquivalencePoint>> {
         let f = crate::error::check_parameter(
             "equivalence points",
             "steep fraction",
@@ -278,8 +438,11 @@ impl Titration {
         let lad = Ladder::of(self);
         let v0 = self.analyte_volume().liters_value();
         let n = lad.rungs.len();
-        let kw = 10f64.powf(self.system().log10_kw());
-        let mut out = Vec::new();
+        let pkw = -self.system().log10_kw();
+        let kw = 10f64.powf(-pkw);
+        // First the volumes and the rules of thumb, then the verdicts (which need the
+        // neighbouring volumes).
+        let mut raw = Vec::new();
         for j in 0..=n {
             let (la, lt) = lad.level(j);
             let Some(v) = lad.volume(v0, la, lt) else { continue };
@@ -288,13 +451,22 @@ impl Titration {
             let upper = lad.rungs.get(j);
             let (completed, next) = if base_titrant { (lower, upper) } else { (upper, lower) };
             let mut flags = Vec::new();
-            if let (Some(lo), Some(hi)) = (lower, upper) {
-                let d = hi.step.pka - lo.step.pka;
+            let overlap = |d: f64, flags: &mut Vec<BreakFlag>| {
                 if d < MERGE_DELTA_PKA {
                     flags.push(BreakFlag::StepsMerge { delta_pka: d });
                 } else if d < CLOSE_DELTA_PKA {
                     flags.push(BreakFlag::StepsClose { delta_pka: d });
                 }
+            };
+            match (lower, upper) {
+                (Some(lo), Some(hi)) => overlap(hi.step.pka - lo.step.pka, &mut flags),
+                // A strong acid beyond the ladder, neutralised by a base titrant before the
+                // first weak step: its step (H₃O⁺) against the most acidic weak one.
+                (None, Some(hi)) if base_titrant => overlap(hi.step.pka - STRONG_ACID_PKA, &mut flags),
+                // A strong base beyond the ladder, neutralised by an acid titrant before the
+                // most basic weak step: its step (H₂O/OH⁻, pKw) against that one.
+                (Some(lo), None) if !base_titrant => overlap(pkw - lo.step.pka, &mut flags),
+                _ => {}
             }
             // Terminal breaks: water on the far side.
             if base_titrant
@@ -315,30 +487,106 @@ impl Titration {
                     flags.push(BreakFlag::WeakStep { c_k });
                 }
             }
+            raw.push((
+                v,
+                j,
+                completed.map(|r| r.step.clone()),
+                next.map(|r| r.step.clone()),
+                flags,
+            ));
+        }
+        raw.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let volumes: Vec<f64> = raw.iter().map(|r| r.0).collect();
+        let mut out = Vec::with_capacity(raw.len());
+        for (i, (v, level, completed, next, flags)) in raw.into_iter().enumerate() {
             let ph = self.ph_at(Volume::liters(v))?;
             let before = self.ph_at(Volume::liters(v * (1.0 - f)))?;
             let after = self.ph_at(Volume::liters(v * (1.0 + f)))?;
+            let left = if i > 0 { volumes[i - 1] } else { 0.0 };
+            let right = volumes.get(i + 1).copied().unwrap_or(2.0 * v);
+            let verdict = self.verdict(v, ph, left, right, criterion)?;
             let nearest = table
                 .iter()
                 .min_by(|a, b| (a.ph_mid() - ph).abs().total_cmp(&(b.ph_mid() - ph).abs()))
-                .and_then(|i| {
-                    let ve = self.volume_for_ph(i.ph_mid(), Volume::liters(2.0 * v)).ok()?;
-                    Some((*i, (ve.liters_value() - v) / v))
+                .and_then(|ind| {
+                    let ve = self.volume_for_ph(ind.ph_mid(), Volume::liters(2.0 * v)).ok()?;
+                    Some((*ind, (ve.liters_value() - v) / v))
                 });
             out.push(EquivalencePoint {
                 volume_ml: v * 1e3,
                 ph,
-                level: j,
-                completed: completed.map(|r| r.step.clone()),
-                next: next.map(|r| r.step.clone()),
+                level,
+                completed,
+                next,
                 steep_ph: (before, after),
                 flags,
+                verdict,
                 indicators: indicators_within(table, before, after, ph),
                 nearest_indicator: nearest,
             });
         }
-        out.sort_by(|a, b| a.volume_ml.total_cmp(&b.volume_ml));
         Ok(out)
+    }
+
+    /// The verdict on the endpoint at `v` (L) with pH `ph`, searching for pH ± window between
+    /// `left` and `right` (L).
+    fn verdict(
+        &self,
+        v: f64,
+        ph: f64,
+        left: f64,
+        right: f64,
+        criterion: &EndpointCriterion,
+    ) -> Result<EndpointVerdict> {
+        let v_ml = v * 1e3;
+        let tol_ml = criterion.tolerance_ml(v_ml);
+        let w = criterion.ph_window;
+        let mut c = Cursor::new(self);
+        let centre = c.point(v, None)?;
+        let mut last = Some(centre.equilibrium.clone());
+        // |pH(u) − pH_eq| − w is negative at v and grows monotonically away from it.
+        let mut side = |far: f64| -> Result<Option<f64>> {
+            let mut g = |u: f64| -> Result<f64> {
+                let eq = c.solve(u, last.as_ref())?;
+                let d = (eq.ph() - ph).abs() - w;
+                last = Some(eq);
+                Ok(d)
+            };
+            if !(far.is_finite() && far >= 0.0) || g(far)? < 0.0 {
+                return Ok(None);
+            }
+            let (mut near, mut far) = (v, far);
+            for _ in 0..200 {
+                if (far - near).abs() <= 1e-10 * v {
+                    break;
+                }
+                let mid = 0.5 * (near + far);
+                if g(mid)? < 0.0 {
+                    near = mid;
+                } else {
+                    far = mid;
+                }
+            }
+            Ok(Some(0.5 * (near + far) * 1e3))
+        };
+        let lo = side(left)?;
+        let hi = side(right)?;
+        let locating = match (lo, hi) {
+            (Some(a), Some(b)) => Some((v_ml - a).max(b - v_ml)),
+            _ => None,
+        };
+        let t = tol_ml * 1e-3;
+        let below = self.ph_at(Volume::liters((v - t).max(0.0)))?;
+        let above = self.ph_at(Volume::liters(v + t))?;
+        Ok(EndpointVerdict {
+            usable: locating.is_some_and(|d| d <= tol_ml),
+            ph_window: w,
+            tolerance_ml: tol_ml,
+            ph_window_volumes_ml: (lo, hi),
+            locating_error_ml: locating,
+            break_ph: (above - below).abs(),
+            slope_per_ml: centre.dph_dv_per_ml.abs(),
+        })
     }
 
     /// The half-equivalence point of every step of the analyte's families that the titrant
@@ -359,7 +607,7 @@ impl Titration {
     /// // At 0.05 mol/L ionic strength the activity correction dominates (pH below pKa).
     /// assert_eq!(h.main_cause, DeviationCause::Activity);
     /// assert!(h.deviation < -0.05);
-    /// let sum = h.activity_part + h.overlap_part + h.water_part;
+    /// let sum = h.activity_part + h.overlap_part + h.dissociation_part + h.protonation_part + h.water_part;
     /// assert!((sum - h.deviation).abs() < 1e-9);
     /// # Ok::<(), protolyte::Error>(())
     /// ```
@@ -389,11 +637,16 @@ impl Titration {
             let pka = rung.step.pka;
             let activity_part = ph - ph_ideal;
             let overlap_part = ph_ideal - ph_alone;
-            let water_part = ph_alone - pka;
+            let (ph_h, ph_oh) = step_alone_one_sided(pka, cf, self.system().log10_kw());
+            let dissociation_part = ph_h - pka;
+            let protonation_part = ph_oh - pka;
+            let water_part = ph_alone - pka - dissociation_part - protonation_part;
             let main_cause = [
                 (activity_part.abs(), DeviationCause::Activity),
                 (overlap_part.abs(), DeviationCause::OverlappingSteps),
-                (water_part.abs(), DeviationCause::WaterAndDilution),
+                (dissociation_part.abs(), DeviationCause::AcidDissociation),
+                (protonation_part.abs(), DeviationCause::BaseProtonation),
+                (water_part.abs(), DeviationCause::Water),
             ]
             .into_iter()
             .max_by(|a, b| a.0.total_cmp(&b.0))
@@ -406,6 +659,8 @@ impl Titration {
                 deviation: ph - pka,
                 activity_part,
                 overlap_part,
+                dissociation_part,
+                protonation_part,
                 water_part,
                 main_cause,
             });
@@ -493,6 +748,24 @@ fn step_alone(pka: f64, c: f64, like: &System) -> Result<f64> {
     Ok(r.compile(&Conditions::new(like.temperature(), ActivityModel::Ideal))?
         .solve()?
         .ph())
+}
+
+/// The lone step of `pka` at `c` mol/kg, half neutralised, ideal: its pH with free OH⁻ left
+/// out (h² + (C/2 + Ka)·h − Ka·C/2 = 0) and with free H⁺ left out (the same in oh with
+/// Kb = Kw/Ka), each from the stable root of its quadratic.
+fn step_alone_one_sided(pka: f64, c: f64, log10_kw: f64) -> (f64, f64) {
+    let root = |k: f64| {
+        // x² + (c/2 + k)·x − k·c/2 = 0, the positive root without cancellation.
+        let b = 0.5 * c + k;
+        k * c / (b + (b * b + 2.0 * k * c).sqrt())
+    };
+    let ka = 10f64.powf(-pka);
+    let kb = 10f64.powf(log10_kw + pka);
+    let h = root(ka);
+    let oh = root(kb);
+    let ph_h = if h > 0.0 { -h.log10() } else { pka };
+    let ph_oh = if oh > 0.0 { -log10_kw + oh.log10() } else { pka };
+    (ph_h, ph_oh)
 }
 
 /// An endpoint found by the derivative method on measured data.

@@ -123,7 +123,62 @@ pub struct FitReport {
     pub converged: bool,
 }
 
+/// Two estimates whose correlation exceeds this in magnitude carry a warning: their standard
+/// errors then mean little, since the data fix only a combination of the two (common
+/// practice).
+pub const CORRELATION_WARNING: f64 = 0.99;
+
 impl FitReport {
+    /// The pairs of estimates (indices in declaration order, i < j) whose correlation
+    /// exceeds `threshold` in magnitude, with the correlation.
+    ///
+    /// ```
+    /// use nalgebra::DMatrix;
+    /// use protolyte::analysis::{Estimate, FitReport, Scope, Unknown};
+    /// use protolyte::analysis::fit::CORRELATION_WARNING;
+    ///
+    /// let e = |u: Unknown| Estimate { unknown: u, scope: Scope::Shared, start: 0.0, value: 0.0, standard_error: 0.1 };
+    /// let report = FitReport {
+    ///     estimates: vec![e(Unknown::pka("acetate", 0)), e(Unknown::ElectrodeOffset)],
+    ///     correlation: DMatrix::from_row_slice(2, 2, &[1.0, -0.995, -0.995, 1.0]),
+    ///     residuals: vec![], residual_sd: 0.005, degrees_of_freedom: 10, iterations: 4, converged: true,
+    /// };
+    /// assert_eq!(report.correlated_pairs(CORRELATION_WARNING), vec![(0, 1, -0.995)]);
+    /// assert_eq!(report.warnings().len(), 1);
+    /// ```
+    pub fn correlated_pairs(&self, threshold: f64) -> Vec<(usize, usize, f64)> {
+        let p = self
+            .estimates
+            .len()
+            .min(self.correlation.nrows())
+            .min(self.correlation.ncols());
+        let mut out = Vec::new();
+        for i in 0..p {
+            for j in i + 1..p {
+                let r = self.correlation[(i, j)];
+                if r.is_finite() && r.abs() > threshold {
+                    out.push((i, j, r));
+                }
+            }
+        }
+        out
+    }
+
+    /// Sentences about the fit a reader must know: each pair of estimates correlated beyond
+    /// [`CORRELATION_WARNING`].
+    pub fn warnings(&self) -> Vec<String> {
+        self.correlated_pairs(CORRELATION_WARNING)
+            .into_iter()
+            .map(|(i, j, r)| {
+                format!(
+                    "{} and {} correlate (r = {r:+.4}): the data fix only a combination of the two, so their standard errors mean little; fix one of them or add data that separate them",
+                    self.estimates[i].unknown.describe(),
+                    self.estimates[j].unknown.describe()
+                )
+            })
+            .collect()
+    }
+
     /// The estimate of `unknown` (the first one declared, whatever its scope).
     pub fn estimate(&self, unknown: &Unknown) -> Option<&Estimate> {
         self.estimates.iter().find(|e| &e.unknown == unknown)

@@ -1,6 +1,6 @@
 //! Analyses built on the solver: titration curves, endpoints, buffer capacity, buffer
 //! design, fitting of measured data, uncertainty propagation, and water analyses (ion
-//! balance, Langelier index). None of them re-derives
+//! balance, Langelier index, calcium carbonate precipitation potential, dose search). None of them re-derives
 //! the chemistry: each compiles or re-totals a [`System`](crate::System), solves it with a
 //! [`Solver`](crate::Solver) and reads derivatives from
 //! [`Sensitivities`](crate::Sensitivities).
@@ -10,6 +10,7 @@ pub mod design;
 pub mod endpoints;
 pub mod fit;
 pub mod indicators;
+pub mod measured;
 pub mod target;
 pub mod titration;
 pub mod uncertainty;
@@ -18,8 +19,8 @@ pub mod water;
 pub use capacity::{CapacityCurve, CapacityPeak, CapacityPoint, capacity_along};
 pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};
 pub use endpoints::{
-    BreakFlag, DerivativeEndpoint, DeviationCause, EquivalencePoint, GranFit, GranFunction, HalfEquivalencePoint,
-    Inflection, StepRef, derivative_endpoints, gran_fit,
+    BreakFlag, DerivativeEndpoint, DeviationCause, EndpointCriterion, EndpointVerdict, EquivalencePoint, GranFit,
+    GranFunction, HalfEquivalencePoint, Inflection, StepRef, derivative_endpoints, gran_fit,
 };
 pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
 pub use indicators::{Indicator, indicators, indicators_within};

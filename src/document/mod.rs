@@ -6,7 +6,8 @@
 //! [`FitResult`] out) that convert to and from the library's types, so the core types carry
 //! no serialisation attributes. Every document names its format and version in a `format`
 //! field (`"protolyte-recipe/1"`, `"protolyte-titration/1"`, `"protolyte-design/1"`,
-//! `"protolyte-fit/1"`); the full description with examples is in `docs/recipe-format.md`
+//! `"protolyte-fit/1"`, `"protolyte-calibration/1"`, `"protolyte-measured/1"`); the full
+//! description with examples is in `docs/recipe-format.md`
 //! and the JSON Schema in `schema/recipe.schema.json`.
 //!
 //! A bad document gives a [`DocumentError`] that names the file and the line and column (a
@@ -39,7 +40,9 @@
 pub mod batch;
 mod input;
 pub mod limits;
+mod measured;
 mod output;
+mod requests;
 
 use std::borrow::Cow;
 use std::path::Path;
@@ -47,14 +50,20 @@ use std::path::Path;
 use serde::de::DeserializeOwned;
 
 pub use input::{
-    ActivityDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc, FitDoc, IonDef,
-    IonicStrengthDoc, MeasuredPoint, PhConventionDoc, ProtolyteDef, ReagentDef, ReagentPartDef, RecipeDoc, SolutionDoc,
-    StockDoc, TitrationDoc, UnknownDoc,
+    ActivityDoc, AllowSolidsDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc,
+    FitDoc, IonDef, IonicStrengthDoc, MeasuredPoint, PartialPressureDoc, PhConventionDoc, ProtolyteDef, ReagentDef,
+    ReagentPartDef, RecipeDoc, SolutionDoc, StockDoc, TitrationDoc, UnknownDoc,
+};
+pub use measured::{
+    AnalyteDoc, BudgetResult, BufferDoc, CalibrationDoc, CalibrationResult, ColumnDoc, DataDoc, DerivativeResult,
+    GranResult, MeasuredDoc, MeasuredResult, ModelDoc, SampleDoc, ValueResult,
 };
 pub use output::{
-    DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, HalfEquivalenceResult,
-    PhShiftResult, ResidualsResult, SolveResult, SpeciesResult, TitrationPointResult, TitrationResult,
+    ChargeBalanceIonResult, DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult,
+    GasResult, HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
+    TitrationPointResult, TitrationResult, VerdictResult,
 };
+pub use requests::{RequestError, RequestRecord, TitrationRun, run_design, run_titration};
 
 /// The format tag of a recipe document.
 pub const RECIPE_FORMAT: &str = "protolyte-recipe/1";
@@ -64,6 +73,10 @@ pub const TITRATION_FORMAT: &str = "protolyte-titration/1";
 pub const DESIGN_FORMAT: &str = "protolyte-design/1";
 /// The format tag of a fit request.
 pub const FIT_FORMAT: &str = "protolyte-fit/1";
+/// The format tag of a measured-titration request (`protolyte analyze`).
+pub const MEASURED_FORMAT: &str = "protolyte-measured/1";
+/// The format tag of an electrode calibration request (`protolyte calibrate`).
+pub const CALIBRATION_FORMAT: &str = "protolyte-calibration/1";
 /// The format tag of every result document.
 pub const RESULT_FORMAT: &str = "protolyte-result/1";
 
@@ -285,7 +298,98 @@ fn check_size(bytes: usize, file: &str) -> Result<(), DocumentError> {
 /// # Ok::<(), protolyte::document::DocumentError>(())
 /// ```
 pub fn load<T: DeserializeOwned>(path: impl AsRef<Path>) -> Result<T, DocumentError> {
-    let path = path.as_ref();
+    let (text, name, is_toml) = load_text(path.as_ref())?;
+    if is_toml {
+        parse_toml(&text, &name)
+    } else {
+        parse(&text, &name)
+    }
+}
+
+/// The document kinds this library reads: format tag, what it is, the command that reads it.
+pub const DOCUMENT_KINDS: [(&str, &str, &str); 7] = [
+    (
+        RECIPE_FORMAT,
+        "a recipe",
+        "protolyte solve (or one line of protolyte batch)",
+    ),
+    (
+        TITRATION_FORMAT,
+        "a titration request",
+        "protolyte titrate (or one line of protolyte batch)",
+    ),
+    (
+        DESIGN_FORMAT,
+        "a buffer design request",
+        "protolyte design (or one line of protolyte batch)",
+    ),
+    (FIT_FORMAT, "a fit request", "protolyte fit"),
+    (
+        RESULT_FORMAT,
+        "a result document (written by this program)",
+        "no command: it is output",
+    ),
+    (MEASURED_FORMAT, "a measured-titration request", "protolyte analyze"),
+    (CALIBRATION_FORMAT, "an electrode calibration", "protolyte calibrate"),
+];
+
+/// As [`load`], and when the text is not a valid document of the kind tagged `expected` but
+/// its `format` tag names another kind, the error says which kind it is and which command
+/// reads it.
+///
+/// ```
+/// use protolyte::document::{TITRATION_FORMAT, TitrationDoc, load_expecting};
+/// let dir = std::env::temp_dir().join("protolyte-load-expecting-doc");
+/// std::fs::create_dir_all(&dir).unwrap();
+/// let p = dir.join("r.json");
+/// std::fs::write(&p, r#"{"format": "protolyte-recipe/1", "reagents": []}"#).unwrap();
+/// let e = load_expecting::<TitrationDoc>(&p, TITRATION_FORMAT).unwrap_err();
+/// assert!(e.to_string().contains("a recipe") && e.to_string().contains("protolyte solve"));
+/// ```
+pub fn load_expecting<T: DeserializeOwned>(path: impl AsRef<Path>, expected: &str) -> Result<T, DocumentError> {
+    let (text, name, is_toml) = load_text(path.as_ref())?;
+    let parsed = if is_toml {
+        parse_toml(&text, &name)
+    } else {
+        parse(&text, &name)
+    };
+    parsed.map_err(|e| match format_tag(&text, is_toml) {
+        Some(tag) if tag != expected => match DOCUMENT_KINDS.iter().find(|k| k.0 == tag) {
+            Some((_, what, command)) => {
+                let want = DOCUMENT_KINDS
+                    .iter()
+                    .find(|k| k.0 == expected)
+                    .map(|k| k.1)
+                    .unwrap_or("another kind");
+                DocumentError::Field {
+                    file: name.clone(),
+                    field: "format".into(),
+                    message: format!("this is {what} (`{tag}`), not {want} (`{expected}`); it is read by {command}"),
+                }
+            }
+            None => e,
+        },
+        _ => e,
+    })
+}
+
+/// The `format` tag of a document's text, when it can be read.
+fn format_tag(text: &str, is_toml: bool) -> Option<String> {
+    #[derive(serde::Deserialize)]
+    struct Tag {
+        format: Option<String>,
+    }
+    let text = without_bom(text);
+    let tag: Tag = if is_toml || !looks_like_json(text) {
+        toml::from_str(text).ok()?
+    } else {
+        serde_json::from_str(text).ok()?
+    };
+    tag.format
+}
+
+/// The text of a document, its name for messages, and whether it is TOML by its extension.
+fn load_text(path: &Path) -> Result<(String, String, bool), DocumentError> {
     let name = if path == Path::new("-") {
         "<stdin>".to_string()
     } else {
@@ -308,11 +412,7 @@ pub fn load<T: DeserializeOwned>(path: impl AsRef<Path>) -> Result<T, DocumentEr
         }
     };
     let is_toml = path.extension().is_some_and(|e| e.eq_ignore_ascii_case("toml"));
-    if is_toml {
-        parse_toml(&text, &name)
-    } else {
-        parse(&text, &name)
-    }
+    Ok((text, name, is_toml))
 }
 
 /// The text of `path`, or `Err(())` when it is over the size limit (reading stops just past

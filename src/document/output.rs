@@ -8,8 +8,8 @@ use serde::{Deserialize, Serialize};
 use super::input::{ActivityDoc, RecipeDoc};
 use super::{RESULT_FORMAT, finite};
 use crate::analysis::{
-    BreakFlag, BufferRecipe, DeviationCause, EquivalencePoint, FitReport, HalfEquivalencePoint, Measure, PhShift, Role,
-    Scope, TitrationPoint,
+    BreakFlag, BufferRecipe, DeviationCause, EndpointVerdict, EquivalencePoint, FitReport, HalfEquivalencePoint,
+    Measure, PhShift, Role, Scope, TitrationPoint,
 };
 use crate::{Conditions, Equilibrium, Warning};
 
@@ -87,6 +87,67 @@ pub struct ResidualsResult {
     pub max_relative: f64,
 }
 
+/// The saturation state of one solid in a result.
+///
+/// ```
+/// use protolyte::document::SolidResult;
+/// let s: SolidResult = serde_json::from_str(
+///     r#"{"name":"calcite","saturation_index":0.4,"log10_iap":-8.1,"log10_k":-8.5,"allowed":false,"amount_mol_per_kg":0.0}"#)?;
+/// assert!(s.saturation_index.unwrap() > 0.0);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SolidResult {
+    /// The solid's name.
+    pub name: String,
+    /// SI = log₁₀ IAP − log₁₀ K(T): above 0 supersaturated, below 0 undersaturated.
+    pub saturation_index: Option<f64>,
+    /// log₁₀ of the ion activity product.
+    pub log10_iap: Option<f64>,
+    /// log₁₀ K of the dissolution reaction at the temperature.
+    pub log10_k: Option<f64>,
+    /// True when the solid was allowed to form.
+    pub allowed: bool,
+    /// Amount present at equilibrium, mol per kg of water (0 unless allowed and stable).
+    pub amount_mol_per_kg: f64,
+}
+
+/// The ion that closed the charge balance and how much of it the balance took.
+///
+/// ```
+/// use protolyte::document::ChargeBalanceIonResult;
+/// let c = ChargeBalanceIonResult { ion: "sodium".into(), added_mol_per_kg: 2e-3 };
+/// assert_eq!(c.ion, "sodium");
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ChargeBalanceIonResult {
+    /// The ion's name.
+    pub ion: String,
+    /// The amount of it the charge balance added, mol per kg of water (negative: removed).
+    pub added_mol_per_kg: f64,
+}
+
+/// The state of one gas in a result.
+///
+/// ```
+/// use protolyte::document::GasResult;
+/// let g: GasResult = serde_json::from_str(
+///     r#"{"name":"CO2(g)","partial_pressure_atm":4.2e-4,"fixed":true,"taken_up_mol_per_kg":1e-5}"#)?;
+/// assert!(g.fixed);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GasResult {
+    /// The gas's name.
+    pub name: String,
+    /// Partial pressure in equilibrium with the solution (the one imposed when `fixed`), atm.
+    pub partial_pressure_atm: Option<f64>,
+    /// True when the partial pressure was imposed (an open system).
+    pub fixed: bool,
+    /// Amount taken up from the gas phase, mol per kg of water (negative: given off).
+    pub taken_up_mol_per_kg: f64,
+}
+
 /// The result of solving one recipe.
 ///
 /// ```
@@ -134,6 +195,30 @@ pub struct SolveResult {
     pub families: Vec<FamilyResult>,
     /// Balance residuals.
     pub residuals: ResidualsResult,
+    /// Total alkalinity, eq per kg of water (the proton condition relative to H2CO3,
+    /// H2PO4-, ... : acids with pKa ≥ 4.5; an end point near pH 4.5).
+    #[serde(default)]
+    pub total_alkalinity_eq_per_kg: f64,
+    /// Carbonate alkalinity, eq per kg of water: HCO3- + 2 CO3^2- (ion pairs counted).
+    #[serde(default)]
+    pub carbonate_alkalinity_eq_per_kg: f64,
+    /// Dissolved inorganic carbon, mol per kg of water.
+    #[serde(default)]
+    pub dic_mol_per_kg: f64,
+    /// With a fixed pH: the H+ taken up to hold it, mol per kg of water (negative: base);
+    /// left out when zero (no fixed pH).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub proton_uptake_mol_per_kg: Option<f64>,
+    /// With the charge balance closed on an ion: that ion and the amount of it the balance
+    /// added, mol per kg of water.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub charge_balance_ion: Option<ChargeBalanceIonResult>,
+    /// Every reported gas whose family is present.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub gases: Vec<GasResult>,
+    /// Every reported solid whose parts are present, with its saturation index.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub solids: Vec<SolidResult>,
     /// Warnings, as sentences.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub warnings: Vec<String>,
@@ -192,6 +277,38 @@ impl SolveResult {
                 max_balance_relative: r.max_balance_relative(),
                 max_relative: finite(r.max_relative()).unwrap_or(f64::MAX),
             },
+            total_alkalinity_eq_per_kg: eq.total_alkalinity_molal(),
+            carbonate_alkalinity_eq_per_kg: eq.carbonate_alkalinity_molal(),
+            dic_mol_per_kg: eq.dic_molal(),
+            proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0).then(|| eq.proton_uptake_molal()),
+            charge_balance_ion: eq
+                .charge_balance_ion_added_molal()
+                .map(|(ion, v)| ChargeBalanceIonResult {
+                    ion: ion.to_string(),
+                    added_mol_per_kg: v,
+                }),
+            gases: eq
+                .gases()
+                .iter()
+                .map(|g| GasResult {
+                    name: g.name.to_string(),
+                    partial_pressure_atm: finite(g.partial_pressure.as_atm()),
+                    fixed: g.fixed,
+                    taken_up_mol_per_kg: g.taken_up_molal,
+                })
+                .collect(),
+            solids: eq
+                .solids()
+                .iter()
+                .map(|s| SolidResult {
+                    name: s.name.to_string(),
+                    saturation_index: finite(s.saturation_index),
+                    log10_iap: finite(s.log10_iap),
+                    log10_k: finite(s.log10_k),
+                    allowed: s.allowed,
+                    amount_mol_per_kg: s.amount_molal,
+                })
+                .collect(),
             warnings: warnings(eq.warnings()),
         }
     }
@@ -201,6 +318,33 @@ impl SolveResult {
         self.name = name;
         self
     }
+}
+
+/// A buffer should lie within one pH unit of its pKa (common practice): beyond, its capacity
+/// is less than a third of its peak.
+pub const BUFFER_PKA_DISTANCE: f64 = 1.0;
+
+/// A warning when the design's target pH lies more than [`BUFFER_PKA_DISTANCE`] from every
+/// pKa (at the temperature) of the families in its recipe.
+fn far_from_pka(r: &BufferRecipe, conditions: &Conditions) -> Option<String> {
+    let sys = r.recipe.compile(conditions).ok()?;
+    let nearest = sys
+        .families()
+        .iter()
+        .enumerate()
+        .flat_map(|(fi, f)| {
+            let sys = &sys;
+            (0..f.protolyte.proton_count())
+                .filter_map(move |k| sys.pka(fi, k).map(|p| (p, f.protolyte.name().to_string())))
+        })
+        .min_by(|a, b| (a.0 - r.target_ph).abs().total_cmp(&(b.0 - r.target_ph).abs()))?;
+    let d = (nearest.0 - r.target_ph).abs();
+    (d > BUFFER_PKA_DISTANCE).then(|| {
+        format!(
+            "the target pH {:.2} lies {d:.2} pH units from the nearest pKa ({:.2}, {}): the buffer capacity is low there; a buffer whose pKa lies within ±1 of the target holds its pH better (common practice)",
+            r.target_ph, nearest.0, nearest.1
+        )
+    })
 }
 
 /// One point of a titration curve.
@@ -251,7 +395,12 @@ pub struct EquivalenceResult {
     pub completed_step: Option<String>,
     /// pH at the start and the end of the steep part.
     pub steep_ph: [f64; 2],
-    /// Why the break may not be usable (empty when usable).
+    /// The verdict from the curve: whether the endpoint can be located. The text output and
+    /// the plot read the same field.
+    #[serde(default)]
+    pub verdict: VerdictResult,
+    /// Rules of thumb that explain a weak or absent break (empty when none applies); the
+    /// verdict does not depend on them.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub flags: Vec<String>,
     /// Indicators whose range lies inside the steep part.
@@ -263,6 +412,46 @@ pub struct EquivalenceResult {
     /// Its titration error, relative.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub nearest_indicator_error: Option<f64>,
+}
+
+/// The verdict on one endpoint, from the computed curve (see
+/// [`EndpointCriterion`](crate::analysis::EndpointCriterion)).
+///
+/// ```
+/// use protolyte::document::VerdictResult;
+/// let v = VerdictResult::default();
+/// assert!(!v.usable);
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct VerdictResult {
+    /// True when reading the pH to ±`ph_window` locates the endpoint within ±`tolerance_ml`.
+    pub usable: bool,
+    /// The pH-reading precision (±).
+    pub ph_window: f64,
+    /// The volume tolerance (±, mL).
+    pub tolerance_ml: f64,
+    /// How far from the equivalence volume the curve reaches pH_eq ± `ph_window` (the larger
+    /// side, mL); absent when the curve does not move that far before the neighbouring
+    /// equivalence point.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub locating_error_ml: Option<f64>,
+    /// The pH change across the equivalence volume ± `tolerance_ml`.
+    pub break_ph: f64,
+    /// |dpH/dV| at the equivalence volume, per mL.
+    pub slope_per_ml: f64,
+}
+
+impl From<&EndpointVerdict> for VerdictResult {
+    fn from(v: &EndpointVerdict) -> Self {
+        VerdictResult {
+            usable: v.usable,
+            ph_window: v.ph_window,
+            tolerance_ml: v.tolerance_ml,
+            locating_error_ml: v.locating_error_ml.and_then(finite),
+            break_ph: finite(v.break_ph).unwrap_or(0.0),
+            slope_per_ml: finite(v.slope_per_ml).unwrap_or(0.0),
+        }
+    }
 }
 
 fn flag_text(f: &BreakFlag) -> String {
@@ -280,6 +469,7 @@ impl From<&EquivalencePoint> for EquivalenceResult {
             ph: e.ph,
             completed_step: e.completed.as_ref().map(|s| format!("{} pKa{}", s.family, s.step + 1)),
             steep_ph: [e.steep_ph.0, e.steep_ph.1],
+            verdict: (&e.verdict).into(),
             flags: e.flags.iter().map(flag_text).collect(),
             indicators: e.indicators.iter().map(|i| i.name.to_string()).collect(),
             nearest_indicator: e.nearest_indicator.as_ref().map(|(i, _)| i.name.to_string()),
@@ -313,9 +503,16 @@ pub struct HalfEquivalenceResult {
     pub activity_part: f64,
     /// Share from overlapping steps.
     pub overlap_part: f64,
-    /// Share from free H⁺ and OH⁻.
+    /// Share from the acid form's dissociation (free H⁺).
+    #[serde(default)]
+    pub dissociation_part: f64,
+    /// Share from the base form's protonation by water (free OH⁻).
+    #[serde(default)]
+    pub protonation_part: f64,
+    /// Share from water autoprotolysis beyond those two.
     pub water_part: f64,
-    /// The largest share: "activity", "overlapping steps" or "water and dilution".
+    /// The largest share: "activity", "overlapping steps", "the acid's own dissociation",
+    /// "the base's own protonation" or "water autoprotolysis".
     pub main_cause: String,
 }
 
@@ -330,11 +527,15 @@ impl From<&HalfEquivalencePoint> for HalfEquivalenceResult {
             deviation: h.deviation,
             activity_part: h.activity_part,
             overlap_part: h.overlap_part,
+            dissociation_part: h.dissociation_part,
+            protonation_part: h.protonation_part,
             water_part: h.water_part,
             main_cause: match h.main_cause {
                 DeviationCause::Activity => "activity",
                 DeviationCause::OverlappingSteps => "overlapping steps",
-                DeviationCause::WaterAndDilution => "water and dilution",
+                DeviationCause::AcidDissociation => "the acid's own dissociation",
+                DeviationCause::BaseProtonation => "the base's own protonation",
+                DeviationCause::Water => "water autoprotolysis",
             }
             .into(),
         }
@@ -368,6 +569,10 @@ pub struct TitrationResult {
     pub equivalence_points: Vec<EquivalenceResult>,
     /// Half-equivalence points.
     pub half_equivalence_points: Vec<HalfEquivalenceResult>,
+    /// What the reader should know about the curve as asked for (for example that it stops
+    /// before its first equivalence point), as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notes: Vec<String>,
 }
 
 /// One line of a designed buffer recipe.
@@ -515,7 +720,11 @@ impl DesignResult {
             buffer_capacity_mol_per_l: finite(r.buffer_capacity_mol_per_l).unwrap_or(0.0),
             temperature_shifts: r.temperature_shifts.iter().map(PhShiftResult::from).collect(),
             dilution_shift: (&r.dilution_shift).into(),
-            warnings: warnings(&r.warnings),
+            warnings: {
+                let mut w = warnings(&r.warnings);
+                w.extend(far_from_pka(r, conditions));
+                w
+            },
             recipe: RecipeDoc::from_recipe(&r.recipe, conditions),
             check,
         }
@@ -573,6 +782,9 @@ pub struct FitResult {
     pub iterations: usize,
     /// True when the fit stopped on convergence rather than the iteration budget.
     pub converged: bool,
+    /// Warnings about the fit (estimates correlated beyond |r| = 0.99), as sentences.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 impl From<&FitReport> for FitResult {
@@ -611,6 +823,7 @@ impl From<&FitReport> for FitResult {
             degrees_of_freedom: f.degrees_of_freedom,
             iterations: f.iterations,
             converged: f.converged,
+            warnings: f.warnings(),
         }
     }
 }

@@ -16,6 +16,9 @@
 
 pub(crate) mod fast;
 pub(crate) mod newton;
+mod workspace;
+
+pub use workspace::{PhSolution, Workspace};
 
 use crate::error::Result;
 use crate::system::System;

@@ -987,10 +987,7 @@ pub(crate) fn solve_phases(
         .phases
         .iter()
         .position(|r| matches!(r.kind, RowKind::Alkalinity { .. }));
-    let closure_row = sys
-        .phases
-        .iter()
-        .position(|r| matches!(r.kind, RowKind::Closure));
+    let closure_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Closure));
     let ph_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Ph { .. }));
     let pos_of = |c: usize| act.iter().position(|&a| a == c);
     let h_charge = totals[0];
