@@ -41,16 +41,25 @@ fn bench(c: &mut Criterion) {
 
     // (b) Calcite and gypsum allowed, CO2 fixed at 420 µatm.
     let mut r = Recipe::new();
-    r.add(&cat.reagent("calcium chloride").expect("reagent"), Amount::millimolar(30.0))
-        .expect("amount")
-        .add(&cat.reagent("sodium sulfate").expect("reagent"), Amount::millimolar(25.0))
-        .expect("amount")
-        .add(&cat.reagent("sodium carbonate").expect("reagent"), Amount::millimolar(5.0))
-        .expect("amount")
-        .allow_solid(&cat.solid("calcite").expect("solid"))
-        .allow_solid(&cat.solid("gypsum").expect("solid"))
-        .fix_partial_pressure(&cat.gas("CO2(g)").expect("gas"), Pressure::microatm(420.0))
-        .expect("pressure");
+    r.add(
+        &cat.reagent("calcium chloride").expect("reagent"),
+        Amount::millimolar(30.0),
+    )
+    .expect("amount")
+    .add(
+        &cat.reagent("sodium sulfate").expect("reagent"),
+        Amount::millimolar(25.0),
+    )
+    .expect("amount")
+    .add(
+        &cat.reagent("sodium carbonate").expect("reagent"),
+        Amount::millimolar(5.0),
+    )
+    .expect("amount")
+    .allow_solid(&cat.solid("calcite").expect("solid"))
+    .allow_solid(&cat.solid("gypsum").expect("solid"))
+    .fix_partial_pressure(&cat.gas("CO2(g)").expect("gas"), Pressure::microatm(420.0))
+    .expect("pressure");
     let two = r.compile(&conditions).expect("compile");
     let eq = two.solve().expect("solve");
     assert!(eq.solids().iter().filter(|s| s.amount_molal > 0.0).count() == 2);

@@ -227,7 +227,14 @@ impl Recipe {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn fix_alkalinity(&mut self, molal: f64) -> Result<&mut Self> {
-        crate::error::check_parameter("total alkalinity", "mol/kg", molal, -100.0, 100.0, "must be finite and within ±100")?;
+        crate::error::check_parameter(
+            "total alkalinity",
+            "mol/kg",
+            molal,
+            -100.0,
+            100.0,
+            "must be finite and within ±100",
+        )?;
         let new = Constraint::Alkalinity(molal);
         self.check_new_constraint(&new)?;
         self.constraints.push(new);

@@ -434,7 +434,8 @@ fn refuse_phases(sys: &System) -> Result<()> {
     if sys.has_phase_constraints() {
         return Err(Error::InconsistentDefinition {
             name: "sensitivities".into(),
-            reason: "not available for a system with fixed pH, partial pressures, alkalinity or solids allowed to form".into(),
+            reason: "not available for a system with fixed pH, partial pressures, alkalinity or solids allowed to form"
+                .into(),
         });
     }
     Ok(())

@@ -711,7 +711,9 @@ impl System {
     /// True when the system holds a fixed pH, a fixed partial pressure or a solid allowed to
     /// form: it is then solved on the general path with those relations.
     pub(crate) fn has_phase_constraints(&self) -> bool {
-        self.phases.iter().any(|r| r.is_equality() || r.is_inequality() || r.is_amount())
+        self.phases
+            .iter()
+            .any(|r| r.is_equality() || r.is_inequality() || r.is_amount())
     }
 
     /// The names of the solids whose saturation index this system reports, in order.

@@ -265,7 +265,10 @@ fn water_analysis_from_alkalinity_and_dic() {
     r.fix_dic(1e-3).unwrap().fix_alkalinity(5e-3).unwrap();
     r.close_charge_balance_on(&cat.ion("chloride").unwrap()).unwrap();
     let err = r.compile(&ideal()).unwrap().solve().unwrap_err();
-    assert!(matches!(err, Error::InfeasiblePhases { .. }) && err.to_string().contains("chloride"), "{err}");
+    assert!(
+        matches!(err, Error::InfeasiblePhases { .. }) && err.to_string().contains("chloride"),
+        "{err}"
+    );
 }
 
 #[test]
@@ -273,7 +276,10 @@ fn fixed_ph_with_the_balance_closed_on_an_ion() {
     let cat = Catalog::builtin();
     let mut r = Recipe::new();
     r.add(&cat.reagent("ammonia").unwrap(), Amount::molal(0.01)).unwrap();
-    r.fix_ph(9.0).unwrap().close_charge_balance_on(&cat.ion("chloride").unwrap()).unwrap();
+    r.fix_ph(9.0)
+        .unwrap()
+        .close_charge_balance_on(&cat.ion("chloride").unwrap())
+        .unwrap();
     let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
     assert!((eq.ph() - 9.0).abs() < 1e-10);
     assert!(eq.residuals().max_relative() < 1e-10, "{:?}", eq.residuals());
@@ -290,11 +296,16 @@ fn fixed_ph_with_the_balance_closed_on_an_ion() {
     let mut r = Recipe::new();
     r.fix_ph(7.0).unwrap();
     let err = r.fix_alkalinity(1e-3).unwrap_err();
-    assert!(err.to_string().contains("pH fixed at 7") && err.to_string().contains("alkalinity"), "{err}");
+    assert!(
+        err.to_string().contains("pH fixed at 7") && err.to_string().contains("alkalinity"),
+        "{err}"
+    );
     // DIC beside a fixed pCO2 would set the carbonate total twice.
     let mut r = Recipe::new();
     r.fix_dic(1e-3).unwrap();
-    let err = r.fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(1e-3)).unwrap_err();
+    let err = r
+        .fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(1e-3))
+        .unwrap_err();
     assert!(matches!(err, Error::ConflictingConstraints { .. }), "{err}");
 }
 
@@ -357,5 +368,45 @@ proptest! {
         let again = Solver::default().solve_from(&sys, &first).unwrap();
         prop_assert!((again.ph() - eq.ph()).abs() <= 1e-9, "{} {}", again.ph(), eq.ph());
         prop_assert!((again.dissolved_total_molal("calcium").unwrap() / dissolved - 1.0).abs() <= 1e-8);
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(48))]
+
+    /// Every catalogue solid allowed, on hard waters with magnesium, sodium hydroxide and the
+    /// catalogue's ion pairs, open or closed to CO2: the assemblage keeps every solid at or
+    /// below saturation, the present ones at it, and every balance to 1e-10.
+    #[test]
+    fn any_catalogue_solid_allowed(
+        log_ca in -4.0f64..-1.3,
+        log_mg in -4.0f64..-1.3,
+        log_co3 in -4.0f64..-1.3,
+        log_so4 in -4.0f64..-1.3,
+        log_p in -4.0f64..0.0,
+        open in any::<bool>(),
+        t in 5.0f64..60.0,
+        naoh in 0.0f64..0.02,
+    ) {
+        let cat = Catalog::builtin();
+        let mut r = Recipe::new();
+        r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(10f64.powf(log_ca))).unwrap()
+            .add(&cat.reagent("magnesium chloride").unwrap(), Amount::molal(10f64.powf(log_mg))).unwrap()
+            .add(&cat.reagent("sodium carbonate").unwrap(), Amount::molal(10f64.powf(log_co3))).unwrap()
+            .add(&cat.reagent("sodium sulfate").unwrap(), Amount::molal(10f64.powf(log_so4))).unwrap()
+            .add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molal(naoh)).unwrap()
+            .add_complexes(cat.complexes())
+            .allow_all_solids();
+        if open {
+            r.fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(10f64.powf(log_p))).unwrap();
+        }
+        let eq = r.compile(&davies(t)).unwrap().solve().unwrap();
+        prop_assert!(eq.residuals().max_relative() <= 1e-10, "{:?}", eq.residuals());
+        for s in eq.solids() {
+            prop_assert!(s.saturation_index <= 1e-8, "{} {}", s.name, s.saturation_index);
+            if s.amount_molal > 0.0 {
+                prop_assert!(s.saturation_index.abs() <= 1e-8, "{} {}", s.name, s.saturation_index);
+            }
+        }
     }
 }

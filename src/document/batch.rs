@@ -5,7 +5,10 @@
 //! block, recipes with the same reagent names, complexes and conditions share one compiled
 //! [`System`] (as a template): only the totals are reset from the amounts
 //! ([`System::set_total_molal`]), and each solve starts from
-//! the previous one of its kind in the block ([`Solver::solve_from`]).
+//! the previous one of its kind in the block ([`Solver::solve_from`]). A record without the
+//! full result is solved in the template's [`Workspace`](crate::solve::Workspace)
+//! ([`Solver::solve_ph`]), without building the full result, wherever that result would carry
+//! no warning (otherwise, and with `full`, the line is solved in full).
 //! Blocks are fixed by line numbers, so the output does not depend on the thread schedule.
 //!
 //! Every non-blank input line gives exactly one output line, in input order: a [`BatchRecord`]
@@ -250,6 +253,8 @@ struct Template {
     sys: System,
     totals: Vec<f64>,
     warm: Option<Equilibrium>,
+    /// Buffers and warm start of the lean solves (records without the full result).
+    ws: crate::solve::Workspace,
 }
 
 impl Template {
@@ -299,6 +304,7 @@ impl Template {
                 sys,
                 totals,
                 warm: None,
+                ws: crate::solve::Workspace::new(),
             },
             conditions,
         ))
@@ -348,6 +354,13 @@ struct Block<'a> {
     solver: Solver,
 }
 
+/// A solved line: the full result, or (for a record without it, where the full result would
+/// carry no warning) the numbers the record gives, from a solve in the template's workspace.
+enum Solved {
+    Full(Equilibrium),
+    Lean(crate::solve::PhSolution, crate::PhConvention),
+}
+
 enum Failure {
     Syntax(String),
     Input(Option<String>, DocumentError),
@@ -372,8 +385,8 @@ impl Block<'_> {
     }
 
     /// Solves one line: its name, the template it used (to keep the result as the next warm
-    /// start) and the equilibrium.
-    fn solve_line(&mut self, text: &str) -> Result<(Option<String>, Option<usize>, Equilibrium), Failure> {
+    /// start) and the result (in full where `full` asks for it or a warning may come with it).
+    fn solve_line(&mut self, text: &str, full: bool) -> Result<(Option<String>, Option<usize>, Solved), Failure> {
         let syntax = |e: serde_json::Error| {
             Failure::Syntax(format!(
                 "column {}: {}",
@@ -417,7 +430,7 @@ impl Block<'_> {
                 .compile(&conditions)
                 .and_then(|s| self.solver.solve(&s))
                 .map_err(|e| Failure::Solve(name.clone(), e))?;
-            return Ok((name, None, eq));
+            return Ok((name, None, Solved::Full(eq)));
         }
         let idx = match self.templates.iter().position(|t| t.matches(&doc)) {
             Some(i) => i,
@@ -434,27 +447,103 @@ impl Block<'_> {
         };
         let t = &mut self.templates[idx];
         t.retotal(&doc).map_err(|e| Failure::Input(name.clone(), e))?;
+        if !full {
+            match self.solver.solve_ph_unwarned(&t.sys, &mut t.ws) {
+                Ok(Some(s)) => return Ok((name, Some(idx), Solved::Lean(s, t.sys.ph_convention))),
+                Ok(None) => {}
+                Err(e) => return Err(Failure::Solve(name, e)),
+            }
+        }
         let eq = match &t.warm {
             Some(w) => self.solver.solve_from(&t.sys, w),
             None => self.solver.solve(&t.sys),
         }
         .map_err(|e| Failure::Solve(name.clone(), e))?;
-        Ok((name, Some(idx), eq))
+        t.ws.start_from(&eq);
+        Ok((name, Some(idx), Solved::Full(eq)))
+    }
+
+    /// Runs a titration or design request line (`kind` its format tag) and appends its
+    /// record; true when it failed.
+    fn run_request(&self, line_no: usize, text: &str, kind: &str, out: &mut Vec<u8>) -> bool {
+        let syntax = |e: serde_json::Error| {
+            Failure::Syntax(format!(
+                "column {}: {}",
+                e.column().max(1),
+                super::shorten_message(super::strip_position(&e.to_string()))
+            ))
+        };
+        let outcome: Result<(Option<String>, &str, serde_json::Value), Failure> = (|| {
+            if kind == super::TITRATION_FORMAT {
+                let doc: super::TitrationDoc = serde_json::from_str(text).map_err(syntax)?;
+                let name = doc.name.clone();
+                let run = super::run_titration(&doc, self.catalog).map_err(|e| request_failure(name.clone(), e))?;
+                let v = serde_json::to_value(&run.result)
+                    .map_err(|e| Failure::Syntax(format!("the result could not be written: {e}")))?;
+                Ok((name, "titration", v))
+            } else {
+                let doc: super::DesignDoc = serde_json::from_str(text).map_err(syntax)?;
+                let name = doc.name.clone();
+                let r = super::run_design(&doc, self.catalog).map_err(|e| request_failure(name.clone(), e))?;
+                let v = serde_json::to_value(&r)
+                    .map_err(|e| Failure::Syntax(format!("the result could not be written: {e}")))?;
+                Ok((name, "design", v))
+            }
+        })();
+        let failed = match outcome {
+            Ok((name, kind, result)) => {
+                write_record(
+                    out,
+                    &super::RequestRecord {
+                        line: line_no,
+                        name,
+                        kind: kind.into(),
+                        result,
+                    },
+                );
+                false
+            }
+            Err(f) => {
+                write_failure(out, line_no, f);
+                true
+            }
+        };
+        out.push(b'\n');
+        failed
     }
 
     /// Solves one line and appends its record (with a newline) to `out`; true when it
     /// failed.
     fn run_line(&mut self, line_no: usize, text: &str, full: bool, out: &mut Vec<u8>) -> bool {
-        let failed = match self.solve_line(text) {
-            Ok((name, idx, eq)) => {
+        let convention_name = |c: crate::PhConvention| match c {
+            crate::PhConvention::Model => None,
+            crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".to_string()),
+        };
+        if let Some(kind) = request_kind(text) {
+            return self.run_request(line_no, text, kind, out);
+        }
+        let failed = match self.solve_line(text, full) {
+            Ok((name, _, Solved::Lean(s, convention))) => {
+                let rec = BatchRecord {
+                    line: line_no,
+                    name,
+                    ph_convention: convention_name(convention),
+                    ph: s.ph,
+                    p_h_molal: s.p_h_molal,
+                    ionic_strength_mol_per_kg: s.ionic_strength_molal,
+                    max_balance_residual: s.max_residual,
+                    warnings: Vec::new(),
+                    result: None,
+                };
+                write_record(out, &rec);
+                false
+            }
+            Ok((name, idx, Solved::Full(eq))) => {
                 let warnings: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
                 let rec = BatchRecord {
                     line: line_no,
                     name,
-                    ph_convention: match eq.ph_convention() {
-                        crate::PhConvention::Model => None,
-                        crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
-                    },
+                    ph_convention: convention_name(eq.ph_convention()),
                     ph: eq.ph(),
                     p_h_molal: eq.p_h_molal(),
                     ionic_strength_mol_per_kg: eq.ionic_strength_molal(),
@@ -469,34 +558,64 @@ impl Block<'_> {
                 false
             }
             Err(f) => {
-                let (name, kind, error) = match f {
-                    Failure::Syntax(m) => (None, "syntax", m),
-                    Failure::Input(n, e) => (n, "input", e.to_string()),
-                    Failure::Solve(n, e) => {
-                        let kind = if matches!(e, Error::NoConvergence { .. }) {
-                            "no-convergence"
-                        } else {
-                            "chemistry"
-                        };
-                        (n, kind, e.to_string())
-                    }
-                };
-                let error = error.strip_prefix(": ").map(str::to_string).unwrap_or(error);
-                write_record(
-                    out,
-                    &BatchErrorRecord {
-                        line: line_no,
-                        name,
-                        kind: kind.into(),
-                        error,
-                    },
-                );
+                write_failure(out, line_no, f);
                 true
             }
         };
         out.push(b'\n');
         failed
     }
+}
+
+/// The format tag of a titration or design request line, when the line is one (a recipe
+/// line, the common case, costs one substring search).
+fn request_kind(text: &str) -> Option<&'static str> {
+    if !(text.contains(super::TITRATION_FORMAT) || text.contains(super::DESIGN_FORMAT)) {
+        return None;
+    }
+    #[derive(Deserialize)]
+    struct Tag {
+        format: Option<String>,
+    }
+    let tag: Tag = serde_json::from_str(text).ok()?;
+    match tag.format.as_deref() {
+        Some(super::TITRATION_FORMAT) => Some(super::TITRATION_FORMAT),
+        Some(super::DESIGN_FORMAT) => Some(super::DESIGN_FORMAT),
+        _ => None,
+    }
+}
+
+fn request_failure(name: Option<String>, e: super::RequestError) -> Failure {
+    match e {
+        super::RequestError::Input(d) => Failure::Input(name, d),
+        super::RequestError::Chemistry(c) => Failure::Solve(name, c),
+    }
+}
+
+/// Appends the error record of a failed line (without the newline).
+fn write_failure(out: &mut Vec<u8>, line_no: usize, f: Failure) {
+    let (name, kind, error) = match f {
+        Failure::Syntax(m) => (None, "syntax", m),
+        Failure::Input(n, e) => (n, "input", e.to_string()),
+        Failure::Solve(n, e) => {
+            let kind = if matches!(e, Error::NoConvergence { .. }) {
+                "no-convergence"
+            } else {
+                "chemistry"
+            };
+            (n, kind, e.to_string())
+        }
+    };
+    let error = error.strip_prefix(": ").map(str::to_string).unwrap_or(error);
+    write_record(
+        out,
+        &BatchErrorRecord {
+            line: line_no,
+            name,
+            kind: kind.into(),
+            error,
+        },
+    );
 }
 
 fn write_record<T: Serialize>(out: &mut Vec<u8>, rec: &T) {

@@ -412,6 +412,33 @@ impl SolveResult {
     }
 }
 
+/// A buffer should lie within one pH unit of its pKa (common practice): beyond, its capacity
+/// is less than a third of its peak.
+pub const BUFFER_PKA_DISTANCE: f64 = 1.0;
+
+/// A warning when the design's target pH lies more than [`BUFFER_PKA_DISTANCE`] from every
+/// pKa (at the temperature) of the families in its recipe.
+fn far_from_pka(r: &BufferRecipe, conditions: &Conditions) -> Option<String> {
+    let sys = r.recipe.compile(conditions).ok()?;
+    let nearest = sys
+        .families()
+        .iter()
+        .enumerate()
+        .flat_map(|(fi, f)| {
+            let sys = &sys;
+            (0..f.protolyte.proton_count())
+                .filter_map(move |k| sys.pka(fi, k).map(|p| (p, f.protolyte.name().to_string())))
+        })
+        .min_by(|a, b| (a.0 - r.target_ph).abs().total_cmp(&(b.0 - r.target_ph).abs()))?;
+    let d = (nearest.0 - r.target_ph).abs();
+    (d > BUFFER_PKA_DISTANCE).then(|| {
+        format!(
+            "the target pH {:.2} lies {d:.2} pH units from the nearest pKa ({:.2}, {}): the buffer capacity is low there; a buffer whose pKa lies within ±1 of the target holds its pH better (common practice)",
+            r.target_ph, nearest.0, nearest.1
+        )
+    })
+}
+
 /// One point of a titration curve.
 ///
 /// ```
@@ -785,7 +812,11 @@ impl DesignResult {
             buffer_capacity_mol_per_l: finite(r.buffer_capacity_mol_per_l).unwrap_or(0.0),
             temperature_shifts: r.temperature_shifts.iter().map(PhShiftResult::from).collect(),
             dilution_shift: (&r.dilution_shift).into(),
-            warnings: warnings(&r.warnings),
+            warnings: {
+                let mut w = warnings(&r.warnings);
+                w.extend(far_from_pka(r, conditions));
+                w
+            },
             recipe: RecipeDoc::from_recipe(&r.recipe, conditions),
             check,
         }

@@ -24,12 +24,13 @@ use crate::ion::Ion;
 /// use protolyte::{Catalog, Constraint, Pressure};
 /// let cat = Catalog::builtin();
 /// let c = Constraint::PartialPressure { gas: cat.gas("CO2(g)")?, pressure: Pressure::microatm(420.0) };
-/// assert_eq!(c.describe(), "partial pressure of CO2(g) fixed at 4.2e-4 atm");
+/// assert_eq!(c.describe(), "partial pressure of CO2(g) fixed at 4.2000e-4 atm");
 /// assert_eq!(Constraint::Ph(8.3).describe(), "pH fixed at 8.3");
 /// # Ok::<(), protolyte::Error>(())
 /// ```
 #[derive(Debug, Clone, PartialEq)]
 #[non_exhaustive]
+#[allow(clippy::large_enum_variant)] // a handful per recipe; the gas is kept whole for messages
 pub enum Constraint {
     /// pH fixed at this value.
     Ph(f64),
@@ -55,7 +56,7 @@ impl Constraint {
             Constraint::Ph(ph) => format!("pH fixed at {ph}"),
             Constraint::PartialPressure { gas, pressure } => {
                 format!(
-                    "partial pressure of {} fixed at {:e} atm",
+                    "partial pressure of {} fixed at {:.4e} atm",
                     gas.name(),
                     pressure.as_atm()
                 )

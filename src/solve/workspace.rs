@@ -43,7 +43,7 @@ const LN10: f64 = std::f64::consts::LN_10;
 /// }
 /// # Ok::<(), protolyte::Error>(())
 /// ```
-#[derive(Debug, Default)]
+#[derive(Debug, Default, Clone)]
 pub struct Workspace {
     bufs: Buffers,
     conc: Vec<f64>,
@@ -61,6 +61,11 @@ impl Workspace {
     /// Forgets the last solution: the next solve starts cold.
     pub fn forget_start(&mut self) {
         self.start = None;
+    }
+
+    /// Starts the next solve from `eq`.
+    pub(crate) fn start_from(&mut self, eq: &crate::Equilibrium) {
+        self.start = eq.unknowns().first().map(|&l| (l, eq.ln_ionic_strength()));
     }
 
     /// The evaluation for `sys` in the workspace's buffers (all zero).
@@ -158,6 +163,34 @@ impl Solver {
             max_residual: eq.residuals().max_relative(),
             path: eq.path(),
         })
+    }
+}
+
+impl Solver {
+    /// [`Solver::solve_ph`] where the full result would carry no [`Warning`](crate::Warning)
+    /// (`Ok(None)` where it might: the caller then solves in full). The conditions are those
+    /// under which `Equilibrium::build` adds a warning: a compilation warning, a total below
+    /// the floor or beyond the tested domain, a residual above the promise, an ionic strength
+    /// beyond the model's or the pH convention's range, an SIT pair without a coefficient.
+    pub(crate) fn solve_ph_unwarned(&self, sys: &System, workspace: &mut Workspace) -> Result<Option<PhSolution>> {
+        let rho = sys.water_density;
+        let quiet_system = sys.compile_warnings.is_empty()
+            && sys.interactions.unknown.is_empty()
+            && sys.below_floor.iter().all(Option::is_none)
+            && sys
+                .components
+                .iter()
+                .skip(1)
+                .all(|c| c.total_molal * rho <= crate::limits::TESTED_MAX_TOTAL_MOLAR * (1.0 + 1e-12));
+        if !quiet_system {
+            return Ok(None);
+        }
+        let s = self.solve_ph(sys, workspace)?;
+        let i = s.ionic_strength_molal;
+        let quiet = s.max_residual <= crate::limits::RESIDUAL_PROMISE.max(self.tolerance)
+            && i <= sys.model.validity_limit_molal()
+            && sys.ph_convention.validity_limit_molal().is_none_or(|limit| i <= limit);
+        Ok(quiet.then_some(s))
     }
 }
 
