@@ -145,6 +145,14 @@ pub struct Equilibrium {
     warnings: Vec<Warning>,
     unknowns: Vec<f64>,
     ln_i: f64,
+    /// What the result says about the other phases and the measured quantities (boxed: it
+    /// keeps the result small where results are moved about in bulk).
+    phases: Box<PhaseReport>,
+}
+
+/// The phase part of a result.
+#[derive(Debug, Clone, PartialEq)]
+struct PhaseReport {
     solids: Vec<SolidState>,
     gases: Vec<GasState>,
     proton_uptake_molal: f64,
@@ -444,14 +452,16 @@ impl Equilibrium {
             warnings,
             unknowns: point.y,
             ln_i: point.ln_i,
-            solids,
-            gases,
-            proton_uptake_molal,
-            charge_balance_ion,
-            dissolved_totals,
-            dic_molal: sys.carbonate.map_or(0.0, |c| aqueous[c]),
-            total_alkalinity_molal: alkalinity,
-            carbonate_alkalinity_molal: carbonate_alkalinity,
+            phases: Box::new(PhaseReport {
+                solids,
+                gases,
+                proton_uptake_molal,
+                charge_balance_ion,
+                dissolved_totals,
+                dic_molal: sys.carbonate.map_or(0.0, |c| aqueous[c]),
+                total_alkalinity_molal: alkalinity,
+                carbonate_alkalinity_molal: carbonate_alkalinity,
+            }),
         };
         eq.check_finite()?;
         Ok(eq)
@@ -587,12 +597,12 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn solids(&self) -> &[SolidState] {
-        &self.solids
+        &self.phases.solids
     }
 
     /// The saturation state of the solid named `name`.
     pub fn solid(&self, name: &str) -> Option<&SolidState> {
-        self.solids.iter().find(|s| &*s.name == name)
+        self.phases.solids.iter().find(|s| &*s.name == name)
     }
 
     /// The saturation index of the solid named `name`.
@@ -614,35 +624,36 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn gases(&self) -> &[GasState] {
-        &self.gases
+        &self.phases.gases
     }
 
     /// The state of the gas named `name`.
     pub fn gas(&self, name: &str) -> Option<&GasState> {
-        self.gases.iter().find(|g| &*g.name == name)
+        self.phases.gases.iter().find(|g| &*g.name == name)
     }
 
     /// H⁺ taken up into the solution to hold a fixed pH, mol/kg (negative: the base that was
     /// needed); 0 without a fixed pH.
     pub fn proton_uptake_molal(&self) -> f64 {
-        self.proton_uptake_molal
+        self.phases.proton_uptake_molal
     }
 
     /// The ion that closes the charge balance and the amount of it added to do so, mol/kg
     /// (negative: removed), when the recipe closes the balance on an ion.
     pub fn charge_balance_ion_added_molal(&self) -> Option<(&str, f64)> {
-        self.charge_balance_ion.as_ref().map(|(n, v)| (&**n, *v))
+        self.phases.charge_balance_ion.as_ref().map(|(n, v)| (&**n, *v))
     }
 
     /// The dissolved total of each active component (mol/kg): the recipe's total less what
     /// went into solids or the gas phase.
     pub fn dissolved_totals(&self) -> &[(Arc<str>, f64)] {
-        &self.dissolved_totals
+        &self.phases.dissolved_totals
     }
 
     /// The dissolved total of the component named `name`, mol/kg.
     pub fn dissolved_total_molal(&self, name: &str) -> Option<f64> {
-        self.dissolved_totals
+        self.phases
+            .dissolved_totals
             .iter()
             .find(|(n, _)| &**n == name)
             .map(|(_, v)| *v)
@@ -651,7 +662,7 @@ impl Equilibrium {
     /// Dissolved inorganic carbon, mol/kg: the dissolved total of the carbonate family (0
     /// without it).
     pub fn dic_molal(&self) -> f64 {
-        self.dic_molal
+        self.phases.dic_molal
     }
 
     /// Total alkalinity, mol/kg: the excess of proton acceptors over proton donors relative
@@ -674,13 +685,13 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn total_alkalinity_molal(&self) -> f64 {
-        self.total_alkalinity_molal
+        self.phases.total_alkalinity_molal
     }
 
     /// Carbonate alkalinity, mol/kg: m(HCO₃⁻) + 2m(CO₃²⁻), with carbonate ion pairs counted by
     /// the protons their carbonate lacks relative to H₂CO₃.
     pub fn carbonate_alkalinity_molal(&self) -> f64 {
-        self.carbonate_alkalinity_molal
+        self.phases.carbonate_alkalinity_molal
     }
 
     /// ln a of each component (−∞ for components with zero total), H⁺ first.
