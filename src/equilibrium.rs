@@ -7,6 +7,7 @@ use crate::activity::sit::Interactions;
 use crate::activity::{ActivityModel, PhConvention};
 use crate::error::{Error, Result};
 use crate::limits::{MIN_TOTAL_MOLAL, RESIDUAL_PROMISE, TESTED_MAX_TOTAL_MOLAR};
+use crate::phase::{GasState, Pressure, RowKind, SUPERSATURATION_TOLERANCE, SolidState};
 use crate::quantity::Temperature;
 use crate::solve::{Evaluation, Point, Solver, SolverPath};
 use crate::system::System;
@@ -144,6 +145,13 @@ pub struct Equilibrium {
     warnings: Vec<Warning>,
     unknowns: Vec<f64>,
     ln_i: f64,
+    solids: Vec<SolidState>,
+    gases: Vec<GasState>,
+    proton_uptake_molal: f64,
+    dissolved_totals: Vec<(Arc<str>, f64)>,
+    total_alkalinity_molal: f64,
+    carbonate_alkalinity_molal: f64,
+    dic_molal: f64,
 }
 
 impl Equilibrium {
@@ -203,12 +211,45 @@ impl Equilibrium {
         let h = species[0].molal;
         let oh = species[1].activity;
         let nc = sys.components.len();
+        // One pass over the species: the aqueous total of every component, total alkalinity
+        // (proton condition at the reference level of each family) and carbonate alkalinity.
+        let mut aqueous = vec![0.0; nc];
+        let (mut alkalinity, mut carbonate_alkalinity) = (0.0, 0.0);
+        for (s, &m) in ev.conc.iter().enumerate() {
+            let (mut level, mut nu_h, mut nu_carb) = (0.0, 0.0, 0.0);
+            for &(c, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
+                aqueous[c] += v * m;
+                if c == 0 {
+                    nu_h = v;
+                } else {
+                    level += v * sys.alkalinity_reference[c];
+                    if Some(c) == sys.carbonate {
+                        nu_carb = v;
+                    }
+                }
+            }
+            alkalinity += (level - nu_h) * m;
+            if nu_carb > 0.0 {
+                carbonate_alkalinity += (2.0 * nu_carb - nu_h) * m;
+            }
+        }
+        let phased = sys.has_phase_constraints();
+        let amounts: Vec<f64> = if ev.phase_amounts.len() == sys.phases.len() {
+            ev.phase_amounts.clone()
+        } else {
+            vec![0.0; sys.phases.len()]
+        };
         let families = sys
             .families
             .iter()
             .enumerate()
             .map(|(fi, fam)| {
-                let total = sys.components[fam.component].total_molal;
+                // With phases the total in solution is an output (gas exchange, solids).
+                let total = if phased {
+                    aqueous[fam.component]
+                } else {
+                    sys.components[fam.component].total_molal
+                };
                 let (fractions, complexed, mean) = if total > 0.0 {
                     let mut free = 0.0;
                     let mut bound = 0.0;
@@ -247,11 +288,26 @@ impl Equilibrium {
                 }
             })
             .collect();
-        let n_active = sys.components.iter().skip(1).filter(|c| c.total_molal > 0.0).count();
+        let n_active = (1..nc).filter(|&c| sys.component_active(c)).count();
         let mut free_molal = Vec::with_capacity(n_active);
         let mut mass_relative = Vec::with_capacity(n_active);
+        let mut dissolved_totals = Vec::with_capacity(n_active);
+        // Mass in the other phases (solids formed, gas exchanged, acid or base of a fixed pH).
+        let mut elsewhere = vec![0.0; nc];
+        let mut elsewhere_scale = vec![0.0; nc];
+        let mut charge_elsewhere = 0.0;
+        for (row, &lambda) in sys.phases.iter().zip(&amounts) {
+            if lambda != 0.0 {
+                for &(c, v) in &row.terms {
+                    elsewhere[c] += lambda * v;
+                    elsewhere_scale[c] += (lambda * v).abs();
+                }
+                charge_elsewhere += lambda * row.charge;
+            }
+        }
         for (ci, c) in sys.components.iter().enumerate().skip(1) {
-            if c.total_molal > 0.0 {
+            if sys.component_active(ci) {
+                dissolved_totals.push((c.name.clone(), aqueous[ci]));
                 free_molal.push((c.name.clone(), sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0)));
                 // Σ ν·m over the species holding component ci: its uncoupled members and
                 // any complex that contains it.
@@ -259,7 +315,41 @@ impl Equilibrium {
                 for s in (0..sys.species.len()).filter(|&s| sys.coupling[s]) {
                     held += sys.nu[s * nc + ci] * ev.conc[s];
                 }
-                mass_relative.push((c.name.clone(), (held - c.total_molal) / c.total_molal));
+                let scale = if c.total_molal > 0.0 {
+                    c.total_molal
+                } else {
+                    sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>() + elsewhere_scale[ci]
+                };
+                let r = (held + elsewhere[ci] - c.total_molal) / scale;
+                mass_relative.push((c.name.clone(), if r.is_nan() { 0.0 } else { r }));
+            }
+        }
+        let charge = charge + charge_elsewhere;
+        // Saturation indices, partial pressures, the acid or base of a fixed pH.
+        let mut solids = Vec::new();
+        let mut gases = Vec::new();
+        let mut proton_uptake_molal = 0.0;
+        for (row, &lambda) in sys.phases.iter().zip(&amounts) {
+            let ln_q = row.ln_q(&point.y);
+            if !ln_q.is_finite() {
+                continue;
+            }
+            match row.kind {
+                RowKind::Solid { allowed } => solids.push(SolidState {
+                    name: row.name.clone(),
+                    saturation_index: ln_q / LN10,
+                    log10_iap: (ln_q + row.ln_k) / LN10,
+                    log10_k: row.ln_k / LN10,
+                    allowed,
+                    amount_molal: lambda,
+                }),
+                RowKind::Gas { fixed } => gases.push(GasState {
+                    name: row.name.clone(),
+                    partial_pressure: Pressure::bar_value(ln_q.exp()),
+                    fixed: fixed.is_some(),
+                    taken_up_molal: -lambda,
+                }),
+                RowKind::Ph { .. } => proton_uptake_molal = -lambda,
             }
         }
         let residuals = Residuals {
@@ -270,6 +360,15 @@ impl Equilibrium {
             activity_coefficients_ln: ev.composition_change(sys),
         };
         let mut warnings = sys.compile_warnings.clone();
+        for st in &solids {
+            if st.supersaturated() {
+                warnings.push(Warning::Supersaturated {
+                    solid: st.name.to_string(),
+                    saturation_index: st.saturation_index,
+                    tolerance: SUPERSATURATION_TOLERANCE,
+                });
+            }
+        }
         for (c, comp) in sys.components.iter().enumerate().skip(1) {
             if let Some(given) = sys.below_floor[c] {
                 warnings.push(Warning::TotalBelowFloor {
@@ -342,6 +441,13 @@ impl Equilibrium {
             warnings,
             unknowns: point.y,
             ln_i: point.ln_i,
+            solids,
+            gases,
+            proton_uptake_molal,
+            dissolved_totals,
+            dic_molal: sys.carbonate.map_or(0.0, |c| aqueous[c]),
+            total_alkalinity_molal: alkalinity,
+            carbonate_alkalinity_molal: carbonate_alkalinity,
         };
         eq.check_finite()?;
         Ok(eq)
@@ -458,6 +564,113 @@ impl Equilibrium {
     /// Warnings about the result.
     pub fn warnings(&self) -> &[Warning] {
         &self.warnings
+    }
+
+    /// The saturation state of every solid the system reports whose parts are all present
+    /// (the built-in catalogue's by default, see [`Recipe::report_solids`](crate::Recipe::report_solids)),
+    /// with the amount of each allowed solid present.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe, Warning};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("calcium chloride")?, Amount::millimolar(5.0))?
+    ///  .add(&cat.reagent("sodium carbonate")?, Amount::millimolar(5.0))?;
+    /// let eq = r.compile(&Conditions::default())?.solve()?;
+    /// let calcite = eq.solid("calcite").unwrap();
+    /// assert!(calcite.saturation_index > 1.0);
+    /// assert!(eq.warnings().iter().any(|w| matches!(w, Warning::Supersaturated { solid, .. } if solid == "calcite")));
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn solids(&self) -> &[SolidState] {
+        &self.solids
+    }
+
+    /// The saturation state of the solid named `name`.
+    pub fn solid(&self, name: &str) -> Option<&SolidState> {
+        self.solids.iter().find(|s| &*s.name == name)
+    }
+
+    /// The saturation index of the solid named `name`.
+    pub fn saturation_index(&self, name: &str) -> Option<f64> {
+        self.solid(name).map(|s| s.saturation_index)
+    }
+
+    /// The state of every gas the system reports whose family is present: its equilibrium
+    /// partial pressure (closed system) or the one imposed, with the amount taken up.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("sodium bicarbonate")?, Amount::millimolar(2.0))?;
+    /// let eq = r.compile(&Conditions::default())?.solve()?;
+    /// let co2 = eq.gas("CO2(g)").unwrap();
+    /// assert!(!co2.fixed && co2.partial_pressure.as_atm() > 1e-4);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn gases(&self) -> &[GasState] {
+        &self.gases
+    }
+
+    /// The state of the gas named `name`.
+    pub fn gas(&self, name: &str) -> Option<&GasState> {
+        self.gases.iter().find(|g| &*g.name == name)
+    }
+
+    /// H⁺ taken up into the solution to hold a fixed pH, mol/kg (negative: the base that was
+    /// needed); 0 without a fixed pH.
+    pub fn proton_uptake_molal(&self) -> f64 {
+        self.proton_uptake_molal
+    }
+
+    /// The dissolved total of each active component (mol/kg): the recipe's total less what
+    /// went into solids or the gas phase.
+    pub fn dissolved_totals(&self) -> &[(Arc<str>, f64)] {
+        &self.dissolved_totals
+    }
+
+    /// The dissolved total of the component named `name`, mol/kg.
+    pub fn dissolved_total_molal(&self, name: &str) -> Option<f64> {
+        self.dissolved_totals
+            .iter()
+            .find(|(n, _)| &**n == name)
+            .map(|(_, v)| *v)
+    }
+
+    /// Dissolved inorganic carbon, mol/kg: the dissolved total of the carbonate family (0
+    /// without it).
+    pub fn dic_molal(&self) -> f64 {
+        self.dic_molal
+    }
+
+    /// Total alkalinity, mol/kg: the excess of proton acceptors over proton donors relative
+    /// to the zero level of protons (A. G. Dickson, Deep-Sea Res. 28A (1981) 609–623): each
+    /// family's form at the level of its acids with pKa ≥ 4.5 (25 °C, I = 0; see
+    /// [`ALKALINITY_REFERENCE_PKA`](crate::phase::ALKALINITY_REFERENCE_PKA)), H₂O for H⁺ and
+    /// OH⁻. For a carbonate water: m(HCO₃⁻) + 2m(CO₃²⁻) + m(OH⁻) − m(H⁺) plus the other
+    /// bases present, ion pairs counted with their ligand. The titration end point it
+    /// corresponds to is near pH 4.5.
+    ///
+    /// ```
+    /// use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe, Temperature};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("sodium bicarbonate")?, Amount::molal(0.002))?;
+    /// let eq = r.compile(&Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal))?.solve()?;
+    /// // Proton condition of NaHCO3: alkalinity equals the sodium added (common practice).
+    /// assert!((eq.total_alkalinity_molal() - 0.002).abs() < 1e-12);
+    /// assert!((eq.dic_molal() - 0.002).abs() < 1e-15);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn total_alkalinity_molal(&self) -> f64 {
+        self.total_alkalinity_molal
+    }
+
+    /// Carbonate alkalinity, mol/kg: m(HCO₃⁻) + 2m(CO₃²⁻), with carbonate ion pairs counted by
+    /// the protons their carbonate lacks relative to H₂CO₃.
+    pub fn carbonate_alkalinity_molal(&self) -> f64 {
+        self.carbonate_alkalinity_molal
     }
 
     /// ln a of each component (−∞ for components with zero total), H⁺ first.

@@ -179,6 +179,24 @@ pub enum Error {
         /// pH at the last iterate.
         last_ph: f64,
     },
+    /// Two constraints on one system cannot hold together or fix the same equation
+    /// (over-determined), e.g. a pH fixed twice, or a partial pressure fixed twice.
+    #[error("conflicting constraints: {first} and {second}: {reason}")]
+    ConflictingConstraints {
+        /// The first constraint, described.
+        first: String,
+        /// The second constraint, described.
+        second: String,
+        /// Why they conflict.
+        reason: String,
+    },
+    /// No assemblage of the allowed solids satisfies the constraints (the request is
+    /// infeasible), or the solids found would break the phase rule.
+    #[error("no equilibrium with the allowed phases: {reason}")]
+    InfeasiblePhases {
+        /// What failed, naming the phases or constraints involved.
+        reason: String,
+    },
 }
 
 /// Where and why a catalogue file was refused.

@@ -87,6 +87,7 @@ mod equilibrium;
 mod error;
 mod ion;
 pub mod limits;
+pub mod phase;
 #[cfg(feature = "plot")]
 pub mod plot;
 mod protolyte;
@@ -102,10 +103,11 @@ pub mod water;
 
 pub use activity::{ActivityModel, DebyeHuckelConstants, PhConvention};
 pub use complex::{Complex, ComplexPart};
-pub use data::{Catalog, DataInfo, DataKind, FormInfo, molar_mass_from_formula};
+pub use data::{Catalog, DataInfo, DataKind, FormInfo, PhaseEntry, molar_mass_from_formula};
 pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState};
 pub use error::{CatalogFileError, Error, Result};
 pub use ion::Ion;
+pub use phase::{Constraint, Gas, GasState, Pressure, Solid, SolidState};
 pub use protolyte::{Protolyte, Step};
 pub use quantity::{Amount, Mass, Temperature, Volume};
 pub use reagent::{Constituent, Reagent};

@@ -1,8 +1,12 @@
 //! A recipe: what was put into the solution (reagents and amounts), plus the complexes the
-//! chemist wants considered. Mixing and dilution make new recipes.
+//! chemist wants considered, the solids and gases reported or allowed to form, and the
+//! constraints that replace a total. Mixing and dilution make new recipes.
+
+use std::sync::Arc;
 
 use crate::complex::Complex;
 use crate::error::{Error, Result};
+use crate::phase::{Constraint, Gas, Pressure, Solid};
 use crate::quantity::{Amount, Mass, Volume};
 use crate::reagent::Reagent;
 
@@ -33,16 +37,181 @@ pub struct Entry {
 /// assert!((eq.ph() - 4.68).abs() < 0.05);
 /// # Ok::<(), protolyte::Error>(())
 /// ```
-#[derive(Debug, Clone, PartialEq, Default)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Recipe {
     entries: Vec<Entry>,
     complexes: Vec<Complex>,
+    /// Solids whose saturation index results report (the built-in catalogue's by default).
+    solids: Arc<[Solid]>,
+    /// Gases whose partial pressure results report (the built-in catalogue's by default).
+    gases: Arc<[Gas]>,
+    /// Solids allowed to form (beside every reported one when `allow_all_solids`).
+    allowed: Vec<Solid>,
+    allow_all: bool,
+    constraints: Vec<Constraint>,
+}
+
+impl Default for Recipe {
+    /// Pure water; results report the saturation index of every built-in solid and the
+    /// partial pressure of every built-in gas whose parts are present.
+    fn default() -> Self {
+        let (solids, gases) = crate::data::builtin_phases();
+        Recipe {
+            entries: Vec::new(),
+            complexes: Vec::new(),
+            solids,
+            gases,
+            allowed: Vec::new(),
+            allow_all: false,
+            constraints: Vec::new(),
+        }
+    }
 }
 
 impl Recipe {
     /// An empty recipe: pure water.
     pub fn new() -> Self {
         Recipe::default()
+    }
+
+    /// Reports the saturation indices of `solids` (instead of the built-in catalogue's), for
+    /// instance a catalogue with your own solids: `recipe.report_solids(cat.solids())`.
+    pub fn report_solids<'a>(&mut self, solids: impl IntoIterator<Item = &'a Solid>) -> &mut Self {
+        self.solids = solids.into_iter().cloned().collect::<Vec<_>>().into();
+        self
+    }
+
+    /// Reports the partial pressures of `gases` (instead of the built-in catalogue's).
+    pub fn report_gases<'a>(&mut self, gases: impl IntoIterator<Item = &'a Gas>) -> &mut Self {
+        self.gases = gases.into_iter().cloned().collect::<Vec<_>>().into();
+        self
+    }
+
+    /// Lets `solid` form (or dissolve) at equilibrium: the solver finds whether it is
+    /// present and how much of it. Its saturation index is reported too.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// // 0.05 mol/kg calcium sulfate, more than gypsum's solubility (about 0.015 mol/kg).
+    /// r.add(&cat.reagent("calcium chloride")?, Amount::molal(0.05))?
+    ///  .add(&cat.reagent("sodium sulfate")?, Amount::molal(0.05))?
+    ///  .allow_solid(&cat.solid("gypsum")?);
+    /// let eq = r.compile(&Conditions::default())?.solve()?;
+    /// let gypsum = eq.solid("gypsum").unwrap();
+    /// assert!(gypsum.amount_molal > 0.0 && gypsum.saturation_index.abs() < 1e-8);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn allow_solid(&mut self, solid: &Solid) -> &mut Self {
+        if !self.allowed.iter().any(|s| s.name() == solid.name()) {
+            self.allowed.push(solid.clone());
+        }
+        self
+    }
+
+    /// Lets every solid in `solids` form (see [`Recipe::allow_solid`]).
+    pub fn allow_solids<'a>(&mut self, solids: impl IntoIterator<Item = &'a Solid>) -> &mut Self {
+        for s in solids {
+            self.allow_solid(s);
+        }
+        self
+    }
+
+    /// Lets every reported solid form (the built-in catalogue's unless
+    /// [`Recipe::report_solids`] chose others).
+    pub fn allow_all_solids(&mut self) -> &mut Self {
+        self.allow_all = true;
+        self
+    }
+
+    /// Fixes the pH (on the model's own activity scale, −log₁₀ a(H⁺)): the charge balance is
+    /// replaced and the acid or base that holds the pH is reported. Refuses a pH outside
+    /// −4..20 and a second pH ([`Error::ConflictingConstraints`]).
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("acetic acid")?, Amount::molal(0.01))?.fix_ph(4.76)?;
+    /// let eq = r.compile(&Conditions::default())?.solve()?;
+    /// assert!((eq.ph() - 4.76).abs() < 1e-9);
+    /// assert!(eq.proton_uptake_molal() < 0.0); // base was needed
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn fix_ph(&mut self, ph: f64) -> Result<&mut Self> {
+        crate::error::check_parameter("fixed pH", "pH", ph, -4.0, 20.0, "must be within -4..20")?;
+        let new = Constraint::Ph(ph);
+        if let Some(old) = self.constraints.iter().find(|c| matches!(c, Constraint::Ph(_))) {
+            return Err(Error::ConflictingConstraints {
+                first: old.describe(),
+                second: new.describe(),
+                reason: "a pH can be fixed once".into(),
+            });
+        }
+        self.constraints.push(new);
+        Ok(self)
+    }
+
+    /// Fixes the partial pressure of `gas` (an open system): the total of its family becomes
+    /// an output, with the amount taken up from the gas or given off. Refuses a pressure that
+    /// is not positive and finite or above 1000 bar, and a second pressure for the same gas
+    /// or for another gas of the same family ([`Error::ConflictingConstraints`]).
+    ///
+    /// ```
+    /// use protolyte::{Catalog, Conditions, Pressure, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.fix_partial_pressure(&cat.gas("CO2(g)")?, Pressure::microatm(420.0))?;
+    /// let eq = r.compile(&Conditions::default())?.solve()?;
+    /// assert!((eq.ph() - 5.6).abs() < 0.05); // rain water (common practice)
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn fix_partial_pressure(&mut self, gas: &Gas, pressure: Pressure) -> Result<&mut Self> {
+        pressure.checked(gas.name())?;
+        let new = Constraint::PartialPressure {
+            gas: gas.clone(),
+            pressure,
+        };
+        for old in &self.constraints {
+            if let Constraint::PartialPressure { gas: g, .. } = old
+                && g.family().name() == gas.family().name()
+            {
+                return Err(Error::ConflictingConstraints {
+                    first: old.describe(),
+                    second: new.describe(),
+                    reason: format!("both fix the activity of the {} family", gas.family().name()),
+                });
+            }
+        }
+        self.constraints.push(new);
+        Ok(self)
+    }
+
+    /// The solids whose saturation indices are reported.
+    pub fn reported_solids(&self) -> &[Solid] {
+        &self.solids
+    }
+
+    /// The gases whose partial pressures are reported.
+    pub fn reported_gases(&self) -> &[Gas] {
+        &self.gases
+    }
+
+    /// The solids allowed to form (all reported ones too when
+    /// [`Recipe::allows_all_solids`]).
+    pub fn allowed_solids(&self) -> &[Solid] {
+        &self.allowed
+    }
+
+    /// True when every reported solid may form.
+    pub fn allows_all_solids(&self) -> bool {
+        self.allow_all
+    }
+
+    /// The constraints.
+    pub fn constraints(&self) -> &[Constraint] {
+        &self.constraints
     }
 
     /// Adds `amount` of `reagent`. Refuses a negative, NaN or infinite amount, and one above
@@ -201,6 +370,10 @@ impl Recipe {
             });
         }
         let mut out = Recipe::new();
+        if let Some((first, _)) = parts.first() {
+            out.solids = first.solids.clone();
+            out.gases = first.gases.clone();
+        }
         for (r, v) in parts {
             let share = v.liters_value() / total;
             for e in &r.entries {
@@ -210,6 +383,16 @@ impl Recipe {
                 });
             }
             out.add_complexes(&r.complexes);
+            out.allow_solids(&r.allowed);
+            out.allow_all |= r.allow_all;
+            for c in &r.constraints {
+                if !out.constraints.contains(c) {
+                    match c {
+                        Constraint::Ph(ph) => out.fix_ph(*ph)?,
+                        Constraint::PartialPressure { gas, pressure } => out.fix_partial_pressure(gas, *pressure)?,
+                    };
+                }
+            }
         }
         Ok(out)
     }

@@ -14,6 +14,7 @@ use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConst
 use crate::complex::{Complex, ComplexPart};
 use crate::error::{Error, Result};
 use crate::ion::Ion;
+use crate::phase::{Constraint, PhaseRow, RowKind};
 use crate::protolyte::Protolyte;
 use crate::quantity::Temperature;
 use crate::reagent::Constituent;
@@ -203,6 +204,16 @@ pub struct System {
     pub(crate) compile_warnings: Vec<Warning>,
     /// Per component: the positive total given below the floor, taken as zero.
     pub(crate) below_floor: Vec<Option<f64>>,
+    /// Solids, gases and imposed quantities, compiled against the components (computed once
+    /// here, read at every solve).
+    pub(crate) phases: Vec<PhaseRow>,
+    /// Per component: active although its total may be zero, because a fixed partial
+    /// pressure sets its activity.
+    pub(crate) open: Vec<bool>,
+    /// Per component: its zero level of protons for total alkalinity (families; 0 for ions).
+    pub(crate) alkalinity_reference: Vec<f64>,
+    /// The component of the carbonate family, if present (for DIC and carbonate alkalinity).
+    pub(crate) carbonate: Option<usize>,
 }
 
 impl Recipe {
@@ -243,6 +254,12 @@ impl System {
                     }
                     Constituent::Proton | Constituent::Hydroxide => {}
                 }
+            }
+        }
+        // A fixed partial pressure brings its family in even when no reagent holds it.
+        for c in recipe.constraints() {
+            if let Constraint::PartialPressure { gas, .. } = c {
+                b.family_component(gas.family())?;
             }
         }
         // The accepted domain of totals: at most MAX_TOTAL_MOLAL (a sum of lines can pass it
@@ -425,6 +442,16 @@ impl System {
             unc().map(|s| nu_h[s].min(0).unsigned_abs() as usize).max().unwrap_or(0),
         );
         let charge_f = species.iter().map(|s| f64::from(s.charge)).collect();
+        let (phases, open) = b.phase_rows(recipe, &species, t, tc, &mut warnings)?;
+        let alkalinity_reference = b
+            .components
+            .iter()
+            .map(|c| match c.kind {
+                ComponentKind::Family(f) => crate::phase::reference_protons(&b.families[f].protolyte) as f64,
+                _ => 0.0,
+            })
+            .collect();
+        let carbonate = b.components.iter().position(|c| &*c.name == "carbonate");
         let interactions = if conditions.activity.depends_on_composition() {
             Interactions::pair(species.iter().map(|s| (&*s.name, s.charge)))
         } else {
@@ -455,6 +482,10 @@ impl System {
             charge_f,
             compile_warnings: warnings,
             below_floor,
+            phases,
+            open,
+            alkalinity_reference,
+            carbonate,
         })
     }
 
@@ -646,7 +677,45 @@ impl System {
 
     /// A species is active when every non-H component it needs has a positive total.
     pub(crate) fn species_active(&self, s: usize, nc: usize) -> bool {
-        (1..nc).all(|c| self.nu[s * nc + c] == 0.0 || self.components[c].total_molal > 0.0)
+        (1..nc).all(|c| self.nu[s * nc + c] == 0.0 || self.component_active(c))
+    }
+
+    /// A component is active when its total is positive or a fixed partial pressure sets it.
+    pub(crate) fn component_active(&self, c: usize) -> bool {
+        self.components[c].total_molal > 0.0 || self.open.get(c).copied().unwrap_or(false)
+    }
+
+    /// True when the system holds a fixed pH, a fixed partial pressure or a solid allowed to
+    /// form: it is then solved on the general path with those relations.
+    pub(crate) fn has_phase_constraints(&self) -> bool {
+        self.phases.iter().any(|r| r.is_equality() || r.is_inequality())
+    }
+
+    /// The names of the solids whose saturation index this system reports, in order.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("calcium chloride")?, Amount::millimolar(1.0))?
+    ///  .add(&cat.reagent("sodium bicarbonate")?, Amount::millimolar(2.0))?;
+    /// let sys = r.compile(&Conditions::default())?;
+    /// assert!(sys.solid_names().any(|n| n == "calcite"));
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn solid_names(&self) -> impl Iterator<Item = &str> {
+        self.phases
+            .iter()
+            .filter(|r| matches!(r.kind, RowKind::Solid { .. }))
+            .map(|r| &*r.name)
+    }
+
+    /// The names of the gases whose partial pressure this system reports, in order.
+    pub fn gas_names(&self) -> impl Iterator<Item = &str> {
+        self.phases
+            .iter()
+            .filter(|r| matches!(r.kind, RowKind::Gas { .. }))
+            .map(|r| &*r.name)
     }
 }
 
@@ -709,8 +778,148 @@ impl Builder {
 
     /// The complex's row, or `None` when one of its parts is not in the recipe.
     fn complex_stoichiometry(&self, cx: &Complex) -> Result<Option<Vec<(usize, f64)>>> {
+        self.parts_stoichiometry(cx.name(), cx.parts())
+    }
+
+    /// The phase rows of the recipe's solids, gases and constraints, and the components a
+    /// fixed partial pressure makes active.
+    fn phase_rows(
+        &self,
+        recipe: &Recipe,
+        species: &[Species],
+        t: crate::quantity::Temperature,
+        tc: f64,
+        warnings: &mut Vec<Warning>,
+    ) -> Result<(Vec<PhaseRow>, Vec<bool>)> {
+        const LN10: f64 = std::f64::consts::LN_10;
+        let nc = self.components.len();
+        let mut open = vec![false; nc];
+        let mut rows: Vec<PhaseRow> = Vec::new();
+        let charge_of = |terms: &[(usize, f64)]| -> f64 {
+            terms
+                .iter()
+                .map(|&(c, v)| v * f64::from(self.components[c].charge))
+                .sum()
+        };
+        let sorted = |mut terms: Vec<(usize, f64)>| {
+            terms.sort_by_key(|&(c, _)| c);
+            // Merge repeated components.
+            let mut out: Vec<(usize, f64)> = Vec::with_capacity(terms.len());
+            for (c, v) in terms {
+                match out.last_mut() {
+                    Some((lc, lv)) if *lc == c => *lv += v,
+                    _ => out.push((c, v)),
+                }
+            }
+            out.retain(|&(_, v)| v != 0.0);
+            out
+        };
+        // Solids: the reported ones and the allowed ones, once each.
+        let mut seen: Vec<&str> = Vec::new();
+        for solid in recipe.reported_solids().iter().chain(recipe.allowed_solids()) {
+            if seen.contains(&solid.name()) {
+                continue;
+            }
+            seen.push(solid.name());
+            let Some(terms) = self.parts_stoichiometry(solid.name(), solid.parts())? else {
+                continue;
+            };
+            let (lk, gap) = solid.log10_k_and_gap_at(t);
+            if let Some(gap) = gap {
+                warnings.push(Warning::from_gap(solid.name(), None, gap, tc));
+            }
+            let allowed =
+                recipe.allows_all_solids() || recipe.allowed_solids().iter().any(|s| s.name() == solid.name());
+            let terms = sorted(terms);
+            rows.push(PhaseRow {
+                name: solid.name().into(),
+                kind: RowKind::Solid { allowed },
+                charge: charge_of(&terms),
+                terms,
+                ln_k: lk * LN10,
+            });
+        }
+        // Gases: fixed ones first, then the reported ones whose family is present.
+        let fixed: Vec<(&crate::phase::Gas, f64)> = recipe
+            .constraints()
+            .iter()
+            .filter_map(|c| match c {
+                Constraint::PartialPressure { gas, pressure } => Some((gas, pressure.bar().ln())),
+                _ => None,
+            })
+            .collect();
+        let mut gas_seen: Vec<&str> = Vec::new();
+        for (gas, lp) in fixed
+            .iter()
+            .map(|&(g, lp)| (g, Some(lp)))
+            .chain(recipe.reported_gases().iter().map(|g| (g, None)))
+        {
+            if gas_seen.contains(&gas.name()) {
+                continue;
+            }
+            gas_seen.push(gas.name());
+            let family = gas.family();
+            let Some(fi) = self.families.iter().position(|f| f.protolyte.name() == family.name()) else {
+                continue;
+            };
+            if !same_family(&self.families[fi].protolyte, family) {
+                if lp.is_some() {
+                    return Err(Error::InconsistentDefinition {
+                        name: gas.name().to_string(),
+                        reason: format!("its family `{}` differs from the recipe's definition", family.name()),
+                    });
+                }
+                continue;
+            }
+            let comp = self.families[fi].component;
+            let j = gas.protons();
+            let form = self.families[fi].forms[j];
+            let (lkh, gap) = gas.log10_kh_and_gap_at(t);
+            if let Some(gap) = gap {
+                warnings.push(Warning::from_gap(gas.name(), None, gap, tc));
+            }
+            let mut terms = vec![(comp, 1.0)];
+            if j > 0 {
+                terms.insert(0, (0, j as f64));
+            }
+            if lp.is_some() {
+                open[comp] = true;
+            }
+            rows.push(PhaseRow {
+                name: gas.name().into(),
+                kind: RowKind::Gas { fixed: lp },
+                charge: charge_of(&terms),
+                terms,
+                // ln p = ln a(form) − ln K_H = ln β_j + ν·y − ln K_H.
+                ln_k: (lkh - species[form].log10_k) * LN10,
+            });
+        }
+        for c in recipe.constraints() {
+            if let Constraint::Ph(ph) = c {
+                rows.push(PhaseRow {
+                    name: "pH".into(),
+                    kind: RowKind::Ph { ln_a_h: -ph * LN10 },
+                    terms: vec![(0, 1.0)],
+                    ln_k: 0.0,
+                    charge: 1.0,
+                });
+            }
+        }
+        Ok((rows, open))
+    }
+
+    /// The row of a reaction over `parts` (a complex's or a solid's), or `None` when one of
+    /// its parts is not in the recipe.
+    fn parts_stoichiometry(&self, name: &str, parts: &[(ComplexPart, i32)]) -> Result<Option<Vec<(usize, f64)>>> {
+        struct Named<'a>(&'a str);
+        impl Named<'_> {
+            fn name(&self) -> &str {
+                self.0
+            }
+        }
+        let cx = Named(name);
         let mut out = Vec::new();
-        for (part, n) in cx.parts() {
+        for (part, n) in parts {
             let idx = match part {
                 ComplexPart::Proton => Some(0),
                 ComplexPart::Base(p) => match self.components.iter().position(|c| &*c.name == p.name()) {

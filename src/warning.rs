@@ -96,6 +96,18 @@ pub enum Warning {
         /// The promise it misses.
         promise: f64,
     },
+    /// The solution is supersaturated in a solid it was not allowed to form (saturation
+    /// index above [`SUPERSATURATION_TOLERANCE`](crate::phase::SUPERSATURATION_TOLERANCE)):
+    /// left alone it may precipitate; allow the solid ([`Recipe::allow_solid`](crate::Recipe::allow_solid))
+    /// to find the equilibrium with it.
+    Supersaturated {
+        /// The solid.
+        solid: String,
+        /// Its saturation index.
+        saturation_index: f64,
+        /// The tolerance it exceeds.
+        tolerance: f64,
+    },
 }
 
 /// A thermodynamic datum a constant's temperature dependence needs.
@@ -232,6 +244,14 @@ impl std::fmt::Display for Warning {
             } => write!(
                 f,
                 "the {equation} holds only to {residual:.3e} (relative), above the promised {promise:e}"
+            ),
+            Warning::Supersaturated {
+                solid,
+                saturation_index,
+                ..
+            } => write!(
+                f,
+                "supersaturated in {solid} (saturation index {saturation_index:+.3}): it may precipitate; allow it to form to find the equilibrium with it"
             ),
         }
     }

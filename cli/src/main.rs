@@ -406,8 +406,90 @@ fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
             )?;
         }
     }
+    write_phase_tables(out, r)?;
     for w in &r.warnings {
         writeln!(out, "warning: {w}")?;
+    }
+    Ok(())
+}
+
+/// Alkalinity, DIC, the acid or base a fixed pH took, the gases and the saturation state of
+/// the solids of a solve.
+fn write_phase_tables(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
+    if r.total_alkalinity_eq_per_kg != 0.0 || r.dic_mol_per_kg > 0.0 {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "total alkalinity  {:.4} meq/kg (carbonate alkalinity {:.4} meq/kg; end point near pH 4.5)",
+            1e3 * r.total_alkalinity_eq_per_kg,
+            1e3 * r.carbonate_alkalinity_eq_per_kg
+        )?;
+        writeln!(out, "DIC               {:.4} mmol/kg", 1e3 * r.dic_mol_per_kg)?;
+    }
+    if let Some(u) = r.proton_uptake_mol_per_kg {
+        let what = if u >= 0.0 {
+            "acid (H+) added"
+        } else {
+            "base (OH-) added"
+        };
+        writeln!(out, "fixed pH          {what}: {:.4e} mol/kg", u.abs())?;
+    }
+    if !r.gases.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "{:<22} {:>14} {:>14}  exchange with the gas phase",
+            "gas", "p / atm", "p / µatm"
+        )?;
+        for g in &r.gases {
+            let (atm, uatm) = match g.partial_pressure_atm {
+                Some(p) => (format!("{p:.4e}"), format!("{:.4}", p * 1e6)),
+                None => ("-".into(), "-".into()),
+            };
+            let exchange = if g.fixed {
+                let verb = if g.taken_up_mol_per_kg >= 0.0 {
+                    "taken up"
+                } else {
+                    "given off"
+                };
+                format!("fixed (open system): {verb} {:.4e} mol/kg", g.taken_up_mol_per_kg.abs())
+            } else {
+                "in equilibrium with the solution (closed system)".into()
+            };
+            writeln!(out, "{:<22} {atm:>14} {uatm:>14}  {exchange}", g.name)?;
+        }
+    }
+    if !r.solids.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "{:<30} {:>9} {:>10} {:>10}  state",
+            "solid", "SI", "log IAP", "log K"
+        )?;
+        let num = |v: Option<f64>, prec: usize| v.map_or_else(|| "-".to_string(), |v| format!("{v:.prec$}"));
+        for s in &r.solids {
+            let state = match (s.allowed, s.amount_mol_per_kg > 0.0, s.saturation_index) {
+                (true, true, _) => format!("present: {:.4e} mol/kg", s.amount_mol_per_kg),
+                (_, _, Some(si)) if si > 1e-6 => {
+                    if s.allowed {
+                        "supersaturated".to_string()
+                    } else {
+                        "supersaturated (not allowed to form)".to_string()
+                    }
+                }
+                (_, _, Some(si)) if si < -1e-6 => "undersaturated".to_string(),
+                (_, _, Some(_)) => "saturated".to_string(),
+                (_, _, None) => "-".to_string(),
+            };
+            writeln!(
+                out,
+                "{:<30} {:>9} {:>10} {:>10}  {state}",
+                s.name,
+                num(s.saturation_index, 3),
+                num(s.log10_iap, 3),
+                num(s.log10_k, 3)
+            )?;
+        }
     }
     Ok(())
 }

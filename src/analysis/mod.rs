@@ -1,5 +1,6 @@
 //! Analyses built on the solver: titration curves, endpoints, buffer capacity, buffer
-//! design, fitting of measured data and uncertainty propagation. None of them re-derives
+//! design, fitting of measured data, uncertainty propagation, and water analyses (ion
+//! balance, Langelier index, calcium carbonate precipitation potential, dose search). None of them re-derives
 //! the chemistry: each compiles or re-totals a [`System`](crate::System), solves it with a
 //! [`Solver`](crate::Solver) and reads derivatives from
 //! [`Sensitivities`](crate::Sensitivities).
@@ -13,6 +14,7 @@ pub mod measured;
 pub mod target;
 pub mod titration;
 pub mod uncertainty;
+pub mod water;
 
 pub use capacity::{CapacityCurve, CapacityPeak, CapacityPoint, capacity_along};
 pub use design::{BufferRecipe, BufferSpec, Ingredients, Line, Measure, PhShift, Role, Stock};

@@ -29,6 +29,51 @@ pub(crate) struct CatalogFile {
     pub reagent: Vec<Spanned<ReagentEntry>>,
     #[serde(default)]
     pub complex: Vec<Spanned<ComplexEntry>>,
+    #[serde(default)]
+    pub solid: Vec<Spanned<SolidEntry>>,
+    #[serde(default)]
+    pub gas: Vec<Spanned<GasEntry>>,
+}
+
+/// A solid: its dissolution reaction (parts as a complex's) and log K at 25 °C.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct SolidEntry {
+    pub name: String,
+    #[serde(default)]
+    pub synonyms: Vec<String>,
+    pub formula: Option<String>,
+    pub parts: Vec<PartEntry>,
+    pub log_k: f64,
+    pub dh_kj_per_mol: Option<f64>,
+    pub dcp_j_per_mol_k: Option<f64>,
+    /// An analytic log K(T) equation (`[solid.log_k_equation]`, without `step`).
+    pub log_k_equation: Option<EquationEntry>,
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    #[serde(default)]
+    pub from_memory: bool,
+}
+
+/// A gas: the family form it dissolves to and log K_H at 25 °C.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct GasEntry {
+    pub name: String,
+    #[serde(default)]
+    pub synonyms: Vec<String>,
+    pub formula: Option<String>,
+    /// `{ family = "...", protons = n }`: the neutral aqueous form.
+    pub dissolves_to: PartEntry,
+    pub log_kh: f64,
+    pub dh_kj_per_mol: Option<f64>,
+    pub dcp_j_per_mol_k: Option<f64>,
+    /// An analytic log K_H(T) equation (`[gas.log_k_equation]`, without `step`).
+    pub log_k_equation: Option<EquationEntry>,
+    pub source: Option<String>,
+    pub cite: Option<String>,
+    #[serde(default)]
+    pub from_memory: bool,
 }
 
 /// An acid–base family.

@@ -8,6 +8,7 @@
 
 mod format;
 mod formula;
+mod phases;
 
 pub use formula::molar_mass_from_formula;
 
@@ -23,16 +24,19 @@ use toml::Spanned;
 use crate::complex::{Complex, ComplexPart};
 use crate::error::{CatalogFileError, Error, Result};
 use crate::ion::Ion;
+use crate::phase::{Gas, Solid};
 use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
 use crate::vant_hoff::{LogKEquation, ValidityRange};
 
 /// The built-in data files, embedded at build time: (name shown in messages, text).
-const BUILTIN_FILES: [(&str, &str); 4] = [
+const BUILTIN_FILES: [(&str, &str); 6] = [
     ("data/families.toml", include_str!("../../data/families.toml")),
     ("data/ions.toml", include_str!("../../data/ions.toml")),
     ("data/reagents.toml", include_str!("../../data/reagents.toml")),
     ("data/complexes.toml", include_str!("../../data/complexes.toml")),
+    ("data/solids.toml", include_str!("../../data/solids.toml")),
+    ("data/gases.toml", include_str!("../../data/gases.toml")),
 ];
 
 /// What kind of thing a catalog entry is.
@@ -166,6 +170,46 @@ pub struct Catalog {
     problems: Vec<String>,
     /// Entries replaced on purpose, as they were.
     replaced: Vec<DataInfo>,
+    /// Solids and gases (they share the namespace of families, ions and complexes).
+    solids: Vec<Solid>,
+    gases: Vec<Gas>,
+    solid_entries: Vec<PhaseEntry>,
+    gas_entries: Vec<PhaseEntry>,
+    /// Normalised name or synonym of a solid or gas → (true for a gas, index).
+    phase_index: HashMap<String, (bool, usize)>,
+}
+
+/// A description of a catalogued solid or gas, for listings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PhaseEntry {
+    /// "solid" or "gas".
+    pub kind: &'static str,
+    /// Canonical name.
+    pub name: String,
+    /// Other names it is found by.
+    pub synonyms: Vec<String>,
+    /// Formula, or empty.
+    pub formula: String,
+    /// A one-line summary of its numbers.
+    pub summary: String,
+    /// Its published source.
+    pub source: String,
+    /// True when the numbers were entered from memory of the source.
+    pub from_memory: bool,
+    /// Where it was read (a file name) or "added in code".
+    pub origin: String,
+}
+
+/// The built-in catalogue's solids and gases, shared (what a new [`Recipe`](crate::Recipe)
+/// reports saturation indices and partial pressures for).
+pub(crate) fn builtin_phases() -> (std::sync::Arc<[Solid]>, std::sync::Arc<[Gas]>) {
+    static PHASES: OnceLock<(std::sync::Arc<[Solid]>, std::sync::Arc<[Gas]>)> = OnceLock::new();
+    PHASES
+        .get_or_init(|| {
+            let cat = Catalog::builtin();
+            (cat.solids.clone().into(), cat.gases.clone().into())
+        })
+        .clone()
 }
 
 /// A dependent entry that the replacement would leave invalid.
@@ -509,6 +553,9 @@ impl Catalog {
 
     /// Refuses a name or synonym already taken (see [`Catalog::add_protolyte`]).
     fn check_new(&self, kind: DataKind, names: &[&str]) -> Result<()> {
+        if kind != DataKind::Reagent {
+            self.check_phase_names(kind.name(), names)?;
+        }
         match self.conflicts(kind, names).first() {
             Some((name, k, idx)) => Err(self.conflict_error(kind, name, *k, *idx)),
             None => Ok(()),
@@ -977,7 +1024,7 @@ impl Catalog {
                 *c = rebuild().map_err(|e| dependent(c.name(), e))?;
             }
         }
-        Ok(())
+        self.rebind_phases(old_name, new_family.as_ref(), new_ion.as_ref())
     }
 
     /// Adds every entry of a parsed file (families and ions first, so that reagents and
@@ -1007,6 +1054,12 @@ impl Catalog {
         }
         for e in &file.complex {
             self.apply_complex(e, loc)?;
+        }
+        for e in &file.solid {
+            self.apply_solid(e, loc)?;
+        }
+        for e in &file.gas {
+            self.apply_gas(e, loc)?;
         }
         Ok(())
     }
@@ -1370,17 +1423,32 @@ struct Entry<'a> {
     loc: &'a Located<'a>,
     span: std::ops::Range<usize>,
     kind: DataKind,
+    /// The table name shown in messages ("family", ..., "solid", "gas").
+    table: &'static str,
     name: &'a str,
 }
 
 impl<'a> Entry<'a> {
     fn new(loc: &'a Located<'a>, span: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
         let span = loc.entry_range(span);
-        Entry { loc, span, kind, name }
+        Entry {
+            loc,
+            span,
+            kind,
+            table: kind.table(),
+            name,
+        }
+    }
+
+    /// A solid's or a gas's entry (`table` "solid" or "gas"); its parts read as a complex's.
+    fn phase(loc: &'a Located<'a>, span: std::ops::Range<usize>, table: &'static str, name: &'a str) -> Self {
+        let mut e = Entry::new(loc, span, DataKind::Complex, name);
+        e.table = table;
+        e
     }
 
     fn label(&self) -> String {
-        format!("{} `{}`", self.kind.table(), self.name)
+        format!("{} `{}`", self.table, self.name)
     }
 
     fn error(&self, field: &str, message: impl std::fmt::Display) -> Error {
@@ -1399,6 +1467,8 @@ impl<'a> Entry<'a> {
                 "ΔH° (kJ/mol)" => "dh_kj_per_mol",
                 "ion size (Å)" => "ion_size_angstrom",
                 "log β" => "log_beta",
+                "log K" => "log_k",
+                "log K_H" => "log_kh",
                 "molar mass (g/mol)" => "molar_mass_g_per_mol",
                 _ => "",
             },

@@ -131,7 +131,8 @@ pub struct BatchSummary {
 
 /// A batch line as read on the fast path: names borrowed from the input text where they can
 /// be (no allocation per name). The fields are those of [`RecipeDoc`]; a line with
-/// `definitions` is read again as a [`RecipeDoc`] and compiled on its own.
+/// `definitions` or phase requests (`fixed_ph`, `partial_pressures`, `allow_solids`) is read
+/// again as a [`RecipeDoc`] and compiled on its own.
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct FastLine<'a> {
@@ -153,6 +154,12 @@ struct FastLine<'a> {
     include_catalog_complexes: bool,
     #[serde(default)]
     definitions: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    fixed_ph: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    partial_pressures: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    allow_solids: Option<serde::de::IgnoredAny>,
 }
 
 /// One line of a [`FastLine`]: the fields of [`AmountLine`] with a borrowed name.
@@ -211,6 +218,9 @@ impl FastLine<'_> {
             complexes: self.complexes.clone(),
             include_catalog_complexes: self.include_catalog_complexes,
             definitions: None,
+            fixed_ph: None,
+            partial_pressures: Vec::new(),
+            allow_solids: None,
         }
     }
 }
@@ -379,8 +389,13 @@ impl Block<'_> {
                 ),
             ));
         }
-        if doc.definitions.is_some() {
-            // Definitions of its own: read in full and compiled on its own.
+        if doc.definitions.is_some()
+            || doc.fixed_ph.is_some()
+            || doc.partial_pressures.is_some()
+            || doc.allow_solids.is_some()
+        {
+            // Definitions of its own, or phase requests (a fixed pH or partial pressure,
+            // solids allowed to form): read in full and compiled on its own.
             let full: RecipeDoc = serde_json::from_str(text).map_err(syntax)?;
             let (recipe, conditions) = full
                 .to_recipe(self.catalog)

@@ -10,7 +10,7 @@ use super::{DESIGN_FORMAT, DocumentError, FIT_FORMAT, RECIPE_FORMAT, TITRATION_F
 use crate::analysis::{BufferSpec, Ingredients, Scope, Stepping, Stock, Titration, TitrationFit, Unknown};
 use crate::{
     ActivityModel, Amount, Catalog, Complex, ComplexPart, Conditions, Constituent, DataKind, Error, Ion, Mass,
-    PhConvention, Protolyte, Reagent, Recipe, Temperature, Volume,
+    PhConvention, Pressure, Protolyte, Reagent, Recipe, Temperature, Volume,
 };
 
 /// Refuses a name, synonym or formula longer than [`MAX_NAME_CHARS`] (before any look-up, so
@@ -938,6 +938,189 @@ fn recipe_of(
     Ok(recipe)
 }
 
+/// A fixed partial pressure of a gas (an open system): the gas by name and its pressure in
+/// exactly one unit, `atm`, `bar`, `pascal` or `microatm`.
+///
+/// ```
+/// use protolyte::document::PartialPressureDoc;
+/// let p: PartialPressureDoc = serde_json::from_str(r#"{ "gas": "CO2(g)", "microatm": 420 }"#)?;
+/// assert!((p.pressure("partial_pressures[0]").unwrap().as_atm() - 4.2e-4).abs() < 1e-12);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PartialPressureDoc {
+    /// The gas's name or a synonym (catalogue, e.g. `"CO2(g)"`).
+    pub gas: String,
+    /// Partial pressure in atm.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub atm: Option<f64>,
+    /// Partial pressure in bar.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub bar: Option<f64>,
+    /// Partial pressure in Pa.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pascal: Option<f64>,
+    /// Partial pressure in µatm.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub microatm: Option<f64>,
+}
+
+impl PartialPressureDoc {
+    /// The pressure given, checked: exactly one unit, a finite positive value. `path` names
+    /// the entry in messages.
+    pub fn pressure(&self, path: &str) -> Result<Pressure, DocumentError> {
+        let given: Vec<(&str, f64)> = [
+            ("atm", self.atm),
+            ("bar", self.bar),
+            ("pascal", self.pascal),
+            ("microatm", self.microatm),
+        ]
+        .into_iter()
+        .filter_map(|(n, v)| v.map(|v| (n, v)))
+        .collect();
+        let (unit, v) = match given.as_slice() {
+            [one] => *one,
+            [] => {
+                return Err(field_error(
+                    path.to_string(),
+                    "give the partial pressure in one of `atm`, `bar`, `pascal` or `microatm`",
+                ));
+            }
+            _ => {
+                return Err(field_error(
+                    path.to_string(),
+                    "give the partial pressure in exactly one of `atm`, `bar`, `pascal` or `microatm`",
+                ));
+            }
+        };
+        if !(v.is_finite() && v > 0.0) {
+            return Err(field_error(
+                format!("{path}.{unit}"),
+                format!(
+                    "{} is not a partial pressure (finite and positive)",
+                    crate::error::number(v)
+                ),
+            ));
+        }
+        Ok(match unit {
+            "atm" => Pressure::atm(v),
+            "bar" => Pressure::bar_value(v),
+            "pascal" => Pressure::pascal(v),
+            _ => Pressure::microatm(v),
+        })
+    }
+}
+
+/// Which solids may form at equilibrium: the word `"all"` (every solid the catalogue knows
+/// whose parts are present) or a list of names.
+///
+/// ```
+/// use protolyte::document::AllowSolidsDoc;
+/// let all: AllowSolidsDoc = serde_json::from_str(r#""all""#)?;
+/// assert_eq!(all, AllowSolidsDoc::All);
+/// let some: AllowSolidsDoc = serde_json::from_str(r#"["calcite", "gypsum"]"#)?;
+/// assert_eq!(some, AllowSolidsDoc::Named(vec!["calcite".into(), "gypsum".into()]));
+/// assert!(serde_json::from_str::<AllowSolidsDoc>(r#""any""#).is_err());
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq)]
+pub enum AllowSolidsDoc {
+    /// Every solid of the catalogue.
+    All,
+    /// The solids named.
+    Named(Vec<String>),
+}
+
+impl Serialize for AllowSolidsDoc {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        match self {
+            AllowSolidsDoc::All => s.serialize_str("all"),
+            AllowSolidsDoc::Named(v) => v.serialize(s),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for AllowSolidsDoc {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct V;
+        impl<'de> serde::de::Visitor<'de> for V {
+            type Value = AllowSolidsDoc;
+            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+                f.write_str("the word \"all\" or a list of solid names")
+            }
+            fn visit_str<E: serde::de::Error>(self, v: &str) -> Result<AllowSolidsDoc, E> {
+                if v == "all" {
+                    Ok(AllowSolidsDoc::All)
+                } else {
+                    Err(E::custom(format!(
+                        "field `allow_solids`: `{}` is neither the word \"all\" nor a list of solid names",
+                        super::shorten(v)
+                    )))
+                }
+            }
+            fn visit_seq<A: serde::de::SeqAccess<'de>>(self, mut seq: A) -> Result<AllowSolidsDoc, A::Error> {
+                let mut names = Vec::new();
+                while let Some(n) = seq.next_element::<String>()? {
+                    if names.len() >= MAX_ENTRIES {
+                        return Err(serde::de::Error::custom(format!(
+                            "field `allow_solids`: a document may name at most {MAX_ENTRIES} solids"
+                        )));
+                    }
+                    names.push(n);
+                }
+                Ok(AllowSolidsDoc::Named(names))
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+/// Adds a document's phase requests to `recipe`: the catalogue's solids and gases reported,
+/// the solids allowed to form, the fixed partial pressures and the fixed pH.
+fn apply_phases(
+    recipe: &mut Recipe,
+    cat: &Catalog,
+    fixed_ph: Option<f64>,
+    pressures: &[PartialPressureDoc],
+    allow: Option<&AllowSolidsDoc>,
+) -> Result<(), DocumentError> {
+    recipe.report_solids(cat.solids()).report_gases(cat.gases());
+    match allow {
+        None => {}
+        Some(AllowSolidsDoc::All) => {
+            recipe.allow_all_solids();
+        }
+        Some(AllowSolidsDoc::Named(names)) => {
+            check_count(|| "allow_solids".into(), names.len(), MAX_ENTRIES, "solids")?;
+            for (i, n) in names.iter().enumerate() {
+                check_name(|| format!("allow_solids[{i}]"), n)?;
+                let solid = cat.solid(n).map_err(|e| field_error(format!("allow_solids[{i}]"), e))?;
+                recipe.allow_solid(&solid);
+            }
+        }
+    }
+    check_count(
+        || "partial_pressures".into(),
+        pressures.len(),
+        MAX_ENTRIES,
+        "partial pressures",
+    )?;
+    for (i, p) in pressures.iter().enumerate() {
+        let path = format!("partial_pressures[{i}]");
+        check_name(|| format!("{path}.gas"), &p.gas)?;
+        let gas = cat.gas(&p.gas).map_err(|e| field_error(format!("{path}.gas"), e))?;
+        let pressure = p.pressure(&path)?;
+        recipe
+            .fix_partial_pressure(&gas, pressure)
+            .map_err(|e| field_error(path.clone(), e))?;
+    }
+    if let Some(ph) = fixed_ph {
+        recipe.fix_ph(ph).map_err(|e| field_error("fixed_ph", e))?;
+    }
+    Ok(())
+}
+
 /// A recipe document: what was put into one solution, and the conditions.
 ///
 /// ```
@@ -983,6 +1166,16 @@ pub struct RecipeDoc {
     /// Your own protolytes, ions, reagents and complexes.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub definitions: Option<DefinitionsDoc>,
+    /// A fixed pH: replaces the charge balance; the acid or base that holds it is reported.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fixed_ph: Option<f64>,
+    /// Fixed partial pressures of gases (an open system): each gas's family total becomes an
+    /// output, with the amount taken up from the gas or given off.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub partial_pressures: Vec<PartialPressureDoc>,
+    /// Solids allowed to form (or dissolve) at equilibrium: `"all"` or a list of names.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub allow_solids: Option<AllowSolidsDoc>,
 }
 
 impl RecipeDoc {
@@ -1011,8 +1204,21 @@ impl RecipeDoc {
         let conditions = self.conditions()?;
         let (cat, user) = catalog_with(catalog, self.definitions.as_ref())?;
         let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
-        let recipe = recipe_of(&cat, &self.reagents, &complexes, "reagents")?;
+        let mut recipe = recipe_of(&cat, &self.reagents, &complexes, "reagents")?;
+        apply_phases(
+            &mut recipe,
+            &cat,
+            self.fixed_ph,
+            &self.partial_pressures,
+            self.allow_solids.as_ref(),
+        )?;
         Ok((recipe, conditions))
+    }
+
+    /// True when the document asks for more than a closed solution: a fixed pH, a fixed
+    /// partial pressure or solids allowed to form.
+    pub fn has_phase_requests(&self) -> bool {
+        self.fixed_ph.is_some() || !self.partial_pressures.is_empty() || self.allow_solids.is_some()
     }
 
     /// A document for `recipe` at `conditions`: one line per entry (molar or molal), the
@@ -1032,6 +1238,31 @@ impl RecipeDoc {
             complexes: recipe.complexes().iter().map(|c| c.name().to_string()).collect(),
             include_catalog_complexes: false,
             definitions: None,
+            fixed_ph: recipe.constraints().iter().find_map(|c| match c {
+                crate::Constraint::Ph(ph) => Some(*ph),
+                _ => None,
+            }),
+            partial_pressures: recipe
+                .constraints()
+                .iter()
+                .filter_map(|c| match c {
+                    crate::Constraint::PartialPressure { gas, pressure } => Some(PartialPressureDoc {
+                        gas: gas.name().to_string(),
+                        atm: Some(pressure.as_atm()),
+                        ..Default::default()
+                    }),
+                    _ => None,
+                })
+                .collect(),
+            allow_solids: if recipe.allows_all_solids() {
+                Some(AllowSolidsDoc::All)
+            } else if recipe.allowed_solids().is_empty() {
+                None
+            } else {
+                Some(AllowSolidsDoc::Named(
+                    recipe.allowed_solids().iter().map(|s| s.name().to_string()).collect(),
+                ))
+            },
         }
     }
 }

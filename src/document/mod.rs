@@ -50,17 +50,18 @@ use std::path::Path;
 use serde::de::DeserializeOwned;
 
 pub use input::{
-    ActivityDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc, FitDoc, IonDef,
-    IonicStrengthDoc, MeasuredPoint, PhConventionDoc, ProtolyteDef, ReagentDef, ReagentPartDef, RecipeDoc, SolutionDoc,
-    StockDoc, TitrationDoc, UnknownDoc,
+    ActivityDoc, AllowSolidsDoc, AmountLine, ComplexDef, ComplexPartDef, DefinitionsDoc, DesignDoc, FitCurveDoc,
+    FitDoc, IonDef, IonicStrengthDoc, MeasuredPoint, PartialPressureDoc, PhConventionDoc, ProtolyteDef, ReagentDef,
+    ReagentPartDef, RecipeDoc, SolutionDoc, StockDoc, TitrationDoc, UnknownDoc,
 };
 pub use measured::{
     AnalyteDoc, BudgetResult, BufferDoc, CalibrationDoc, CalibrationResult, ColumnDoc, DataDoc, DerivativeResult,
     GranResult, MeasuredDoc, MeasuredResult, ModelDoc, SampleDoc, ValueResult,
 };
 pub use output::{
-    DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, HalfEquivalenceResult,
-    PhShiftResult, ResidualsResult, SolveResult, SpeciesResult, TitrationPointResult, TitrationResult, VerdictResult,
+    DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, GasResult,
+    HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
+    TitrationPointResult, TitrationResult, VerdictResult,
 };
 pub use requests::{RequestError, RequestRecord, TitrationRun, run_design, run_titration};
 

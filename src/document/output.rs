@@ -87,6 +87,52 @@ pub struct ResidualsResult {
     pub max_relative: f64,
 }
 
+/// The saturation state of one solid in a result.
+///
+/// ```
+/// use protolyte::document::SolidResult;
+/// let s: SolidResult = serde_json::from_str(
+///     r#"{"name":"calcite","saturation_index":0.4,"log10_iap":-8.1,"log10_k":-8.5,"allowed":false,"amount_mol_per_kg":0.0}"#)?;
+/// assert!(s.saturation_index.unwrap() > 0.0);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SolidResult {
+    /// The solid's name.
+    pub name: String,
+    /// SI = log₁₀ IAP − log₁₀ K(T): above 0 supersaturated, below 0 undersaturated.
+    pub saturation_index: Option<f64>,
+    /// log₁₀ of the ion activity product.
+    pub log10_iap: Option<f64>,
+    /// log₁₀ K of the dissolution reaction at the temperature.
+    pub log10_k: Option<f64>,
+    /// True when the solid was allowed to form.
+    pub allowed: bool,
+    /// Amount present at equilibrium, mol per kg of water (0 unless allowed and stable).
+    pub amount_mol_per_kg: f64,
+}
+
+/// The state of one gas in a result.
+///
+/// ```
+/// use protolyte::document::GasResult;
+/// let g: GasResult = serde_json::from_str(
+///     r#"{"name":"CO2(g)","partial_pressure_atm":4.2e-4,"fixed":true,"taken_up_mol_per_kg":1e-5}"#)?;
+/// assert!(g.fixed);
+/// # Ok::<(), serde_json::Error>(())
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GasResult {
+    /// The gas's name.
+    pub name: String,
+    /// Partial pressure in equilibrium with the solution (the one imposed when `fixed`), atm.
+    pub partial_pressure_atm: Option<f64>,
+    /// True when the partial pressure was imposed (an open system).
+    pub fixed: bool,
+    /// Amount taken up from the gas phase, mol per kg of water (negative: given off).
+    pub taken_up_mol_per_kg: f64,
+}
+
 /// The result of solving one recipe.
 ///
 /// ```
@@ -134,6 +180,26 @@ pub struct SolveResult {
     pub families: Vec<FamilyResult>,
     /// Balance residuals.
     pub residuals: ResidualsResult,
+    /// Total alkalinity, eq per kg of water (the proton condition relative to H2CO3,
+    /// H2PO4-, ... : acids with pKa ≥ 4.5; an end point near pH 4.5).
+    #[serde(default)]
+    pub total_alkalinity_eq_per_kg: f64,
+    /// Carbonate alkalinity, eq per kg of water: HCO3- + 2 CO3^2- (ion pairs counted).
+    #[serde(default)]
+    pub carbonate_alkalinity_eq_per_kg: f64,
+    /// Dissolved inorganic carbon, mol per kg of water.
+    #[serde(default)]
+    pub dic_mol_per_kg: f64,
+    /// With a fixed pH: the H+ taken up to hold it, mol per kg of water (negative: base);
+    /// left out when zero (no fixed pH).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub proton_uptake_mol_per_kg: Option<f64>,
+    /// Every reported gas whose family is present.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub gases: Vec<GasResult>,
+    /// Every reported solid whose parts are present, with its saturation index.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub solids: Vec<SolidResult>,
     /// Warnings, as sentences.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub warnings: Vec<String>,
@@ -192,6 +258,32 @@ impl SolveResult {
                 max_balance_relative: r.max_balance_relative(),
                 max_relative: finite(r.max_relative()).unwrap_or(f64::MAX),
             },
+            total_alkalinity_eq_per_kg: eq.total_alkalinity_molal(),
+            carbonate_alkalinity_eq_per_kg: eq.carbonate_alkalinity_molal(),
+            dic_mol_per_kg: eq.dic_molal(),
+            proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0).then(|| eq.proton_uptake_molal()),
+            gases: eq
+                .gases()
+                .iter()
+                .map(|g| GasResult {
+                    name: g.name.to_string(),
+                    partial_pressure_atm: finite(g.partial_pressure.as_atm()),
+                    fixed: g.fixed,
+                    taken_up_mol_per_kg: g.taken_up_molal,
+                })
+                .collect(),
+            solids: eq
+                .solids()
+                .iter()
+                .map(|s| SolidResult {
+                    name: s.name.to_string(),
+                    saturation_index: finite(s.saturation_index),
+                    log10_iap: finite(s.log10_iap),
+                    log10_k: finite(s.log10_k),
+                    allowed: s.allowed,
+                    amount_mol_per_kg: s.amount_molal,
+                })
+                .collect(),
             warnings: warnings(eq.warnings()),
         }
     }

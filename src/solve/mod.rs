@@ -16,6 +16,9 @@
 
 pub(crate) mod fast;
 pub(crate) mod newton;
+mod workspace;
+
+pub use workspace::{PhSolution, Workspace};
 
 use crate::error::Result;
 use crate::system::System;
@@ -150,6 +153,10 @@ impl Solver {
         system: &System,
         start: Option<(&[f64], f64)>,
     ) -> Result<(Point, Evaluation, usize, SolverPath)> {
+        if system.has_phase_constraints() {
+            let (point, ev, iters) = newton::solve_phases(system, start, self.tolerance, self.max_iterations)?;
+            return Ok((point, ev, iters, SolverPath::General));
+        }
         if self.path == PathChoice::Auto && system.uncoupled() {
             match fast::solve(system, start.map(|(y, li)| (y[0], li)), self.tolerance) {
                 Ok((point, ev, iters)) => return Ok((point, ev, iters, SolverPath::Fast)),
@@ -190,6 +197,9 @@ pub(crate) struct Evaluation {
     /// The molalities at which the composition-dependent part of ln γ is evaluated (empty
     /// when the model has none).
     pub held: Vec<f64>,
+    /// The amount in each phase row of the system (solid formed, gas given off, H⁺ removed
+    /// to hold a fixed pH), mol/kg; empty when the system has no phase constraints.
+    pub phase_amounts: Vec<f64>,
 }
 
 impl Evaluation {
@@ -200,6 +210,7 @@ impl Evaluation {
             ln_gamma: vec![0.0; n],
             dln_gamma_di: vec![0.0; n],
             held: Self::first_composition(sys),
+            phase_amounts: Vec::new(),
         }
     }
 
@@ -211,6 +222,7 @@ impl Evaluation {
             ln_gamma: vec![0.0; n],
             dln_gamma_di: Vec::new(),
             held: Self::first_composition(sys),
+            phase_amounts: Vec::new(),
         }
     }
 

@@ -20,7 +20,7 @@ const CONVEX_MAX_STEP: f64 = 10.0 * LN10;
 /// The active components: H⁺ and those with a positive total.
 pub(crate) fn active(sys: &System) -> Vec<usize> {
     std::iter::once(0)
-        .chain((1..sys.components.len()).filter(|&c| sys.components[c].total_molal > 0.0))
+        .chain((1..sys.components.len()).filter(|&c| sys.component_active(c)))
         .collect()
 }
 
@@ -572,4 +572,447 @@ pub(crate) fn solve(
         worst_equation: eqn,
         last_ph: -p.y[0] / LN10,
     })
+}
+
+/// True when the rows (sparse vectors over the components) are linearly independent
+/// (modified Gram–Schmidt with a relative tolerance).
+fn independent(rows: &[&[(usize, f64)]], nc: usize) -> bool {
+    let mut basis: Vec<Vec<f64>> = Vec::with_capacity(rows.len());
+    for r in rows {
+        let mut v = vec![0.0; nc];
+        for &(c, x) in *r {
+            v[c] += x;
+        }
+        let norm0 = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+        for b in &basis {
+            let d: f64 = v.iter().zip(b).map(|(a, b)| a * b).sum();
+            for (a, b) in v.iter_mut().zip(b) {
+                *a -= d * b;
+            }
+        }
+        let norm = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+        if norm <= 1e-9 * norm0.max(1e-300) {
+            return false;
+        }
+        basis.push(v.into_iter().map(|x| x / norm).collect());
+    }
+    true
+}
+
+/// Minimises G(y) (see [`convex_phase`]) at fixed activity coefficients subject to the phase
+/// rows in `working` holding as equalities, ν_r·y = c_r, by Newton steps on the KKT system
+///
+/// [H Nᵀ; N 0]·[Δy; λ] = [−∇G; c − N·y],
+///
+/// Jacobi-scaled, with backtracking on G once the iterate is feasible (the rows are linear,
+/// so a full step makes it feasible and later steps keep it so). λ_r is the amount in phase r
+/// (mol/kg): at the solution Σ_s ν_s·m_s + Σ_r λ_r·ν_r = T. Returns the iterations used.
+fn constrained_convex(
+    sys: &System,
+    ev: &mut Evaluation,
+    lay: &Layout,
+    p: &mut Point,
+    working: &[usize],
+    lambda: &mut [f64],
+    tol: f64,
+) -> Result<usize> {
+    let act = &lay.act;
+    let n = act.len();
+    let r = working.len();
+    let mut pos = vec![usize::MAX; sys.components.len()];
+    for (k, &c) in act.iter().enumerate() {
+        pos[c] = k;
+    }
+    let mut totals = vec![0.0; n];
+    for (k, &c) in act.iter().enumerate().skip(1) {
+        totals[k] = sys.components[c].total_molal;
+        totals[0] -= f64::from(sys.components[c].charge) * totals[k];
+    }
+    // The rows in active positions, and their right-hand sides.
+    let mut nmat = DMatrix::<f64>::zeros(r, n);
+    let mut rhs_c = vec![0.0; r];
+    for (j, &w) in working.iter().enumerate() {
+        let row = &sys.phases[w];
+        for &(c, v) in &row.terms {
+            nmat[(j, pos[c])] += v;
+        }
+        rhs_c[j] = row.rhs();
+    }
+    let objective = |ev: &Evaluation, y: &[f64]| -> f64 {
+        let mut g: f64 = lay.species.iter().map(|&s| ev.conc[s]).sum();
+        for (k, &c) in act.iter().enumerate() {
+            if totals[k] != 0.0 {
+                g -= totals[k] * y[c];
+            }
+        }
+        g
+    };
+    let mut iters = 0;
+    let mut trial = p.clone();
+    ev.set_conc(sys, p);
+    let mut value = objective(ev, &p.y);
+    let mut lam = DVector::<f64>::zeros(r);
+    while iters < 300 {
+        iters += 1;
+        let mut grad = DVector::from_iterator(n, totals.iter().map(|t| -t));
+        let mut scale = DVector::from_iterator(n, totals.iter().map(|t| t.abs()));
+        let mut h: DMatrix<f64> = DMatrix::zeros(n, n);
+        for (idx, &s) in lay.species.iter().enumerate() {
+            let m = ev.conc[s];
+            let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
+            for &(a, va) in cols {
+                grad[a] += va * m;
+                scale[a] += va.abs() * m;
+                for &(b, vb) in cols {
+                    h[(a, b)] += va * vb * m;
+                }
+            }
+        }
+        let mut feas = 0.0f64;
+        let mut e = DVector::<f64>::zeros(r);
+        for j in 0..r {
+            let mut v = rhs_c[j];
+            for (k, &c) in act.iter().enumerate() {
+                v -= nmat[(j, k)] * p.y[c];
+            }
+            e[j] = v;
+            feas = feas.max(v.abs() / (1.0 + rhs_c[j].abs()));
+        }
+        let d_inv: Vec<f64> = (0..n)
+            .map(|k| 1.0 / (h[(k, k)] * (1.0 + 1e-14) + 1e-300_f64).sqrt())
+            .collect();
+        let mut kkt = DMatrix::<f64>::zeros(n + r, n + r);
+        for a in 0..n {
+            for b in 0..n {
+                kkt[(a, b)] = h[(a, b)] * d_inv[a] * d_inv[b];
+            }
+            kkt[(a, a)] += 1e-14;
+        }
+        let mut row_scale = vec![1.0; r];
+        for j in 0..r {
+            let norm = (0..n).map(|k| (nmat[(j, k)] * d_inv[k]).powi(2)).sum::<f64>().sqrt();
+            row_scale[j] = if norm > 0.0 { 1.0 / norm } else { 1.0 };
+            for k in 0..n {
+                let v = nmat[(j, k)] * d_inv[k] * row_scale[j];
+                kkt[(n + j, k)] = v;
+                kkt[(k, n + j)] = v;
+            }
+        }
+        let mut rhs = DVector::<f64>::zeros(n + r);
+        for k in 0..n {
+            rhs[k] = -grad[k] * d_inv[k];
+        }
+        for j in 0..r {
+            rhs[n + j] = e[j] * row_scale[j];
+        }
+        let Some(sol) = kkt.lu().solve(&rhs) else {
+            return Err(Error::InfeasiblePhases {
+                reason: format!(
+                    "the relations of {} cannot hold together (singular system)",
+                    names(sys, working)
+                ),
+            });
+        };
+        if sol.iter().any(|v| !v.is_finite()) {
+            return Err(Error::InfeasiblePhases {
+                reason: format!("the relations of {} cannot hold together", names(sys, working)),
+            });
+        }
+        let mut d = DVector::from_iterator(n, (0..n).map(|k| sol[k] * d_inv[k]));
+        for j in 0..r {
+            lam[j] = sol[n + j] * row_scale[j];
+        }
+        // Stationarity of the Lagrangian with the new multipliers: ∇G + Nᵀλ = −H·Δy.
+        let hd = &h * &d;
+        let worst = (0..n)
+            .map(|k| if scale[k] > 0.0 { (hd[k] / scale[k]).abs() } else { 0.0 })
+            .fold(0.0, f64::max);
+        let small = d.amax() <= 1e-6;
+        if worst <= tol && feas <= 1e-13 && small {
+            // Polish with the (tiny) full step and stop.
+            for (k, &c) in act.iter().enumerate() {
+                p.y[c] += d[k];
+            }
+            ev.set_conc(sys, p);
+            break;
+        }
+        let big = d.amax();
+        if !big.is_finite() {
+            break;
+        }
+        if big > CONVEX_MAX_STEP {
+            d *= CONVEX_MAX_STEP / big;
+        }
+        if feas > 1e-13 {
+            // Not yet on the rows: the step (full, or as long as allowed) moves onto them.
+            for (k, &c) in act.iter().enumerate() {
+                p.y[c] += d[k];
+            }
+            ev.set_conc(sys, p);
+            value = objective(ev, &p.y);
+            continue;
+        }
+        let slope = grad.dot(&d);
+        let mass_sum: f64 = lay.species.iter().map(|&s| ev.conc[s]).sum();
+        let mut alpha = 1.0;
+        let mut accepted = false;
+        for _ in 0..60 {
+            for (k, &c) in act.iter().enumerate() {
+                trial.y[c] = p.y[c] + alpha * d[k];
+            }
+            ev.set_conc(sys, &trial);
+            let v = objective(ev, &trial.y);
+            if v.is_finite() && v <= value + 1e-4 * alpha * slope.min(0.0) {
+                value = v;
+                accepted = true;
+                break;
+            }
+            let flat = (v - value).abs() <= 1e-12 * (value.abs() + mass_sum);
+            if alpha == 1.0 && flat && v.is_finite() {
+                value = v;
+                accepted = true;
+                break;
+            }
+            alpha *= 0.5;
+        }
+        if !accepted {
+            ev.set_conc(sys, p);
+            break;
+        }
+        p.y.clone_from(&trial.y);
+    }
+    for l in lambda.iter_mut() {
+        *l = 0.0;
+    }
+    for (j, &w) in working.iter().enumerate() {
+        lambda[w] = lam[j];
+    }
+    Ok(iters)
+}
+
+/// The names of phase rows, for messages.
+fn names(sys: &System, rows: &[usize]) -> String {
+    rows.iter()
+        .map(|&w| format!("`{}`", sys.phases[w].name))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The assemblage at fixed activity coefficients: equality rows always hold; solids allowed
+/// to form enter the working set when supersaturated and leave it when their amount would be
+/// negative (a primal–dual active-set iteration on the convex problem; the phase rule is kept
+/// by refusing a solid whose relation depends on those already held, replacing the one it
+/// depends on). Returns the iterations used.
+fn assemblage(
+    sys: &System,
+    ev: &mut Evaluation,
+    lay: &Layout,
+    p: &mut Point,
+    working: &mut Vec<usize>,
+    allowed: &[usize],
+    lambda: &mut [f64],
+    tol: f64,
+) -> Result<usize> {
+    let nc = sys.components.len();
+    let amount_scale = lay
+        .act
+        .iter()
+        .skip(1)
+        .map(|&c| sys.components[c].total_molal)
+        .fold(1e-30, f64::max);
+    let mut iters = 0;
+    let changes = 8 * allowed.len() + 8;
+    for _ in 0..changes {
+        iters += constrained_convex(sys, ev, lay, p, working, lambda, tol)?;
+        // A solid whose amount came out negative dissolves completely: drop the worst.
+        let negative = working
+            .iter()
+            .enumerate()
+            .filter(|&(_, &w)| sys.phases[w].is_inequality() && lambda[w] < -1e-13 * amount_scale)
+            .min_by(|a, b| lambda[*a.1].total_cmp(&lambda[*b.1]))
+            .map(|(k, _)| k);
+        if let Some(k) = negative {
+            working.remove(k);
+            continue;
+        }
+        // The most supersaturated allowed solid enters.
+        let over = allowed
+            .iter()
+            .filter(|w| !working.contains(w))
+            .map(|&w| (w, sys.phases[w].ln_q(&p.y)))
+            .filter(|&(_, q)| q > 1e-10)
+            .max_by(|a, b| a.1.total_cmp(&b.1));
+        let Some((w, _)) = over else {
+            return Ok(iters);
+        };
+        let rows_of =
+            |set: &[usize]| -> Vec<&[(usize, f64)]> { set.iter().map(|&x| &sys.phases[x].terms[..]).collect() };
+        let mut next = working.clone();
+        next.push(w);
+        if !independent(&rows_of(&next), nc) {
+            // Phase rule: replace a solid the new one depends on.
+            let swap = (0..working.len())
+                .filter(|&k| sys.phases[working[k]].is_inequality())
+                .find(|&k| {
+                    let mut t = working.clone();
+                    t.remove(k);
+                    t.push(w);
+                    independent(&rows_of(&t), nc)
+                });
+            match swap {
+                Some(k) => {
+                    next = working.clone();
+                    next.remove(k);
+                    next.push(w);
+                }
+                None => {
+                    return Err(Error::InfeasiblePhases {
+                        reason: format!(
+                            "`{}` is supersaturated but its relation depends on {} (phase rule)",
+                            sys.phases[w].name,
+                            names(sys, working)
+                        ),
+                    });
+                }
+            }
+        }
+        *working = next;
+    }
+    Err(Error::InfeasiblePhases {
+        reason: format!(
+            "the assemblage among {} did not settle after {changes} changes",
+            names(sys, allowed)
+        ),
+    })
+}
+
+/// The general path with phase rows: fixed pH, fixed partial pressures and solids allowed to
+/// form. The convex problem of [`convex_phase`] gains one linear relation per row
+/// (ν_r·y = c_r, or ≤ for a solid); the ionic strength (and, under SIT, the composition γ
+/// depends on) is iterated around it by a secant-accelerated fixed point, as in [`nested`].
+/// Returns the point, its evaluation (with the amounts of each row in
+/// `Evaluation::phase_amounts`) and the iterations used.
+pub(crate) fn solve_phases(
+    sys: &System,
+    start: Option<(&[f64], f64)>,
+    tol: f64,
+    max_iter: usize,
+) -> Result<(Point, Evaluation, usize)> {
+    let lay = Layout::new(sys);
+    let nc = sys.components.len();
+    let mut ev = Evaluation::new(sys);
+    let mut iters = 0;
+    let usable = |y: &[f64]| y.len() == nc && y[0].is_finite();
+    let mut p = match start {
+        Some((y, li)) if usable(y) && li.is_finite() => Point {
+            y: y.to_vec(),
+            ln_i: li,
+        },
+        _ => match fast::solve(sys, None, 1e-2) {
+            Ok((p, _, n)) => {
+                iters += n;
+                p
+            }
+            Err(_) => Point {
+                y: vec![f64::NEG_INFINITY; nc],
+                ln_i: (1e-3f64).ln(),
+            },
+        },
+    };
+    if !p.y[0].is_finite() {
+        p.y[0] = -7.0 * LN10;
+    }
+    for &c in &lay.act[1..] {
+        if !p.y[c].is_finite() {
+            let t = sys.components[c].total_molal;
+            p.y[c] = if t > 0.0 { t.ln() } else { -30.0 * LN10 };
+        }
+    }
+    for c in 1..nc {
+        if !sys.component_active(c) {
+            p.y[c] = f64::NEG_INFINITY;
+        }
+    }
+    // Rows whose components are all active: the equalities always hold, the allowed solids
+    // may enter.
+    let usable_row = |w: usize| {
+        sys.phases[w]
+            .terms
+            .iter()
+            .all(|&(c, _)| c == 0 || sys.component_active(c))
+    };
+    let mut working: Vec<usize> = (0..sys.phases.len())
+        .filter(|&w| sys.phases[w].is_equality() && usable_row(w))
+        .collect();
+    let allowed: Vec<usize> = (0..sys.phases.len())
+        .filter(|&w| sys.phases[w].is_inequality() && usable_row(w))
+        .collect();
+    {
+        let rows: Vec<&[(usize, f64)]> = working.iter().map(|&w| &sys.phases[w].terms[..]).collect();
+        if !independent(&rows, nc) {
+            return Err(Error::ConflictingConstraints {
+                first: names(sys, &working[..working.len().saturating_sub(1)]),
+                second: names(sys, &working[working.len().saturating_sub(1)..]),
+                reason: "they fix the same combination of activities".into(),
+            });
+        }
+    }
+    let mut lambda = vec![0.0; sys.phases.len()];
+    let ideal = sys.model == crate::activity::ActivityModel::Ideal;
+    let mut i = p.ln_i.exp().clamp(I_MIN, I_MAX);
+    let mut prev: Option<(f64, f64)> = None;
+    let mut settled = false;
+    for _ in 0..80 {
+        if iters > max_iter.max(200) * 4 {
+            break;
+        }
+        ev.set_gamma(sys, i);
+        p.ln_i = i.ln();
+        iters += assemblage(sys, &mut ev, &lay, &mut p, &mut working, &allowed, &mut lambda, tol)?;
+        let g: f64 = lay
+            .species
+            .iter()
+            .map(|&s| 0.5 * sys.charge_f[s] * sys.charge_f[s] * ev.conc[s])
+            .sum::<f64>()
+            .max(I_MIN);
+        if ideal {
+            p.ln_i = g.ln();
+            settled = true;
+            break;
+        }
+        if g > I_MAX && i >= I_MAX {
+            return Err(fast::beyond_limit(g));
+        }
+        let h = g - i;
+        let dc = ev.composition_change(sys);
+        if h.abs() <= tol * i && dc <= tol {
+            settled = true;
+            break;
+        }
+        ev.hold_composition();
+        let mut next = g;
+        if let Some((ip, hp)) = prev {
+            let den = h - hp;
+            if den != 0.0 && den.is_finite() {
+                let sec = i - h * (i - ip) / den;
+                if sec.is_finite() && sec > 0.5 * g.min(i) && sec < 2.0 * g.max(i) {
+                    next = sec;
+                }
+            }
+        }
+        prev = Some((i, h));
+        i = next.clamp(I_MIN, I_MAX);
+    }
+    ev.set_conc(sys, &p);
+    ev.phase_amounts = lambda;
+    if !settled {
+        return Err(Error::NoConvergence {
+            path: "general",
+            iterations: iters,
+            max_residual: f64::INFINITY,
+            worst_equation: "ionic-strength equation with phases".into(),
+            last_ph: -p.y[0] / LN10,
+        });
+    }
+    Ok((p, ev, iters))
 }

@@ -1,0 +1,207 @@
+//! Repeated solves without allocation: a [`Workspace`] keeps the fast path's buffers, the
+//! species concentrations and the last solution (the next solve's start) between solves, and
+//! [`Solver::solve_ph`] gives the numbers a screen, a fit or a Monte Carlo loop reads (pH,
+//! p\[H\], ionic strength, the largest residual) without building the full
+//! [`Equilibrium`](crate::Equilibrium).
+
+use super::fast::{self, Buffers};
+use super::{Evaluation, PathChoice, Solver, SolverPath};
+use crate::activity::{ActivityModel, PhConvention};
+use crate::error::{Error, Result};
+use crate::system::System;
+
+const LN10: f64 = std::f64::consts::LN_10;
+
+/// Buffers for repeated solves with [`Solver::solve_ph`]: once they have grown to the
+/// largest system solved in them, a solve on the fast path allocates nothing. Each solve
+/// starts from the previous solution held here (a titration point from the last one, a
+/// screen's recipe from its neighbour); [`Workspace::forget_start`] makes the next one start
+/// cold.
+///
+/// A workspace belongs to one thread at a time (make one per thread).
+///
+/// # Example
+///
+/// ```
+/// use protolyte::solve::Workspace;
+/// use protolyte::{Amount, Catalog, Conditions, Recipe, Solver};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("acetic acid")?, Amount::millimolar(10.0))?;
+/// let mut sys = r.compile(&Conditions::default())?;
+/// let solver = Solver::default();
+/// let mut ws = Workspace::new();
+/// let mut previous = 0.0;
+/// for k in 1..=5 {
+///     sys.set_total_molal(1, 0.002 * k as f64)?;
+///     let s = solver.solve_ph(&sys, &mut ws)?;
+///     // The same pH as the full result.
+///     assert!((s.ph - solver.solve(&sys)?.ph()).abs() < 1e-12);
+///     assert!(k == 1 || s.ph < previous);
+///     previous = s.ph;
+/// }
+/// # Ok::<(), protolyte::Error>(())
+/// ```
+#[derive(Debug, Default)]
+pub struct Workspace {
+    bufs: Buffers,
+    conc: Vec<f64>,
+    ln_gamma: Vec<f64>,
+    /// The last solution: (ln a(H⁺), ln I).
+    start: Option<(f64, f64)>,
+}
+
+impl Workspace {
+    /// An empty workspace (its buffers grow on the first solve).
+    pub fn new() -> Self {
+        Workspace::default()
+    }
+
+    /// Forgets the last solution: the next solve starts cold.
+    pub fn forget_start(&mut self) {
+        self.start = None;
+    }
+
+    /// The evaluation for `sys` in the workspace's buffers (all zero).
+    fn take_evaluation(&mut self, sys: &System) -> Evaluation {
+        let n = sys.species.len();
+        let mut conc = std::mem::take(&mut self.conc);
+        conc.clear();
+        conc.resize(n, 0.0);
+        let mut ln_gamma = std::mem::take(&mut self.ln_gamma);
+        ln_gamma.clear();
+        ln_gamma.resize(n, 0.0);
+        Evaluation {
+            conc,
+            ln_gamma,
+            dln_gamma_di: Vec::new(),
+            held: Vec::new(),
+            phase_amounts: Vec::new(),
+        }
+    }
+}
+
+/// What [`Solver::solve_ph`] gives: the numbers of the full [`Equilibrium`](crate::Equilibrium)
+/// a screen reads, equal to them.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PhSolution {
+    /// pH under the system's [`PhConvention`], as [`Equilibrium::ph`](crate::Equilibrium::ph).
+    pub ph: f64,
+    /// p\[H\] = −log₁₀ of the H⁺ molality.
+    pub p_h_molal: f64,
+    /// Ionic strength, mol/kg.
+    pub ionic_strength_molal: f64,
+    /// The largest relative residual over every equation solved, as
+    /// [`Residuals::max_relative`](crate::Residuals::max_relative); above
+    /// [`RESIDUAL_PROMISE`](crate::limits::RESIDUAL_PROMISE) (or the solver's tolerance, if
+    /// looser) the full result would carry
+    /// [`Warning::ResidualAbovePromise`](crate::Warning::ResidualAbovePromise).
+    pub max_residual: f64,
+    /// The path that solved it.
+    pub path: SolverPath,
+}
+
+impl Solver {
+    /// Solves `system` in `workspace`, starting from the workspace's last solution, and
+    /// returns pH, p\[H\], ionic strength and the largest residual: the same numbers as
+    /// [`Solver::solve`] gives (to round-off of the start), without building the full result.
+    /// On the fast path (no coupling species, an activity model whose γ depends on the ionic
+    /// strength only, or SIT without tabulated pairs in the system) nothing is allocated once
+    /// the workspace has grown to the system; otherwise this solves in full and reads the
+    /// result. Warnings are not produced: use [`Solver::solve`] where they are wanted.
+    ///
+    /// Errors as [`Solver::solve`].
+    pub fn solve_ph(&self, system: &System, workspace: &mut Workspace) -> Result<PhSolution> {
+        let sys = system;
+        let lean = self.path == PathChoice::Auto
+            && sys.uncoupled()
+            && sys.interactions.known.is_empty()
+            && !(sys.ph_convention == PhConvention::BatesGuggenheim && sys.model == ActivityModel::Sit);
+        if lean {
+            for start in [workspace.start, None] {
+                let mut ev = workspace.take_evaluation(sys);
+                let r = fast::solve_in(sys, start, self.tolerance, &mut workspace.bufs, &mut ev);
+                let out = match r {
+                    Ok((point, _)) => {
+                        let s = read(sys, &ev, point.y[0], point.ln_i);
+                        let l = point.y[0];
+                        workspace.bufs.keep_y(point.y);
+                        s.map(|s| (s, (l, point.ln_i)))
+                    }
+                    Err(e @ Error::IonicStrengthBeyondLimit { .. }) => {
+                        workspace.conc = ev.conc;
+                        workspace.ln_gamma = ev.ln_gamma;
+                        return Err(e);
+                    }
+                    Err(_) => None,
+                };
+                workspace.conc = ev.conc;
+                workspace.ln_gamma = ev.ln_gamma;
+                if let Some((s, at)) = out {
+                    workspace.start = Some(at);
+                    return Ok(s);
+                }
+                if start.is_none() {
+                    break;
+                }
+            }
+        }
+        // Not the fast path, or it did not give a finite result: the full solve decides
+        // (the general path, or the error).
+        let eq = self.solve(sys)?;
+        workspace.start = Some((eq.unknowns()[0], eq.ln_ionic_strength()));
+        Ok(PhSolution {
+            ph: eq.ph(),
+            p_h_molal: eq.p_h_molal(),
+            ionic_strength_molal: eq.ionic_strength_molal(),
+            max_residual: eq.residuals().max_relative(),
+            path: eq.path(),
+        })
+    }
+}
+
+/// The numbers of a fast-path solution, computed as the full result computes them; `None`
+/// where any is not finite or the pH is outside the solver's range (the full solve then
+/// gives the error).
+fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64) -> Option<PhSolution> {
+    let (mut charge, mut scale, mut ionic) = (0.0, 0.0, 0.0);
+    for (&m, &z) in ev.conc.iter().zip(&sys.charge_f) {
+        charge += z * m;
+        scale += z.abs() * m;
+        ionic += 0.5 * z * z * m;
+    }
+    let ideal = sys.model == ActivityModel::Ideal;
+    let i = if ideal { ionic } else { ln_i.exp() };
+    let p_h_activity = -l / LN10;
+    if !(-4.0 - 1e-9..=20.0 + 1e-9).contains(&p_h_activity) {
+        return None;
+    }
+    let ph = p_h_activity + crate::activity::ph_convention_shift(sys.ph_convention, sys.model, i, &sys.dh, 0.0);
+    let mut worst = if scale > 0.0 { (charge / scale).abs() } else { 0.0 };
+    let nc = sys.components.len();
+    for (ci, c) in sys.components.iter().enumerate().skip(1) {
+        if c.total_molal > 0.0 {
+            let mut held: f64 = sys.members[ci].iter().map(|&s| ev.conc[s]).sum();
+            for (s, _) in sys.coupling.iter().enumerate().filter(|(_, c)| **c) {
+                held += sys.nu[s * nc + ci] * ev.conc[s];
+            }
+            worst = worst.max(((held - c.total_molal) / c.total_molal).abs());
+        }
+    }
+    if !ideal {
+        worst = worst.max(((ionic - i) / i).abs());
+    }
+    let s = PhSolution {
+        ph,
+        p_h_molal: -ev.conc[0].log10(),
+        ionic_strength_molal: i,
+        max_residual: worst,
+        path: SolverPath::Fast,
+    };
+    let finite = [s.ph, s.p_h_molal, s.ionic_strength_molal, s.max_residual]
+        .iter()
+        .all(|v| v.is_finite())
+        && ev.conc.iter().all(|m| m.is_finite());
+    finite.then_some(s)
+}
