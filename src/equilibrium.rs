@@ -243,11 +243,9 @@ impl Equilibrium {
             }
         }
         let phased = sys.has_phase_constraints();
-        let amounts: Vec<f64> = if ev.phase_amounts.len() == sys.phases.len() {
-            ev.phase_amounts.clone()
-        } else {
-            vec![0.0; sys.phases.len()]
-        };
+        // The amount in each phase row (none solved for: all zero).
+        let solved = ev.phase_amounts.len() == sys.phases.len();
+        let amount = |w: usize| if solved { ev.phase_amounts[w] } else { 0.0 };
         let families = sys
             .families
             .iter()
@@ -302,10 +300,11 @@ impl Equilibrium {
         let mut mass_relative = Vec::with_capacity(n_active);
         let mut dissolved_totals = Vec::with_capacity(n_active);
         // Mass in the other phases (solids formed, gas exchanged, acid or base of a fixed pH).
-        let mut elsewhere = vec![0.0; nc];
-        let mut elsewhere_scale = vec![0.0; nc];
+        let mut elsewhere = vec![0.0; if solved { nc } else { 0 }];
+        let mut elsewhere_scale = vec![0.0; if solved { nc } else { 0 }];
         let mut charge_elsewhere = 0.0;
-        for (row, &lambda) in sys.phases.iter().zip(&amounts) {
+        for (w, row) in sys.phases.iter().enumerate() {
+            let lambda = amount(w);
             if lambda != 0.0 {
                 for &(c, v) in &row.terms {
                     elsewhere[c] += lambda * v;
@@ -327,19 +326,21 @@ impl Equilibrium {
                 let scale = if c.total_molal > 0.0 {
                     c.total_molal
                 } else {
-                    sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>() + elsewhere_scale[ci]
+                    sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>()
+                        + elsewhere_scale.get(ci).copied().unwrap_or(0.0)
                 };
-                let r = (held + elsewhere[ci] - c.total_molal) / scale;
+                let r = (held + elsewhere.get(ci).copied().unwrap_or(0.0) - c.total_molal) / scale;
                 mass_relative.push((c.name.clone(), if r.is_nan() { 0.0 } else { r }));
             }
         }
         let charge = charge + charge_elsewhere;
         // Saturation indices, partial pressures, the acid or base of a fixed pH.
-        let mut solids = Vec::new();
+        let mut solids = Vec::with_capacity(sys.phases.len());
         let mut gases = Vec::new();
         let mut proton_uptake_molal = 0.0;
         let mut charge_balance_ion = None;
-        for (row, &lambda) in sys.phases.iter().zip(&amounts) {
+        for (w, row) in sys.phases.iter().enumerate() {
+            let lambda = amount(w);
             let ln_q = row.ln_q(&point.y);
             if !ln_q.is_finite() && !row.is_amount() {
                 continue;
