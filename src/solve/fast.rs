@@ -54,6 +54,11 @@ impl Buffers {
     pub(crate) fn keep_y(&mut self, y: Vec<f64>) {
         self.y = y;
     }
+
+    /// The activities kept by [`Buffers::keep_y`].
+    pub(crate) fn y(&self) -> &[f64] {
+        &self.y
+    }
 }
 
 thread_local! {
