@@ -148,6 +148,7 @@ pub struct Equilibrium {
     solids: Vec<SolidState>,
     gases: Vec<GasState>,
     proton_uptake_molal: f64,
+    charge_balance_ion: Option<(Arc<str>, f64)>,
     dissolved_totals: Vec<(Arc<str>, f64)>,
     total_alkalinity_molal: f64,
     carbonate_alkalinity_molal: f64,
@@ -329,9 +330,10 @@ impl Equilibrium {
         let mut solids = Vec::new();
         let mut gases = Vec::new();
         let mut proton_uptake_molal = 0.0;
+        let mut charge_balance_ion = None;
         for (row, &lambda) in sys.phases.iter().zip(&amounts) {
             let ln_q = row.ln_q(&point.y);
-            if !ln_q.is_finite() {
+            if !ln_q.is_finite() && !row.is_amount() {
                 continue;
             }
             match row.kind {
@@ -349,7 +351,8 @@ impl Equilibrium {
                     fixed: fixed.is_some(),
                     taken_up_molal: -lambda,
                 }),
-                RowKind::Ph { .. } => proton_uptake_molal = -lambda,
+                RowKind::Ph { .. } | RowKind::Alkalinity { .. } => proton_uptake_molal = -lambda,
+                RowKind::Closure => charge_balance_ion = Some((row.name.clone(), -lambda)),
             }
         }
         let residuals = Residuals {
@@ -444,6 +447,7 @@ impl Equilibrium {
             solids,
             gases,
             proton_uptake_molal,
+            charge_balance_ion,
             dissolved_totals,
             dic_molal: sys.carbonate.map_or(0.0, |c| aqueous[c]),
             total_alkalinity_molal: alkalinity,
@@ -622,6 +626,12 @@ impl Equilibrium {
     /// needed); 0 without a fixed pH.
     pub fn proton_uptake_molal(&self) -> f64 {
         self.proton_uptake_molal
+    }
+
+    /// The ion that closes the charge balance and the amount of it added to do so, mol/kg
+    /// (negative: removed), when the recipe closes the balance on an ion.
+    pub fn charge_balance_ion_added_molal(&self) -> Option<(&str, f64)> {
+        self.charge_balance_ion.as_ref().map(|(n, v)| (&**n, *v))
     }
 
     /// The dissolved total of each active component (mol/kg): the recipe's total less what

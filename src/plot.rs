@@ -1,6 +1,6 @@
 //! SVG plots (feature `plot`): a titration curve with its equivalence points and dpH/dV, a
-//! distribution diagram (fraction of each form of each family against pH) and buffer capacity
-//! against pH.
+//! distribution diagram (fraction of each form of each family against pH), buffer capacity
+//! against pH, and the saturation index of each solid against pH.
 //!
 //! Every plot is a function of data the library computed; nothing here re-derives chemistry.
 //! The distribution diagram is computed by [`distribution`], which brings the solution to each
@@ -1381,6 +1381,280 @@ pub fn capacity_plot(recipe: &Recipe, conditions: &Conditions, options: &PlotOpt
     let sweep = c.sweep(1.0, 13.0, 241)?;
     let peaks = c.peaks(1.0, 13.0)?;
     capacity_svg(&sweep, &peaks, &options)
+}
+
+// ---------------------------------------------------------------------------------------
+// Saturation indices against pH.
+
+/// The saturation index of each solid along a pH sweep.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SaturationSweep {
+    /// pH of each point (as solved).
+    pub ph: Vec<f64>,
+    /// (solid name, saturation index at each point); a solid is listed when its parts are
+    /// present in the recipe.
+    pub solids: Vec<(String, Vec<f64>)>,
+}
+
+/// Brings `recipe` to `points` evenly spaced pH values from `from` to `to` with strong base or
+/// strong acid (inert monovalent counter-ions, as [`distribution`] does), and records the
+/// saturation index of every solid the results report, as solved at `conditions`. The
+/// solution stays closed and no solid forms along the sweep: the indices say where each
+/// solid would precipitate (SI > 0) or dissolve (SI < 0), not what an equilibrium with it
+/// would be.
+///
+/// Errors: no solid with its parts present, fewer than 2 or more than 2000 points, a pH
+/// outside −4..20 or one not reachable, or a failed solve.
+///
+/// ```
+/// use protolyte::plot::saturation;
+/// use protolyte::{Amount, Catalog, Conditions, Recipe};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("calcium chloride")?, Amount::millimolar(2.0))?
+///  .add(&cat.reagent("sodium bicarbonate")?, Amount::millimolar(2.0))?;
+/// let s = saturation(&r, &Conditions::default(), 6.0, 10.0, 5)?;
+/// let calcite = &s.solids.iter().find(|(n, _)| n == "calcite").unwrap().1;
+/// // Calcite saturation rises with pH as carbonate takes over from bicarbonate.
+/// assert!(calcite[0] < 0.0 && calcite[4] > 0.0);
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn saturation(
+    recipe: &Recipe,
+    conditions: &Conditions,
+    from: f64,
+    to: f64,
+    points: usize,
+) -> PlotResult<SaturationSweep> {
+    if !(2..=2000).contains(&points) {
+        return Err(PlotError::InvalidOption {
+            option: "points",
+            reason: "must be within 2..=2000",
+        });
+    }
+    let base = Reagent::new(
+        "strong base (plot sweep)",
+        None,
+        vec![
+            (Constituent::Ion(Ion::new(SWEEP_CATION, 1)?), 1),
+            (Constituent::Hydroxide, 1),
+        ],
+    )?;
+    let acid = Reagent::new(
+        "strong acid (plot sweep)",
+        None,
+        vec![
+            (Constituent::Proton, 1),
+            (Constituent::Ion(Ion::new(SWEEP_ANION, -1)?), 1),
+        ],
+    )?;
+    let mut r = recipe.clone();
+    r.add(&base, Amount::molal(0.0))?.add(&acid, Amount::molal(0.0))?;
+    let mut sys = r.compile(conditions)?;
+    let missing = || crate::Error::InconsistentDefinition {
+        name: "saturation sweep".into(),
+        reason: "an inert sweep ion did not enter the system".into(),
+    };
+    let cation = sys.component_index(SWEEP_CATION).ok_or_else(missing)?;
+    let anion = sys.component_index(SWEEP_ANION).ok_or_else(missing)?;
+    let (c0, a0) = (
+        sys.components()[cation].total_molal,
+        sys.components()[anion].total_molal,
+    );
+    let capacity = CapacityCurve::new(recipe, conditions)?;
+    let solver = Solver::default();
+    let mut phs = Vec::with_capacity(points);
+    let mut solids: Vec<(String, Vec<f64>)> = Vec::new();
+    let mut last = None;
+    for i in 0..points {
+        let target = from + (to - from) * i as f64 / (points - 1) as f64;
+        let b = capacity.at_ph(target)?.strong_base_molal;
+        sys.set_total_molal(cation, c0 + b.max(0.0))?;
+        sys.set_total_molal(anion, a0 + (-b).max(0.0))?;
+        let eq = match &last {
+            Some(p) => solver.solve_from(&sys, p)?,
+            None => solver.solve(&sys)?,
+        };
+        if !eq.ph().is_finite() {
+            return Err(PlotError::NoData("a solve returned a non-finite pH"));
+        }
+        if i == 0 {
+            solids = eq
+                .solids()
+                .iter()
+                .map(|s| (s.name.to_string(), Vec::with_capacity(points)))
+                .collect();
+            if solids.is_empty() {
+                return Err(PlotError::NoData("no solid has its parts present in the recipe"));
+            }
+        }
+        phs.push(eq.ph());
+        for (name, series) in solids.iter_mut() {
+            series.push(eq.saturation_index(name).unwrap_or(f64::NAN));
+        }
+        last = Some(eq);
+    }
+    Ok(SaturationSweep { ph: phs, solids })
+}
+
+/// Draws the saturation indices of a [`SaturationSweep`] against pH, with the line SI = 0
+/// (saturation) and the solution's pH marked when `options.mark_ph` is set. Indices below
+/// −10 are left out (the solid is far from forming there); a solid whose index stays below
+/// −10 everywhere is not drawn. Errors: no solid with a finite index above −10, fewer than two
+/// finite points, or options out of range.
+///
+/// ```
+/// use protolyte::plot::{PlotOptions, saturation, saturation_svg};
+/// use protolyte::{Amount, Catalog, Conditions, Recipe};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("calcium chloride")?, Amount::millimolar(2.0))?
+///  .add(&cat.reagent("sodium bicarbonate")?, Amount::millimolar(2.0))?;
+/// let s = saturation(&r, &Conditions::default(), 4.0, 12.0, 33)?;
+/// let svg = saturation_svg(&s, &PlotOptions::new().mark_ph(8.2))?;
+/// assert!(svg.contains("saturation index") && svg.contains("calcite"));
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn saturation_svg(sweep: &SaturationSweep, options: &PlotOptions) -> PlotResult<String> {
+    options.check()?;
+    const FLOOR: f64 = -10.0;
+    let keep: Vec<usize> = (0..sweep.ph.len()).filter(|&i| sweep.ph[i].is_finite()).collect();
+    if keep.len() < 2 {
+        return Err(PlotError::NoData("a saturation plot needs at least two finite points"));
+    }
+    let shown: Vec<&(String, Vec<f64>)> = sweep
+        .solids
+        .iter()
+        .filter(|(_, v)| {
+            keep.iter()
+                .any(|&i| v.get(i).is_some_and(|x| x.is_finite() && *x >= FLOOR))
+        })
+        .collect();
+    if shown.is_empty() {
+        return Err(PlotError::NoData(
+            "no solid comes within 10 units of saturation over the sweep",
+        ));
+    }
+    let (pmin, pmax) = keep.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &i| {
+        (a.min(sweep.ph[i]), b.max(sweep.ph[i]))
+    });
+    let (x0, x1) = snapped(pmin, pmax, 0.0);
+    let top = shown
+        .iter()
+        .flat_map(|(_, v)| keep.iter().filter_map(|&i| v.get(i).copied()))
+        .filter(|x| x.is_finite())
+        .fold(1.0_f64, f64::max);
+    let (y0, y1) = (FLOOR, top.ceil() + 0.5);
+    let left = 78;
+    let entries: Vec<LegendEntry> = shown
+        .iter()
+        .enumerate()
+        .map(|(k, (name, _))| LegendEntry {
+            text: name.clone(),
+            colour: colour(k),
+            kind: LegendKind::Line,
+        })
+        .collect();
+    let head = header_height(options.title.is_some(), &entries, options.width, left);
+    let mut buf = String::new();
+    {
+        let root = SVGBackend::with_string(&mut buf, (options.width, options.height + head)).into_drawing_area();
+        root.fill(&WHITE).map_err(drawing)?;
+        let (hd, body) = root.split_vertically(head);
+        header(&hd, options.title.as_deref(), &entries, left)?;
+        let mut chart = ChartBuilder::on(&body)
+            .margin_top(6)
+            .margin_bottom(10)
+            .margin_left(12)
+            .margin_right(28)
+            .x_label_area_size(52)
+            .y_label_area_size(left - 12)
+            .build_cartesian_2d(x0..x1, y0..y1)
+            .map_err(drawing)?;
+        let dx = decimals(x1 - x0);
+        chart
+            .configure_mesh()
+            .x_desc("pH")
+            .y_desc("saturation index")
+            .axis_desc_style(axis_desc(AXIS_PX))
+            .label_style(axis_desc(TICK_PX))
+            .x_label_formatter(&|v| tick(*v, dx))
+            .y_label_formatter(&|v| tick(*v, 0))
+            .bold_line_style(GRID)
+            .light_line_style(GRID_MINOR)
+            .axis_style(INK)
+            .draw()
+            .map_err(drawing)?;
+        chart
+            .draw_series(DashedLineSeries::new(
+                [(x0, 0.0), (x1, 0.0)],
+                7,
+                4,
+                ShapeStyle::from(&INK).stroke_width(2),
+            ))
+            .map_err(drawing)?;
+        for (k, (_, series)) in shown.iter().enumerate() {
+            // Runs of points at or above the floor, drawn as separate lines.
+            let mut run: Vec<(f64, f64)> = Vec::new();
+            let mut runs: Vec<Vec<(f64, f64)>> = Vec::new();
+            for &i in &keep {
+                match series.get(i) {
+                    Some(&v) if v.is_finite() && v >= y0 => run.push((sweep.ph[i], v)),
+                    _ => {
+                        if run.len() > 1 {
+                            runs.push(std::mem::take(&mut run));
+                        }
+                        run.clear();
+                    }
+                }
+            }
+            if run.len() > 1 {
+                runs.push(run);
+            }
+            for r in runs {
+                chart
+                    .draw_series(LineSeries::new(r, ShapeStyle::from(&colour(k)).stroke_width(3)))
+                    .map_err(drawing)?;
+            }
+        }
+        if let Some(m) = options.mark_ph.filter(|m| m.is_finite() && *m >= x0 && *m <= x1) {
+            let mut pts: Vec<(f64, f64)> = Vec::new();
+            for (_, s) in &shown {
+                pts.extend(keep.iter().filter_map(|&i| s.get(i).map(|&v| (sweep.ph[i], v))));
+            }
+            pts.retain(|p| p.1.is_finite() && p.1 >= y0);
+            mark_line(&mut chart, m, y0, y1, &pts)?;
+        }
+        root.present().map_err(drawing)?;
+    }
+    finish(buf)
+}
+
+/// Computes and draws the saturation indices of a recipe's solids from pH 2 to 12 (101
+/// points), marking the solution's own pH unless `options.mark_ph` is set.
+///
+/// ```
+/// use protolyte::plot::{PlotOptions, saturation_plot};
+/// use protolyte::{Amount, Catalog, Conditions, Recipe};
+///
+/// let cat = Catalog::builtin();
+/// let mut r = Recipe::new();
+/// r.add(&cat.reagent("calcium chloride")?, Amount::millimolar(5.0))?
+///  .add(&cat.reagent("sodium sulfate")?, Amount::millimolar(5.0))?
+///  .add(&cat.reagent("sodium bicarbonate")?, Amount::millimolar(2.0))?;
+/// let svg = saturation_plot(&r, &Conditions::default(), &PlotOptions::new())?;
+/// assert!(svg.contains("gypsum") && svg.contains("calcite"));
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn saturation_plot(recipe: &Recipe, conditions: &Conditions, options: &PlotOptions) -> PlotResult<String> {
+    let mut options = options.clone();
+    if options.mark_ph.is_none() {
+        options.mark_ph = Some(recipe.compile(conditions)?.solve()?.ph());
+    }
+    let s = saturation(recipe, conditions, 2.0, 12.0, 101)?;
+    saturation_svg(&s, &options)
 }
 
 // ---------------------------------------------------------------------------------------

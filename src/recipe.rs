@@ -142,13 +142,7 @@ impl Recipe {
     pub fn fix_ph(&mut self, ph: f64) -> Result<&mut Self> {
         crate::error::check_parameter("fixed pH", "pH", ph, -4.0, 20.0, "must be within -4..20")?;
         let new = Constraint::Ph(ph);
-        if let Some(old) = self.constraints.iter().find(|c| matches!(c, Constraint::Ph(_))) {
-            return Err(Error::ConflictingConstraints {
-                first: old.describe(),
-                second: new.describe(),
-                reason: "a pH can be fixed once".into(),
-            });
-        }
+        self.check_new_constraint(&new)?;
         self.constraints.push(new);
         Ok(self)
     }
@@ -173,17 +167,106 @@ impl Recipe {
             gas: gas.clone(),
             pressure,
         };
+        self.check_new_constraint(&new)?;
+        self.constraints.push(new);
+        Ok(self)
+    }
+
+    /// Refuses `new` beside an existing constraint it conflicts with.
+    fn check_new_constraint(&self, new: &Constraint) -> Result<()> {
+        let same_slot = |a: &Constraint, b: &Constraint| -> Option<&'static str> {
+            use Constraint::*;
+            match (a, b) {
+                (Ph(_) | Alkalinity(_), Ph(_) | Alkalinity(_)) => {
+                    Some("each replaces the charge balance, which can be replaced once")
+                }
+                (Dic(_), Dic(_)) => Some("DIC can be fixed once"),
+                (ChargeBalanceOn(_), ChargeBalanceOn(_)) => Some("the charge balance can be closed on one ion"),
+                (Dic(_), PartialPressure { gas, .. }) | (PartialPressure { gas, .. }, Dic(_))
+                    if gas.family().name() == "carbonate" =>
+                {
+                    Some("both set the carbonate total")
+                }
+                (PartialPressure { gas: g1, .. }, PartialPressure { gas: g2, .. })
+                    if g1.family().name() == g2.family().name() =>
+                {
+                    Some("both fix the activity of one family")
+                }
+                _ => None,
+            }
+        };
         for old in &self.constraints {
-            if let Constraint::PartialPressure { gas: g, .. } = old
-                && g.family().name() == gas.family().name()
-            {
+            if let Some(reason) = same_slot(old, new) {
                 return Err(Error::ConflictingConstraints {
                     first: old.describe(),
                     second: new.describe(),
-                    reason: format!("both fix the activity of the {} family", gas.family().name()),
+                    reason: reason.into(),
                 });
             }
         }
+        Ok(())
+    }
+
+    /// Fixes the total alkalinity (mol/kg; see
+    /// [`Equilibrium::total_alkalinity_molal`](crate::Equilibrium::total_alkalinity_molal) for
+    /// the definition): it replaces the charge balance; the charge the given ions leave
+    /// unbalanced is reported as H⁺ taken up (or, with
+    /// [`Recipe::close_charge_balance_on`], goes to that ion). Refuses a value that is not
+    /// finite or beyond ±100 mol/kg and a second constraint on the charge balance.
+    ///
+    /// ```
+    /// use protolyte::{ActivityModel, Catalog, Conditions, Recipe, Temperature};
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// // A water analysis: DIC 2.2 mmol/kg and alkalinity 2.0 mmol/kg, sodium closing the balance.
+    /// r.fix_dic(2.2e-3)?.fix_alkalinity(2.0e-3)?.close_charge_balance_on(&cat.ion("sodium")?)?;
+    /// let eq = r.compile(&Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal))?.solve()?;
+    /// assert!((eq.total_alkalinity_molal() - 2.0e-3).abs() < 1e-15);
+    /// assert!((eq.dissolved_total_molal("sodium").unwrap() - 2.0e-3).abs() < 1e-15);
+    /// assert!(eq.ph() > 7.0 && eq.ph() < 7.6);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn fix_alkalinity(&mut self, molal: f64) -> Result<&mut Self> {
+        crate::error::check_parameter(
+            "total alkalinity",
+            "mol/kg",
+            molal,
+            -100.0,
+            100.0,
+            "must be finite and within ±100",
+        )?;
+        let new = Constraint::Alkalinity(molal);
+        self.check_new_constraint(&new)?;
+        self.constraints.push(new);
+        Ok(self)
+    }
+
+    /// Fixes the dissolved inorganic carbon (mol/kg): the carbonate total is this (carbon
+    /// put in as CO₂; the counter-ions of any carbonate reagent stay). Refuses a negative or
+    /// non-finite value, one above [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL), a
+    /// second DIC and a fixed partial pressure of CO₂ beside it.
+    pub fn fix_dic(&mut self, molal: f64) -> Result<&mut Self> {
+        crate::error::check_amount_max("DIC", molal, "mol/kg")?;
+        let new = Constraint::Dic(molal);
+        self.check_new_constraint(&new)?;
+        self.constraints.push(new);
+        Ok(self)
+    }
+
+    /// Closes the charge balance on `ion`: with a fixed pH or alkalinity, the ion's total is
+    /// what makes the solution electroneutral (the amount added is reported by
+    /// [`Equilibrium::charge_balance_ion_added_molal`](crate::Equilibrium::charge_balance_ion_added_molal)).
+    /// Refuses a neutral ion and a second closing ion; compiling refuses it without a fixed
+    /// pH or alkalinity.
+    pub fn close_charge_balance_on(&mut self, ion: &crate::Ion) -> Result<&mut Self> {
+        if ion.charge() == 0 {
+            return Err(Error::InconsistentDefinition {
+                name: ion.name().to_string(),
+                reason: "a neutral ion cannot close the charge balance".into(),
+            });
+        }
+        let new = Constraint::ChargeBalanceOn(ion.clone());
+        self.check_new_constraint(&new)?;
         self.constraints.push(new);
         Ok(self)
     }
@@ -390,6 +473,9 @@ impl Recipe {
                     match c {
                         Constraint::Ph(ph) => out.fix_ph(*ph)?,
                         Constraint::PartialPressure { gas, pressure } => out.fix_partial_pressure(gas, *pressure)?,
+                        Constraint::Alkalinity(a) => out.fix_alkalinity(*a)?,
+                        Constraint::Dic(d) => out.fix_dic(*d)?,
+                        Constraint::ChargeBalanceOn(ion) => out.close_charge_balance_on(ion)?,
                     };
                 }
             }

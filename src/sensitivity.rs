@@ -74,6 +74,7 @@ impl Sensitivities {
         let sys = system;
         let nc = sys.components.len();
         let ns = sys.species.len();
+        refuse_phases(sys)?;
         if eq.unknowns().len() != nc {
             return Err(Error::InconsistentDefinition {
                 name: "sensitivities".into(),
@@ -333,6 +334,7 @@ impl Equilibrium {
 /// in from a zero total goes through the full sensitivities, which handle that limit.
 pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f64> {
     let sys = system;
+    refuse_phases(sys)?;
     let nc = sys.components.len();
     // A component brought in from zero, or the Bates–Guggenheim pH under SIT (whose trace
     // chloride term needs every dm), go through the full sensitivities.
@@ -423,4 +425,18 @@ impl Composition {
         jacobian[(m - 1, m - 1)] -= i;
         Some(Composition { lu, pmn, jacobian })
     }
+}
+
+/// The derivatives here are those of the closed system's equations; with a fixed pH, a fixed
+/// partial pressure, a fixed alkalinity or solids allowed to form, other equations hold, and
+/// their derivatives are not implemented: refused rather than returned wrong.
+fn refuse_phases(sys: &System) -> Result<()> {
+    if sys.has_phase_constraints() {
+        return Err(Error::InconsistentDefinition {
+            name: "sensitivities".into(),
+            reason: "not available for a system with fixed pH, partial pressures, alkalinity or solids allowed to form"
+                .into(),
+        });
+    }
+    Ok(())
 }

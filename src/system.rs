@@ -256,10 +256,33 @@ impl System {
                 }
             }
         }
-        // A fixed partial pressure brings its family in even when no reagent holds it.
+        // A fixed partial pressure brings its family in even when no reagent holds it, a
+        // DIC sets the carbonate total, an ion closing the charge balance is brought in.
         for c in recipe.constraints() {
-            if let Constraint::PartialPressure { gas, .. } = c {
-                b.family_component(gas.family())?;
+            match c {
+                Constraint::PartialPressure { gas, .. } => {
+                    b.family_component(gas.family())?;
+                }
+                Constraint::Dic(dic) => {
+                    let idx = match b.components.iter().position(|c| &*c.name == "carbonate") {
+                        Some(i) if matches!(b.components[i].kind, ComponentKind::Family(_)) => i,
+                        Some(_) => {
+                            return Err(Error::InconsistentDefinition {
+                                name: "carbonate".into(),
+                                reason: "DIC needs the carbonate family, but the recipe's `carbonate` is an ion".into(),
+                            });
+                        }
+                        None => {
+                            let carbonate = crate::data::Catalog::builtin().protolyte("carbonate")?;
+                            b.family_component(&carbonate)?
+                        }
+                    };
+                    b.components[idx].total_molal = *dic;
+                }
+                Constraint::ChargeBalanceOn(ion) => {
+                    b.ion_component(ion)?;
+                }
+                _ => {}
             }
         }
         // The accepted domain of totals: at most MAX_TOTAL_MOLAL (a sum of lines can pass it
@@ -688,7 +711,9 @@ impl System {
     /// True when the system holds a fixed pH, a fixed partial pressure or a solid allowed to
     /// form: it is then solved on the general path with those relations.
     pub(crate) fn has_phase_constraints(&self) -> bool {
-        self.phases.iter().any(|r| r.is_equality() || r.is_inequality())
+        self.phases
+            .iter()
+            .any(|r| r.is_equality() || r.is_inequality() || r.is_amount())
     }
 
     /// The names of the solids whose saturation index this system reports, in order.
@@ -894,15 +919,47 @@ impl Builder {
                 ln_k: (lkh - species[form].log10_k) * LN10,
             });
         }
+        let frees_charge_balance = recipe
+            .constraints()
+            .iter()
+            .any(|c| matches!(c, Constraint::Ph(_) | Constraint::Alkalinity(_)));
         for c in recipe.constraints() {
-            if let Constraint::Ph(ph) = c {
-                rows.push(PhaseRow {
+            match c {
+                Constraint::Ph(ph) => rows.push(PhaseRow {
                     name: "pH".into(),
                     kind: RowKind::Ph { ln_a_h: -ph * LN10 },
                     terms: vec![(0, 1.0)],
                     ln_k: 0.0,
                     charge: 1.0,
-                });
+                }),
+                Constraint::Alkalinity(molal) => rows.push(PhaseRow {
+                    name: "total alkalinity".into(),
+                    kind: RowKind::Alkalinity { molal: *molal },
+                    terms: vec![(0, 1.0)],
+                    ln_k: 0.0,
+                    charge: 1.0,
+                }),
+                Constraint::ChargeBalanceOn(ion) => {
+                    if !frees_charge_balance {
+                        return Err(Error::ConflictingConstraints {
+                            first: c.describe(),
+                            second: "the charge balance, which sets the pH".into(),
+                            reason: "closing the charge balance on an ion needs a fixed pH or alkalinity to set the pH instead".into(),
+                        });
+                    }
+                    let Some(ci) = self.components.iter().position(|k| &*k.name == ion.name()) else {
+                        continue;
+                    };
+                    open[ci] = true;
+                    rows.push(PhaseRow {
+                        name: ion.name().into(),
+                        kind: RowKind::Closure,
+                        terms: vec![(0, -f64::from(ion.charge())), (ci, 1.0)],
+                        ln_k: 0.0,
+                        charge: 0.0,
+                    });
+                }
+                _ => {}
             }
         }
         Ok((rows, open))

@@ -185,3 +185,57 @@ fn batch_lines_with_phases_agree_with_single_solves() {
         assert!((ph - eq.ph()).abs() < 1e-9, "{line}: {ph} vs {}", eq.ph());
     }
 }
+
+#[test]
+fn the_schema_knows_every_recipe_field() {
+    // Every field a recipe document can carry (all set, so that none is skipped when written)
+    // is a property of the schema's recipe.
+    let schema: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string("schema/recipe.schema.json").unwrap()).unwrap();
+    let props = &schema["$defs"]["recipe"]["properties"];
+    let doc = parse_json(
+        r#"{ "format": "protolyte-recipe/1", "name": "x", "temperature_celsius": 20, "activity": "davies",
+             "ph_convention": "bates-guggenheim", "reagents": [], "complexes": ["CaCO3(aq)"],
+             "include_catalog_complexes": true, "definitions": { "ions": [{ "name": "q", "charge": 1 }] },
+             "fixed_ph": 7, "partial_pressures": [{ "gas": "CO2(g)", "atm": 1e-3 }], "allow_solids": "all",
+             "fixed_alkalinity_meq_per_kg": 2, "fixed_dic_mmol_per_kg": 2, "charge_balance_on": "sodium" }"#,
+    );
+    let v = serde_json::to_value(&doc).unwrap();
+    for key in v.as_object().unwrap().keys() {
+        assert!(props.get(key).is_some(), "`{key}` not in the schema");
+    }
+    let pp = &schema["$defs"]["partial_pressure"]["properties"];
+    for key in ["gas", "atm", "bar", "pascal", "microatm"] {
+        assert!(pp.get(key).is_some(), "partial_pressure.{key}");
+    }
+}
+
+#[test]
+fn a_water_analysis_from_alkalinity_and_dic() {
+    // DIC 2.2 mmol/kg and total alkalinity 2.0 meq/kg, sodium closing the charge balance: the
+    // balance needs exactly the alkalinity's worth of sodium (the proton condition of NaHCO3
+    // plus CO2; common practice), and the pH lies near pKa1 + log(2.0/0.2) = 7.35.
+    let doc = parse_json(
+        r#"{ "format": "protolyte-recipe/1", "activity": "ideal", "reagents": [],
+             "fixed_alkalinity_meq_per_kg": 2.0, "fixed_dic_mmol_per_kg": 2.2,
+             "charge_balance_on": "sodium" }"#,
+    );
+    let eq = solve(&doc);
+    let r = SolveResult::from_equilibrium(&eq);
+    assert!((r.total_alkalinity_eq_per_kg - 2.0e-3).abs() < 1e-12);
+    assert!((r.dic_mol_per_kg - 2.2e-3).abs() < 1e-12);
+    let c = r.charge_balance_ion.as_ref().unwrap();
+    assert_eq!(c.ion, "sodium");
+    assert!((c.added_mol_per_kg - 2.0e-3).abs() < 1e-9, "{c:?}");
+    assert!(r.ph > 7.2 && r.ph < 7.5, "{}", r.ph);
+    let cat = Catalog::builtin();
+    let (recipe, conditions) = doc.to_recipe(&cat).unwrap();
+    let back = RecipeDoc::from_recipe(&recipe, &conditions);
+    assert_eq!(back.charge_balance_on.as_deref(), Some("sodium"));
+    assert_eq!(back.to_recipe(&cat).unwrap().0, recipe);
+    let e = parse_json(r#"{ "charge_balance_on": "unobtainium", "fixed_ph": 7 }"#)
+        .to_recipe(&cat)
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("charge_balance_on"), "{e}");
+}

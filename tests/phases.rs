@@ -224,6 +224,91 @@ fn closed_system_reports_partial_pressure_alkalinity_and_dic() {
     assert!((p / (h2co3 / 10f64.powf(-1.474)) - 1.0).abs() < 1e-12);
 }
 
+fn ideal() -> Conditions {
+    Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal)
+}
+
+#[test]
+fn water_analysis_from_alkalinity_and_dic() {
+    let cat = Catalog::builtin();
+    let (ta, dic) = (2.0e-3, 2.2e-3);
+    let mut r = Recipe::new();
+    r.fix_dic(dic)
+        .unwrap()
+        .fix_alkalinity(ta)
+        .unwrap()
+        .close_charge_balance_on(&cat.ion("sodium").unwrap())
+        .unwrap();
+    let eq = r.compile(&ideal()).unwrap().solve().unwrap();
+    assert!((eq.total_alkalinity_molal() / ta - 1.0).abs() < 1e-12);
+    assert!((eq.dic_molal() / dic - 1.0).abs() < 1e-12);
+    assert!(eq.residuals().max_relative() < 1e-10, "{:?}", eq.residuals());
+    let (ion, added) = eq.charge_balance_ion_added_molal().unwrap();
+    assert_eq!(ion, "sodium");
+    assert!((added / ta - 1.0).abs() < 1e-12);
+    // The carbonate system closed form (common practice): TA = DIC·(α1 + 2α2) + Kw/h − h,
+    // solved here by bisection in log h with the catalogue's pKa values.
+    let kw = 10f64.powf(protolyte::water::log10_kw(Temperature::celsius(25.0)).unwrap());
+    let (k1, k2) = (10f64.powf(-6.351), 10f64.powf(-10.329));
+    let f = |h: f64| {
+        let d = h * h + k1 * h + k1 * k2;
+        dic * (k1 * h + 2.0 * k1 * k2) / d + kw / h - h - ta
+    };
+    let (mut lo, mut hi) = (-12.0f64, -2.0f64);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if f(10f64.powf(mid)) > 0.0 { lo = mid } else { hi = mid }
+    }
+    assert!((eq.ph() + lo).abs() < 1e-3, "{} {}", eq.ph(), -lo);
+    // The other sign: chloride cannot close a balance that lacks cations.
+    let mut r = Recipe::new();
+    r.fix_dic(1e-3).unwrap().fix_alkalinity(5e-3).unwrap();
+    r.close_charge_balance_on(&cat.ion("chloride").unwrap()).unwrap();
+    let err = r.compile(&ideal()).unwrap().solve().unwrap_err();
+    assert!(
+        matches!(err, Error::InfeasiblePhases { .. }) && err.to_string().contains("chloride"),
+        "{err}"
+    );
+}
+
+#[test]
+fn fixed_ph_with_the_balance_closed_on_an_ion() {
+    let cat = Catalog::builtin();
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("ammonia").unwrap(), Amount::molal(0.01)).unwrap();
+    r.fix_ph(9.0)
+        .unwrap()
+        .close_charge_balance_on(&cat.ion("chloride").unwrap())
+        .unwrap();
+    let eq = r.compile(&davies(25.0)).unwrap().solve().unwrap();
+    assert!((eq.ph() - 9.0).abs() < 1e-10);
+    assert!(eq.residuals().max_relative() < 1e-10, "{:?}", eq.residuals());
+    // Electroneutral: the chloride added balances NH4+ and H+ against OH-.
+    let m = |n: &str| eq.species_named(n).map_or(0.0, |s| s.molal);
+    let (_, cl) = eq.charge_balance_ion_added_molal().unwrap();
+    assert!(((m("NH4+") + m("H+") - m("OH-")) / cl - 1.0).abs() < 1e-10);
+    assert!(eq.proton_uptake_molal().abs() < 1e-14);
+    // Without a fixed pH or alkalinity the closing ion has nothing to close.
+    let mut r = Recipe::new();
+    r.close_charge_balance_on(&cat.ion("chloride").unwrap()).unwrap();
+    assert!(matches!(r.compile(&ideal()), Err(Error::ConflictingConstraints { .. })));
+    // A pH and an alkalinity both replace the charge balance.
+    let mut r = Recipe::new();
+    r.fix_ph(7.0).unwrap();
+    let err = r.fix_alkalinity(1e-3).unwrap_err();
+    assert!(
+        err.to_string().contains("pH fixed at 7") && err.to_string().contains("alkalinity"),
+        "{err}"
+    );
+    // DIC beside a fixed pCO2 would set the carbonate total twice.
+    let mut r = Recipe::new();
+    r.fix_dic(1e-3).unwrap();
+    let err = r
+        .fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(1e-3))
+        .unwrap_err();
+    assert!(matches!(err, Error::ConflictingConstraints { .. }), "{err}");
+}
+
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(64))]
 

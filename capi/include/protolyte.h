@@ -102,15 +102,18 @@ const char *ptl_last_error(void);
 // `s` is null or a string returned by this library and not yet freed.
 void ptl_string_free(char *s);
 
-// Runs a document of any kind (recipe, titration, design or fit request; JSON or TOML, told
-// by its `format` field) and sets `*result` to its result document as JSON, a string the
-// caller frees with [`ptl_string_free`]. On failure `*result` is set to null and the code
+// Runs a document of any kind (recipe, titration, design, fit, calibration or
+// measured-titration request; JSON or TOML, told by its `format` field) and sets `*result`
+// to its result document as JSON (what `protolyte solve|titrate|design|fit|calibrate|analyze
+// --json` writes), a string the caller frees with [`ptl_string_free`]. The data file of a
+// measured-titration request is read from the working directory. On failure `*result` is set to null and the code
 // and [`ptl_last_error`] say why.
 //
 // # Safety
 // `document` is null or a NUL-terminated string; `result` is null or points to writable
 // storage for one pointer.
-int32_t ptl_run_document(const char *document, char **result);
+int32_t ptl_run_document(const char *document,
+                         char **result);
 
 // Compiles the reagents, complexes and conditions of a recipe document (JSON or TOML; its
 // amounts are not used) and sets `*system` to a new handle, freed with [`ptl_system_free`].

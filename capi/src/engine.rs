@@ -7,12 +7,12 @@
 
 use std::sync::OnceLock;
 
-use protolyte::analysis::{CapacityCurve, TitrationPoint};
-use protolyte::document::{
-    self, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
-    TitrationResult,
-};
-use protolyte::{Catalog, Conditions, Constituent, Equilibrium, Error, PhConvention, Solver, System};
+use protolyte::analysis::CapacityCurve;
+use protolyte::document::{self, DesignDoc, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc};
+use protolyte::{Catalog, Conditions, Constituent, Equilibrium, Error, Solver, System};
+
+/// The document kinds [`run_document`] runs.
+const KINDS: &str = "\"protolyte-recipe/1\", \"protolyte-titration/1\", \"protolyte-design/1\", \"protolyte-fit/1\", \"protolyte-calibration/1\", \"protolyte-measured/1\"";
 
 /// The name a document read from memory is given in messages.
 pub const DOCUMENT_NAME: &str = "<document>";
@@ -105,13 +105,7 @@ fn format_of(text: &str) -> Result<String, Failure> {
         )),
         None if value.is_object() => Err(Failure::new(
             Kind::Input,
-            format!(
-                "{DOCUMENT_NAME}: field `format`: missing; a document names its kind: \"{}\", \"{}\", \"{}\" or \"{}\"",
-                document::RECIPE_FORMAT,
-                document::TITRATION_FORMAT,
-                document::DESIGN_FORMAT,
-                document::FIT_FORMAT
-            ),
+            format!("{DOCUMENT_NAME}: field `format`: missing; a document names its kind, one of {KINDS}"),
         )),
         None => Err(Failure::new(
             Kind::Syntax,
@@ -120,15 +114,8 @@ fn format_of(text: &str) -> Result<String, Failure> {
     }
 }
 
-/// The name of a pH convention in a result document, `None` for the model's own γ(H⁺).
-fn convention_label(c: PhConvention) -> Option<String> {
-    match c {
-        PhConvention::Model => None,
-        PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
-    }
-}
-
-/// Runs any document (a recipe, titration, design or fit request, told by its `format`) and
+/// Runs any document (a recipe, titration, design, fit, calibration or measured-titration
+/// request, told by its `format`) and
 /// returns its result document as JSON: the same result the command line writes with
 /// `--json`.
 pub fn run_document(text: &str) -> Result<String, Failure> {
@@ -139,16 +126,19 @@ pub fn run_document(text: &str) -> Result<String, Failure> {
             let eq = solve_recipe_doc(&doc)?.1;
             to_json(&SolveResult::from_equilibrium(&eq).named(doc.name.clone()))
         }
-        document::TITRATION_FORMAT => to_json(&titrate(text)?),
+        document::TITRATION_FORMAT => {
+            let doc: TitrationDoc = document::parse(text, DOCUMENT_NAME)?;
+            doc.check_format(true).map_err(|e| e.in_file(DOCUMENT_NAME))?;
+            to_json(
+                &document::run_titration(&doc, catalog())
+                    .map_err(request_failure)?
+                    .result,
+            )
+        }
         document::DESIGN_FORMAT => {
             let doc: DesignDoc = document::parse(text, DOCUMENT_NAME)?;
             doc.check_format(true).map_err(|e| e.in_file(DOCUMENT_NAME))?;
-            let spec = doc.to_spec(catalog()).map_err(|e| e.in_file(DOCUMENT_NAME))?;
-            let conditions = doc.conditions().map_err(|e| e.in_file(DOCUMENT_NAME))?;
-            let r = spec.design().map_err(solve_failure)?;
-            let mut result = DesignResult::from_recipe(&r, &conditions);
-            result.name = doc.name.clone();
-            to_json(&result)
+            to_json(&document::run_design(&doc, catalog()).map_err(request_failure)?)
         }
         document::FIT_FORMAT => {
             let doc: FitDoc = document::parse(text, DOCUMENT_NAME)?;
@@ -159,14 +149,37 @@ pub fn run_document(text: &str) -> Result<String, Failure> {
             result.name = doc.name.clone();
             to_json(&result)
         }
+        document::CALIBRATION_FORMAT => {
+            let doc: document::CalibrationDoc = document::parse(text, DOCUMENT_NAME)?;
+            doc.check_format(true).map_err(|e| e.in_file(DOCUMENT_NAME))?;
+            let cal = doc.to_calibration().map_err(|e| e.in_file(DOCUMENT_NAME))?;
+            let mut r = document::CalibrationResult::from(&cal);
+            r.name = doc.name.clone();
+            to_json(&r)
+        }
+        document::MEASURED_FORMAT => {
+            let doc: document::MeasuredDoc = document::parse(text, DOCUMENT_NAME)?;
+            doc.check_format(true).map_err(|e| e.in_file(DOCUMENT_NAME))?;
+            // A document from memory has no folder: its data file is read from the working
+            // directory (or an absolute path).
+            let path = std::path::Path::new(&doc.data.file);
+            let data = std::fs::read_to_string(path).map_err(|e| {
+                Failure::new(
+                    Kind::Input,
+                    format!("{}: cannot read the data file: {e}", path.display()),
+                )
+            })?;
+            let r = doc.analyze(&data, catalog()).map_err(|e| match e {
+                DocumentError::Read { .. } => Failure::from(e.in_file(&path.display().to_string())),
+                other => Failure::from(other.in_file(DOCUMENT_NAME)),
+            })?;
+            to_json(&r)
+        }
         other => Err(Failure::new(
             Kind::Input,
             format!(
-                "{DOCUMENT_NAME}: field `format`: unknown document kind {other:?}; expected \"{}\", \"{}\", \"{}\" or \"{}\"",
-                document::RECIPE_FORMAT,
-                document::TITRATION_FORMAT,
-                document::DESIGN_FORMAT,
-                document::FIT_FORMAT
+                "{DOCUMENT_NAME}: field `format`: unknown document kind {other:?}; expected one of {}",
+                KINDS
             ),
         )),
     }?;
@@ -177,38 +190,13 @@ fn to_json<T: serde::Serialize>(v: &T) -> Result<String, Failure> {
     serde_json::to_string(v).map_err(|e| Failure::new(Kind::Internal, format!("result could not be written: {e}")))
 }
 
-/// The titration result document, as the command line builds it.
-fn titrate(text: &str) -> Result<TitrationResult, Failure> {
-    let doc: TitrationDoc = document::parse(text, DOCUMENT_NAME)?;
-    let name = DOCUMENT_NAME;
-    doc.check_format(true).map_err(|e| e.in_file(name))?;
-    let t = doc.to_titration(catalog()).map_err(|e| e.in_file(name))?;
-    let curve: Vec<TitrationPoint> = match doc.uniform_points().map_err(|e| e.in_file(name))? {
-        Some(n) => t.curve_uniform(doc.end_volume().map_err(|e| e.in_file(name))?, n),
-        None => t.curve_adaptive(&doc.stepping().map_err(|e| e.in_file(name))?),
+/// A titration or design request's failure: a refused document names the document, a
+/// refusal of the chemistry keeps its kind.
+fn request_failure(e: document::RequestError) -> Failure {
+    match e {
+        document::RequestError::Input(d) => Failure::from(d.in_file(DOCUMENT_NAME)),
+        document::RequestError::Chemistry(c) => solve_failure(c),
     }
-    .map_err(solve_failure)?;
-    let criterion = doc.endpoint_criterion().map_err(|e| e.in_file(name))?;
-    let eqs = t
-        .equivalence_points_judged(
-            protolyte::analysis::endpoints::DEFAULT_STEEP_FRACTION,
-            protolyte::analysis::indicators(),
-            &criterion,
-        )
-        .map_err(solve_failure)?;
-    let halves = t.half_equivalence_points().map_err(solve_failure)?;
-    let end = doc.end_volume_ml;
-    let conditions = doc.conditions().map_err(|e| e.in_file(name))?;
-    Ok(TitrationResult {
-        format: document::RESULT_FORMAT.into(),
-        name: doc.name.clone(),
-        ph_convention: convention_label(conditions.ph_convention),
-        analyte_volume_ml: t.analyte_volume().milliliters_value(),
-        points: curve.iter().map(Into::into).collect(),
-        equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
-        half_equivalence_points: halves.iter().filter(|h| h.volume_ml <= end).map(Into::into).collect(),
-        notes: Vec::new(),
-    })
 }
 
 /// Parses a recipe document (the `format` may be left out).
@@ -350,7 +338,7 @@ impl Composition {
             }
             return Ok(Vec::new());
         }
-        if input.len() % columns != 0 {
+        if !input.len().is_multiple_of(columns) {
             return Err(Failure::new(
                 Kind::Argument,
                 format!(

@@ -4,9 +4,10 @@
 //! Two ways in:
 //!
 //! - **Documents.** [`ptl_run_document`] takes any protolyte document as text (a recipe,
-//!   titration, design or fit request in JSON or TOML, told by its `format` field; the format
-//!   is described in `docs/recipe-format.md`) and returns its result document as JSON, the
-//!   same document `protolyte solve|titrate|design|fit --json` writes.
+//!   titration, design, fit, calibration or measured-titration request in JSON or TOML, told
+//!   by its `format` field; the format is described in `docs/recipe-format.md`) and returns
+//!   its result document as JSON, the same document `protolyte
+//!   solve|titrate|design|fit|calibrate|analyze --json` writes.
 //! - **The hot path.** [`ptl_system_new`] compiles a recipe document once into an opaque
 //!   [`PtlSystem`]; [`ptl_system_solve_amounts`] and [`ptl_system_solve_totals`] then solve
 //!   it for many compositions (reagent amounts or component totals, one row each) into
@@ -174,9 +175,11 @@ pub unsafe extern "C" fn ptl_string_free(s: *mut c_char) {
     }
 }
 
-/// Runs a document of any kind (recipe, titration, design or fit request; JSON or TOML, told
-/// by its `format` field) and sets `*result` to its result document as JSON, a string the
-/// caller frees with [`ptl_string_free`]. On failure `*result` is set to null and the code
+/// Runs a document of any kind (recipe, titration, design, fit, calibration or
+/// measured-titration request; JSON or TOML, told by its `format` field) and sets `*result`
+/// to its result document as JSON (what `protolyte solve|titrate|design|fit|calibrate|analyze
+/// --json` writes), a string the caller frees with [`ptl_string_free`]. The data file of a
+/// measured-titration request is read from the working directory. On failure `*result` is set to null and the code
 /// and [`ptl_last_error`] say why.
 ///
 /// # Safety

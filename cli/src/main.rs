@@ -12,13 +12,12 @@ use std::sync::OnceLock;
 use std::time::Instant;
 
 use clap::{Parser, Subcommand};
-use protolyte::analysis::TitrationPoint;
 use protolyte::document::batch::{self, BatchOptions};
 use protolyte::document::{
     self, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
     TitrationResult,
 };
-use protolyte::plot::{PlotError, PlotOptions, distribution_plot, titration_svg, write_svg};
+use protolyte::plot::{PlotError, PlotOptions, capacity_plot, distribution_plot, titration_svg, write_svg};
 use protolyte::{Catalog, DataKind, Error};
 
 /// Exit codes.
@@ -88,6 +87,9 @@ enum Command {
         /// Also draw the distribution diagram (fraction of each form against pH) as SVG.
         #[arg(long, value_name = "FILE.svg")]
         plot: Option<PathBuf>,
+        /// Also draw the buffer capacity against pH (pH 1–13, local maxima marked) as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        capacity_plot: Option<PathBuf>,
     },
     /// Simulate a titration (`protolyte-titration/1`): the curve as CSV, then its endpoints.
     Titrate {
@@ -197,6 +199,15 @@ fn chem(file: &str, e: Error) -> Failure {
     }
 }
 
+/// A refused request: its document (exit 3) or its chemistry (exit 3, or 4 when the solver
+/// did not converge), attributed to `file`.
+fn request_failure(file: &str, e: document::RequestError) -> Failure {
+    match e {
+        document::RequestError::Input(d) => d.in_file(file).into(),
+        document::RequestError::Chemistry(c) => chem(file, c),
+    }
+}
+
 fn output_failure(e: io::Error) -> Failure {
     Failure {
         code: EXIT_OUTPUT,
@@ -236,7 +247,12 @@ fn run(cmd: Command) -> Result<u8, Failure> {
     let stdout = io::stdout();
     let mut out = BufWriter::new(stdout.lock());
     let code = match cmd {
-        Command::Solve { file, json, plot } => solve(&file, json, plot.as_deref(), &mut out)?,
+        Command::Solve {
+            file,
+            json,
+            plot,
+            capacity_plot,
+        } => solve(&file, json, plot.as_deref(), capacity_plot.as_deref(), &mut out)?,
         Command::Titrate {
             file,
             json,
@@ -284,8 +300,15 @@ fn plot_options(name: &Option<String>) -> PlotOptions {
     }
 }
 
-fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> Result<u8, Failure> {
+fn solve(
+    file: &Path,
+    json: bool,
+    plot: Option<&Path>,
+    capacity: Option<&Path>,
+    out: &mut impl Write,
+) -> Result<u8, Failure> {
     check_svg_name(plot)?;
+    check_svg_name(capacity)?;
     let name = display_name(file);
     let doc: RecipeDoc = document::load_expecting(file, document::RECIPE_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
@@ -302,10 +325,34 @@ fn solve(file: &Path, json: bool, plot: Option<&Path>, out: &mut impl Write) -> 
     }
     // The plot comes after the result, so that a plot that cannot be drawn or written (exit 5)
     // does not take the result with it.
+    if plot.is_none() && capacity.is_none() {
+        return Ok(EXIT_OK);
+    }
+    // The fractions and the buffer capacity against pH are those of the closed solution: a
+    // fixed pH or partial pressure, or solids allowed to form, would hold the pH or the totals
+    // the sweep moves. The result's own pH is marked on each plot.
+    let closed = if doc.has_phase_requests() {
+        let mut c = doc.clone();
+        c.fixed_ph = None;
+        c.partial_pressures.clear();
+        c.allow_solids = None;
+        c.fixed_alkalinity_meq_per_kg = None;
+        c.fixed_dic_mmol_per_kg = None;
+        c.charge_balance_on = None;
+        c.to_recipe(catalog()).map_err(|e| e.in_file(&name))?.0
+    } else {
+        recipe
+    };
     if let Some(p) = plot {
         out.flush().map_err(output_failure)?;
         let opts = plot_options(&doc.name).mark_ph(eq.ph());
-        let svg = distribution_plot(&recipe, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        let svg = distribution_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
+    }
+    if let Some(p) = capacity {
+        out.flush().map_err(output_failure)?;
+        let opts = plot_options(&doc.name).mark_ph(eq.ph());
+        let svg = capacity_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
@@ -398,12 +445,21 @@ fn write_phase_tables(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
         writeln!(out, "DIC               {:.4} mmol/kg", 1e3 * r.dic_mol_per_kg)?;
     }
     if let Some(u) = r.proton_uptake_mol_per_kg {
-        let what = if u >= 0.0 {
-            "acid (H+) added"
-        } else {
-            "base (OH-) added"
-        };
-        writeln!(out, "fixed pH          {what}: {:.4e} mol/kg", u.abs())?;
+        let what = if u >= 0.0 { "acid (H+)" } else { "base (OH-)" };
+        writeln!(
+            out,
+            "acid or base      {:.4e} mol/kg of {what} added to hold the constraints",
+            u.abs()
+        )?;
+    }
+    if let Some(c) = &r.charge_balance_ion {
+        let what = if c.added_mol_per_kg >= 0.0 { "added" } else { "removed" };
+        writeln!(
+            out,
+            "charge balance    closed on {}: {:.4e} mol/kg {what}",
+            c.ion,
+            c.added_mol_per_kg.abs()
+        )?;
     }
     if !r.gases.is_empty() {
         writeln!(out)?;
@@ -476,37 +532,12 @@ fn titrate(
     let name = display_name(file);
     let doc: TitrationDoc = document::load_expecting(file, document::TITRATION_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let t = doc.to_titration(catalog()).map_err(|e| e.in_file(&name))?;
-    let curve: Vec<TitrationPoint> = match doc.uniform_points().map_err(|e| e.in_file(&name))? {
-        Some(n) => t.curve_uniform(doc.end_volume().map_err(|e| e.in_file(&name))?, n),
-        None => t.curve_adaptive(&doc.stepping().map_err(|e| e.in_file(&name))?),
-    }
-    .map_err(|e| chem(&name, e))?;
-    let criterion = doc.endpoint_criterion().map_err(|e| e.in_file(&name))?;
-    let eqs = t
-        .equivalence_points_judged(
-            protolyte::analysis::endpoints::DEFAULT_STEEP_FRACTION,
-            protolyte::analysis::indicators(),
-            &criterion,
-        )
-        .map_err(|e| chem(&name, e))?;
-    let halves = t.half_equivalence_points().map_err(|e| chem(&name, e))?;
-    let end = doc.end_volume_ml;
-    let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
-    let result = TitrationResult {
-        format: document::RESULT_FORMAT.into(),
-        name: doc.name.clone(),
-        ph_convention: convention_label(conditions.ph_convention),
-        analyte_volume_ml: t.analyte_volume().milliliters_value(),
-        points: curve.iter().map(Into::into).collect(),
-        equivalence_points: eqs.iter().filter(|e| e.volume_ml <= end).map(Into::into).collect(),
-        half_equivalence_points: halves.iter().filter(|h| h.volume_ml <= end).map(Into::into).collect(),
-        notes: titration_notes(&eqs, end),
-    };
+    let run = document::run_titration(&doc, catalog()).map_err(|e| request_failure(&name, e))?;
+    let result = &run.result;
     if json {
         write_json(out, &result)?;
     } else {
-        write_titration_csv(out, &result).map_err(output_failure)?;
+        write_titration_csv(out, result).map_err(output_failure)?;
         out.flush().map_err(output_failure)?;
         match endpoints {
             Some(p) => {
@@ -515,32 +546,30 @@ fn titrate(
                     message: format!("{}: cannot create the endpoint report: {e}", p.display()),
                 })?;
                 let mut w = BufWriter::new(f);
-                write_endpoint_report(&mut w, &result)
+                write_endpoint_report(&mut w, result)
                     .and_then(|()| w.flush())
                     .map_err(|e| Failure {
                         code: EXIT_OUTPUT,
                         message: format!("{}: cannot write the endpoint report: {e}", p.display()),
                     })?;
             }
-            None => write_endpoint_report(&mut io::stderr().lock(), &result).map_err(output_failure)?,
+            None => write_endpoint_report(&mut io::stderr().lock(), result).map_err(output_failure)?,
         }
     }
     // After the result, as for `solve`.
     if let Some(p) = plot {
         out.flush().map_err(output_failure)?;
-        let shown: Vec<_> = eqs.iter().filter(|e| e.volume_ml <= end).cloned().collect();
-        let svg = titration_svg(&curve, &shown, &plot_options(&doc.name)).map_err(|e| plot_failure(p, e))?;
+        let end = doc.end_volume_ml;
+        let shown: Vec<_> = run
+            .equivalence_points
+            .iter()
+            .filter(|e| e.volume_ml <= end)
+            .cloned()
+            .collect();
+        let svg = titration_svg(&run.curve, &shown, &plot_options(&doc.name)).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
-}
-
-/// The name of a pH convention in a result document, `None` for the model's own γ(H⁺).
-fn convention_label(c: protolyte::PhConvention) -> Option<String> {
-    match c {
-        protolyte::PhConvention::Model => None,
-        protolyte::PhConvention::BatesGuggenheim => Some("bates-guggenheim".into()),
-    }
 }
 
 /// Refuses a plot file whose name does not end in `.svg` (the only format drawn), before
@@ -556,20 +585,6 @@ fn check_svg_name(plot: Option<&Path>) -> Result<(), Failure> {
         }),
         _ => Ok(()),
     }
-}
-
-/// Notes on the curve as asked for: an end volume short of the first equivalence point.
-fn titration_notes(eqs: &[protolyte::analysis::EquivalencePoint], end_ml: f64) -> Vec<String> {
-    let mut notes = Vec::new();
-    if let Some(first) = eqs.first()
-        && first.volume_ml > end_ml
-    {
-        notes.push(format!(
-            "the curve stops at {end_ml} mL, before its first equivalence point ({:.4} mL): raise end_volume_ml to see it",
-            first.volume_ml
-        ));
-    }
-    notes
 }
 
 /// The curve as pure CSV: a header and one row a point, nothing else.
@@ -668,11 +683,7 @@ fn design(file: &Path, json: bool, out: &mut impl Write) -> Result<u8, Failure> 
     let name = display_name(file);
     let doc: DesignDoc = document::load_expecting(file, document::DESIGN_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
-    let spec = doc.to_spec(catalog()).map_err(|e| e.in_file(&name))?;
-    let conditions = doc.conditions().map_err(|e| e.in_file(&name))?;
-    let r = spec.design().map_err(|e| chem(&name, e))?;
-    let mut result = DesignResult::from_recipe(&r, &conditions);
-    result.name = doc.name.clone();
+    let result = document::run_design(&doc, catalog()).map_err(|e| request_failure(&name, e))?;
     if json {
         write_json(out, &result)?;
     } else {

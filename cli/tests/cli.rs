@@ -760,3 +760,64 @@ fn fit_warns_when_two_estimates_correlate() {
         stdout(&o)
     );
 }
+
+#[test]
+fn solve_draws_the_buffer_capacity_plot() {
+    let svg = std::env::temp_dir().join(format!("protolyte-cli-capacity-{}.svg", std::process::id()));
+    let o = protolyte(&[
+        "solve",
+        "examples/hatchery_makeup.json",
+        "--capacity-plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = std::fs::read_to_string(&svg).unwrap();
+    assert!(
+        text.starts_with("<svg") && text.contains("local maximum"),
+        "{}",
+        &text[..200.min(text.len())]
+    );
+}
+
+#[test]
+fn batch_runs_titration_and_design_requests_beside_recipes() {
+    let titration = std::fs::read_to_string(repo_root().join("examples/soft_drink_acidity.json")).unwrap();
+    let design = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json")).unwrap();
+    let one_line = |t: &str| serde_json::to_string(&serde_json::from_str::<serde_json::Value>(t).unwrap()).unwrap();
+    let input = format!(
+        "{}\n{}\n{}\n{}\n",
+        r#"{"reagents": [{"reagent": "acetic acid", "millimolar": 10}]}"#,
+        one_line(&titration),
+        one_line(&design),
+        r#"{"format": "protolyte-titration/1", "analyte": {"volume_ml": 25, "reagents": []}, "titrant": {"reagents": [{"reagent": "no such thing", "molar": 0.1}]}, "end_volume_ml": 5}"#
+    );
+    let o = with_stdin(&["batch", "-"], &input);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let out = stdout(&o);
+    let lines: Vec<serde_json::Value> = out.lines().map(|l| serde_json::from_str(l).unwrap()).collect();
+    assert_eq!(lines.len(), 4);
+    assert!(lines[0]["ph"].as_f64().unwrap() > 3.0);
+    assert_eq!(lines[1]["kind"], "titration");
+    let t: TitrationResult = serde_json::from_value(lines[1]["result"].clone()).unwrap();
+    assert!(!t.equivalence_points.is_empty());
+    assert_eq!(lines[2]["kind"], "design");
+    let d: DesignResult = serde_json::from_value(lines[2]["result"].clone()).unwrap();
+    assert!((d.check_ph - 8.0).abs() < 1e-6);
+    assert_eq!(lines[3]["kind"], "input");
+    assert_eq!(lines[3]["line"], 4);
+}
+
+#[test]
+fn a_buffer_far_from_its_pka_carries_a_warning() {
+    // Tris (pKa 8.07 at 25 °C) asked for pH 6.0: two units away.
+    let doc = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json"))
+        .unwrap()
+        .replace("\"target_ph\": 8.0", "\"target_ph\": 6.0");
+    assert!(doc.contains("\"target_ph\": 6.0"));
+    let p = temp_file("tris_far.json", &doc);
+    let o = protolyte(&["design", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
+    let o = protolyte(&["design", "examples/tris_buffer_design.json"]);
+    assert!(!stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
+}

@@ -93,8 +93,10 @@ def run(document: Union[Mapping[str, Any], str]) -> Dict[str, Any]:
     """Runs a document of any kind and returns its result document as a dict.
 
     The kind is told by the document's ``format``: ``"protolyte-recipe/1"`` (solve),
-    ``"protolyte-titration/1"``, ``"protolyte-design/1"`` or ``"protolyte-fit/1"``. The result
-    is the document ``protolyte solve|titrate|design|fit --json`` writes. ``document`` may be
+    ``"protolyte-titration/1"``, ``"protolyte-design/1"``, ``"protolyte-fit/1"``,
+    ``"protolyte-calibration/1"`` (an electrode calibration) or ``"protolyte-measured/1"`` (a
+    measured titration; its data file is read from the working directory). The result is the
+    document ``protolyte solve|titrate|design|fit|calibrate|analyze --json`` writes. ``document`` may be
     a dict or JSON/TOML text.
 
     Raises :class:`InputError` (a refused field, named in the message),

@@ -200,10 +200,13 @@ pub struct PhaseEntry {
     pub origin: String,
 }
 
+/// The built-in catalogue's solids and gases, shared once built.
+pub(crate) type BuiltinPhases = (std::sync::Arc<[Solid]>, std::sync::Arc<[Gas]>);
+
 /// The built-in catalogue's solids and gases, shared (what a new [`Recipe`](crate::Recipe)
 /// reports saturation indices and partial pressures for).
-pub(crate) fn builtin_phases() -> (std::sync::Arc<[Solid]>, std::sync::Arc<[Gas]>) {
-    static PHASES: OnceLock<(std::sync::Arc<[Solid]>, std::sync::Arc<[Gas]>)> = OnceLock::new();
+pub(crate) fn builtin_phases() -> BuiltinPhases {
+    static PHASES: OnceLock<BuiltinPhases> = OnceLock::new();
     PHASES
         .get_or_init(|| {
             let cat = Catalog::builtin();

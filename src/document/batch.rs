@@ -134,8 +134,9 @@ pub struct BatchSummary {
 
 /// A batch line as read on the fast path: names borrowed from the input text where they can
 /// be (no allocation per name). The fields are those of [`RecipeDoc`]; a line with
-/// `definitions` or phase requests (`fixed_ph`, `partial_pressures`, `allow_solids`) is read
-/// again as a [`RecipeDoc`] and compiled on its own.
+/// `definitions` or phase requests (`fixed_ph`, `partial_pressures`, `allow_solids`, a fixed
+/// alkalinity or DIC, `charge_balance_on`) is read again as a [`RecipeDoc`] and compiled on
+/// its own.
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct FastLine<'a> {
@@ -163,6 +164,12 @@ struct FastLine<'a> {
     partial_pressures: Option<serde::de::IgnoredAny>,
     #[serde(default)]
     allow_solids: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    fixed_alkalinity_meq_per_kg: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    fixed_dic_mmol_per_kg: Option<serde::de::IgnoredAny>,
+    #[serde(default)]
+    charge_balance_on: Option<serde::de::IgnoredAny>,
 }
 
 /// One line of a [`FastLine`]: the fields of [`AmountLine`] with a borrowed name.
@@ -224,6 +231,9 @@ impl FastLine<'_> {
             fixed_ph: None,
             partial_pressures: Vec::new(),
             allow_solids: None,
+            fixed_alkalinity_meq_per_kg: None,
+            fixed_dic_mmol_per_kg: None,
+            charge_balance_on: None,
         }
     }
 }
@@ -406,6 +416,9 @@ impl Block<'_> {
             || doc.fixed_ph.is_some()
             || doc.partial_pressures.is_some()
             || doc.allow_solids.is_some()
+            || doc.fixed_alkalinity_meq_per_kg.is_some()
+            || doc.fixed_dic_mmol_per_kg.is_some()
+            || doc.charge_balance_on.is_some()
         {
             // Definitions of its own, or phase requests (a fixed pH or partial pressure,
             // solids allowed to form): read in full and compiled on its own.
@@ -450,6 +463,55 @@ impl Block<'_> {
         Ok((name, Some(idx), Solved::Full(Box::new(eq))))
     }
 
+    /// Runs a titration or design request line (`kind` its format tag) and appends its
+    /// record; true when it failed.
+    fn run_request(&self, line_no: usize, text: &str, kind: &str, out: &mut Vec<u8>) -> bool {
+        let syntax = |e: serde_json::Error| {
+            Failure::Syntax(format!(
+                "column {}: {}",
+                e.column().max(1),
+                super::shorten_message(super::strip_position(&e.to_string()))
+            ))
+        };
+        let outcome: Result<(Option<String>, &str, serde_json::Value), Failure> = (|| {
+            if kind == super::TITRATION_FORMAT {
+                let doc: super::TitrationDoc = serde_json::from_str(text).map_err(syntax)?;
+                let name = doc.name.clone();
+                let run = super::run_titration(&doc, self.catalog).map_err(|e| request_failure(name.clone(), e))?;
+                let v = serde_json::to_value(&run.result)
+                    .map_err(|e| Failure::Syntax(format!("the result could not be written: {e}")))?;
+                Ok((name, "titration", v))
+            } else {
+                let doc: super::DesignDoc = serde_json::from_str(text).map_err(syntax)?;
+                let name = doc.name.clone();
+                let r = super::run_design(&doc, self.catalog).map_err(|e| request_failure(name.clone(), e))?;
+                let v = serde_json::to_value(&r)
+                    .map_err(|e| Failure::Syntax(format!("the result could not be written: {e}")))?;
+                Ok((name, "design", v))
+            }
+        })();
+        let failed = match outcome {
+            Ok((name, kind, result)) => {
+                write_record(
+                    out,
+                    &super::RequestRecord {
+                        line: line_no,
+                        name,
+                        kind: kind.into(),
+                        result,
+                    },
+                );
+                false
+            }
+            Err(f) => {
+                write_failure(out, line_no, f);
+                true
+            }
+        };
+        out.push(b'\n');
+        failed
+    }
+
     /// Solves one line and appends its record (with a newline) to `out`; true when it
     /// failed.
     fn run_line(&mut self, line_no: usize, text: &str, full: bool, out: &mut Vec<u8>) -> bool {
@@ -457,6 +519,9 @@ impl Block<'_> {
             crate::PhConvention::Model => None,
             crate::PhConvention::BatesGuggenheim => Some("bates-guggenheim".to_string()),
         };
+        if let Some(kind) = request_kind(text) {
+            return self.run_request(line_no, text, kind, out);
+        }
         let failed = match self.solve_line(text, full) {
             Ok((name, _, Solved::Lean(s, convention))) => {
                 let rec = BatchRecord {
@@ -493,34 +558,64 @@ impl Block<'_> {
                 false
             }
             Err(f) => {
-                let (name, kind, error) = match f {
-                    Failure::Syntax(m) => (None, "syntax", m),
-                    Failure::Input(n, e) => (n, "input", e.to_string()),
-                    Failure::Solve(n, e) => {
-                        let kind = if matches!(e, Error::NoConvergence { .. }) {
-                            "no-convergence"
-                        } else {
-                            "chemistry"
-                        };
-                        (n, kind, e.to_string())
-                    }
-                };
-                let error = error.strip_prefix(": ").map(str::to_string).unwrap_or(error);
-                write_record(
-                    out,
-                    &BatchErrorRecord {
-                        line: line_no,
-                        name,
-                        kind: kind.into(),
-                        error,
-                    },
-                );
+                write_failure(out, line_no, f);
                 true
             }
         };
         out.push(b'\n');
         failed
     }
+}
+
+/// The format tag of a titration or design request line, when the line is one (a recipe
+/// line, the common case, costs one substring search).
+fn request_kind(text: &str) -> Option<&'static str> {
+    if !(text.contains(super::TITRATION_FORMAT) || text.contains(super::DESIGN_FORMAT)) {
+        return None;
+    }
+    #[derive(Deserialize)]
+    struct Tag {
+        format: Option<String>,
+    }
+    let tag: Tag = serde_json::from_str(text).ok()?;
+    match tag.format.as_deref() {
+        Some(super::TITRATION_FORMAT) => Some(super::TITRATION_FORMAT),
+        Some(super::DESIGN_FORMAT) => Some(super::DESIGN_FORMAT),
+        _ => None,
+    }
+}
+
+fn request_failure(name: Option<String>, e: super::RequestError) -> Failure {
+    match e {
+        super::RequestError::Input(d) => Failure::Input(name, d),
+        super::RequestError::Chemistry(c) => Failure::Solve(name, c),
+    }
+}
+
+/// Appends the error record of a failed line (without the newline).
+fn write_failure(out: &mut Vec<u8>, line_no: usize, f: Failure) {
+    let (name, kind, error) = match f {
+        Failure::Syntax(m) => (None, "syntax", m),
+        Failure::Input(n, e) => (n, "input", e.to_string()),
+        Failure::Solve(n, e) => {
+            let kind = if matches!(e, Error::NoConvergence { .. }) {
+                "no-convergence"
+            } else {
+                "chemistry"
+            };
+            (n, kind, e.to_string())
+        }
+    };
+    let error = error.strip_prefix(": ").map(str::to_string).unwrap_or(error);
+    write_record(
+        out,
+        &BatchErrorRecord {
+            line: line_no,
+            name,
+            kind: kind.into(),
+            error,
+        },
+    );
 }
 
 fn write_record<T: Serialize>(out: &mut Vec<u8>, rec: &T) {

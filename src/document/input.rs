@@ -1078,13 +1078,8 @@ impl<'de> Deserialize<'de> for AllowSolidsDoc {
 
 /// Adds a document's phase requests to `recipe`: the catalogue's solids and gases reported,
 /// the solids allowed to form, the fixed partial pressures and the fixed pH.
-fn apply_phases(
-    recipe: &mut Recipe,
-    cat: &Catalog,
-    fixed_ph: Option<f64>,
-    pressures: &[PartialPressureDoc],
-    allow: Option<&AllowSolidsDoc>,
-) -> Result<(), DocumentError> {
+fn apply_phases(recipe: &mut Recipe, cat: &Catalog, doc: &RecipeDoc) -> Result<(), DocumentError> {
+    let (fixed_ph, pressures, allow) = (doc.fixed_ph, &doc.partial_pressures, doc.allow_solids.as_ref());
     recipe.report_solids(cat.solids()).report_gases(cat.gases());
     match allow {
         None => {}
@@ -1117,6 +1112,23 @@ fn apply_phases(
     }
     if let Some(ph) = fixed_ph {
         recipe.fix_ph(ph).map_err(|e| field_error("fixed_ph", e))?;
+    }
+    if let Some(a) = doc.fixed_alkalinity_meq_per_kg {
+        recipe
+            .fix_alkalinity(a * 1e-3)
+            .map_err(|e| field_error("fixed_alkalinity_meq_per_kg", e))?;
+    }
+    if let Some(d) = doc.fixed_dic_mmol_per_kg {
+        recipe
+            .fix_dic(d * 1e-3)
+            .map_err(|e| field_error("fixed_dic_mmol_per_kg", e))?;
+    }
+    if let Some(n) = &doc.charge_balance_on {
+        check_name(|| "charge_balance_on".into(), n)?;
+        let ion = cat.ion(n).map_err(|e| field_error("charge_balance_on", e))?;
+        recipe
+            .close_charge_balance_on(&ion)
+            .map_err(|e| field_error("charge_balance_on", e))?;
     }
     Ok(())
 }
@@ -1176,6 +1188,17 @@ pub struct RecipeDoc {
     /// Solids allowed to form (or dissolve) at equilibrium: `"all"` or a list of names.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub allow_solids: Option<AllowSolidsDoc>,
+    /// A measured total alkalinity, meq per kg of water: replaces the charge balance (the
+    /// water's proton content follows from it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fixed_alkalinity_meq_per_kg: Option<f64>,
+    /// A measured dissolved inorganic carbon, mmol per kg of water: replaces the carbonate
+    /// total.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fixed_dic_mmol_per_kg: Option<f64>,
+    /// The ion whose total closes the charge balance (with a fixed pH or alkalinity).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub charge_balance_on: Option<String>,
 }
 
 impl RecipeDoc {
@@ -1205,20 +1228,20 @@ impl RecipeDoc {
         let (cat, user) = catalog_with(catalog, self.definitions.as_ref())?;
         let complexes = complexes_of(&cat, &self.complexes, self.include_catalog_complexes, &user)?;
         let mut recipe = recipe_of(&cat, &self.reagents, &complexes, "reagents")?;
-        apply_phases(
-            &mut recipe,
-            &cat,
-            self.fixed_ph,
-            &self.partial_pressures,
-            self.allow_solids.as_ref(),
-        )?;
+        apply_phases(&mut recipe, &cat, self)?;
         Ok((recipe, conditions))
     }
 
-    /// True when the document asks for more than a closed solution: a fixed pH, a fixed
-    /// partial pressure or solids allowed to form.
+    /// True when the document asks for more than a closed solution: a fixed pH, partial
+    /// pressure, alkalinity or DIC, a charge balance closed on an ion, or solids allowed to
+    /// form.
     pub fn has_phase_requests(&self) -> bool {
-        self.fixed_ph.is_some() || !self.partial_pressures.is_empty() || self.allow_solids.is_some()
+        self.fixed_ph.is_some()
+            || !self.partial_pressures.is_empty()
+            || self.allow_solids.is_some()
+            || self.fixed_alkalinity_meq_per_kg.is_some()
+            || self.fixed_dic_mmol_per_kg.is_some()
+            || self.charge_balance_on.is_some()
     }
 
     /// A document for `recipe` at `conditions`: one line per entry (molar or molal), the
@@ -1254,6 +1277,18 @@ impl RecipeDoc {
                     _ => None,
                 })
                 .collect(),
+            fixed_alkalinity_meq_per_kg: recipe.constraints().iter().find_map(|c| match c {
+                crate::Constraint::Alkalinity(a) => Some(a * 1e3),
+                _ => None,
+            }),
+            fixed_dic_mmol_per_kg: recipe.constraints().iter().find_map(|c| match c {
+                crate::Constraint::Dic(d) => Some(d * 1e3),
+                _ => None,
+            }),
+            charge_balance_on: recipe.constraints().iter().find_map(|c| match c {
+                crate::Constraint::ChargeBalanceOn(ion) => Some(ion.name().to_string()),
+                _ => None,
+            }),
             allow_solids: if recipe.allows_all_solids() {
                 Some(AllowSolidsDoc::All)
             } else if recipe.allowed_solids().is_empty() {

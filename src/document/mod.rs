@@ -6,7 +6,8 @@
 //! [`FitResult`] out) that convert to and from the library's types, so the core types carry
 //! no serialisation attributes. Every document names its format and version in a `format`
 //! field (`"protolyte-recipe/1"`, `"protolyte-titration/1"`, `"protolyte-design/1"`,
-//! `"protolyte-fit/1"`); the full description with examples is in `docs/recipe-format.md`
+//! `"protolyte-fit/1"`, `"protolyte-calibration/1"`, `"protolyte-measured/1"`); the full
+//! description with examples is in `docs/recipe-format.md`
 //! and the JSON Schema in `schema/recipe.schema.json`.
 //!
 //! A bad document gives a [`DocumentError`] that names the file and the line and column (a
@@ -41,6 +42,7 @@ mod input;
 pub mod limits;
 mod measured;
 mod output;
+mod requests;
 
 use std::borrow::Cow;
 use std::path::Path;
@@ -57,10 +59,11 @@ pub use measured::{
     GranResult, MeasuredDoc, MeasuredResult, ModelDoc, SampleDoc, ValueResult,
 };
 pub use output::{
-    DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult, GasResult,
-    HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
+    ChargeBalanceIonResult, DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult,
+    GasResult, HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
     TitrationPointResult, TitrationResult, VerdictResult,
 };
+pub use requests::{RequestError, RequestRecord, TitrationRun, run_design, run_titration};
 
 /// The format tag of a recipe document.
 pub const RECIPE_FORMAT: &str = "protolyte-recipe/1";

@@ -112,6 +112,21 @@ pub struct SolidResult {
     pub amount_mol_per_kg: f64,
 }
 
+/// The ion that closed the charge balance and how much of it the balance took.
+///
+/// ```
+/// use protolyte::document::ChargeBalanceIonResult;
+/// let c = ChargeBalanceIonResult { ion: "sodium".into(), added_mol_per_kg: 2e-3 };
+/// assert_eq!(c.ion, "sodium");
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ChargeBalanceIonResult {
+    /// The ion's name.
+    pub ion: String,
+    /// The amount of it the charge balance added, mol per kg of water (negative: removed).
+    pub added_mol_per_kg: f64,
+}
+
 /// The state of one gas in a result.
 ///
 /// ```
@@ -194,6 +209,10 @@ pub struct SolveResult {
     /// left out when zero (no fixed pH).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proton_uptake_mol_per_kg: Option<f64>,
+    /// With the charge balance closed on an ion: that ion and the amount of it the balance
+    /// added, mol per kg of water.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub charge_balance_ion: Option<ChargeBalanceIonResult>,
     /// Every reported gas whose family is present.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub gases: Vec<GasResult>,
@@ -262,6 +281,12 @@ impl SolveResult {
             carbonate_alkalinity_eq_per_kg: eq.carbonate_alkalinity_molal(),
             dic_mol_per_kg: eq.dic_molal(),
             proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0).then(|| eq.proton_uptake_molal()),
+            charge_balance_ion: eq
+                .charge_balance_ion_added_molal()
+                .map(|(ion, v)| ChargeBalanceIonResult {
+                    ion: ion.to_string(),
+                    added_mol_per_kg: v,
+                }),
             gases: eq
                 .gases()
                 .iter()
@@ -293,6 +318,33 @@ impl SolveResult {
         self.name = name;
         self
     }
+}
+
+/// A buffer should lie within one pH unit of its pKa (common practice): beyond, its capacity
+/// is less than a third of its peak.
+pub const BUFFER_PKA_DISTANCE: f64 = 1.0;
+
+/// A warning when the design's target pH lies more than [`BUFFER_PKA_DISTANCE`] from every
+/// pKa (at the temperature) of the families in its recipe.
+fn far_from_pka(r: &BufferRecipe, conditions: &Conditions) -> Option<String> {
+    let sys = r.recipe.compile(conditions).ok()?;
+    let nearest = sys
+        .families()
+        .iter()
+        .enumerate()
+        .flat_map(|(fi, f)| {
+            let sys = &sys;
+            (0..f.protolyte.proton_count())
+                .filter_map(move |k| sys.pka(fi, k).map(|p| (p, f.protolyte.name().to_string())))
+        })
+        .min_by(|a, b| (a.0 - r.target_ph).abs().total_cmp(&(b.0 - r.target_ph).abs()))?;
+    let d = (nearest.0 - r.target_ph).abs();
+    (d > BUFFER_PKA_DISTANCE).then(|| {
+        format!(
+            "the target pH {:.2} lies {d:.2} pH units from the nearest pKa ({:.2}, {}): the buffer capacity is low there; a buffer whose pKa lies within ±1 of the target holds its pH better (common practice)",
+            r.target_ph, nearest.0, nearest.1
+        )
+    })
 }
 
 /// One point of a titration curve.
@@ -668,7 +720,11 @@ impl DesignResult {
             buffer_capacity_mol_per_l: finite(r.buffer_capacity_mol_per_l).unwrap_or(0.0),
             temperature_shifts: r.temperature_shifts.iter().map(PhShiftResult::from).collect(),
             dilution_shift: (&r.dilution_shift).into(),
-            warnings: warnings(&r.warnings),
+            warnings: {
+                let mut w = warnings(&r.warnings);
+                w.extend(far_from_pka(r, conditions));
+                w
+            },
             recipe: RecipeDoc::from_recipe(&r.recipe, conditions),
             check,
         }

@@ -31,6 +31,12 @@ pub(crate) enum RowKind {
     Gas { fixed: Option<f64> },
     /// A fixed pH: ln a(H⁺) = the target.
     Ph { ln_a_h: f64 },
+    /// A fixed total alkalinity (mol/kg): sets the H⁺ total; its amount is the H⁺ the given
+    /// ions leave unbalanced.
+    Alkalinity { molal: f64 },
+    /// The ion closing the charge balance (terms: the ion and −z H⁺, a neutral pair); its
+    /// amount is minus the ion added.
+    Closure,
 }
 
 /// One phase relation compiled against a system's components: ln Q(y) = Σ ν·y − ln K, with
@@ -57,6 +63,11 @@ impl PhaseRow {
             RowKind::Ph { ln_a_h } => self.ln_k + ln_a_h,
             _ => self.ln_k,
         }
+    }
+
+    /// True when the row's amount is set by the totals rather than by the solver.
+    pub fn is_amount(&self) -> bool {
+        matches!(self.kind, RowKind::Alkalinity { .. } | RowKind::Closure)
     }
 
     /// True when the row always holds as an equality.

@@ -11,6 +11,7 @@ use nalgebra::{DMatrix, DVector};
 
 use super::{Evaluation, I_MAX, I_MIN, LN_AH_MAX, LN_AH_MIN, Point, fast};
 use crate::error::{Error, Result};
+use crate::phase::RowKind;
 use crate::system::System;
 
 const LN10: f64 = std::f64::consts::LN_10;
@@ -607,6 +608,7 @@ fn independent(rows: &[&[(usize, f64)]], nc: usize) -> bool {
 /// Jacobi-scaled, with backtracking on G once the iterate is feasible (the rows are linear,
 /// so a full step makes it feasible and later steps keep it so). λ_r is the amount in phase r
 /// (mol/kg): at the solution Σ_s ν_s·m_s + Σ_r λ_r·ν_r = T. Returns the iterations used.
+#[allow(clippy::too_many_arguments)]
 fn constrained_convex(
     sys: &System,
     ev: &mut Evaluation,
@@ -614,6 +616,7 @@ fn constrained_convex(
     p: &mut Point,
     working: &[usize],
     lambda: &mut [f64],
+    totals: &[f64],
     tol: f64,
 ) -> Result<usize> {
     let act = &lay.act;
@@ -622,11 +625,6 @@ fn constrained_convex(
     let mut pos = vec![usize::MAX; sys.components.len()];
     for (k, &c) in act.iter().enumerate() {
         pos[c] = k;
-    }
-    let mut totals = vec![0.0; n];
-    for (k, &c) in act.iter().enumerate().skip(1) {
-        totals[k] = sys.components[c].total_molal;
-        totals[0] -= f64::from(sys.components[c].charge) * totals[k];
     }
     // The rows in active positions, and their right-hand sides.
     let mut nmat = DMatrix::<f64>::zeros(r, n);
@@ -651,12 +649,23 @@ fn constrained_convex(
     let mut trial = p.clone();
     ev.set_conc(sys, p);
     let mut value = objective(ev, &p.y);
-    let mut lam = DVector::<f64>::zeros(r);
+    let mut lam = vec![0.0; r];
+    // Work space, allocated once a call.
+    let mut grad = vec![0.0; n];
+    let mut scale = vec![0.0; n];
+    let mut h = vec![0.0; n * n];
+    let mut e = vec![0.0; r];
+    let mut d_inv = vec![0.0; n];
+    let mut row_scale = vec![1.0; r];
+    let mut d = vec![0.0; n];
+    let mut rhs = DVector::<f64>::zeros(n + r);
     while iters < 300 {
         iters += 1;
-        let mut grad = DVector::from_iterator(n, totals.iter().map(|t| -t));
-        let mut scale = DVector::from_iterator(n, totals.iter().map(|t| t.abs()));
-        let mut h: DMatrix<f64> = DMatrix::zeros(n, n);
+        for k in 0..n {
+            grad[k] = -totals[k];
+            scale[k] = totals[k].abs();
+        }
+        h.fill(0.0);
         for (idx, &s) in lay.species.iter().enumerate() {
             let m = ev.conc[s];
             let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
@@ -664,12 +673,11 @@ fn constrained_convex(
                 grad[a] += va * m;
                 scale[a] += va.abs() * m;
                 for &(b, vb) in cols {
-                    h[(a, b)] += va * vb * m;
+                    h[a * n + b] += va * vb * m;
                 }
             }
         }
         let mut feas = 0.0f64;
-        let mut e = DVector::<f64>::zeros(r);
         for j in 0..r {
             let mut v = rhs_c[j];
             for (k, &c) in act.iter().enumerate() {
@@ -678,57 +686,49 @@ fn constrained_convex(
             e[j] = v;
             feas = feas.max(v.abs() / (1.0 + rhs_c[j].abs()));
         }
-        let d_inv: Vec<f64> = (0..n)
-            .map(|k| 1.0 / (h[(k, k)] * (1.0 + 1e-14) + 1e-300_f64).sqrt())
-            .collect();
-        let mut kkt = DMatrix::<f64>::zeros(n + r, n + r);
-        for a in 0..n {
-            for b in 0..n {
-                kkt[(a, b)] = h[(a, b)] * d_inv[a] * d_inv[b];
-            }
-            kkt[(a, a)] += 1e-14;
+        for k in 0..n {
+            d_inv[k] = 1.0 / (h[k * n + k] * (1.0 + 1e-14) + 1e-300_f64).sqrt();
         }
-        let mut row_scale = vec![1.0; r];
         for j in 0..r {
             let norm = (0..n).map(|k| (nmat[(j, k)] * d_inv[k]).powi(2)).sum::<f64>().sqrt();
             row_scale[j] = if norm > 0.0 { 1.0 / norm } else { 1.0 };
-            for k in 0..n {
-                let v = nmat[(j, k)] * d_inv[k] * row_scale[j];
-                kkt[(n + j, k)] = v;
-                kkt[(k, n + j)] = v;
-            }
         }
-        let mut rhs = DVector::<f64>::zeros(n + r);
+        let kkt = DMatrix::<f64>::from_fn(n + r, n + r, |a, b| match (a < n, b < n) {
+            (true, true) => h[a * n + b] * d_inv[a] * d_inv[b] + if a == b { 1e-14 } else { 0.0 },
+            (true, false) => nmat[(b - n, a)] * d_inv[a] * row_scale[b - n],
+            (false, true) => nmat[(a - n, b)] * d_inv[b] * row_scale[a - n],
+            (false, false) => 0.0,
+        });
         for k in 0..n {
             rhs[k] = -grad[k] * d_inv[k];
         }
         for j in 0..r {
             rhs[n + j] = e[j] * row_scale[j];
         }
-        let Some(sol) = kkt.lu().solve(&rhs) else {
+        if !kkt.lu().solve_mut(&mut rhs) || rhs.iter().any(|v| !v.is_finite()) {
             return Err(Error::InfeasiblePhases {
                 reason: format!(
                     "the relations of {} cannot hold together (singular system)",
                     names(sys, working)
                 ),
             });
-        };
-        if sol.iter().any(|v| !v.is_finite()) {
-            return Err(Error::InfeasiblePhases {
-                reason: format!("the relations of {} cannot hold together", names(sys, working)),
-            });
         }
-        let mut d = DVector::from_iterator(n, (0..n).map(|k| sol[k] * d_inv[k]));
+        for k in 0..n {
+            d[k] = rhs[k] * d_inv[k];
+        }
         for j in 0..r {
-            lam[j] = sol[n + j] * row_scale[j];
+            lam[j] = rhs[n + j] * row_scale[j];
         }
         // Stationarity of the Lagrangian with the new multipliers: ∇G + Nᵀλ = −H·Δy.
-        let hd = &h * &d;
-        let worst = (0..n)
-            .map(|k| if scale[k] > 0.0 { (hd[k] / scale[k]).abs() } else { 0.0 })
-            .fold(0.0, f64::max);
-        let small = d.amax() <= 1e-6;
-        if worst <= tol && feas <= 1e-13 && small {
+        let mut worst = 0.0f64;
+        for k in 0..n {
+            if scale[k] > 0.0 {
+                let hd: f64 = (0..n).map(|b| h[k * n + b] * d[b]).sum();
+                worst = worst.max((hd / scale[k]).abs());
+            }
+        }
+        let big = d.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+        if worst <= tol && feas <= 1e-13 && big <= 1e-6 {
             // Polish with the (tiny) full step and stop.
             for (k, &c) in act.iter().enumerate() {
                 p.y[c] += d[k];
@@ -736,12 +736,12 @@ fn constrained_convex(
             ev.set_conc(sys, p);
             break;
         }
-        let big = d.amax();
         if !big.is_finite() {
             break;
         }
         if big > CONVEX_MAX_STEP {
-            d *= CONVEX_MAX_STEP / big;
+            let f = CONVEX_MAX_STEP / big;
+            d.iter_mut().for_each(|v| *v *= f);
         }
         if feas > 1e-13 {
             // Not yet on the rows: the step (full, or as long as allowed) moves onto them.
@@ -752,7 +752,7 @@ fn constrained_convex(
             value = objective(ev, &p.y);
             continue;
         }
-        let slope = grad.dot(&d);
+        let slope: f64 = grad.iter().zip(&d).map(|(g, v)| g * v).sum();
         let mass_sum: f64 = lay.species.iter().map(|&s| ev.conc[s]).sum();
         let mut alpha = 1.0;
         let mut accepted = false;
@@ -781,8 +781,10 @@ fn constrained_convex(
         }
         p.y.clone_from(&trial.y);
     }
-    for l in lambda.iter_mut() {
-        *l = 0.0;
+    for (w, l) in lambda.iter_mut().enumerate() {
+        if sys.phases[w].is_equality() || sys.phases[w].is_inequality() {
+            *l = 0.0;
+        }
     }
     for (j, &w) in working.iter().enumerate() {
         lambda[w] = lam[j];
@@ -803,6 +805,7 @@ fn names(sys: &System, rows: &[usize]) -> String {
 /// negative (a primal–dual active-set iteration on the convex problem; the phase rule is kept
 /// by refusing a solid whose relation depends on those already held, replacing the one it
 /// depends on). Returns the iterations used.
+#[allow(clippy::too_many_arguments)]
 fn assemblage(
     sys: &System,
     ev: &mut Evaluation,
@@ -811,19 +814,15 @@ fn assemblage(
     working: &mut Vec<usize>,
     allowed: &[usize],
     lambda: &mut [f64],
+    totals: &[f64],
     tol: f64,
 ) -> Result<usize> {
     let nc = sys.components.len();
-    let amount_scale = lay
-        .act
-        .iter()
-        .skip(1)
-        .map(|&c| sys.components[c].total_molal)
-        .fold(1e-30, f64::max);
+    let amount_scale = totals.iter().skip(1).fold(1e-30_f64, |a, t| a.max(t.abs()));
     let mut iters = 0;
     let changes = 8 * allowed.len() + 8;
     for _ in 0..changes {
-        iters += constrained_convex(sys, ev, lay, p, working, lambda, tol)?;
+        iters += constrained_convex(sys, ev, lay, p, working, lambda, totals, tol)?;
         // A solid whose amount came out negative dissolves completely: drop the worst.
         let negative = working
             .iter()
@@ -958,17 +957,189 @@ pub(crate) fn solve_phases(
         }
     }
     let mut lambda = vec![0.0; sys.phases.len()];
+    // The totals of the convex problem (H⁺ included, T_H = −Σ z·T), then the rows whose
+    // amounts are set by the totals: a fixed alkalinity sets T_H (Σ r·T − TA) and leaves the
+    // charge it unbalances as its amount; an ion closing the balance takes it instead.
+    let act = &lay.act;
+    let mut totals = vec![0.0; act.len()];
+    for (k, &c) in act.iter().enumerate().skip(1) {
+        totals[k] = sys.components[c].total_molal;
+        totals[0] -= f64::from(sys.components[c].charge) * totals[k];
+    }
+    let alkalinity_row = sys
+        .phases
+        .iter()
+        .position(|r| matches!(r.kind, RowKind::Alkalinity { .. }));
+    let closure_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Closure));
+    let ph_row = sys.phases.iter().position(|r| matches!(r.kind, RowKind::Ph { .. }));
+    let pos_of = |c: usize| act.iter().position(|&a| a == c);
+    let h_charge = totals[0];
+    let apply = |totals: &mut Vec<f64>, w: usize, amount: f64| {
+        for &(c, v) in &sys.phases[w].terms {
+            if let Some(k) = pos_of(c) {
+                totals[k] -= amount * v;
+            }
+        }
+    };
+    if let Some(w) = alkalinity_row
+        && let RowKind::Alkalinity { molal } = sys.phases[w].kind
+    {
+        let mut h_ta = -molal;
+        for (k, &c) in act.iter().enumerate().skip(1) {
+            h_ta += sys.alkalinity_reference[c] * totals[k];
+        }
+        let unbalanced = h_charge - h_ta;
+        match closure_row {
+            Some(cw) => {
+                // δ of the ion with z·δ = the unbalanced H⁺: amount of the closure row −δ.
+                let z = sys.phases[cw]
+                    .terms
+                    .iter()
+                    .find(|&&(c, _)| c != 0)
+                    .map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
+                let delta = unbalanced / z;
+                lambda[cw] = -delta;
+                apply(&mut totals, cw, -delta);
+            }
+            None => {
+                lambda[w] = unbalanced;
+                apply(&mut totals, w, unbalanced);
+            }
+        }
+    }
+    if let Some(cw) = closure_row {
+        check_closure(sys, &lay, cw, &totals)?;
+    }
+    // With a fixed pH and an ion closing the balance, the ion's amount is iterated until the
+    // pH row takes no H⁺ (a few passes: the H⁺ in solution hardly depends on the spectator).
+    let passes = if closure_row.is_some() && ph_row.is_some() {
+        60
+    } else {
+        1
+    };
+    if let (Some(cw), Some(_)) = (closure_row, ph_row) {
+        // A closing ion put in at zero would leave its activity undetermined on the first
+        // pass: start it at 1 µmol/kg; the passes correct it.
+        for &(c, _) in sys.phases[cw].terms.iter().filter(|&&(c, _)| c != 0) {
+            if let Some(k) = pos_of(c)
+                && totals[k] <= 0.0
+            {
+                let start = 1e-6 - totals[k];
+                lambda[cw] -= start;
+                apply(&mut totals, cw, -start);
+            }
+        }
+    }
+    for pass in 0..passes {
+        iters += settle(
+            sys,
+            &mut ev,
+            &lay,
+            &mut p,
+            &mut working,
+            &allowed,
+            &mut lambda,
+            &totals,
+            tol,
+            max_iter,
+        )?;
+        let (Some(cw), Some(pw)) = (closure_row, ph_row) else {
+            break;
+        };
+        let z = sys.phases[cw]
+            .terms
+            .iter()
+            .find(|&&(c, _)| c != 0)
+            .map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
+        let uptake = lambda[pw];
+        let scale = totals.iter().fold(1e-30_f64, |a, t| a.max(t.abs()));
+        if uptake.abs() <= 1e-14 * scale {
+            break;
+        }
+        if pass + 1 == passes {
+            return Err(Error::NoConvergence {
+                path: "general",
+                iterations: iters,
+                max_residual: uptake.abs() / scale,
+                worst_equation: format!("charge balance closed on {}", sys.phases[cw].name),
+                last_ph: -p.y[0] / LN10,
+            });
+        }
+        // More of the ion by uptake/z; the closure row's amount is −δ.
+        let delta = uptake / z;
+        lambda[cw] -= delta;
+        apply(&mut totals, cw, -delta);
+        check_closure(sys, &lay, cw, &totals)?;
+    }
+    ev.set_conc(sys, &p);
+    ev.phase_amounts = lambda;
+    Ok((p, ev, iters))
+}
+
+/// Refuses a closing ion whose total would be negative.
+fn check_closure(sys: &System, lay: &Layout, cw: usize, totals: &[f64]) -> Result<()> {
+    for &(c, _) in sys.phases[cw].terms.iter().filter(|&&(c, _)| c != 0) {
+        if let Some(k) = lay.act.iter().position(|&a| a == c)
+            && totals[k] < 0.0
+        {
+            return Err(Error::InfeasiblePhases {
+                reason: format!(
+                    "closing the charge balance on {} needs {:e} mol/kg of it: the other ions leave a charge of its own sign",
+                    sys.components[c].name, totals[k]
+                ),
+            });
+        }
+    }
+    Ok(())
+}
+
+/// The ionic strength (and, under SIT, the composition γ depends on) iterated around the
+/// assemblage at fixed γ: a secant-accelerated fixed point, as in [`nested`].
+#[allow(clippy::too_many_arguments)]
+fn settle(
+    sys: &System,
+    ev: &mut Evaluation,
+    lay: &Layout,
+    p: &mut Point,
+    working: &mut Vec<usize>,
+    allowed: &[usize],
+    lambda: &mut [f64],
+    totals: &[f64],
+    tol: f64,
+    max_iter: usize,
+) -> Result<usize> {
     let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     let mut i = p.ln_i.exp().clamp(I_MIN, I_MAX);
     let mut prev: Option<(f64, f64)> = None;
-    let mut settled = false;
+    let mut iters = 0;
+    if !ideal && sys.interactions.known.is_empty() {
+        // The assemblage at the start's γ, then the joint Newton with I; a change of the
+        // assemblage on the way sends it round again, a failure to the fixed point below.
+        ev.set_gamma(sys, i);
+        p.ln_i = i.ln();
+        for _ in 0..4 {
+            // The joint Newton polishes: the assemblage needs only its phases and amounts' signs.
+            iters += assemblage(sys, ev, lay, p, working, allowed, lambda, totals, tol.max(1e-7))?;
+            match joint_phases(sys, ev, lay, p, working, lambda, totals, tol) {
+                Some(n) => {
+                    iters += n;
+                    if assemblage_holds(sys, p, working, allowed, lambda, totals) {
+                        return Ok(iters);
+                    }
+                    ev.set_gamma(sys, p.ln_i.exp());
+                }
+                None => break,
+            }
+        }
+        i = p.ln_i.exp().clamp(I_MIN, I_MAX);
+    }
     for _ in 0..80 {
         if iters > max_iter.max(200) * 4 {
             break;
         }
         ev.set_gamma(sys, i);
         p.ln_i = i.ln();
-        iters += assemblage(sys, &mut ev, &lay, &mut p, &mut working, &allowed, &mut lambda, tol)?;
+        iters += assemblage(sys, ev, lay, p, working, allowed, lambda, totals, tol)?;
         let g: f64 = lay
             .species
             .iter()
@@ -977,8 +1148,7 @@ pub(crate) fn solve_phases(
             .max(I_MIN);
         if ideal {
             p.ln_i = g.ln();
-            settled = true;
-            break;
+            return Ok(iters);
         }
         if g > I_MAX && i >= I_MAX {
             return Err(fast::beyond_limit(g));
@@ -986,8 +1156,7 @@ pub(crate) fn solve_phases(
         let h = g - i;
         let dc = ev.composition_change(sys);
         if h.abs() <= tol * i && dc <= tol {
-            settled = true;
-            break;
+            return Ok(iters);
         }
         ev.hold_composition();
         let mut next = g;
@@ -1003,16 +1172,209 @@ pub(crate) fn solve_phases(
         prev = Some((i, h));
         i = next.clamp(I_MIN, I_MAX);
     }
-    ev.set_conc(sys, &p);
-    ev.phase_amounts = lambda;
-    if !settled {
-        return Err(Error::NoConvergence {
-            path: "general",
-            iterations: iters,
-            max_residual: f64::INFINITY,
-            worst_equation: "ionic-strength equation with phases".into(),
-            last_ph: -p.y[0] / LN10,
-        });
+    Err(Error::NoConvergence {
+        path: "general",
+        iterations: iters,
+        max_residual: f64::INFINITY,
+        worst_equation: "ionic-strength equation with phases".into(),
+        last_ph: -p.y[0] / LN10,
+    })
+}
+
+/// The joint Newton of the general path with the phase rows of `working` held as equalities:
+/// unknowns (ln a of the active components, the amounts λ of the rows, ln I), equations
+/// (the mass balances over aqueous + phases, H⁺'s included, the rows, the ionic strength),
+/// with the analytic Jacobian. From the assemblage at the start's activity coefficients it
+/// converges quadratically where the fixed point on I converges linearly. Returns `None`
+/// when it does not converge (the caller falls back to the fixed point), else the
+/// iterations used. Models whose γ depends on the composition use the fixed point.
+#[allow(clippy::too_many_arguments)]
+fn joint_phases(
+    sys: &System,
+    ev: &mut Evaluation,
+    lay: &Layout,
+    p: &mut Point,
+    working: &[usize],
+    lambda: &mut [f64],
+    totals: &[f64],
+    tol: f64,
+) -> Option<usize> {
+    let act = &lay.act;
+    let n = act.len();
+    let r = working.len();
+    let m = n + r + 1;
+    let mut pos = vec![usize::MAX; sys.components.len()];
+    for (k, &c) in act.iter().enumerate() {
+        pos[c] = k;
     }
-    Ok((p, ev, iters))
+    let mut nmat = DMatrix::<f64>::zeros(r, n);
+    let mut rhs_c = vec![0.0; r];
+    for (j, &w) in working.iter().enumerate() {
+        for &(c, v) in &sys.phases[w].terms {
+            nmat[(j, pos[c])] += v;
+        }
+        rhs_c[j] = sys.phases[w].rhs();
+    }
+    let mut lam: Vec<f64> = working.iter().map(|&w| lambda[w]).collect();
+    let ln_i_max = I_MAX.ln();
+    // Residual and scales at the current evaluation.
+    let residual = |ev: &Evaluation, y: &[f64], lam: &[f64], ln_i: f64| -> (Vec<f64>, Vec<f64>) {
+        let mut f = vec![0.0; m];
+        let mut sc = vec![0.0; m];
+        for k in 0..n {
+            f[k] = -totals[k];
+            sc[k] = totals[k].abs();
+        }
+        let mut ionic = 0.0;
+        for (idx, &s) in lay.species.iter().enumerate() {
+            let c = ev.conc[s];
+            for &(k, v) in &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]] {
+                f[k] += v * c;
+                sc[k] += v.abs() * c;
+            }
+            ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * c;
+        }
+        for j in 0..r {
+            let mut g = -rhs_c[j];
+            for k in 0..n {
+                let a = nmat[(j, k)];
+                if a != 0.0 {
+                    f[k] += lam[j] * a;
+                    sc[k] += (lam[j] * a).abs();
+                    g += a * y[act[k]];
+                }
+            }
+            f[n + j] = g;
+            sc[n + j] = 1.0;
+        }
+        let i = ln_i.exp();
+        f[m - 1] = ionic - i;
+        sc[m - 1] = i;
+        (f, sc)
+    };
+    let merit = |f: &[f64], sc: &[f64]| -> f64 {
+        f.iter()
+            .zip(sc)
+            .map(|(a, s)| if *s > 0.0 { (a / s) * (a / s) } else { 0.0 })
+            .sum::<f64>()
+    };
+    let worst = |f: &[f64], sc: &[f64]| -> f64 {
+        f.iter()
+            .zip(sc)
+            .map(|(a, s)| if *s > 0.0 { (a / s).abs() } else { 0.0 })
+            .fold(0.0, f64::max)
+    };
+    evaluate(sys, ev, p);
+    let (mut f, mut sc) = residual(ev, &p.y, &lam, p.ln_i);
+    let mut phi = merit(&f, &sc);
+    let mut last_step = f64::INFINITY;
+    let mut trial = p.clone();
+    for it in 0..40 {
+        if worst(&f, &sc) <= tol && last_step <= 1e-9 {
+            for (j, &w) in working.iter().enumerate() {
+                lambda[w] = lam[j];
+            }
+            return Some(it);
+        }
+        let i = p.ln_i.exp();
+        let mut jac = DMatrix::<f64>::zeros(m, m);
+        for (idx, &s) in lay.species.iter().enumerate() {
+            let c = ev.conc[s];
+            if c == 0.0 {
+                continue;
+            }
+            let gi = -ev.dln_gamma_di[s] * i;
+            let half_z2 = 0.5 * sys.charge_f[s] * sys.charge_f[s];
+            let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
+            for &(a, va) in cols {
+                for &(b, vb) in cols {
+                    jac[(a, b)] += va * vb * c;
+                }
+                jac[(a, m - 1)] += va * c * gi;
+                jac[(m - 1, a)] += half_z2 * c * va;
+            }
+            jac[(m - 1, m - 1)] += half_z2 * c * gi;
+        }
+        jac[(m - 1, m - 1)] -= i;
+        for j in 0..r {
+            for k in 0..n {
+                jac[(k, n + j)] = nmat[(j, k)];
+                jac[(n + j, k)] = nmat[(j, k)];
+            }
+        }
+        // Row scaling by the residual scales keeps trace components' digits.
+        let mut rhs = DVector::from_iterator(m, f.iter().map(|v| -v));
+        for row in 0..m {
+            let s = if sc[row] > 0.0 { 1.0 / sc[row] } else { 1.0 };
+            for col in 0..m {
+                jac[(row, col)] *= s;
+            }
+            rhs[row] *= s;
+        }
+        let mut dx = jac.lu().solve(&rhs)?;
+        if dx.iter().any(|v| !v.is_finite()) {
+            return None;
+        }
+        let big = (0..n).map(|k| dx[k].abs()).fold(dx[m - 1].abs(), f64::max);
+        if big > MAX_STEP {
+            dx *= MAX_STEP / big;
+        }
+        let mut alpha = 1.0;
+        let mut accepted = false;
+        let mut tlam = lam.clone();
+        for _ in 0..30 {
+            for (k, &c) in act.iter().enumerate() {
+                trial.y[c] = p.y[c] + alpha * dx[k];
+            }
+            for j in 0..r {
+                tlam[j] = lam[j] + alpha * dx[n + j];
+            }
+            trial.ln_i = (p.ln_i + alpha * dx[m - 1]).clamp(I_MIN.ln(), ln_i_max);
+            evaluate(sys, ev, &trial);
+            let (tf, ts) = residual(ev, &trial.y, &tlam, trial.ln_i);
+            let tphi = merit(&tf, &ts);
+            if tphi.is_finite() && tphi <= (1.0 - 1e-4 * alpha) * phi {
+                last_step = alpha * dx.amax();
+                p.clone_from(&trial);
+                lam.clone_from(&tlam);
+                f = tf;
+                sc = ts;
+                phi = tphi;
+                accepted = true;
+                break;
+            }
+            alpha *= 0.5;
+        }
+        if !accepted {
+            evaluate(sys, ev, p);
+            if worst(&f, &sc) <= tol.max(1e-11) {
+                for (j, &w) in working.iter().enumerate() {
+                    lambda[w] = lam[j];
+                }
+                return Some(it);
+            }
+            return None;
+        }
+    }
+    None
+}
+
+/// True when the working set is the assemblage: every solid held has a non-negative amount
+/// and no allowed solid outside it is supersaturated.
+fn assemblage_holds(
+    sys: &System,
+    p: &Point,
+    working: &[usize],
+    allowed: &[usize],
+    lambda: &[f64],
+    totals: &[f64],
+) -> bool {
+    let amount_scale = totals.iter().skip(1).fold(1e-30_f64, |a, t| a.max(t.abs()));
+    working
+        .iter()
+        .all(|&w| !sys.phases[w].is_inequality() || lambda[w] >= -1e-13 * amount_scale)
+        && allowed
+            .iter()
+            .filter(|w| !working.contains(w))
+            .all(|&w| sys.phases[w].ln_q(&p.y) <= 1e-10)
 }

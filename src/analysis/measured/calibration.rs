@@ -121,7 +121,8 @@ impl ElectrodeCalibration {
             });
         }
         let b = sxy / sxx;
-        if !(b < 0.0) {
+        // The readings are finite (checked above), so b is a number.
+        if b >= 0.0 {
             return Err(MeasuredError::Method {
                 method: "electrode calibration".into(),
                 reason: format!(

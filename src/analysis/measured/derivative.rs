@@ -8,7 +8,7 @@
 //! (twice its quadratic term). An endpoint is a local maximum of |dpH/dV| at least a given
 //! fraction of the largest, located between points by the zero crossing of the second
 //! derivative (linear interpolation). With k = 0 the plain differences of
-//! [`derivative_endpoints`](crate::analysis::derivative_endpoints) are used.
+//! [`derivative_endpoints`] are used.
 //!
 //! The default k = 2 (five points) is the smallest window that smooths at all with a
 //! quadratic; a wider one lowers the noise but flattens a sharp break more.
@@ -18,6 +18,8 @@ use crate::analysis::endpoints::{DerivativeEndpoint, derivative_endpoints};
 
 /// Default half-width k of the smoothing window (2k + 1 = 5 points).
 pub const DEFAULT_HALF_WINDOW: usize = 2;
+/// The largest half-width accepted.
+pub const MAX_HALF_WINDOW: usize = 50;
 
 /// The smoothed value, first and second derivative at each point (local quadratic through
 /// 2·`half_window` + 1 points).
@@ -34,6 +36,14 @@ pub const DEFAULT_HALF_WINDOW: usize = 2;
 /// # Ok::<(), protolyte::analysis::measured::MeasuredError>(())
 /// ```
 pub fn smoothed_derivatives(data: &[(f64, f64)], half_window: usize) -> MeasuredResult<Vec<(f64, f64, f64, f64)>> {
+    super::check_curve(data, "smoothed derivative")?;
+    if half_window > MAX_HALF_WINDOW {
+        return Err(MeasuredError::Parameter {
+            what: "smoothing half-width".into(),
+            value: half_window as f64,
+            reason: format!("must be at most {MAX_HALF_WINDOW}"),
+        });
+    }
     let w = 2 * half_window + 1;
     if half_window == 0 || data.len() < w.max(3) {
         return Err(MeasuredError::Method {
@@ -99,12 +109,7 @@ pub fn smoothed_endpoints(
         return Ok(derivative_endpoints(data, min_fraction)?);
     }
     super::check("minimum fraction", min_fraction, 0.0, 1.0)?;
-    if let Some(w) = data.windows(2).find(|w| !(w[1].0 > w[0].0)) {
-        return Err(MeasuredError::Method {
-            method: "smoothed derivative".into(),
-            reason: format!("volumes must increase strictly ({} mL then {} mL)", w[0].0, w[1].0),
-        });
-    }
+    super::check_curve(data, "smoothed derivative")?;
     let d = smoothed_derivatives(data, half_window)?;
     let sign = if data[data.len() - 1].1 >= data[0].1 { 1.0 } else { -1.0 };
     let top = d.iter().map(|p| sign * p.2).fold(f64::NEG_INFINITY, f64::max);

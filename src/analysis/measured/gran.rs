@@ -120,6 +120,7 @@ fn intercept_error(pts: &[(f64, f64)], v0: f64, fit: &GranFit) -> Option<f64> {
 pub fn gran_both_sides(data: &[(f64, f64)], analyte_volume_ml: f64, estimate_ml: f64) -> MeasuredResult<GranAnalysis> {
     super::check("analyte volume (mL)", analyte_volume_ml, 1e-6, 1e7)?;
     super::check("endpoint estimate (mL)", estimate_ml, 1e-9, 1e7)?;
+    super::check_curve(data, "Gran")?;
     if data.len() < 4 {
         return Err(MeasuredError::Method {
             method: "Gran".into(),

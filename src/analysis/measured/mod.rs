@@ -97,3 +97,30 @@ pub(crate) fn check(what: &str, x: f64, lo: f64, hi: f64) -> MeasuredResult<f64>
         })
     }
 }
+
+/// Refuses (volume, pH) data with a value that is not finite or volumes that do not increase
+/// strictly, naming the point.
+pub(crate) fn check_curve(data: &[(f64, f64)], method: &str) -> MeasuredResult<()> {
+    if let Some((i, p)) = data
+        .iter()
+        .enumerate()
+        .find(|(_, p)| !(p.0.is_finite() && p.1.is_finite()))
+    {
+        return Err(MeasuredError::Method {
+            method: method.into(),
+            reason: format!("point {} ({} mL, pH {}) is not finite", i + 1, p.0, p.1),
+        });
+    }
+    if let Some((i, w)) = data.windows(2).enumerate().find(|(_, w)| w[1].0 <= w[0].0) {
+        return Err(MeasuredError::Method {
+            method: method.into(),
+            reason: format!(
+                "volumes must increase strictly (point {}: {} mL after {} mL)",
+                i + 2,
+                w[1].0,
+                w[0].0
+            ),
+        });
+    }
+    Ok(())
+}
