@@ -89,25 +89,42 @@ impl Residuals {
             .max(self.activity_coefficients_ln.abs())
     }
 
-    /// The equation with the largest relative residual and that residual.
-    fn worst(&self) -> (String, f64) {
-        let mut worst = ("charge balance".to_string(), self.charge_relative.abs());
-        for (name, v) in &self.mass_relative {
+    /// The equation with the largest relative residual and that residual; the equation's
+    /// name is only built by [`Residuals::equation_name`] (when a warning needs it).
+    fn worst(&self) -> (Equation, f64) {
+        let mut worst = (Equation::Charge, self.charge_relative.abs());
+        for (k, (_, v)) in self.mass_relative.iter().enumerate() {
             if v.abs() > worst.1 {
-                worst = (format!("mass balance of {name}"), v.abs());
+                worst = (Equation::Mass(k), v.abs());
             }
         }
         if self.ionic_strength_relative.abs() > worst.1 {
-            worst = ("ionic-strength equation".into(), self.ionic_strength_relative.abs());
+            worst = (Equation::IonicStrength, self.ionic_strength_relative.abs());
         }
         if self.activity_coefficients_ln.abs() > worst.1 {
-            worst = (
-                "activity-coefficient iteration".into(),
-                self.activity_coefficients_ln.abs(),
-            );
+            worst = (Equation::ActivityCoefficients, self.activity_coefficients_ln.abs());
         }
         worst
     }
+
+    /// The name of an equation, as the residual warning gives it.
+    fn equation_name(&self, equation: Equation) -> String {
+        match equation {
+            Equation::Charge => "charge balance".to_string(),
+            Equation::Mass(k) => format!("mass balance of {}", self.mass_relative[k].0),
+            Equation::IonicStrength => "ionic-strength equation".into(),
+            Equation::ActivityCoefficients => "activity-coefficient iteration".into(),
+        }
+    }
+}
+
+/// One of the equations whose residual is reported.
+#[derive(Debug, Clone, Copy)]
+enum Equation {
+    Charge,
+    Mass(usize),
+    IonicStrength,
+    ActivityCoefficients,
 }
 
 /// The equilibrium state of a solution.
@@ -224,10 +241,17 @@ impl Equilibrium {
         // (proton condition at the reference level of each family) and carbonate alkalinity.
         let mut aqueous = vec![0.0; nc];
         let (mut alkalinity, mut carbonate_alkalinity) = (0.0, 0.0);
+        // Σ ν·m over the complexes (coupling species) of each component, summed in species
+        // order, for the mass balances below.
+        let mut coupled = vec![0.0; nc];
         for (s, &m) in ev.conc.iter().enumerate() {
             let (mut level, mut nu_h, mut nu_carb) = (0.0, 0.0, 0.0);
+            let coupling = sys.coupling[s];
             for &(c, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
                 aqueous[c] += v * m;
+                if coupling {
+                    coupled[c] += v * m;
+                }
                 if c == 0 {
                     nu_h = v;
                 } else {
@@ -319,10 +343,7 @@ impl Equilibrium {
                 free_molal.push((c.name.clone(), sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0)));
                 // Σ ν·m over the species holding component ci: its uncoupled members and
                 // any complex that contains it.
-                let mut held: f64 = sys.members[ci].iter().map(|&s| ev.conc[s]).sum();
-                for s in (0..sys.species.len()).filter(|&s| sys.coupling[s]) {
-                    held += sys.nu[s * nc + ci] * ev.conc[s];
-                }
+                let held: f64 = sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>() + coupled[ci];
                 let scale = if c.total_molal > 0.0 {
                     c.total_molal
                 } else {
@@ -402,7 +423,7 @@ impl Equilibrium {
         let (equation, worst) = residuals.worst();
         if worst > promise {
             warnings.push(Warning::ResidualAbovePromise {
-                equation,
+                equation: residuals.equation_name(equation),
                 residual: worst,
                 promise,
             });

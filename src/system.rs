@@ -1043,8 +1043,12 @@ impl Builder {
 /// a positive total below [`MIN_TOTAL_MOLAL`](crate::limits::MIN_TOTAL_MOLAL) becomes zero
 /// (the value given is returned beside it for the warning).
 fn checked_total(name: &str, total: f64) -> Result<(f64, Option<f64>)> {
-    let what = format!("total of {name}");
-    let t = crate::error::check_amount_max(&what, total, "mol/kg")?;
+    // The message names the family, so it is only built when the check fails.
+    let t = if total.is_finite() && (0.0..=crate::limits::MAX_TOTAL_MOLAL).contains(&total) {
+        total
+    } else {
+        crate::error::check_amount_max(&format!("total of {name}"), total, "mol/kg")?
+    };
     if t > 0.0 && t < crate::limits::MIN_TOTAL_MOLAL {
         Ok((0.0, Some(t)))
     } else {
