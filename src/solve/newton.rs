@@ -54,13 +54,15 @@ impl Layout {
         }
         let mut layout = Layout {
             species: Vec::with_capacity(sys.species.len()),
-            col_start: vec![0],
-            cols: Vec::new(),
-            row_start: vec![0],
-            rows: Vec::new(),
-            incidence: vec![Vec::new(); act.len()],
+            col_start: Vec::with_capacity(sys.species.len() + 1),
+            cols: Vec::with_capacity(sys.terms.len()),
+            row_start: Vec::with_capacity(sys.species.len() + 1),
+            rows: Vec::with_capacity(sys.terms.len() + 2 * sys.species.len()),
+            incidence: (0..act.len()).map(|k| Vec::with_capacity(sys.members.get(act[k]).map_or(0, Vec::len) + 4)).collect(),
             act,
         };
+        layout.col_start.push(0);
+        layout.row_start.push(0);
         'species: for s in 0..sys.species.len() {
             let terms = &sys.terms[sys.term_start[s]..sys.term_start[s + 1]];
             if terms.iter().any(|&(c, _)| pos[c] == usize::MAX) {
@@ -92,11 +94,12 @@ impl Layout {
     }
 }
 
-/// Unscaled residual vector F and the row scales, in the order (charge, active masses, I).
-pub(crate) fn residual(sys: &System, ev: &Evaluation, lay: &Layout, p: &Point) -> (DVector<f64>, DVector<f64>) {
+/// Unscaled residual vector F and the row scales, in the order (charge, active masses, I),
+/// written into `f` and `scale` (length m each).
+fn residual(sys: &System, ev: &Evaluation, lay: &Layout, p: &Point, f: &mut [f64], scale: &mut [f64]) {
     let m = lay.m();
-    let mut f = DVector::zeros(m);
-    let mut scale = DVector::zeros(m);
+    f.fill(0.0);
+    scale.fill(0.0);
     let i = p.ln_i.exp();
     for (n, &s) in lay.species.iter().enumerate() {
         let c = ev.conc[s];
@@ -112,7 +115,6 @@ pub(crate) fn residual(sys: &System, ev: &Evaluation, lay: &Layout, p: &Point) -
     }
     f[m - 1] -= i;
     scale[m - 1] = i;
-    (f, scale)
 }
 
 /// The analytic Jacobian of [`residual`] with respect to (ln a of the active components,
@@ -120,8 +122,16 @@ pub(crate) fn residual(sys: &System, ev: &Evaluation, lay: &Layout, p: &Point) -
 /// ∂ln m_s/∂ln I = −(d ln γ_s/dI)·I.
 pub(crate) fn jacobian_in(ev: &Evaluation, lay: &Layout, p: &Point) -> DMatrix<f64> {
     let m = lay.m();
-    // Column-major m × m, filled through a flat buffer (entry (row, col) at col·m + row).
     let mut j = vec![0.0; m * m];
+    jacobian_into(ev, lay, p, &mut j);
+    DMatrix::from_vec(m, m, j)
+}
+
+/// [`jacobian_in`] written into a reused column-major m × m buffer (entry (row, col) at
+/// col·m + row).
+fn jacobian_into(ev: &Evaluation, lay: &Layout, p: &Point, j: &mut [f64]) {
+    let m = lay.m();
+    j.fill(0.0);
     let i = p.ln_i.exp();
     for (n, &s) in lay.species.iter().enumerate() {
         let c = ev.conc[s];
@@ -139,10 +149,68 @@ pub(crate) fn jacobian_in(ev: &Evaluation, lay: &Layout, p: &Point) -> DMatrix<f
         }
     }
     j[(m - 1) * m + (m - 1)] -= i;
-    DMatrix::from_vec(m, m, j)
 }
 
-fn merit(f: &DVector<f64>, scale: &DVector<f64>) -> f64 {
+/// Solves A·x = b in place for a small dense system: Gaussian elimination with partial
+/// pivoting (the LU factorisation, G. H. Golub and C. F. Van Loan, *Matrix Computations*,
+/// 4th ed., Johns Hopkins 2013, Algorithm 3.4.1) on a reused column-major n × n buffer `a`
+/// (overwritten by its factors), `b` overwritten by x. Nothing is allocated. False when a
+/// pivot is exactly zero (a singular matrix), as nalgebra's `LU::solve` returns `None`.
+fn lu_solve_in_place(a: &mut [f64], n: usize, b: &mut [f64]) -> bool {
+    for k in 0..n {
+        let mut p = k;
+        let mut best = a[k * n + k].abs();
+        for r in k + 1..n {
+            let v = a[k * n + r].abs();
+            if v > best {
+                best = v;
+                p = r;
+            }
+        }
+        if best == 0.0 {
+            return false;
+        }
+        if p != k {
+            for c in 0..n {
+                a.swap(c * n + k, c * n + p);
+            }
+            b.swap(k, p);
+        }
+        let pivot = a[k * n + k];
+        for r in k + 1..n {
+            let l = a[k * n + r] / pivot;
+            a[k * n + r] = l;
+            if l != 0.0 {
+                for c in k + 1..n {
+                    a[c * n + r] -= l * a[c * n + k];
+                }
+                b[r] -= l * b[k];
+            }
+        }
+    }
+    for k in (0..n).rev() {
+        let mut x = b[k];
+        for c in k + 1..n {
+            x -= a[c * n + k] * b[c];
+        }
+        b[k] = x / a[k * n + k];
+    }
+    true
+}
+
+/// The largest |entry|; NaN when an entry is NaN.
+fn amax(v: &[f64]) -> f64 {
+    let mut big: f64 = 0.0;
+    for x in v {
+        if x.is_nan() {
+            return f64::NAN;
+        }
+        big = big.max(x.abs());
+    }
+    big
+}
+
+fn merit(f: &[f64], scale: &[f64]) -> f64 {
     f.iter()
         .zip(scale.iter())
         .map(|(a, s)| if *s > 0.0 { (a / s) * (a / s) } else { 0.0 })
@@ -150,7 +218,7 @@ fn merit(f: &DVector<f64>, scale: &DVector<f64>) -> f64 {
         * 0.5
 }
 
-fn max_scaled(f: &DVector<f64>, scale: &DVector<f64>, ideal: bool) -> f64 {
+fn max_scaled(f: &[f64], scale: &[f64], ideal: bool) -> f64 {
     let m = f.len();
     f.iter()
         .zip(scale.iter())
@@ -229,9 +297,11 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
         }
         g
     };
-    let gradient = |ev: &Evaluation| -> (DVector<f64>, DVector<f64>) {
-        let mut g = DVector::from_iterator(n, totals.iter().map(|t| -t));
-        let mut sc = DVector::zeros(n);
+    let gradient = |ev: &Evaluation, g: &mut [f64], sc: &mut [f64]| {
+        for (gk, t) in g.iter_mut().zip(&totals) {
+            *gk = -t;
+        }
+        sc.fill(0.0);
         for (idx, &s) in lay.species.iter().enumerate() {
             let m = ev.conc[s];
             for &(k, v) in &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]] {
@@ -239,11 +309,17 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
                 sc[k] += v.abs() * m;
             }
         }
-        (g, sc)
     };
     ev.set_conc(sys, p);
     let mut value = objective(ev, &p.y);
-    let (mut grad, mut scale) = gradient(ev);
+    // Reused buffers: gradient and scales (current and trial), the scaled Hessian (column
+    // major), the Jacobi scaling and the step.
+    let (mut grad, mut scale) = (vec![0.0; n], vec![0.0; n]);
+    let (mut g1, mut s1) = (vec![0.0; n], vec![0.0; n]);
+    let mut h = vec![0.0; n * n];
+    let mut d_inv = vec![0.0; n];
+    let mut d = vec![0.0; n];
+    gradient(ev, &mut grad, &mut scale);
     let mut iters = 0;
     let mut trial = p.clone();
     while iters < max_iter {
@@ -256,13 +332,13 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
             break;
         }
         iters += 1;
-        let mut h: DMatrix<f64> = DMatrix::zeros(n, n);
+        h.fill(0.0);
         for (idx, &s) in lay.species.iter().enumerate() {
             let m = ev.conc[s];
             let cols = &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]];
             for &(a, va) in cols {
                 for &(b, vb) in cols {
-                    h[(a, b)] += va * vb * m;
+                    h[b * n + a] += va * vb * m;
                 }
             }
         }
@@ -270,36 +346,50 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
         // totals differ by many decades would otherwise lose their digits in the pivots of
         // the large ones. A tiny ridge keeps the step defined where a component's species
         // all vanish.
-        let d_inv: Vec<f64> = (0..n)
-            .map(|k| 1.0 / (h[(k, k)] * (1.0 + 1e-14) + 1e-300_f64).sqrt())
-            .collect();
+        for k in 0..n {
+            d_inv[k] = 1.0 / (h[k * n + k] * (1.0 + 1e-14) + 1e-300_f64).sqrt();
+        }
         for a in 0..n {
             for b in 0..n {
-                h[(a, b)] *= d_inv[a] * d_inv[b];
+                h[b * n + a] *= d_inv[a] * d_inv[b];
             }
-            h[(a, a)] += 1e-14;
+            h[a * n + a] += 1e-14;
         }
-        let rhs = DVector::from_iterator(n, (0..n).map(|k| -grad[k] * d_inv[k]));
-        let Some(mut d) = h.lu().solve(&rhs) else { break };
+        for k in 0..n {
+            d[k] = -grad[k] * d_inv[k];
+        }
+        if !lu_solve_in_place(&mut h, n, &mut d) {
+            break;
+        }
         for k in 0..n {
             d[k] *= d_inv[k];
         }
-        let big = d.amax();
+        let mut big = amax(&d);
         if !big.is_finite() {
             break;
         }
         // G is convex and the line search guards every step, so a long step is safe.
         if big > CONVEX_MAX_STEP {
-            d *= CONVEX_MAX_STEP / big;
+            let shrink = CONVEX_MAX_STEP / big;
+            for x in d.iter_mut() {
+                *x *= shrink;
+            }
+            big = amax(&d);
         }
-        let slope = grad.dot(&d);
+        let slope: f64 = grad.iter().zip(&d).map(|(g, x)| g * x).sum();
         if slope >= 0.0 {
             break;
         }
         let mass_sum: f64 = lay.species.iter().map(|&s| ev.conc[s]).sum();
+        // The line search ends where the step no longer moves any unknown beyond round-off.
+        let y_size = act.iter().map(|&c| p.y[c].abs()).fold(0.0, f64::max);
+        let round_off = 4.0 * f64::EPSILON * y_size.max(1.0);
         let mut alpha = 1.0;
         let mut accepted = false;
         for _ in 0..50 {
+            if alpha * big < round_off {
+                break;
+            }
             for (k, &c) in act.iter().enumerate() {
                 trial.y[c] = p.y[c] + alpha * d[k];
             }
@@ -315,7 +405,7 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
             // the scaled gradient is then accepted on that evidence instead.
             let flat = (v - value).abs() <= 1e-12 * (value.abs() + mass_sum);
             if alpha == 1.0 && flat && v.is_finite() {
-                let (g1, s1) = gradient(ev);
+                gradient(ev, &mut g1, &mut s1);
                 let w1 = g1
                     .iter()
                     .zip(s1.iter())
@@ -334,7 +424,7 @@ fn convex_phase(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, 
             break;
         }
         p.y.clone_from(&trial.y);
-        (grad, scale) = gradient(ev);
+        gradient(ev, &mut grad, &mut scale);
     }
     iters
 }
@@ -450,9 +540,15 @@ pub(crate) fn solve(
         p.ln_i = ionic.max(I_MIN).ln();
     }
     evaluate(sys, &mut ev, &p);
-    let (mut f, mut scale) = residual(sys, &ev, &lay, &p);
-    let mut phi = merit(&f, &scale);
     let m = act.len() + 1;
+    // Reused buffers: residual and scales (current and trial), the Jacobian and the step.
+    let (mut f, mut scale) = (vec![0.0; m], vec![0.0; m]);
+    let (mut tf, mut ts) = (vec![0.0; m], vec![0.0; m]);
+    let mut jac = vec![0.0; m * m];
+    let mut dx = vec![0.0; m];
+    let mut trial = p.clone();
+    residual(sys, &ev, &lay, &p, &mut f, &mut scale);
+    let mut phi = merit(&f, &scale);
     let mut stalls = 0;
     // The last accepted step (ln units): a solution within tolerance is polished by one more
     // Newton step unless the previous step was already at round-off, because a balance
@@ -475,47 +571,60 @@ pub(crate) fn solve(
             // on from here (the residual of this iteration is the change of ln γ).
             ev.hold_composition();
             evaluate(sys, &mut ev, &p);
-            (f, scale) = residual(sys, &ev, &lay, &p);
+            residual(sys, &ev, &lay, &p, &mut f, &mut scale);
             phi = merit(&f, &scale);
             last_step = f64::INFINITY;
             continue;
         }
         iters += 1;
-        let jac = jacobian_in(&ev, &lay, &p);
-        let Some(mut dx) = jac.lu().solve(&(-&f)) else {
+        jacobian_into(&ev, &lay, &p, &mut jac);
+        for (d, r) in dx.iter_mut().zip(&f) {
+            *d = -r;
+        }
+        if !lu_solve_in_place(&mut jac, m, &mut dx) {
             // Singular Jacobian: nudge with more fraction sweeps and go on.
             pcf_sweeps(sys, &mut ev, &lay, &mut p, 10);
             evaluate(sys, &mut ev, &p);
-            (f, scale) = residual(sys, &ev, &lay, &p);
+            residual(sys, &ev, &lay, &p, &mut f, &mut scale);
             phi = merit(&f, &scale);
             continue;
-        };
-        let big = dx.amax();
+        }
+        let mut big = amax(&dx);
         if !big.is_finite() {
             break;
         }
         if big > MAX_STEP {
-            dx *= MAX_STEP / big;
+            let shrink = MAX_STEP / big;
+            for d in dx.iter_mut() {
+                *d *= shrink;
+            }
+            big = amax(&dx);
         }
+        // The line search ends where the step no longer moves any unknown beyond round-off.
+        let y_size = act.iter().map(|&c| p.y[c].abs()).fold(p.ln_i.abs(), f64::max);
+        let round_off = 4.0 * f64::EPSILON * y_size.max(1.0);
         let mut alpha = 1.0;
         let mut accepted = false;
-        let mut trial = p.clone();
+        trial.clone_from(&p);
         for _ in 0..40 {
+            if alpha * big < round_off {
+                break;
+            }
             for (k, &c) in act.iter().enumerate() {
                 trial.y[c] = p.y[c] + alpha * dx[k];
             }
             trial.y[0] = trial.y[0].clamp(LN_AH_MIN, LN_AH_MAX);
             trial.ln_i = (p.ln_i + alpha * dx[m - 1]).clamp(I_MIN.ln(), ln_i_max);
             evaluate(sys, &mut ev, &trial);
-            let (tf, ts) = residual(sys, &ev, &lay, &trial);
+            residual(sys, &ev, &lay, &trial, &mut tf, &mut ts);
             let tphi = merit(&tf, &ts);
             if tphi.is_finite() && tphi <= (1.0 - 1e-4 * alpha) * phi {
-                last_step = alpha * dx.amax();
+                last_step = alpha * big;
                 // Repeated heavy damping means the merit function is badly scaled here.
                 short_steps = if alpha < 1e-2 { short_steps + 1 } else { 0 };
                 p.clone_from(&trial);
-                f = tf;
-                scale = ts;
+                std::mem::swap(&mut f, &mut tf);
+                std::mem::swap(&mut scale, &mut ts);
                 phi = tphi;
                 accepted = true;
                 break;
@@ -538,7 +647,7 @@ pub(crate) fn solve(
             }
             pcf_sweeps(sys, &mut ev, &lay, &mut p, 10);
             evaluate(sys, &mut ev, &p);
-            (f, scale) = residual(sys, &ev, &lay, &p);
+            residual(sys, &ev, &lay, &p, &mut f, &mut scale);
             phi = merit(&f, &scale);
         }
     }
