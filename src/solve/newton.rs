@@ -157,13 +157,15 @@ fn jacobian_into(ev: &Evaluation, lay: &Layout, p: &Point, j: &mut [f64]) {
 /// (overwritten by its factors), `b` overwritten by x. Nothing is allocated. False when a
 /// pivot is exactly zero (a singular matrix), as nalgebra's `LU::solve` returns `None`.
 fn lu_solve_in_place(a: &mut [f64], n: usize, b: &mut [f64]) -> bool {
+    let (a, b) = (&mut a[..n * n], &mut b[..n]);
     for k in 0..n {
+        // Pivot: the largest |entry| of column k on or below the diagonal (contiguous).
+        let col = &a[k * n..(k + 1) * n];
         let mut p = k;
-        let mut best = a[k * n + k].abs();
-        for r in k + 1..n {
-            let v = a[k * n + r].abs();
-            if v > best {
-                best = v;
+        let mut best = col[k].abs();
+        for (r, v) in col.iter().enumerate().skip(k + 1) {
+            if v.abs() > best {
+                best = v.abs();
                 p = r;
             }
         }
@@ -176,24 +178,34 @@ fn lu_solve_in_place(a: &mut [f64], n: usize, b: &mut [f64]) -> bool {
             }
             b.swap(k, p);
         }
-        let pivot = a[k * n + k];
-        for r in k + 1..n {
-            let l = a[k * n + r] / pivot;
-            a[k * n + r] = l;
-            if l != 0.0 {
-                for c in k + 1..n {
-                    a[c * n + r] -= l * a[c * n + k];
+        // Multipliers below the pivot, then each later column updated by them (column
+        // oriented: contiguous in the column-major buffer).
+        let (left, right) = a.split_at_mut((k + 1) * n);
+        let colk = &mut left[k * n..];
+        let pivot = colk[k];
+        let multipliers = &mut colk[k + 1..];
+        let bk = b[k];
+        for (l, br) in multipliers.iter_mut().zip(&mut b[k + 1..]) {
+            *l /= pivot;
+            *br -= *l * bk;
+        }
+        for col in right.chunks_exact_mut(n) {
+            let akc = col[k];
+            if akc != 0.0 {
+                for (x, l) in col[k + 1..].iter_mut().zip(multipliers.iter()) {
+                    *x -= l * akc;
                 }
-                b[r] -= l * b[k];
             }
         }
     }
+    // Back substitution, column by column.
     for k in (0..n).rev() {
-        let mut x = b[k];
-        for c in k + 1..n {
-            x -= a[c * n + k] * b[c];
+        let col = &a[k * n..(k + 1) * n];
+        b[k] /= col[k];
+        let bk = b[k];
+        for (br, u) in b[..k].iter_mut().zip(&col[..k]) {
+            *br -= u * bk;
         }
-        b[k] = x / a[k * n + k];
     }
     true
 }
