@@ -243,7 +243,7 @@ impl Equilibrium {
         let (mut alkalinity, mut carbonate_alkalinity) = (0.0, 0.0);
         // Σ ν·m over the complexes (coupling species) of each component, summed in species
         // order, for the mass balances below.
-        let mut coupled = vec![0.0; nc];
+        let mut coupled = vec![0.0; if sys.coupling.contains(&true) { nc } else { 0 }];
         for (s, &m) in ev.conc.iter().enumerate() {
             let (mut level, mut nu_h, mut nu_carb) = (0.0, 0.0, 0.0);
             let coupling = sys.coupling[s];
@@ -343,7 +343,8 @@ impl Equilibrium {
                 free_molal.push((c.name.clone(), sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0)));
                 // Σ ν·m over the species holding component ci: its uncoupled members and
                 // any complex that contains it.
-                let held: f64 = sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>() + coupled[ci];
+                let held: f64 =
+                    sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>() + coupled.get(ci).copied().unwrap_or(0.0);
                 let scale = if c.total_molal > 0.0 {
                     c.total_molal
                 } else {
