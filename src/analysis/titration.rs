@@ -458,7 +458,9 @@ pub(crate) fn dph_along(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f6
 /// ionic-strength equation. `None` when the system is coupled or the direction brings in a
 /// component from a zero total.
 fn dph_along_uncoupled(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Option<f64> {
-    if !sys.uncoupled() {
+    // Phase rows (solids, fixed gases, a fixed pH) change the equations: the full implicit
+    // differentiation with the rows held handles them.
+    if !sys.uncoupled() || sys.has_phase_constraints() {
         return None;
     }
     let nc = sys.components.len();
