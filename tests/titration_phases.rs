@@ -151,3 +151,32 @@ fn open_co2_titration() {
     }
     eprintln!("open CO2: worst dpH/dV disagreement {worst:.1e}");
 }
+
+#[test]
+fn target_ph_searches_with_calcite_forming() {
+    // Soda ash volume to pH 8.3 in the hard water (calcite forms on the way).
+    let t = hard_water_with_soda_ash();
+    let v = t.volume_for_ph(8.3, Volume::milliliters(10.0)).unwrap();
+    let p = t.point(v, None).unwrap();
+    assert!((p.ph - 8.3).abs() < 1e-8, "{}", p.ph);
+    // Lime dose to pH 9.5 for the same water, calcite allowed.
+    let cat = Catalog::builtin();
+    let mut water = Recipe::new();
+    water
+        .add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(0.002))
+        .unwrap()
+        .add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(0.003))
+        .unwrap()
+        .add_complexes(cat.complexes())
+        .allow_solid(&cat.solid("calcite").unwrap());
+    let lime = cat.reagent("calcium hydroxide").unwrap();
+    let dose = protolyte::analysis::amount_for_ph(&water, &lime, &davies(), 9.5, Amount::molal(0.01)).unwrap();
+    let mut check = water.clone();
+    check.add(&lime, dose).unwrap();
+    let eq = check.compile(&davies()).unwrap().solve().unwrap();
+    assert!((eq.ph() - 9.5).abs() < 1e-8, "{}", eq.ph());
+    assert!(
+        eq.solid("calcite").unwrap().amount_molal > 0.0,
+        "lime softening precipitates calcite"
+    );
+}
