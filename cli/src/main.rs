@@ -160,8 +160,8 @@ enum Command {
         #[arg(long)]
         quiet: bool,
     },
-    /// List or search the catalogue (acid–base families, ions, reagents, complexes; built in
-    /// and from `--catalog` files)
+    /// List or search the catalogue (acid–base families, ions, reagents, complexes, solids,
+    /// gases; built in and from `--catalog` files)
     /// with the published source of each entry.
     Data {
         /// Part of a name, synonym or formula; without it, everything is listed.
@@ -1153,12 +1153,79 @@ fn draw_bar(bytes: u64, total: Option<u64>, lines: usize, start: Instant) {
     let _ = err.flush();
 }
 
+/// A solid or a gas of the catalogue as `data` shows it.
+struct PhaseData<'a> {
+    entry: &'a protolyte::PhaseEntry,
+    /// log₁₀ K at 25 °C: K_sp of a solid's dissolution, K_H of a gas (mol/(kg·bar)).
+    log10_k: f64,
+    dh_kj_per_mol: Option<f64>,
+    dcp_j_per_mol_k: Option<f64>,
+    equation: Option<protolyte::vant_hoff::LogKEquation>,
+    /// The reaction in words: "calcite ⇌ 1 × calcium + 1 × carbonate".
+    reaction: String,
+    parts: Vec<String>,
+}
+
+/// The catalogue's solids and gases whose name, synonyms or formula contain `query`
+/// (ignoring case and spaces), or all of them.
+fn phase_data<'a>(cat: &'a Catalog, query: Option<&str>) -> Vec<PhaseData<'a>> {
+    let key = |t: &str| t.to_lowercase().replace([' ', '-', '_'], "");
+    let hit = |e: &protolyte::PhaseEntry| match query {
+        None => true,
+        Some(q) => {
+            let q = key(q);
+            key(&e.name).contains(&q) || e.synonyms.iter().any(|s| key(s).contains(&q)) || key(&e.formula).contains(&q)
+        }
+    };
+    let part_words = |p: &protolyte::ComplexPart, n: i32| {
+        let what = match p {
+            protolyte::ComplexPart::Base(f) => format!("{} ({})", f.form_name(0), f.name()),
+            protolyte::ComplexPart::Ion(i) => i.name().to_string(),
+            protolyte::ComplexPart::Proton => "H+".into(),
+        };
+        format!("{n} × {what}")
+    };
+    let mut out = Vec::new();
+    for e in cat.solid_entries().iter().filter(|e| hit(e)) {
+        let Some(s) = cat.solids().iter().find(|s| s.name() == e.name) else {
+            continue;
+        };
+        let parts: Vec<String> = s.parts().iter().map(|(p, n)| part_words(p, *n)).collect();
+        out.push(PhaseData {
+            entry: e,
+            log10_k: s.log10_k(),
+            dh_kj_per_mol: s.dh_kj_per_mol(),
+            dcp_j_per_mol_k: s.dcp_j_per_mol_k(),
+            equation: s.log_k_equation(),
+            reaction: format!("{} ⇌ {}", s.name(), parts.join(" + ")),
+            parts,
+        });
+    }
+    for e in cat.gas_entries().iter().filter(|e| hit(e)) {
+        let Some(g) = cat.gases().iter().find(|g| g.name() == e.name) else {
+            continue;
+        };
+        let form = g.family().form_name(g.protons());
+        out.push(PhaseData {
+            entry: e,
+            log10_k: g.log10_kh(),
+            dh_kj_per_mol: g.dh_kj_per_mol(),
+            dcp_j_per_mol_k: None,
+            equation: g.log_k_equation(),
+            reaction: format!("{} ⇌ {form}(aq)", g.name()),
+            parts: vec![format!("1 × {form} ({})", g.family().name())],
+        });
+    }
+    out
+}
+
 fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     let cat = catalog();
     let entries: Vec<&protolyte::DataInfo> = match query {
         Some(q) => cat.search(q),
         None => cat.entries().iter().collect(),
     };
+    let phases = phase_data(&cat, query);
     if json {
         let v: Vec<serde_json::Value> = entries
             .iter()
@@ -1206,6 +1273,29 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
                 }
                 v
             })
+            .chain(phases.iter().map(|p| {
+                let e = p.entry;
+                let k_name = if e.kind == "gas" { "log10_kh" } else { "log10_k" };
+                let mut v = serde_json::json!({
+                    "kind": e.kind,
+                    "name": e.name,
+                    "synonyms": e.synonyms,
+                    "formula": e.formula,
+                    "summary": e.summary,
+                    "dh_kj_per_mol": p.dh_kj_per_mol,
+                    "dcp_j_per_mol_k": p.dcp_j_per_mol_k,
+                    "log_k_equation": equation_json(p.equation),
+                    "reaction": p.reaction,
+                    "parts": p.parts,
+                    "source": e.source,
+                    "from_memory": e.from_memory,
+                    "origin": e.origin,
+                });
+                if let Some(o) = v.as_object_mut() {
+                    o.insert(k_name.into(), serde_json::json!(p.log10_k));
+                }
+                v
+            }))
             .collect();
         write_json(out, &v)?;
         return Ok(EXIT_OK);
@@ -1258,7 +1348,36 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
             };
             writeln!(out, "          source: {}{memo}", e.source)?;
         }
-        writeln!(out, "{} entries", entries.len())
+        for p in &phases {
+            let e = p.entry;
+            writeln!(out, "{:<9} {}  [{}]", e.kind, e.name, e.formula)?;
+            writeln!(out, "          {}", p.reaction)?;
+            let mut line = if e.kind == "gas" {
+                format!("          log K_H {} (mol/(kg·bar), 25 °C)", p.log10_k)
+            } else {
+                format!("          log K {} (25 °C)", p.log10_k)
+            };
+            if let Some(h) = p.dh_kj_per_mol {
+                line += &format!(", ΔH° {h} kJ/mol");
+            }
+            if let Some(c) = p.dcp_j_per_mol_k {
+                line += &format!(", ΔCp° {c} J/(mol·K)");
+            }
+            writeln!(out, "{line}")?;
+            if let Some(q) = p.equation {
+                writeln!(out, "          {}", equation_text(q))?;
+            }
+            if !e.synonyms.is_empty() {
+                writeln!(out, "          also: {}", e.synonyms.join(", "))?;
+            }
+            let memo = if e.from_memory {
+                " (entered from memory of the source)"
+            } else {
+                ""
+            };
+            writeln!(out, "          source: {}{memo}", e.source)?;
+        }
+        writeln!(out, "{} entries", entries.len() + phases.len())
     };
     w(out).map_err(output_failure)?;
     Ok(EXIT_OK)

@@ -821,3 +821,34 @@ fn a_buffer_far_from_its_pka_carries_a_warning() {
     let o = protolyte(&["design", "examples/tris_buffer_design.json"]);
     assert!(!stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
 }
+
+#[test]
+fn data_lists_solids_and_gases() {
+    // Calcite: log K_sp −8.48 at 25 °C and ΔH° −9.61 kJ/mol (L. N. Plummer, E. Busenberg,
+    // Geochim. Cosmochim. Acta 46 (1982) 1011), as entered in the catalogue.
+    let o = protolyte(&["data", "calcite"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("solid     calcite"), "{out}");
+    assert!(out.contains("log K -8.48"), "{out}");
+    let o = protolyte(&["data", "--json", "calcite"]);
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    let c = all.iter().find(|e| e["kind"] == "solid").unwrap();
+    assert_eq!(c["log10_k"].as_f64(), Some(-8.48));
+    assert_eq!(c["dh_kj_per_mol"].as_f64(), Some(-9.61));
+    assert_eq!(c["parts"].as_array().unwrap().len(), 2);
+    assert!(c["reaction"].as_str().unwrap().starts_with("calcite ⇌"));
+    assert!(c["from_memory"].is_boolean());
+    assert!(c["log_k_equation"]["coefficients"].is_array());
+    // CO2(g): log K_H −1.47 at 25 °C (Plummer & Busenberg 1982, as entered).
+    let o = protolyte(&["data", "--json", "CO2(g)"]);
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    let g = all.iter().find(|e| e["kind"] == "gas").unwrap();
+    assert!((g["log10_kh"].as_f64().unwrap() + 1.47).abs() < 0.01);
+    assert!(!g["source"].as_str().unwrap().is_empty());
+    // The full listing holds every solid and gas of the catalogue (at least 25 solids, 4 gases).
+    let o = protolyte(&["data", "--json"]);
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    assert!(all.iter().filter(|e| e["kind"] == "solid").count() >= 25);
+    assert!(all.iter().filter(|e| e["kind"] == "gas").count() >= 4);
+}
