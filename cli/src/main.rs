@@ -1225,7 +1225,7 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
         Some(q) => cat.search(q),
         None => cat.entries().iter().collect(),
     };
-    let phases = phase_data(&cat, query);
+    let phases = phase_data(cat, query);
     if json {
         let v: Vec<serde_json::Value> = entries
             .iter()
