@@ -71,6 +71,10 @@ pub struct Sensitivities {
     /// solids, fixed partial pressures, a fixed pH) and d(amount)/dp for each, rows × parameters.
     phase_names: Vec<std::sync::Arc<str>>,
     damount: DMatrix<f64>,
+    /// Every phase row's name, held or not (a row not held has no effect on the solution).
+    all_phase_names: Vec<std::sync::Arc<str>>,
+    /// Columns per held row j: d(unknowns, then amounts)/d log₁₀ K_j, (n + 1 + r) × r.
+    dphase_k: DMatrix<f64>,
 }
 
 impl Sensitivities {
@@ -238,6 +242,8 @@ impl Sensitivities {
             ph_shift_dln_i: crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, i, &sys.dh),
             phase_names: Vec::new(),
             damount: DMatrix::zeros(0, np),
+            all_phase_names: sys.phases.iter().map(|r| r.name.clone()).collect(),
+            dphase_k: DMatrix::zeros(m, 0),
         })
     }
 
@@ -403,14 +409,22 @@ impl Sensitivities {
                 dfdp[(k, col)] *= -sc;
             }
         }
-        let x = jac.lu().solve(&dfdp).ok_or_else(|| Error::NoConvergence {
+        // log₁₀ K of held row j: its equation ν·y − ln K − … = 0 moves by −ln 10 (row scale 1).
+        let mut dfdk = DMatrix::<f64>::zeros(m, r);
+        for j in 0..r {
+            dfdk[(n + j, j)] = LN10;
+        }
+        let lu = jac.lu();
+        let singular = || Error::NoConvergence {
             path: "sensitivity",
             iterations: 0,
             max_residual: f64::INFINITY,
             worst_equation: "singular Jacobian at the solution (phase rows)".into(),
             last_ph: eq.ph(),
-        })?;
-        if x.iter().any(|v| !v.is_finite()) {
+        };
+        let x = lu.solve(&dfdp).ok_or_else(singular)?;
+        let xk = lu.solve(&dfdk).ok_or_else(singular)?;
+        if x.iter().chain(xk.iter()).any(|v| !v.is_finite()) {
             return Err(Error::NoConvergence {
                 path: "sensitivity",
                 iterations: 0,
@@ -427,6 +441,17 @@ impl Sensitivities {
             dy[(n, col)] = x[(m - 1, col)];
         }
         let damount = x.rows(n, r).into_owned();
+        // Reordered as (ln a, ln I, amounts) for the accessors.
+        let mut dphase_k = DMatrix::zeros(m, r);
+        for j in 0..r {
+            for k in 0..n {
+                dphase_k[(k, j)] = xk[(k, j)];
+            }
+            dphase_k[(n, j)] = xk[(m - 1, j)];
+            for i2 in 0..r {
+                dphase_k[(n + 1 + i2, j)] = xk[(n + i2, j)];
+            }
+        }
         Ok(Sensitivities {
             dm: None,
             molal: ev.conc.clone(),
@@ -442,6 +467,8 @@ impl Sensitivities {
             ph_shift_dln_i: crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, i, &sys.dh),
             phase_names: working.iter().map(|&w| sys.phases[w].name.clone()).collect(),
             damount,
+            all_phase_names: sys.phases.iter().map(|r| r.name.clone()).collect(),
+            dphase_k,
         })
     }
 
@@ -476,6 +503,39 @@ impl Sensitivities {
         Some(self.damount[(j, col)])
     }
 
+    /// d pH / d log₁₀ K of a solid or gas of the system (its K_sp, or its Henry's-law
+    /// constant K_H). A solid present, a fixed partial pressure: the derivative through its
+    /// row; a solid absent or a gas not fixed: 0 (the row does not act on the solution).
+    /// `None` for a name that is no phase row of the system.
+    ///
+    /// ```
+    /// use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe};
+    ///
+    /// let cat = Catalog::builtin();
+    /// let mut r = Recipe::new();
+    /// r.add(&cat.reagent("calcium carbonate")?, Amount::molal(0.01))?
+    ///  .allow_solid(&cat.solid("calcite")?);
+    /// let sys = r.compile(&Conditions::new(Default::default(), ActivityModel::Davies))?;
+    /// let s = sys.solve()?.sensitivities(&sys)?;
+    /// // A more soluble calcite dissolves more carbonate: the pH rises.
+    /// assert!(s.dph_dphase_log10k("calcite").unwrap() > 0.0);
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn dph_dphase_log10k(&self, name: &str) -> Option<f64> {
+        let Some(j) = self.phase_names.iter().position(|n| &**n == name) else {
+            return self.all_phase_names.iter().any(|n| &**n == name).then_some(0.0);
+        };
+        let n = self.act.len();
+        Some(-self.dphase_k[(0, j)] / LN10 + self.ph_shift_dln_i * self.dphase_k[(n, j)])
+    }
+
+    /// d(amount of held row `row`, mol/kg) / d log₁₀ K of the solid or gas `of` (both held at
+    /// the solution: present solids, fixed gases, a fixed pH); `None` otherwise.
+    pub fn dphase_amount_dphase_log10k(&self, row: &str, of: &str) -> Option<f64> {
+        let i = self.phase_names.iter().position(|n| &**n == row)?;
+        let j = self.phase_names.iter().position(|n| &**n == of)?;
+        Some(self.dphase_k[(self.act.len() + 1 + i, j)])
+    }
     fn column(&self, p: Parameter) -> Option<usize> {
         match p {
             Parameter::Total(c) if c >= 1 && c < self.nc => Some(c - 1),

@@ -172,3 +172,58 @@ fn absent_rows_have_no_amount_derivative() {
     assert!(sens.dphase_amount_molal("calcite", Parameter::Total(1)).is_none());
     assert!(sens.dphase_amount_molal("CO2(g)", Parameter::Total(99)).is_none());
 }
+
+/// pH and calcite amount of the hard water with calcite at log K_sp `lk` (no ΔH°: the
+/// value holds at 25 °C) under a CO₂ partial pressure with log K_H `lkh`.
+fn with_constants(lk: f64, lkh: f64) -> (System, f64, f64) {
+    let cat = Catalog::builtin();
+    let c = cat.solid("calcite").unwrap();
+    // Its own name: a solid allowed under the name of a catalogue solid the recipe reports
+    // takes the catalogue's constant.
+    let calcite = protolyte::Solid::new("test calcite", c.parts().to_vec(), lk).unwrap();
+    let g = cat.gas("CO2(g)").unwrap();
+    let co2 = protolyte::Gas::new("CO2(g)", g.family(), g.protons(), lkh).unwrap();
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(0.004))
+        .unwrap()
+        .add(&cat.reagent("sodium carbonate").unwrap(), Amount::molal(0.003))
+        .unwrap()
+        .add_complexes(cat.complexes())
+        .allow_solid(&calcite)
+        .fix_partial_pressure(&co2, Pressure::microatm(400.0))
+        .unwrap();
+    let sys = r.compile(&davies()).unwrap();
+    let eq = sys.solve().unwrap();
+    let amount = eq.solid("test calcite").unwrap().amount_molal;
+    (sys, eq.ph(), amount)
+}
+
+#[test]
+fn solid_and_gas_constants_match_finite_differences() {
+    let (lk, lkh) = (-8.48, -1.47);
+    let (sys, _, amount) = with_constants(lk, lkh);
+    assert!(amount > 1e-4);
+    let sens = sys.solve().unwrap().sensitivities(&sys).unwrap();
+    let h = 1e-5;
+    let (_, pu, au) = with_constants(lk + h, lkh);
+    let (_, pd, ad) = with_constants(lk - h, lkh);
+    let (fd_ph, fd_amount) = ((pu - pd) / (2.0 * h), (au - ad) / (2.0 * h));
+    let an = sens.dph_dphase_log10k("test calcite").unwrap();
+    assert!((an - fd_ph).abs() < 1e-4 * fd_ph.abs().max(1e-3), "{an} vs {fd_ph}");
+    let an_amount = sens
+        .dphase_amount_dphase_log10k("test calcite", "test calcite")
+        .unwrap();
+    assert!(
+        (an_amount - fd_amount).abs() < 1e-4 * fd_amount.abs(),
+        "{an_amount} vs {fd_amount}"
+    );
+    let (_, pu, _) = with_constants(lk, lkh + h);
+    let (_, pd, _) = with_constants(lk, lkh - h);
+    let fd = (pu - pd) / (2.0 * h);
+    let an = sens.dph_dphase_log10k("CO2(g)").unwrap();
+    assert!((an - fd).abs() < 1e-4 * fd.abs().max(1e-3), "{an} vs {fd}");
+    // Aragonite, reported but not allowed to form: its constant has no effect.
+    assert_eq!(sens.dph_dphase_log10k("aragonite"), Some(0.0));
+    // A name that is no row gives none.
+    assert!(sens.dph_dphase_log10k("no such solid").is_none());
+}
