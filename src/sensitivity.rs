@@ -242,7 +242,7 @@ impl Sensitivities {
             ph_shift_dln_i: crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, i, &sys.dh),
             phase_names: Vec::new(),
             damount: DMatrix::zeros(0, np),
-            all_phase_names: sys.phases.iter().map(|r| r.name.clone()).collect(),
+            all_phase_names: solid_and_gas_names(sys),
             dphase_k: DMatrix::zeros(m, 0),
         })
     }
@@ -261,12 +261,6 @@ impl Sensitivities {
             return Err(Error::InconsistentDefinition {
                 name: "sensitivities".into(),
                 reason: "not available for a system with phase rows under an activity model whose coefficients depend on the composition (SIT)".into(),
-            });
-        }
-        if sys.phases.iter().any(|r| matches!(r.kind, RowKind::Closure)) {
-            return Err(Error::InconsistentDefinition {
-                name: "sensitivities".into(),
-                reason: "not available for a system whose charge balance is closed on an ion".into(),
             });
         }
         let p: Point = eq.point();
@@ -290,6 +284,22 @@ impl Sensitivities {
         let r = working.len();
         let m = n + r + 1;
         let alkalinity = sys.phases.iter().any(|r| matches!(r.kind, RowKind::Alkalinity { .. }));
+        // An ion closing the charge balance: (its row, its component, its charge number).
+        let closure = sys
+            .phases
+            .iter()
+            .enumerate()
+            .find(|(_, r)| matches!(r.kind, RowKind::Closure))
+            .and_then(|(w, r)| r.terms.iter().find(|&&(c, _)| c != 0).map(|&(c, _)| (w, c)))
+            .map(|(w, c)| (w, c, f64::from(sys.components[c].charge)));
+        // With a fixed pH the closing ion's addition δ replaces the pH row's H⁺ (which the
+        // solver brings to zero): its column puts z·δ into the H⁺ balance and δ into the ion's.
+        let ph_closure = closure.filter(|_| !alkalinity).and_then(|(cw, ci, z)| {
+            working
+                .iter()
+                .position(|&w| matches!(sys.phases[w].kind, RowKind::Ph { .. }))
+                .map(|j| (j, cw, ci, z))
+        });
         // ∂F_H/∂T_c: T_H = −Σ z_c·T_c, or Σ r_c·T_c − TA under a fixed alkalinity.
         let h_coef = |c: usize| {
             if alkalinity {
@@ -335,6 +345,14 @@ impl Sensitivities {
             }
             scale[n + j] = 1.0;
         }
+        if let Some((j, _, ci, z)) = ph_closure {
+            // T_H = −Σ z_c·T_c − z·δ and T_ion + δ: ∂F_H/∂δ = z, ∂F_ion/∂δ = −1.
+            for k in 0..n {
+                jac[(k, n + j)] = 0.0;
+            }
+            jac[(0, n + j)] = z;
+            jac[(pos[ci], n + j)] = -1.0;
+        }
         // Coefficient of species s in equation k (mass balances over y, then I).
         let row = |s: usize, k: usize| -> f64 {
             if k == m - 1 {
@@ -350,6 +368,11 @@ impl Sensitivities {
         for c in 1..nc {
             let col = c - 1;
             dfdp[(0, col)] += h_coef(c);
+            if let Some((_, ci, z)) = closure.filter(|_| alkalinity) {
+                // δ = (−Σ z_c·T_c − Σ r_c·T_c + TA)/z joins the closing ion's total.
+                let zc = f64::from(sys.components[c].charge);
+                dfdp[(pos[ci], col)] += (zc + sys.alkalinity_reference[c]) / z;
+            }
             if pos[c] != usize::MAX {
                 dfdp[(pos[c], col)] -= 1.0;
                 continue;
@@ -440,7 +463,13 @@ impl Sensitivities {
             }
             dy[(n, col)] = x[(m - 1, col)];
         }
-        let damount = x.rows(n, r).into_owned();
+        let mut damount = x.rows(n, r).into_owned();
+        let mut phase_names: Vec<std::sync::Arc<str>> = working.iter().map(|&w| sys.phases[w].name.clone()).collect();
+        if let Some((j, cw, _, _)) = ph_closure {
+            // The row's unknown is δ; the closing row's amount is −δ (the pH row takes none).
+            phase_names[j] = sys.phases[cw].name.clone();
+            damount.row_mut(j).neg_mut();
+        }
         // Reordered as (ln a, ln I, amounts) for the accessors.
         let mut dphase_k = DMatrix::zeros(m, r);
         for j in 0..r {
@@ -465,9 +494,9 @@ impl Sensitivities {
             ionic_strength: i,
             forms: sys.families.iter().map(|f| f.forms.clone()).collect(),
             ph_shift_dln_i: crate::activity::ph_convention_shift_dln_i(sys.ph_convention, sys.model, i, &sys.dh),
-            phase_names: working.iter().map(|&w| sys.phases[w].name.clone()).collect(),
+            phase_names,
             damount,
-            all_phase_names: sys.phases.iter().map(|r| r.name.clone()).collect(),
+            all_phase_names: solid_and_gas_names(sys),
             dphase_k,
         })
     }
@@ -522,8 +551,11 @@ impl Sensitivities {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn dph_dphase_log10k(&self, name: &str) -> Option<f64> {
+        if !self.all_phase_names.iter().any(|n| &**n == name) {
+            return None;
+        }
         let Some(j) = self.phase_names.iter().position(|n| &**n == name) else {
-            return self.all_phase_names.iter().any(|n| &**n == name).then_some(0.0);
+            return Some(0.0);
         };
         let n = self.act.len();
         Some(-self.dphase_k[(0, j)] / LN10 + self.ph_shift_dln_i * self.dphase_k[(n, j)])
@@ -728,4 +760,13 @@ impl Composition {
         jacobian[(m - 1, m - 1)] -= i;
         Some(Composition { lu, pmn, jacobian })
     }
+}
+
+/// The names of the system's solid and gas rows.
+fn solid_and_gas_names(sys: &System) -> Vec<std::sync::Arc<str>> {
+    sys.phases
+        .iter()
+        .filter(|r| matches!(r.kind, RowKind::Solid { .. } | RowKind::Gas { .. }))
+        .map(|r| r.name.clone())
+        .collect()
 }
