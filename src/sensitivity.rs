@@ -416,11 +416,10 @@ impl Sensitivities {
                 dfdp[(k, col)] = row(s, k) * c * LN10;
             }
         }
-        // Strong base: the OH⁻ lowers T_H by one (not under a fixed alkalinity, which the
-        // recipe holds), the inert cation adds ½ to I.
-        if !alkalinity {
-            dfdp[(0, np - 1)] = 1.0;
-        }
+        // Strong base: the OH⁻ lowers T_H by one (under a fixed alkalinity it raises the
+        // alkalinity by as much: T_H = Σ r·T − TA falls by one too; an ion closing the balance
+        // is left as it was), the inert cation adds ½ to I.
+        dfdp[(0, np - 1)] = 1.0;
         dfdp[(m - 1, np - 1)] = 0.5;
         // Row scaling keeps trace components' digits through the LU.
         for k in 0..m {
