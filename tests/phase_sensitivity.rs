@@ -194,8 +194,8 @@ fn absent_rows_have_no_amount_derivative() {
 fn with_constants(lk: f64, lkh: f64) -> (System, f64, f64) {
     let cat = Catalog::builtin();
     let c = cat.solid("calcite").unwrap();
-    // Its own name: a solid allowed under the name of a catalogue solid the recipe reports
-    // takes the catalogue's constant.
+    // Its own name, so that the catalogue's calcite is reported beside it (at SI ≠ 0 when
+    // log K differs, not allowed: no effect on the solution).
     let calcite = protolyte::Solid::new("test calcite", c.parts().to_vec(), lk).unwrap();
     let g = cat.gas("CO2(g)").unwrap();
     let co2 = protolyte::Gas::new("CO2(g)", g.family(), g.protons(), lkh).unwrap();
