@@ -6,6 +6,12 @@
 //! dy/dp = −J⁻¹ ∂F/∂p, with J the analytic Jacobian ∂F/∂y. One LU factorisation serves
 //! every parameter. Buffer capacity, fitting Jacobians and uncertainty propagation are built
 //! on these numbers.
+//!
+//! With phase rows (solids allowed to form, a fixed partial pressure, pH or alkalinity, an
+//! ion closing the charge balance) the rows held at the solution join the equations as
+//! equalities and their amounts as unknowns (see `Sensitivities::with_phases`), so the same
+//! accessors give the derivatives of the open or saturated system, and
+//! [`Sensitivities::dphase_amount_molal`] those of the amounts.
 
 use nalgebra::{DMatrix, DVector};
 
