@@ -17,7 +17,9 @@ use protolyte::document::{
     self, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
     TitrationResult,
 };
-use protolyte::plot::{PlotError, PlotOptions, capacity_plot, distribution_plot, titration_svg, write_svg};
+use protolyte::plot::{
+    PlotError, PlotOptions, capacity_plot, distribution_plot, saturation_plot, titration_svg, write_svg,
+};
 use protolyte::{Catalog, DataKind, Error};
 
 /// Exit codes.
@@ -90,6 +92,10 @@ enum Command {
         /// Also draw the buffer capacity against pH (pH 1–13, local maxima marked) as SVG.
         #[arg(long, value_name = "FILE.svg")]
         capacity_plot: Option<PathBuf>,
+        /// Also draw the saturation index of each catalogue solid whose parts are present
+        /// against pH (pH 2–12, strong acid or base added to the closed solution) as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        saturation_plot: Option<PathBuf>,
     },
     /// Simulate a titration (`protolyte-titration/1`): the curve as CSV, then its endpoints.
     Titrate {
@@ -252,7 +258,13 @@ fn run(cmd: Command) -> Result<u8, Failure> {
             json,
             plot,
             capacity_plot,
-        } => solve(&file, json, plot.as_deref(), capacity_plot.as_deref(), &mut out)?,
+            saturation_plot,
+        } => solve(
+            &file,
+            json,
+            [plot.as_deref(), capacity_plot.as_deref(), saturation_plot.as_deref()],
+            &mut out,
+        )?,
         Command::Titrate {
             file,
             json,
@@ -300,15 +312,13 @@ fn plot_options(name: &Option<String>) -> PlotOptions {
     }
 }
 
-fn solve(
-    file: &Path,
-    json: bool,
-    plot: Option<&Path>,
-    capacity: Option<&Path>,
-    out: &mut impl Write,
-) -> Result<u8, Failure> {
-    check_svg_name(plot)?;
-    check_svg_name(capacity)?;
+/// `plots`: the distribution diagram, the buffer capacity and the saturation indices, each
+/// drawn when its file is given.
+fn solve(file: &Path, json: bool, plots: [Option<&Path>; 3], out: &mut impl Write) -> Result<u8, Failure> {
+    let [plot, capacity, saturation] = plots;
+    for p in plots {
+        check_svg_name(p)?;
+    }
     let name = display_name(file);
     let doc: RecipeDoc = document::load_expecting(file, document::RECIPE_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
@@ -328,7 +338,7 @@ fn solve(
     }
     // The plot comes after the result, so that a plot that cannot be drawn or written (exit 5)
     // does not take the result with it.
-    if plot.is_none() && capacity.is_none() {
+    if plots.iter().all(Option::is_none) {
         return Ok(EXIT_OK);
     }
     // The fractions and the buffer capacity against pH are those of the closed solution: a
@@ -356,6 +366,12 @@ fn solve(
         out.flush().map_err(output_failure)?;
         let opts = plot_options(&doc.name).mark_ph(eq.ph());
         let svg = capacity_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
+    }
+    if let Some(p) = saturation {
+        out.flush().map_err(output_failure)?;
+        let opts = plot_options(&doc.name).mark_ph(eq.ph());
+        let svg = saturation_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)

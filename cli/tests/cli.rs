@@ -780,6 +780,28 @@ fn solve_draws_the_buffer_capacity_plot() {
 }
 
 #[test]
+fn solve_draws_the_saturation_plot_of_the_closed_solution() {
+    // The pool recipe holds its pH fixed; the sweep is of the closed solution, marked at the
+    // result's pH, with one line for calcite among the solids whose parts are present.
+    let svg = std::env::temp_dir().join(format!("protolyte-cli-saturation-{}.svg", std::process::id()));
+    let o = protolyte(&[
+        "solve",
+        "examples/pool_water.toml",
+        "--saturation-plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = std::fs::read_to_string(&svg).unwrap();
+    assert!(
+        text.starts_with("<svg") && text.contains("calcite"),
+        "{}",
+        &text[..200.min(text.len())]
+    );
+    let o = protolyte(&["solve", "examples/pool_water.toml", "--saturation-plot", "x.png"]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+}
+
+#[test]
 fn batch_runs_titration_and_design_requests_beside_recipes() {
     let titration = std::fs::read_to_string(repo_root().join("examples/soft_drink_acidity.json")).unwrap();
     let design = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json")).unwrap();
