@@ -846,6 +846,12 @@ impl Builder {
                 continue;
             }
             seen.push(solid.name());
+            // An allowed solid's own definition wins over a reported one of the same name.
+            let solid = recipe
+                .allowed_solids()
+                .iter()
+                .find(|a| a.name() == solid.name())
+                .unwrap_or(solid);
             let Some(terms) = self.parts_stoichiometry(solid.name(), solid.parts())? else {
                 continue;
             };

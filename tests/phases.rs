@@ -410,3 +410,21 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn an_allowed_solid_keeps_its_own_constant_beside_the_catalogues() {
+    // A solid allowed under a catalogue solid's name (here calcite with log K −8.0, an
+    // invented value) is the one solved for and reported, not the catalogue's (−8.48).
+    let cat = Catalog::builtin();
+    let c = cat.solid("calcite").unwrap();
+    let mine = protolyte::Solid::new("calcite", c.parts().to_vec(), -8.0).unwrap();
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("calcium carbonate").unwrap(), Amount::molal(0.01))
+        .unwrap()
+        .allow_solid(&mine);
+    let eq = r.compile(&ideal()).unwrap().solve().unwrap();
+    let st = eq.solid("calcite").unwrap();
+    assert_eq!(st.log10_k, -8.0);
+    assert!(st.allowed && st.amount_molal > 0.0);
+    assert_eq!(eq.solids().iter().filter(|s| &*s.name == "calcite").count(), 1);
+}

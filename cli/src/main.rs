@@ -17,7 +17,9 @@ use protolyte::document::{
     self, DesignDoc, DesignResult, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc,
     TitrationResult,
 };
-use protolyte::plot::{PlotError, PlotOptions, capacity_plot, distribution_plot, titration_svg, write_svg};
+use protolyte::plot::{
+    PlotError, PlotOptions, capacity_plot, distribution_plot, saturation_plot, titration_svg, write_svg,
+};
 use protolyte::{Catalog, DataKind, Error};
 
 /// Exit codes.
@@ -90,6 +92,10 @@ enum Command {
         /// Also draw the buffer capacity against pH (pH 1–13, local maxima marked) as SVG.
         #[arg(long, value_name = "FILE.svg")]
         capacity_plot: Option<PathBuf>,
+        /// Also draw the saturation index of each catalogue solid whose parts are present
+        /// against pH (pH 2–12, strong acid or base added to the closed solution) as SVG.
+        #[arg(long, value_name = "FILE.svg")]
+        saturation_plot: Option<PathBuf>,
     },
     /// Simulate a titration (`protolyte-titration/1`): the curve as CSV, then its endpoints.
     Titrate {
@@ -160,8 +166,8 @@ enum Command {
         #[arg(long)]
         quiet: bool,
     },
-    /// List or search the catalogue (acid–base families, ions, reagents, complexes; built in
-    /// and from `--catalog` files)
+    /// List or search the catalogue (acid–base families, ions, reagents, complexes, solids,
+    /// gases; built in and from `--catalog` files)
     /// with the published source of each entry.
     Data {
         /// Part of a name, synonym or formula; without it, everything is listed.
@@ -252,7 +258,13 @@ fn run(cmd: Command) -> Result<u8, Failure> {
             json,
             plot,
             capacity_plot,
-        } => solve(&file, json, plot.as_deref(), capacity_plot.as_deref(), &mut out)?,
+            saturation_plot,
+        } => solve(
+            &file,
+            json,
+            [plot.as_deref(), capacity_plot.as_deref(), saturation_plot.as_deref()],
+            &mut out,
+        )?,
         Command::Titrate {
             file,
             json,
@@ -300,15 +312,13 @@ fn plot_options(name: &Option<String>) -> PlotOptions {
     }
 }
 
-fn solve(
-    file: &Path,
-    json: bool,
-    plot: Option<&Path>,
-    capacity: Option<&Path>,
-    out: &mut impl Write,
-) -> Result<u8, Failure> {
-    check_svg_name(plot)?;
-    check_svg_name(capacity)?;
+/// `plots`: the distribution diagram, the buffer capacity and the saturation indices, each
+/// drawn when its file is given.
+fn solve(file: &Path, json: bool, plots: [Option<&Path>; 3], out: &mut impl Write) -> Result<u8, Failure> {
+    let [plot, capacity, saturation] = plots;
+    for p in plots {
+        check_svg_name(p)?;
+    }
     let name = display_name(file);
     let doc: RecipeDoc = document::load_expecting(file, document::RECIPE_FORMAT)?;
     doc.check_format(true).map_err(|e| e.in_file(&name))?;
@@ -328,7 +338,7 @@ fn solve(
     }
     // The plot comes after the result, so that a plot that cannot be drawn or written (exit 5)
     // does not take the result with it.
-    if plot.is_none() && capacity.is_none() {
+    if plots.iter().all(Option::is_none) {
         return Ok(EXIT_OK);
     }
     // The fractions and the buffer capacity against pH are those of the closed solution: a
@@ -356,6 +366,12 @@ fn solve(
         out.flush().map_err(output_failure)?;
         let opts = plot_options(&doc.name).mark_ph(eq.ph());
         let svg = capacity_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
+        write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
+    }
+    if let Some(p) = saturation {
+        out.flush().map_err(output_failure)?;
+        let opts = plot_options(&doc.name).mark_ph(eq.ph());
+        let svg = saturation_plot(&closed, &conditions, &opts).map_err(|e| plot_failure(p, e))?;
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
@@ -1153,12 +1169,79 @@ fn draw_bar(bytes: u64, total: Option<u64>, lines: usize, start: Instant) {
     let _ = err.flush();
 }
 
+/// A solid or a gas of the catalogue as `data` shows it.
+struct PhaseData<'a> {
+    entry: &'a protolyte::PhaseEntry,
+    /// log₁₀ K at 25 °C: K_sp of a solid's dissolution, K_H of a gas (mol/(kg·bar)).
+    log10_k: f64,
+    dh_kj_per_mol: Option<f64>,
+    dcp_j_per_mol_k: Option<f64>,
+    equation: Option<protolyte::vant_hoff::LogKEquation>,
+    /// The reaction in words: "calcite ⇌ 1 × calcium + 1 × carbonate".
+    reaction: String,
+    parts: Vec<String>,
+}
+
+/// The catalogue's solids and gases whose name, synonyms or formula contain `query`
+/// (ignoring case and spaces), or all of them.
+fn phase_data<'a>(cat: &'a Catalog, query: Option<&str>) -> Vec<PhaseData<'a>> {
+    let key = |t: &str| t.to_lowercase().replace([' ', '-', '_'], "");
+    let hit = |e: &protolyte::PhaseEntry| match query {
+        None => true,
+        Some(q) => {
+            let q = key(q);
+            key(&e.name).contains(&q) || e.synonyms.iter().any(|s| key(s).contains(&q)) || key(&e.formula).contains(&q)
+        }
+    };
+    let part_words = |p: &protolyte::ComplexPart, n: i32| {
+        let what = match p {
+            protolyte::ComplexPart::Base(f) => format!("{} ({})", f.form_name(0), f.name()),
+            protolyte::ComplexPart::Ion(i) => i.name().to_string(),
+            protolyte::ComplexPart::Proton => "H+".into(),
+        };
+        format!("{n} × {what}")
+    };
+    let mut out = Vec::new();
+    for e in cat.solid_entries().iter().filter(|e| hit(e)) {
+        let Some(s) = cat.solids().iter().find(|s| s.name() == e.name) else {
+            continue;
+        };
+        let parts: Vec<String> = s.parts().iter().map(|(p, n)| part_words(p, *n)).collect();
+        out.push(PhaseData {
+            entry: e,
+            log10_k: s.log10_k(),
+            dh_kj_per_mol: s.dh_kj_per_mol(),
+            dcp_j_per_mol_k: s.dcp_j_per_mol_k(),
+            equation: s.log_k_equation(),
+            reaction: format!("{} ⇌ {}", s.name(), parts.join(" + ")),
+            parts,
+        });
+    }
+    for e in cat.gas_entries().iter().filter(|e| hit(e)) {
+        let Some(g) = cat.gases().iter().find(|g| g.name() == e.name) else {
+            continue;
+        };
+        let form = g.family().form_name(g.protons());
+        out.push(PhaseData {
+            entry: e,
+            log10_k: g.log10_kh(),
+            dh_kj_per_mol: g.dh_kj_per_mol(),
+            dcp_j_per_mol_k: None,
+            equation: g.log_k_equation(),
+            reaction: format!("{} ⇌ {form}(aq)", g.name()),
+            parts: vec![format!("1 × {form} ({})", g.family().name())],
+        });
+    }
+    out
+}
+
 fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Failure> {
     let cat = catalog();
     let entries: Vec<&protolyte::DataInfo> = match query {
         Some(q) => cat.search(q),
         None => cat.entries().iter().collect(),
     };
+    let phases = phase_data(cat, query);
     if json {
         let v: Vec<serde_json::Value> = entries
             .iter()
@@ -1206,6 +1289,29 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
                 }
                 v
             })
+            .chain(phases.iter().map(|p| {
+                let e = p.entry;
+                let k_name = if e.kind == "gas" { "log10_kh" } else { "log10_k" };
+                let mut v = serde_json::json!({
+                    "kind": e.kind,
+                    "name": e.name,
+                    "synonyms": e.synonyms,
+                    "formula": e.formula,
+                    "summary": e.summary,
+                    "dh_kj_per_mol": p.dh_kj_per_mol,
+                    "dcp_j_per_mol_k": p.dcp_j_per_mol_k,
+                    "log_k_equation": equation_json(p.equation),
+                    "reaction": p.reaction,
+                    "parts": p.parts,
+                    "source": e.source,
+                    "from_memory": e.from_memory,
+                    "origin": e.origin,
+                });
+                if let Some(o) = v.as_object_mut() {
+                    o.insert(k_name.into(), serde_json::json!(p.log10_k));
+                }
+                v
+            }))
             .collect();
         write_json(out, &v)?;
         return Ok(EXIT_OK);
@@ -1258,7 +1364,36 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
             };
             writeln!(out, "          source: {}{memo}", e.source)?;
         }
-        writeln!(out, "{} entries", entries.len())
+        for p in &phases {
+            let e = p.entry;
+            writeln!(out, "{:<9} {}  [{}]", e.kind, e.name, e.formula)?;
+            writeln!(out, "          {}", p.reaction)?;
+            let mut line = if e.kind == "gas" {
+                format!("          log K_H {} (mol/(kg·bar), 25 °C)", p.log10_k)
+            } else {
+                format!("          log K {} (25 °C)", p.log10_k)
+            };
+            if let Some(h) = p.dh_kj_per_mol {
+                line += &format!(", ΔH° {h} kJ/mol");
+            }
+            if let Some(c) = p.dcp_j_per_mol_k {
+                line += &format!(", ΔCp° {c} J/(mol·K)");
+            }
+            writeln!(out, "{line}")?;
+            if let Some(q) = p.equation {
+                writeln!(out, "          {}", equation_text(q))?;
+            }
+            if !e.synonyms.is_empty() {
+                writeln!(out, "          also: {}", e.synonyms.join(", "))?;
+            }
+            let memo = if e.from_memory {
+                " (entered from memory of the source)"
+            } else {
+                ""
+            };
+            writeln!(out, "          source: {}{memo}", e.source)?;
+        }
+        writeln!(out, "{} entries", entries.len() + phases.len())
     };
     w(out).map_err(output_failure)?;
     Ok(EXIT_OK)

@@ -780,6 +780,28 @@ fn solve_draws_the_buffer_capacity_plot() {
 }
 
 #[test]
+fn solve_draws_the_saturation_plot_of_the_closed_solution() {
+    // The pool recipe holds its pH fixed; the sweep is of the closed solution, marked at the
+    // result's pH, with one line for calcite among the solids whose parts are present.
+    let svg = std::env::temp_dir().join(format!("protolyte-cli-saturation-{}.svg", std::process::id()));
+    let o = protolyte(&[
+        "solve",
+        "examples/pool_water.toml",
+        "--saturation-plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = std::fs::read_to_string(&svg).unwrap();
+    assert!(
+        text.starts_with("<svg") && text.contains("calcite"),
+        "{}",
+        &text[..200.min(text.len())]
+    );
+    let o = protolyte(&["solve", "examples/pool_water.toml", "--saturation-plot", "x.png"]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+}
+
+#[test]
 fn batch_runs_titration_and_design_requests_beside_recipes() {
     let titration = std::fs::read_to_string(repo_root().join("examples/soft_drink_acidity.json")).unwrap();
     let design = std::fs::read_to_string(repo_root().join("examples/tris_buffer_design.json")).unwrap();
@@ -820,4 +842,35 @@ fn a_buffer_far_from_its_pka_carries_a_warning() {
     assert!(stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
     let o = protolyte(&["design", "examples/tris_buffer_design.json"]);
     assert!(!stdout(&o).contains("from the nearest pKa"), "{}", stdout(&o));
+}
+
+#[test]
+fn data_lists_solids_and_gases() {
+    // Calcite: log K_sp −8.48 at 25 °C and ΔH° −9.61 kJ/mol (L. N. Plummer, E. Busenberg,
+    // Geochim. Cosmochim. Acta 46 (1982) 1011), as entered in the catalogue.
+    let o = protolyte(&["data", "calcite"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("solid     calcite"), "{out}");
+    assert!(out.contains("log K -8.48"), "{out}");
+    let o = protolyte(&["data", "--json", "calcite"]);
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    let c = all.iter().find(|e| e["kind"] == "solid").unwrap();
+    assert_eq!(c["log10_k"].as_f64(), Some(-8.48));
+    assert_eq!(c["dh_kj_per_mol"].as_f64(), Some(-9.61));
+    assert_eq!(c["parts"].as_array().unwrap().len(), 2);
+    assert!(c["reaction"].as_str().unwrap().starts_with("calcite ⇌"));
+    assert!(c["from_memory"].is_boolean());
+    assert!(c["log_k_equation"]["coefficients"].is_array());
+    // CO2(g): log K_H −1.47 at 25 °C (Plummer & Busenberg 1982, as entered).
+    let o = protolyte(&["data", "--json", "CO2(g)"]);
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    let g = all.iter().find(|e| e["kind"] == "gas").unwrap();
+    assert!((g["log10_kh"].as_f64().unwrap() + 1.47).abs() < 0.01);
+    assert!(!g["source"].as_str().unwrap().is_empty());
+    // The full listing holds every solid and gas of the catalogue (at least 25 solids, 4 gases).
+    let o = protolyte(&["data", "--json"]);
+    let all: Vec<serde_json::Value> = serde_json::from_str(&stdout(&o)).unwrap();
+    assert!(all.iter().filter(|e| e["kind"] == "solid").count() >= 25);
+    assert!(all.iter().filter(|e| e["kind"] == "gas").count() >= 4);
 }

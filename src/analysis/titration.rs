@@ -5,6 +5,12 @@
 //! dT_c/dv = (T_titrant,c − T_c(v))/(V₀ + v), taken as one directional derivative through the
 //! converged Jacobian (one small LU per point).
 //!
+//! Recipes that allow solids or fix a partial pressure or the pH titrate the same way: each
+//! point is solved with its assemblage (a solid may appear or dissolve between two points; the
+//! warm start hands the solver the previous activities and it re-derives the assemblage), and
+//! dpH/dv differentiates the system with the rows held at that point (a present solid's
+//! amount and a fixed gas's exchange move with v).
+//!
 //! A curve is computed either on volumes the caller gives ([`Titration::curve`],
 //! [`Titration::curve_uniform`]) or by adaptive stepping ([`Titration::curve_adaptive`]):
 //! the next volume step is chosen from the analytic slope so that the pH moves by at most a
@@ -458,7 +464,9 @@ pub(crate) fn dph_along(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f6
 /// ionic-strength equation. `None` when the system is coupled or the direction brings in a
 /// component from a zero total.
 fn dph_along_uncoupled(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Option<f64> {
-    if !sys.uncoupled() {
+    // Phase rows (solids, fixed gases, a fixed pH) change the equations: the full implicit
+    // differentiation with the rows held handles them.
+    if !sys.uncoupled() || sys.has_phase_constraints() {
         return None;
     }
     let nc = sys.components.len();

@@ -87,6 +87,11 @@ pub struct BatchRecord {
     /// Largest relative residual of every equation solved: the charge balance, the mass
     /// balances and the ionic-strength equation.
     pub max_balance_residual: f64,
+    /// For a water analysis (its charge balance closed on an ion): the ion-balance error of
+    /// the water as entered, 100·(Σcations − Σanions)/(Σcations + Σanions) in meq/kg, %
+    /// (see [`SolveResult::with_ion_balance`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ion_balance_error_percent: Option<f64>,
     /// Warnings, as sentences.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub warnings: Vec<String>,
@@ -357,7 +362,9 @@ struct Block<'a> {
 /// A solved line: the full result, or (for a record without it, where the full result would
 /// carry no warning) the numbers the record gives, from a solve in the template's workspace.
 enum Solved {
-    Full(Box<Equilibrium>),
+    /// The equilibrium, and the charge number of the ion closing the charge balance of a water
+    /// analysis (for its ion balance).
+    Full(Box<Equilibrium>, Option<i32>),
     Lean(crate::solve::PhSolution, crate::PhConvention),
 }
 
@@ -430,7 +437,12 @@ impl Block<'_> {
                 .compile(&conditions)
                 .and_then(|s| self.solver.solve(&s))
                 .map_err(|e| Failure::Solve(name.clone(), e))?;
-            return Ok((name, None, Solved::Full(Box::new(eq))));
+            let closing = full
+                .charge_balance_on
+                .as_deref()
+                .and_then(|n| self.catalog.ion(n).ok())
+                .map(|ion| ion.charge());
+            return Ok((name, None, Solved::Full(Box::new(eq), closing)));
         }
         let idx = match self.templates.iter().position(|t| t.matches(&doc)) {
             Some(i) => i,
@@ -460,7 +472,7 @@ impl Block<'_> {
         }
         .map_err(|e| Failure::Solve(name.clone(), e))?;
         t.ws.start_from(&eq);
-        Ok((name, Some(idx), Solved::Full(Box::new(eq))))
+        Ok((name, Some(idx), Solved::Full(Box::new(eq), None)))
     }
 
     /// Runs a titration or design request line (`kind` its format tag) and appends its
@@ -532,14 +544,25 @@ impl Block<'_> {
                     p_h_molal: s.p_h_molal,
                     ionic_strength_mol_per_kg: s.ionic_strength_molal,
                     max_balance_residual: s.max_residual,
+                    ion_balance_error_percent: None,
                     warnings: Vec::new(),
                     result: None,
                 };
                 write_record(out, &rec);
                 false
             }
-            Ok((name, idx, Solved::Full(eq))) => {
+            Ok((name, idx, Solved::Full(eq, closing))) => {
                 let warnings: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
+                // A water analysis (its charge balance closed on an ion): the ion balance of
+                // the water as entered, as the solve result reports it.
+                let (result, ion_balance_error_percent) = match closing {
+                    Some(z) => {
+                        let r = SolveResult::from_equilibrium(&eq).with_ion_balance(z);
+                        let e = r.ion_balance.as_ref().map(|b| b.error_percent);
+                        (full.then_some(r), e)
+                    }
+                    None => (full.then(|| SolveResult::from_equilibrium(&eq)), None),
+                };
                 let rec = BatchRecord {
                     line: line_no,
                     name,
@@ -548,8 +571,9 @@ impl Block<'_> {
                     p_h_molal: eq.p_h_molal(),
                     ionic_strength_mol_per_kg: eq.ionic_strength_molal(),
                     max_balance_residual: eq.residuals().max_relative(),
+                    ion_balance_error_percent,
                     warnings,
-                    result: full.then(|| SolveResult::from_equilibrium(&eq)),
+                    result,
                 };
                 write_record(out, &rec);
                 if let Some(t) = idx.and_then(|i| self.templates.get_mut(i)) {
