@@ -58,7 +58,9 @@ impl Layout {
             cols: Vec::with_capacity(sys.terms.len()),
             row_start: Vec::with_capacity(sys.species.len() + 1),
             rows: Vec::with_capacity(sys.terms.len() + 2 * sys.species.len()),
-            incidence: (0..act.len()).map(|k| Vec::with_capacity(sys.members.get(act[k]).map_or(0, Vec::len) + 4)).collect(),
+            incidence: (0..act.len())
+                .map(|k| Vec::with_capacity(sys.members.get(act[k]).map_or(0, Vec::len) + 4))
+                .collect(),
             act,
         };
         layout.col_start.push(0);
