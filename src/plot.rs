@@ -831,7 +831,8 @@ fn pretty_formula(name: &str, charge: i32) -> String {
     };
     let core = if charge != 0 {
         match name.strip_suffix(suffix.as_str()) {
-            Some(c) => c,
+            // The caret of the charge notation ("CO3^2-") gives way to the superscript.
+            Some(c) => c.strip_suffix('^').unwrap_or(c),
             None => return name.to_string(),
         }
     } else {

@@ -236,8 +236,10 @@ fn namespace(kind: DataKind) -> &'static [DataKind] {
     }
 }
 
-/// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens.
-/// The document reader's name-collision checks use it too, so both compare alike.
+/// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens,
+/// no caret (so "CaHCO3^+" written before the caret notation finds "CaHCO3+", and "CO32-"
+/// finds "CO3^2-"). The document reader's name-collision checks use it too, so both
+/// compare alike.
 pub(crate) fn normalize(s: &str) -> String {
     normalized(s).into_owned()
 }
@@ -246,7 +248,7 @@ pub(crate) fn normalize(s: &str) -> String {
 fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names are printable ASCII with single spaces (every built-in one is, lower case
     // too): copy them as they are, or lower-case them in one allocation.
-    let plain = s.bytes().all(|b| b.is_ascii_graphic() || b == b' ')
+    let plain = s.bytes().all(|b| (b.is_ascii_graphic() && b != b'^') || b == b' ')
         && !s.starts_with(' ')
         && !s.ends_with(' ')
         && !s.contains("  ");
@@ -260,6 +262,7 @@ fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     let s: String = s
         .trim()
         .chars()
+        .filter(|&c| c != '^')
         .map(|c| match c {
             '\u{2010}'..='\u{2015}' | '\u{2212}' => '-',
             c => c,
@@ -1168,6 +1171,13 @@ impl Catalog {
         if let Some(f) = &e.formula {
             p = p.with_formula(f);
         }
+        if let Some(names) = &e.form_names {
+            let names: Vec<&str> = names.iter().map(String::as_str).collect();
+            p = p.with_form_names(&names).map_err(|err| match err {
+                Error::InconsistentDefinition { reason, .. } => entry.error("form_names", reason),
+                other => entry.wrap(other),
+            })?;
+        }
         if let Some(a) = e.ion_size_angstrom {
             p = p.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
         }
@@ -1592,6 +1602,7 @@ mod tests {
         let s: String = s
             .trim()
             .chars()
+            .filter(|&c| c != '^')
             .map(|c| match c {
                 '\u{2010}'..='\u{2015}' | '\u{2212}' => '-',
                 c => c,
@@ -1612,6 +1623,8 @@ mod tests {
             "a\u{0b}b",
             "a\u{1}B",
             "tris\u{2212}HCl",
+            "CaHCO3^+",
+            "CO3^2-",
             "Éthanol",
             "",
             " ",
