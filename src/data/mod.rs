@@ -272,6 +272,34 @@ fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     std::borrow::Cow::Owned(s.split_whitespace().collect::<Vec<_>>().join(" "))
 }
 
+/// The name to suggest for an unknown `name`: the shown name of the candidate whose key is
+/// closest to it by edit distance, if it is close (within a third of the name's length, at
+/// least 2). `candidates` are (key, shown name) pairs; keys are compared as [`normalize`]
+/// leaves them, and the first of equally close candidates wins. The search is bounded: a
+/// name longer than `MAX_SUGGEST_CHARS` gets no suggestion, and a key whose length alone
+/// puts it beyond the limit is not compared. Every "did you mean" of the library comes
+/// from here.
+pub(crate) fn suggestion<'a>(name: &str, candidates: impl IntoIterator<Item = (&'a str, &'a str)>) -> Option<String> {
+    let key = normalized(name);
+    let key_len = key.chars().count();
+    if key_len > MAX_SUGGEST_CHARS {
+        return None;
+    }
+    let limit = (key_len / 3).max(2);
+    let mut best: Option<(usize, &str)> = None;
+    for (k, shown) in candidates {
+        let k = normalized(k);
+        if k.chars().count().abs_diff(key_len) > limit {
+            continue;
+        }
+        let d = levenshtein(&k, &key);
+        if d <= limit && best.is_none_or(|(bd, _)| d < bd) {
+            best = Some((d, shown));
+        }
+    }
+    best.map(|(_, n)| n.to_string())
+}
+
 fn levenshtein(a: &str, b: &str) -> usize {
     let a: Vec<char> = a.chars().collect();
     let b: Vec<char> = b.chars().collect();
@@ -438,30 +466,13 @@ impl Catalog {
         if let Some(idx) = self.index.get(key.as_ref()).and_then(|a| a[kind as usize]) {
             return Ok(idx);
         }
-        // Not found: suggest the closest name or synonym, if it is close. The search is
-        // bounded: a name longer than MAX_SUGGEST_CHARS gets no suggestion, and a key whose
-        // length alone puts it beyond the limit is not compared.
-        let key_len = key.chars().count();
-        let limit = (key_len / 3).max(2);
-        let mut best: Option<(usize, &str)> = None;
-        if key_len <= MAX_SUGGEST_CHARS {
-            for info in self.info.iter().filter(|i| i.kind == kind) {
-                let d = info
-                    .keys
-                    .iter()
-                    .filter(|n| n.chars().count().abs_diff(key_len) <= limit)
-                    .map(|n| levenshtein(n, &key))
-                    .min()
-                    .unwrap_or(usize::MAX);
-                if best.is_none_or(|(bd, _)| d < bd) {
-                    best = Some((d, info.name.as_str()));
-                }
-            }
-        }
+        // Not found: suggest the closest name or synonym, if it is close.
+        let candidates = (self.info.iter().filter(|i| i.kind == kind))
+            .flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info.name.as_str())));
         Err(Error::UnknownName {
             kind: kind.name(),
             name: name.to_string(),
-            suggestion: best.filter(|(d, _)| *d <= limit).map(|(_, n)| n.to_string()),
+            suggestion: suggestion(&key, candidates),
         })
     }
 
