@@ -612,11 +612,28 @@ fn written_charge(name: &str) -> Option<i32> {
     }
 }
 
-/// Whether two species names are the same name: equal once every caret is taken out, so a
-/// name written before the caret notation ("CO32-", "CaHCO3^+") finds the species shown
-/// as "CO3^2-" or "CaHCO3+". Case counts ("Co" is not "CO").
-pub(crate) fn species_name_eq(a: &str, b: &str) -> bool {
-    a == b || a.chars().filter(|&c| c != '^').eq(b.chars().filter(|&c| c != '^'))
+/// Whether `query` names the species shown as `shown`: the same text, or `shown` as it was
+/// written before the library used one charge notation: a charge above 1 without the caret
+/// ("CO32-" for "CO3^2-", "Ca2+" for "Ca^2+") or a charge of 1 with one ("CaHCO3^+" for
+/// "CaHCO3+"). Case counts ("Co" is not "CO").
+pub(crate) fn species_name_eq(shown: &str, query: &str) -> bool {
+    if shown == query {
+        return true;
+    }
+    let Some(sign) = shown.chars().last().filter(|c| matches!(c, '+' | '-')) else {
+        return false;
+    };
+    let body = &shown[..shown.len() - 1];
+    let digits = body.len() - body.trim_end_matches(|c: char| c.is_ascii_digit()).len();
+    let (head, mag) = body.split_at(body.len() - digits);
+    let rest_is = |rest: Option<&str>, tail: &str| rest.is_some_and(|r| r.strip_suffix(sign) == Some(tail));
+    match head.strip_suffix('^') {
+        // "CO3^2-" was "CO32-".
+        Some(core) if digits > 0 => rest_is(query.strip_prefix(core), mag),
+        Some(_) => false,
+        // "CaHCO3+" was "CaHCO3^+".
+        None => rest_is(query.strip_prefix(body), "^"),
+    }
 }
 
 /// For "...NHₖ" with k ≥ n, the text before "N" and k.

@@ -237,9 +237,9 @@ fn namespace(kind: DataKind) -> &'static [DataKind] {
 }
 
 /// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens,
-/// no caret (so "CaHCO3^+" written before the caret notation finds "CaHCO3+", and "CO32-"
-/// finds "CO3^2-"). The document reader's name-collision checks use it too, so both
-/// compare alike.
+/// and no caret before a final bare sign (so "CaHCO3^+", as complexes were written before
+/// the library used one charge notation, finds "CaHCO3+"; "AlF^2+" stays apart from
+/// "AlF2+"). The document reader's name-collision checks use it too, so both compare alike.
 pub(crate) fn normalize(s: &str) -> String {
     normalized(s).into_owned()
 }
@@ -248,7 +248,9 @@ pub(crate) fn normalize(s: &str) -> String {
 fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names are printable ASCII with single spaces (every built-in one is, lower case
     // too): copy them as they are, or lower-case them in one allocation.
-    let plain = s.bytes().all(|b| (b.is_ascii_graphic() && b != b'^') || b == b' ')
+    let plain = s.bytes().all(|b| b.is_ascii_graphic() || b == b' ')
+        && !s.ends_with("^+")
+        && !s.ends_with("^-")
         && !s.starts_with(' ')
         && !s.ends_with(' ')
         && !s.contains("  ");
@@ -262,14 +264,21 @@ fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     let s: String = s
         .trim()
         .chars()
-        .filter(|&c| c != '^')
         .map(|c| match c {
             '\u{2010}'..='\u{2015}' | '\u{2212}' => '-',
             c => c,
         })
         .collect::<String>()
         .to_lowercase();
-    std::borrow::Cow::Owned(s.split_whitespace().collect::<Vec<_>>().join(" "))
+    std::borrow::Cow::Owned(without_caret_before_sign(s.split_whitespace().collect::<Vec<_>>().join(" ")))
+}
+
+/// "cahco3^+" → "cahco3+": the caret before a final bare sign taken out.
+fn without_caret_before_sign(mut s: String) -> String {
+    if s.ends_with("^+") || s.ends_with("^-") {
+        s.remove(s.len() - 2);
+    }
+    s
 }
 
 /// The name to suggest for an unknown `name`: the shown name of the candidate whose key is
@@ -1613,14 +1622,17 @@ mod tests {
         let s: String = s
             .trim()
             .chars()
-            .filter(|&c| c != '^')
             .map(|c| match c {
                 '\u{2010}'..='\u{2015}' | '\u{2212}' => '-',
                 c => c,
             })
             .collect::<String>()
             .to_lowercase();
-        s.split_whitespace().collect::<Vec<_>>().join(" ")
+        let s = s.split_whitespace().collect::<Vec<_>>().join(" ");
+        match s.strip_suffix("^+").or_else(|| s.strip_suffix("^-")) {
+            Some(body) => format!("{body}{}", &s[s.len() - 1..]),
+            None => s,
+        }
     }
 
     #[test]
@@ -1635,7 +1647,9 @@ mod tests {
             "a\u{1}B",
             "tris\u{2212}HCl",
             "CaHCO3^+",
+            "NaSO4^-",
             "CO3^2-",
+            "AlF^2+",
             "Éthanol",
             "",
             " ",
