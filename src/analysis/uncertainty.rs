@@ -228,9 +228,12 @@ pub struct PropagatedUncertainty {
 }
 
 impl PropagatedUncertainty {
-    /// The standard deviation of log₁₀ molality of the species named `name`.
+    /// The standard deviation of log₁₀ molality of the species named `name` (a name written
+    /// in the former charge notation, "HPO42-" for "HPO4^2-", finds it too).
     pub fn log10_molal_sd(&self, name: &str) -> Option<f64> {
-        self.species.iter().find(|s| &*s.name == name).map(|s| s.log10_molal_sd)
+        (self.species.iter().find(|s| &*s.name == name))
+            .or_else(|| (self.species.iter()).find(|s| crate::protolyte::species_name_eq(&s.name, name)))
+            .map(|s| s.log10_molal_sd)
     }
 }
 
