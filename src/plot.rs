@@ -819,7 +819,7 @@ pub fn distribution(
     Ok(Distribution { ph: phs, families })
 }
 
-/// "HPO42-" with charge −2 → "HPO₄²⁻": the known charge suffix as superscript, and digits
+/// "HPO4^2-" (or "HPO42-") with charge −2 → "HPO₄²⁻": the known charge suffix as superscript, and digits
 /// after an element or a bracket as subscripts when the rest looks like a formula.
 fn pretty_formula(name: &str, charge: i32) -> String {
     let suffix = match charge {
