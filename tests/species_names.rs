@@ -42,7 +42,13 @@ fn every_built_in_name_writes_its_charge_in_one_notation() {
             DataKind::Protolyte => {
                 for form in &info.forms {
                     assert!(!machine_made(&form.name), "machine-made form name {}", form.name);
-                    assert_eq!(written_charge(&form.name), Some(form.charge), "{} of {}", form.name, info.name);
+                    assert_eq!(
+                        written_charge(&form.name),
+                        Some(form.charge),
+                        "{} of {}",
+                        form.name,
+                        info.name
+                    );
                     seen += 1;
                 }
             }
@@ -67,7 +73,12 @@ fn every_built_in_name_writes_its_charge_in_one_notation() {
 fn the_five_families_without_a_proton_prefix_have_their_forms_named() {
     let cat = Catalog::builtin();
     let names = |family: &str| -> Vec<String> {
-        cat.info(DataKind::Protolyte, family).unwrap().forms.iter().map(|f| f.name.clone()).collect()
+        cat.info(DataKind::Protolyte, family)
+            .unwrap()
+            .forms
+            .iter()
+            .map(|f| f.name.clone())
+            .collect()
     };
     assert_eq!(names("borate"), ["B(OH)3", "B(OH)4-"]);
     assert_eq!(names("silicate"), ["H4SiO4", "H3SiO4-", "H2SiO4^2-"]);
@@ -78,7 +89,11 @@ fn the_five_families_without_a_proton_prefix_have_their_forms_named() {
     assert_eq!(names("phosphate"), ["H3PO4", "H2PO4-", "HPO4^2-", "PO4^3-"]);
     assert_eq!(cat.info(DataKind::Ion, "calcium").unwrap().formula, "Ca^2+");
     // Molar masses still come from the caret formulas: Ca 40.078 (Prohaska et al. 2022).
-    let ca = cat.info(DataKind::Ion, "calcium").unwrap().molar_mass_g_per_mol.unwrap();
+    let ca = cat
+        .info(DataKind::Ion, "calcium")
+        .unwrap()
+        .molar_mass_g_per_mol
+        .unwrap();
     assert!((ca - 40.078).abs() < 1e-9);
 }
 
@@ -89,20 +104,26 @@ fn form_names_are_checked() {
     assert_eq!(ok.form_name(2), "H2Z+");
     assert_eq!(ok.form_name(0), "Z-");
     for bad in [
-        &["H2Z+", "HZ"][..],              // one name short
-        &["H2Z+", "HZ", "Z-", "Y"][..],   // one too many
-        &["H2Z", "HZ", "Z-"][..],         // no sign on a +1 form
-        &["H2Z^2+", "HZ", "Z-"][..],      // wrong magnitude
-        &["H2Z+", "HZ", "Z+"][..],        // wrong sign
-        &["H2Z+", "HZ-", "Z-"][..],       // a neutral form with a sign
-        &["H2Z+", "", "Z-"][..],          // empty
-        &["H2Z+", "HZ", "HZ"][..],        // wrong charge, and used twice
+        &["H2Z+", "HZ"][..],            // one name short
+        &["H2Z+", "HZ", "Z-", "Y"][..], // one too many
+        &["H2Z", "HZ", "Z-"][..],       // no sign on a +1 form
+        &["H2Z^2+", "HZ", "Z-"][..],    // wrong magnitude
+        &["H2Z+", "HZ", "Z+"][..],      // wrong sign
+        &["H2Z+", "HZ-", "Z-"][..],     // a neutral form with a sign
+        &["H2Z+", "", "Z-"][..],        // empty
+        &["H2Z+", "HZ", "HZ"][..],      // wrong charge, and used twice
     ] {
         assert!(p().with_form_names(bad).is_err(), "{bad:?} accepted");
     }
     let q = Protolyte::new("lab base w", &[5.0, 9.0], 2).unwrap();
-    assert!(q.clone().with_form_names(&["H2W2+", "HW+", "W"]).is_err(), "a charge of 2 needs the caret");
-    assert_eq!(q.with_form_names(&["H2W^2+", "HW+", "W"]).unwrap().form_name(2), "H2W^2+");
+    assert!(
+        q.clone().with_form_names(&["H2W2+", "HW+", "W"]).is_err(),
+        "a charge of 2 needs the caret"
+    );
+    assert_eq!(
+        q.with_form_names(&["H2W^2+", "HW+", "W"]).unwrap().form_name(2),
+        "H2W^2+"
+    );
 }
 
 #[test]
@@ -124,7 +145,10 @@ source = "invented for this test"
     assert_eq!(forms, ["H2W^2+", "HW+", "W"]);
 
     let bad = good.replace(r#"["H2W^2+", "HW+", "W"]"#, r#"["H2W^2+", "HW", "W"]"#);
-    let err = Catalog::builtin().with_toml_str(&bad, "w.toml").unwrap_err().to_string();
+    let err = Catalog::builtin()
+        .with_toml_str(&bad, "w.toml")
+        .unwrap_err()
+        .to_string();
     assert!(err.contains("w.toml:6"), "{err}");
     assert!(err.contains("form_names"), "{err}");
     assert!(err.contains("\"+\""), "{err}");
@@ -203,12 +227,27 @@ fn unknown_names_of_every_kind_get_a_suggestion() {
         Error::UnknownName { suggestion, .. } => suggestion,
         other => panic!("{other}"),
     };
-    assert_eq!(suggestion(cat.complex("CaHC03+").unwrap_err()).as_deref(), Some("CaHCO3+"));
-    assert_eq!(suggestion(cat.complex("CaOH^2+").unwrap_err()).as_deref(), Some("CaOH+"));
-    assert_eq!(suggestion(cat.protolyte("phospate").unwrap_err()).as_deref(), Some("phosphate"));
-    assert_eq!(suggestion(cat.protolyte("silicat").unwrap_err()).as_deref(), Some("silicate"));
+    assert_eq!(
+        suggestion(cat.complex("CaHC03+").unwrap_err()).as_deref(),
+        Some("CaHCO3+")
+    );
+    assert_eq!(
+        suggestion(cat.complex("CaOH^2+").unwrap_err()).as_deref(),
+        Some("CaOH+")
+    );
+    assert_eq!(
+        suggestion(cat.protolyte("phospate").unwrap_err()).as_deref(),
+        Some("phosphate")
+    );
+    assert_eq!(
+        suggestion(cat.protolyte("silicat").unwrap_err()).as_deref(),
+        Some("silicate")
+    );
     assert_eq!(suggestion(cat.ion("calcum").unwrap_err()).as_deref(), Some("calcium"));
-    assert_eq!(suggestion(cat.reagent("sodium bicarbonat").unwrap_err()).as_deref(), Some("sodium bicarbonate"));
+    assert_eq!(
+        suggestion(cat.reagent("sodium bicarbonat").unwrap_err()).as_deref(),
+        Some("sodium bicarbonate")
+    );
     assert_eq!(suggestion(cat.complex("nothing like it at all").unwrap_err()), None);
     assert_eq!(suggestion(cat.solid("calcit").unwrap_err()).as_deref(), Some("calcite"));
 

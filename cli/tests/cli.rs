@@ -66,9 +66,15 @@ fn solve_shows_one_charge_notation_and_reads_former_spellings() {
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     let out = stdout(&o);
     for name in ["CO3^2-", "Ca^2+", "CaHCO3+", "CaOH+", "B(OH)4-", "B(OH)3"] {
-        assert!(out.lines().any(|l| l.starts_with(&format!("{name} "))), "{name} missing:\n{out}");
+        assert!(
+            out.lines().any(|l| l.starts_with(&format!("{name} "))),
+            "{name} missing:\n{out}"
+        );
     }
-    assert!(!out.contains("(H1)") && !out.contains("^+") && !out.contains("CO32-"), "{out}");
+    assert!(
+        !out.contains("(H1)") && !out.contains("^+") && !out.contains("CO32-"),
+        "{out}"
+    );
 
     let recipe = temp_file(
         "former_spellings.toml",
@@ -79,6 +85,15 @@ fn solve_shows_one_charge_notation_and_reads_former_spellings() {
     let r: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
     let names: Vec<&str> = r.species.iter().map(|s| s.name.as_str()).collect();
     assert!(names.contains(&"CaOH+") && names.contains(&"CaHCO3+"), "{names:?}");
+
+    // `data` with a query nothing contains names the closest entry.
+    let o = protolyte(&["data", "calcum"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(
+        stdout(&o).contains("0 entries\ndid you mean `calcium` (ion)?"),
+        "{}",
+        stdout(&o)
+    );
 
     // A misspelt complex gets a suggestion.
     let recipe = temp_file(

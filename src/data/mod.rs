@@ -270,7 +270,9 @@ fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
         })
         .collect::<String>()
         .to_lowercase();
-    std::borrow::Cow::Owned(without_caret_before_sign(s.split_whitespace().collect::<Vec<_>>().join(" ")))
+    std::borrow::Cow::Owned(without_caret_before_sign(
+        s.split_whitespace().collect::<Vec<_>>().join(" "),
+    ))
 }
 
 /// "cahco3^+" → "cahco3+": the caret before a final bare sign taken out.
@@ -281,32 +283,37 @@ fn without_caret_before_sign(mut s: String) -> String {
     s
 }
 
-/// The name to suggest for an unknown `name`: the shown name of the candidate whose key is
+/// The candidate to suggest for an unknown `name`: the value of the candidate whose key is
 /// closest to it by edit distance, if it is close (within a third of the name's length, at
 /// least 2). `candidates` are (key, shown name) pairs; keys are compared as [`normalize`]
 /// leaves them, and the first of equally close candidates wins. The search is bounded: a
 /// name longer than `MAX_SUGGEST_CHARS` gets no suggestion, and a key whose length alone
 /// puts it beyond the limit is not compared. Every "did you mean" of the library comes
 /// from here.
-pub(crate) fn suggestion<'a>(name: &str, candidates: impl IntoIterator<Item = (&'a str, &'a str)>) -> Option<String> {
+pub(crate) fn closest<'a, T>(name: &str, candidates: impl IntoIterator<Item = (&'a str, T)>) -> Option<T> {
     let key = normalized(name);
     let key_len = key.chars().count();
     if key_len > MAX_SUGGEST_CHARS {
         return None;
     }
     let limit = (key_len / 3).max(2);
-    let mut best: Option<(usize, &str)> = None;
+    let mut best: Option<(usize, T)> = None;
     for (k, shown) in candidates {
         let k = normalized(k);
         if k.chars().count().abs_diff(key_len) > limit {
             continue;
         }
         let d = levenshtein(&k, &key);
-        if d <= limit && best.is_none_or(|(bd, _)| d < bd) {
+        if d <= limit && best.as_ref().is_none_or(|(bd, _)| d < *bd) {
             best = Some((d, shown));
         }
     }
-    best.map(|(_, n)| n.to_string())
+    best.map(|(_, n)| n)
+}
+
+/// [`closest`] as the name to suggest.
+pub(crate) fn suggestion<'a>(name: &str, candidates: impl IntoIterator<Item = (&'a str, &'a str)>) -> Option<String> {
+    closest(name, candidates).map(str::to_string)
 }
 
 fn levenshtein(a: &str, b: &str) -> usize {
@@ -530,6 +537,24 @@ impl Catalog {
     pub fn info(&self, kind: DataKind, name: &str) -> Result<&DataInfo> {
         let i = self.find(kind, name)?;
         Ok(&self.info[self.offset(kind) + i])
+    }
+
+    /// The entry of any kind whose name or synonym is closest to `name` by edit distance, if
+    /// it is close (the same search that gives an unknown name its "did you mean"): for a
+    /// query that [`search`](Self::search) finds nothing for.
+    ///
+    /// ```
+    /// use protolyte::Catalog;
+    /// let cat = Catalog::builtin();
+    /// assert!(cat.search("calcum").is_empty());
+    /// assert_eq!(cat.closest("calcum").map(|e| e.name.as_str()), Some("calcium"));
+    /// assert!(cat.closest("no such thing anywhere").is_none());
+    /// ```
+    pub fn closest(&self, name: &str) -> Option<&DataInfo> {
+        closest(
+            name,
+            (self.info.iter()).flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info))),
+        )
     }
 
     /// Entries whose name, a synonym or formula contains `query` (case-insensitive).

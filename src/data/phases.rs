@@ -5,9 +5,7 @@
 use toml::Spanned;
 
 use super::format::{GasEntry, Located, SolidEntry};
-use super::{
-    Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_equation, read_parts,
-};
+use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_equation, read_parts};
 use crate::complex::ComplexPart;
 use crate::error::{Error, Result};
 use crate::phase::{Gas, Solid};
@@ -55,8 +53,11 @@ impl Catalog {
             return Ok(idx);
         }
         let entries = if gas { &self.gas_entries } else { &self.solid_entries };
-        let candidates = (entries.iter())
-            .flat_map(|e| std::iter::once(&e.name).chain(&e.synonyms).map(move |n| (n.as_str(), e.name.as_str())));
+        let candidates = (entries.iter()).flat_map(|e| {
+            std::iter::once(&e.name)
+                .chain(&e.synonyms)
+                .map(move |n| (n.as_str(), e.name.as_str()))
+        });
         let suggestion = super::suggestion(&key, candidates);
         Err(Error::UnknownName {
             kind: if gas { "gas" } else { "solid" },
