@@ -145,6 +145,14 @@ pub struct Equilibrium {
     warnings: Vec<Warning>,
     unknowns: Vec<f64>,
     ln_i: f64,
+    /// What the result says about the other phases and the measured quantities (boxed: it
+    /// keeps the result small where results are moved about in bulk).
+    phases: Box<PhaseReport>,
+}
+
+/// The phase part of a result.
+#[derive(Debug, Clone, PartialEq)]
+struct PhaseReport {
     solids: Vec<SolidState>,
     gases: Vec<GasState>,
     proton_uptake_molal: f64,
@@ -235,11 +243,9 @@ impl Equilibrium {
             }
         }
         let phased = sys.has_phase_constraints();
-        let amounts: Vec<f64> = if ev.phase_amounts.len() == sys.phases.len() {
-            ev.phase_amounts.clone()
-        } else {
-            vec![0.0; sys.phases.len()]
-        };
+        // The amount in each phase row (none solved for: all zero).
+        let solved = ev.phase_amounts.len() == sys.phases.len();
+        let amount = |w: usize| if solved { ev.phase_amounts[w] } else { 0.0 };
         let families = sys
             .families
             .iter()
@@ -294,10 +300,11 @@ impl Equilibrium {
         let mut mass_relative = Vec::with_capacity(n_active);
         let mut dissolved_totals = Vec::with_capacity(n_active);
         // Mass in the other phases (solids formed, gas exchanged, acid or base of a fixed pH).
-        let mut elsewhere = vec![0.0; nc];
-        let mut elsewhere_scale = vec![0.0; nc];
+        let mut elsewhere = vec![0.0; if solved { nc } else { 0 }];
+        let mut elsewhere_scale = vec![0.0; if solved { nc } else { 0 }];
         let mut charge_elsewhere = 0.0;
-        for (row, &lambda) in sys.phases.iter().zip(&amounts) {
+        for (w, row) in sys.phases.iter().enumerate() {
+            let lambda = amount(w);
             if lambda != 0.0 {
                 for &(c, v) in &row.terms {
                     elsewhere[c] += lambda * v;
@@ -319,19 +326,21 @@ impl Equilibrium {
                 let scale = if c.total_molal > 0.0 {
                     c.total_molal
                 } else {
-                    sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>() + elsewhere_scale[ci]
+                    sys.members[ci].iter().map(|&s| ev.conc[s]).sum::<f64>()
+                        + elsewhere_scale.get(ci).copied().unwrap_or(0.0)
                 };
-                let r = (held + elsewhere[ci] - c.total_molal) / scale;
+                let r = (held + elsewhere.get(ci).copied().unwrap_or(0.0) - c.total_molal) / scale;
                 mass_relative.push((c.name.clone(), if r.is_nan() { 0.0 } else { r }));
             }
         }
         let charge = charge + charge_elsewhere;
         // Saturation indices, partial pressures, the acid or base of a fixed pH.
-        let mut solids = Vec::new();
+        let mut solids = Vec::with_capacity(sys.phases.len());
         let mut gases = Vec::new();
         let mut proton_uptake_molal = 0.0;
         let mut charge_balance_ion = None;
-        for (row, &lambda) in sys.phases.iter().zip(&amounts) {
+        for (w, row) in sys.phases.iter().enumerate() {
+            let lambda = amount(w);
             let ln_q = row.ln_q(&point.y);
             if !ln_q.is_finite() && !row.is_amount() {
                 continue;
@@ -444,14 +453,16 @@ impl Equilibrium {
             warnings,
             unknowns: point.y,
             ln_i: point.ln_i,
-            solids,
-            gases,
-            proton_uptake_molal,
-            charge_balance_ion,
-            dissolved_totals,
-            dic_molal: sys.carbonate.map_or(0.0, |c| aqueous[c]),
-            total_alkalinity_molal: alkalinity,
-            carbonate_alkalinity_molal: carbonate_alkalinity,
+            phases: Box::new(PhaseReport {
+                solids,
+                gases,
+                proton_uptake_molal,
+                charge_balance_ion,
+                dissolved_totals,
+                dic_molal: sys.carbonate.map_or(0.0, |c| aqueous[c]),
+                total_alkalinity_molal: alkalinity,
+                carbonate_alkalinity_molal: carbonate_alkalinity,
+            }),
         };
         eq.check_finite()?;
         Ok(eq)
@@ -589,12 +600,12 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn solids(&self) -> &[SolidState] {
-        &self.solids
+        &self.phases.solids
     }
 
     /// The saturation state of the solid named `name`.
     pub fn solid(&self, name: &str) -> Option<&SolidState> {
-        self.solids.iter().find(|s| &*s.name == name)
+        self.phases.solids.iter().find(|s| &*s.name == name)
     }
 
     /// The saturation index of the solid named `name`.
@@ -616,35 +627,36 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn gases(&self) -> &[GasState] {
-        &self.gases
+        &self.phases.gases
     }
 
     /// The state of the gas named `name`.
     pub fn gas(&self, name: &str) -> Option<&GasState> {
-        self.gases.iter().find(|g| &*g.name == name)
+        self.phases.gases.iter().find(|g| &*g.name == name)
     }
 
     /// H⁺ taken up into the solution to hold a fixed pH, mol/kg (negative: the base that was
     /// needed); 0 without a fixed pH.
     pub fn proton_uptake_molal(&self) -> f64 {
-        self.proton_uptake_molal
+        self.phases.proton_uptake_molal
     }
 
     /// The ion that closes the charge balance and the amount of it added to do so, mol/kg
     /// (negative: removed), when the recipe closes the balance on an ion.
     pub fn charge_balance_ion_added_molal(&self) -> Option<(&str, f64)> {
-        self.charge_balance_ion.as_ref().map(|(n, v)| (&**n, *v))
+        self.phases.charge_balance_ion.as_ref().map(|(n, v)| (&**n, *v))
     }
 
     /// The dissolved total of each active component (mol/kg): the recipe's total less what
     /// went into solids or the gas phase.
     pub fn dissolved_totals(&self) -> &[(Arc<str>, f64)] {
-        &self.dissolved_totals
+        &self.phases.dissolved_totals
     }
 
     /// The dissolved total of the component named `name`, mol/kg.
     pub fn dissolved_total_molal(&self, name: &str) -> Option<f64> {
-        self.dissolved_totals
+        self.phases
+            .dissolved_totals
             .iter()
             .find(|(n, _)| &**n == name)
             .map(|(_, v)| *v)
@@ -653,7 +665,7 @@ impl Equilibrium {
     /// Dissolved inorganic carbon, mol/kg: the dissolved total of the carbonate family (0
     /// without it).
     pub fn dic_molal(&self) -> f64 {
-        self.dic_molal
+        self.phases.dic_molal
     }
 
     /// Total alkalinity, mol/kg: the excess of proton acceptors over proton donors relative
@@ -676,13 +688,13 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn total_alkalinity_molal(&self) -> f64 {
-        self.total_alkalinity_molal
+        self.phases.total_alkalinity_molal
     }
 
     /// Carbonate alkalinity, mol/kg: m(HCO₃⁻) + 2m(CO₃²⁻), with carbonate ion pairs counted by
     /// the protons their carbonate lacks relative to H₂CO₃.
     pub fn carbonate_alkalinity_molal(&self) -> f64 {
-        self.carbonate_alkalinity_molal
+        self.phases.carbonate_alkalinity_molal
     }
 
     /// ln a of each component (−∞ for components with zero total), H⁺ first.

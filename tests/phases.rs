@@ -370,3 +370,43 @@ proptest! {
         prop_assert!((again.dissolved_total_molal("calcium").unwrap() / dissolved - 1.0).abs() <= 1e-8);
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(48))]
+
+    /// Every catalogue solid allowed, on hard waters with magnesium, sodium hydroxide and the
+    /// catalogue's ion pairs, open or closed to CO2: the assemblage keeps every solid at or
+    /// below saturation, the present ones at it, and every balance to 1e-10.
+    #[test]
+    fn any_catalogue_solid_allowed(
+        log_ca in -4.0f64..-1.3,
+        log_mg in -4.0f64..-1.3,
+        log_co3 in -4.0f64..-1.3,
+        log_so4 in -4.0f64..-1.3,
+        log_p in -4.0f64..0.0,
+        open in any::<bool>(),
+        t in 5.0f64..60.0,
+        naoh in 0.0f64..0.02,
+    ) {
+        let cat = Catalog::builtin();
+        let mut r = Recipe::new();
+        r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(10f64.powf(log_ca))).unwrap()
+            .add(&cat.reagent("magnesium chloride").unwrap(), Amount::molal(10f64.powf(log_mg))).unwrap()
+            .add(&cat.reagent("sodium carbonate").unwrap(), Amount::molal(10f64.powf(log_co3))).unwrap()
+            .add(&cat.reagent("sodium sulfate").unwrap(), Amount::molal(10f64.powf(log_so4))).unwrap()
+            .add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molal(naoh)).unwrap()
+            .add_complexes(cat.complexes())
+            .allow_all_solids();
+        if open {
+            r.fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(10f64.powf(log_p))).unwrap();
+        }
+        let eq = r.compile(&davies(t)).unwrap().solve().unwrap();
+        prop_assert!(eq.residuals().max_relative() <= 1e-10, "{:?}", eq.residuals());
+        for s in eq.solids() {
+            prop_assert!(s.saturation_index <= 1e-8, "{} {}", s.name, s.saturation_index);
+            if s.amount_molal > 0.0 {
+                prop_assert!(s.saturation_index.abs() <= 1e-8, "{} {}", s.name, s.saturation_index);
+            }
+        }
+    }
+}

@@ -317,7 +317,10 @@ fn solve(
         .compile(&conditions)
         .and_then(|s| s.solve())
         .map_err(|e| chem(&name, e))?;
-    let result = SolveResult::from_equilibrium(&eq).named(doc.name.clone());
+    let mut result = SolveResult::from_equilibrium(&eq).named(doc.name.clone());
+    if let Some(ion) = doc.charge_balance_on.as_deref().and_then(|n| catalog().ion(n).ok()) {
+        result = result.with_ion_balance(ion.charge());
+    }
     if json {
         write_json(out, &result)?;
     } else {
@@ -459,6 +462,18 @@ fn write_phase_tables(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
             "charge balance    closed on {}: {:.4e} mol/kg {what}",
             c.ion,
             c.added_mol_per_kg.abs()
+        )?;
+    }
+    if let Some(b) = &r.ion_balance {
+        let verdict = match b.within_acceptance {
+            Some(true) => "within the Standard Methods 1030 E limit",
+            Some(false) => "outside the Standard Methods 1030 E limit",
+            None => "no Standard Methods 1030 E limit at this anion sum",
+        };
+        writeln!(
+            out,
+            "ion balance       {:+.2} % as entered (cations {:.4} meq/kg, anions {:.4} meq/kg; {verdict})",
+            b.error_percent, b.cations_meq_per_kg, b.anions_meq_per_kg
         )?;
     }
     if !r.gases.is_empty() {

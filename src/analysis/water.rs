@@ -18,10 +18,14 @@
 //!   can differ by some hundredths to tenths from the calcite saturation index of a full
 //!   speciation.
 //!
-//! - **Calcium carbonate precipitation potential** (CCPP; A. Rossum, D. T. Merrill, *J. Am.
-//!   Water Works Assoc.* 75 (1983) 95): how much calcium carbonate the water would deposit
-//!   (positive) or dissolve (negative) to reach equilibrium with calcite in a closed system,
-//!   computed by the solver with calcite allowed to form ([`precipitation_potential`]).
+//! - **Calcium carbonate precipitation potential** (CCPP; J. R. Rossum, D. T. Merrill, "An
+//!   evaluation of the calcium carbonate saturation indexes", *J. Am. Water Works Assoc.* 75
+//!   (1983) 95; *Standard Methods* 2330): the amount of calcium carbonate that must precipitate
+//!   (positive) or dissolve (negative) for the water to reach equilibrium with it, here in a
+//!   closed system, computed by the solver with calcite allowed to form
+//!   ([`precipitation_potential`]). The sign convention is the one *Standard Methods* gives
+//!   (APHA/AWWA/WEF 2005, as quoted in a stored copy of the abstract of a paper in *J. Water
+//!   Supply Res. Technol.–Aqua* 67 (2018) 1).
 //! - **Dose search** ([`dose_for_target`]): the amount of a reagent that brings a water to a
 //!   target pH, saturation index or hardness, with the recipe's allowed solids and gases in
 //!   force (lime softening to a hardness, acid to a saturation index).
@@ -488,7 +492,7 @@ fn calcite_log10_k(catalog: &Catalog, t: Temperature) -> Result<f64> {
     Ok(catalog.solid("calcite")?.log10_k_at(t))
 }
 
-/// The calcium carbonate precipitation potential of a water (CCPP; A. Rossum, D. T. Merrill,
+/// The calcium carbonate precipitation potential of a water (CCPP; J. R. Rossum, D. T. Merrill,
 /// J. Am. Water Works Assoc. 75 (1983) 95): the amount of calcium carbonate that would
 /// precipitate (positive) or dissolve (negative) for the water to come to equilibrium with
 /// calcite in a closed system, in mg/L as CaCO₃ and mol/kg.

@@ -245,6 +245,24 @@ pub(crate) fn normalize(s: &str) -> String {
 }
 
 /// [`normalize`] without a copy when the text already is normalised.
+/// `s` lower-cased into `buf` where [`normalized`] would only lower-case it (printable ASCII,
+/// single spaces, no space at either end) and it fits; `None` otherwise.
+fn plain_lowercase<'b>(s: &str, buf: &'b mut [u8]) -> Option<&'b str> {
+    let bytes = s.as_bytes();
+    let plain = bytes.iter().all(|&b| b.is_ascii_graphic() || b == b' ')
+        && !s.starts_with(' ')
+        && !s.ends_with(' ')
+        && !s.contains("  ");
+    if !plain || bytes.len() > buf.len() {
+        return None;
+    }
+    let out = &mut buf[..bytes.len()];
+    for (o, b) in out.iter_mut().zip(bytes) {
+        *o = b.to_ascii_lowercase();
+    }
+    std::str::from_utf8(out).ok()
+}
+
 fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names are printable ASCII with single spaces (every built-in one is, lower case
     // too): copy them as they are, or lower-case them in one allocation.
@@ -478,6 +496,15 @@ impl Catalog {
     }
 
     fn find(&self, kind: DataKind, name: &str) -> Result<usize> {
+        // A short plain-ASCII name is lower-cased on the stack (no allocation per lookup);
+        // the general normalisation serves the rest.
+        let mut buf = [0u8; 64];
+        if name.len() <= buf.len()
+            && let Some(key) = plain_lowercase(name, &mut buf)
+            && let Some(idx) = self.index.get(key).and_then(|a| a[kind as usize])
+        {
+            return Ok(idx);
+        }
         let key = normalized(name);
         if let Some(idx) = self.index.get(key.as_ref()).and_then(|a| a[kind as usize]) {
             return Ok(idx);
@@ -1639,7 +1666,7 @@ fn read_count(p: &PartEntry, at: &PartAt) -> Result<i32> {
 
 #[cfg(test)]
 mod tests {
-    use super::normalized;
+    use super::{normalized, plain_lowercase};
 
     /// The slow path alone, as the reference for the shortcut (common practice: a fast path
     /// must give what the general one gives).
@@ -1682,5 +1709,23 @@ mod tests {
             assert_eq!(normalized(s), reference(s), "{s:?}");
         }
         assert!(matches!(normalized("acetic acid"), std::borrow::Cow::Borrowed(_)));
+        // The stack shortcut of lookups gives what the normalisation gives, or nothing.
+        let mut buf = [0u8; 64];
+        for s in [
+            "Sodium Dihydrogen Phosphate",
+            "acetic acid",
+            " x",
+            "a  b",
+            "Ünïcode",
+            "HCl",
+        ] {
+            if let Some(k) = plain_lowercase(s, &mut buf) {
+                assert_eq!(k, normalized(s).as_ref(), "{s:?}");
+            }
+        }
+        assert_eq!(
+            plain_lowercase("Sodium Dihydrogen Phosphate", &mut buf),
+            Some("sodium dihydrogen phosphate")
+        );
     }
 }

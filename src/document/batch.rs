@@ -357,7 +357,7 @@ struct Block<'a> {
 /// A solved line: the full result, or (for a record without it, where the full result would
 /// carry no warning) the numbers the record gives, from a solve in the template's workspace.
 enum Solved {
-    Full(Equilibrium),
+    Full(Box<Equilibrium>),
     Lean(crate::solve::PhSolution, crate::PhConvention),
 }
 
@@ -430,7 +430,7 @@ impl Block<'_> {
                 .compile(&conditions)
                 .and_then(|s| self.solver.solve(&s))
                 .map_err(|e| Failure::Solve(name.clone(), e))?;
-            return Ok((name, None, Solved::Full(eq)));
+            return Ok((name, None, Solved::Full(Box::new(eq))));
         }
         let idx = match self.templates.iter().position(|t| t.matches(&doc)) {
             Some(i) => i,
@@ -460,7 +460,7 @@ impl Block<'_> {
         }
         .map_err(|e| Failure::Solve(name.clone(), e))?;
         t.ws.start_from(&eq);
-        Ok((name, Some(idx), Solved::Full(eq)))
+        Ok((name, Some(idx), Solved::Full(Box::new(eq))))
     }
 
     /// Runs a titration or design request line (`kind` its format tag) and appends its
@@ -553,7 +553,7 @@ impl Block<'_> {
                 };
                 write_record(out, &rec);
                 if let Some(t) = idx.and_then(|i| self.templates.get_mut(i)) {
-                    t.warm = Some(eq);
+                    t.warm = Some(*eq);
                 }
                 false
             }

@@ -60,8 +60,8 @@ pub use measured::{
 };
 pub use output::{
     ChargeBalanceIonResult, DesignLineResult, DesignResult, EquivalenceResult, EstimateResult, FamilyResult, FitResult,
-    GasResult, HalfEquivalenceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult, SpeciesResult,
-    TitrationPointResult, TitrationResult, VerdictResult,
+    GasResult, HalfEquivalenceResult, IonBalanceResult, PhShiftResult, ResidualsResult, SolidResult, SolveResult,
+    SpeciesResult, TitrationPointResult, TitrationResult, VerdictResult,
 };
 pub use requests::{RequestError, RequestRecord, TitrationRun, run_design, run_titration};
 

@@ -112,6 +112,29 @@ pub struct SolidResult {
     pub amount_mol_per_kg: f64,
 }
 
+/// The ion balance of a water analysis entered with its charge balance closed on an ion: the
+/// sums of the cations and anions as entered (the equilibrium's species, less what the closing
+/// ion added), the balance error 100·(Σcations − Σanions)/(Σcations + Σanions), and whether it
+/// is within the acceptance rule of Standard Methods 1030 E (common practice; `None` above an
+/// anion sum of 800 meq/kg, where the rule gives none).
+///
+/// ```
+/// use protolyte::document::IonBalanceResult;
+/// let b = IonBalanceResult { cations_meq_per_kg: 5.0, anions_meq_per_kg: 4.9, error_percent: 1.01, within_acceptance: Some(true) };
+/// assert_eq!(b.within_acceptance, Some(true));
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct IonBalanceResult {
+    /// Σ |z|·m of the cations as entered, meq per kg of water.
+    pub cations_meq_per_kg: f64,
+    /// Σ |z|·m of the anions as entered, meq per kg of water.
+    pub anions_meq_per_kg: f64,
+    /// 100·(Σcations − Σanions)/(Σcations + Σanions), %.
+    pub error_percent: f64,
+    /// Within the Standard Methods 1030 E limit for this anion sum.
+    pub within_acceptance: Option<bool>,
+}
+
 /// The ion that closed the charge balance and how much of it the balance took.
 ///
 /// ```
@@ -213,6 +236,10 @@ pub struct SolveResult {
     /// added, mol per kg of water.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub charge_balance_ion: Option<ChargeBalanceIonResult>,
+    /// With the charge balance closed on an ion: the ion balance of the water as entered
+    /// (see [`SolveResult::with_ion_balance`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ion_balance: Option<IonBalanceResult>,
     /// Every reported gas whose family is present.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub gases: Vec<GasResult>,
@@ -287,6 +314,7 @@ impl SolveResult {
                     ion: ion.to_string(),
                     added_mol_per_kg: v,
                 }),
+            ion_balance: None,
             gases: eq
                 .gases()
                 .iter()
@@ -316,6 +344,70 @@ impl SolveResult {
     /// The same result with the recipe's label.
     pub fn named(mut self, name: Option<String>) -> Self {
         self.name = name;
+        self
+    }
+
+    /// The same result with the ion balance of the water as entered, when its charge balance
+    /// was closed on an ion of charge number `charge`: the equilibrium balances exactly, so the
+    /// analysis as entered lacked (or had in excess) what the closing ion added. Sums over the
+    /// species of the result (complexes with their own charge, H⁺ and OH⁻ included), less
+    /// the closing ion's addition; left unset without a closing ion or for a charge of 0.
+    ///
+    /// ```
+    /// use protolyte::document::{RecipeDoc, SolveResult, parse};
+    /// use protolyte::Catalog;
+    /// let doc: RecipeDoc = parse(r#"{ "reagents": [
+    ///     { "reagent": "calcium chloride", "millimolar": 1.0 },
+    ///     { "reagent": "sodium bicarbonate", "millimolar": 1.9 } ],
+    ///   "fixed_alkalinity_meq_per_kg": 2.0, "charge_balance_on": "sodium" }"#, "a.json")?;
+    /// let cat = Catalog::builtin();
+    /// let (recipe, conditions) = doc.to_recipe(&cat)?;
+    /// let eq = recipe.compile(&conditions)?.solve()?;
+    /// let r = SolveResult::from_equilibrium(&eq).with_ion_balance(1);
+    /// let b = r.ion_balance.unwrap();
+    /// // The sodium entered (1.9 mmol/kg) falls short of the 2.0 meq/kg of alkalinity by about
+    /// // 0.1 meq/kg: the cations come out low.
+    /// assert!(b.error_percent < -1.0 && b.error_percent > -3.0, "{b:?}");
+    /// # Ok::<(), Box<dyn std::error::Error>>(())
+    /// ```
+    pub fn with_ion_balance(mut self, charge: i32) -> Self {
+        let Some(added) = self.charge_balance_ion.as_ref().map(|c| c.added_mol_per_kg) else {
+            return self;
+        };
+        if charge == 0 {
+            return self;
+        }
+        let z = f64::from(charge);
+        let (mut cations, mut anions) = (0.0, 0.0);
+        for s in &self.species {
+            let q = f64::from(s.charge) * s.mol_per_kg;
+            if q > 0.0 {
+                cations += q;
+            } else {
+                anions -= q;
+            }
+        }
+        if z > 0.0 {
+            cations -= z * added;
+        } else {
+            anions -= -z * added;
+        }
+        let (c, a) = (1e3 * cations, 1e3 * anions);
+        let error = 100.0 * (c - a) / (c + a);
+        if !(c > 0.0 && a > 0.0 && error.is_finite()) {
+            return self;
+        }
+        let rule = crate::analysis::water::IonBalance {
+            cations_meq_per_l: c,
+            anions_meq_per_l: a,
+            error_percent: error,
+        };
+        self.ion_balance = Some(IonBalanceResult {
+            cations_meq_per_kg: c,
+            anions_meq_per_kg: a,
+            error_percent: error,
+            within_acceptance: rule.within_acceptance(),
+        });
         self
     }
 }

@@ -54,6 +54,11 @@ impl Buffers {
     pub(crate) fn keep_y(&mut self, y: Vec<f64>) {
         self.y = y;
     }
+
+    /// The activities kept by [`Buffers::keep_y`].
+    pub(crate) fn y(&self) -> &[f64] {
+        &self.y
+    }
 }
 
 thread_local! {
@@ -832,8 +837,7 @@ impl Fast<'_> {
                 && next_l < LN_AH_MAX
                 && next_i > 0.5 * gg.min(ii)
                 && next_i < 2.0 * gg.max(ii)
-                && next_i <= I_MAX
-                && next_i >= I_MIN;
+                && (I_MIN..=I_MAX).contains(&next_i);
             if !usable {
                 return None;
             }

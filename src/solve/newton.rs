@@ -956,6 +956,23 @@ pub(crate) fn solve_phases(
             });
         }
     }
+    // Solids supersaturated at the start enter together (most supersaturated first, each
+    // only if its row is independent of those held): the active-set loop then drops any that
+    // should not be there, and most assemblages need no further change.
+    let mut over: Vec<(usize, f64)> = allowed
+        .iter()
+        .map(|&w| (w, sys.phases[w].ln_q(&p.y)))
+        .filter(|&(_, q)| q > 0.0)
+        .collect();
+    over.sort_by(|a, b| b.1.total_cmp(&a.1));
+    for (w, _) in over {
+        let mut next = working.clone();
+        next.push(w);
+        let rows: Vec<&[(usize, f64)]> = next.iter().map(|&x| &sys.phases[x].terms[..]).collect();
+        if independent(&rows, nc) {
+            working = next;
+        }
+    }
     let mut lambda = vec![0.0; sys.phases.len()];
     // The totals of the convex problem (H⁺ included, T_H = −Σ z·T), then the rows whose
     // amounts are set by the totals: a fixed alkalinity sets T_H (Σ r·T − TA) and leaves the
@@ -1217,10 +1234,8 @@ fn joint_phases(
     }
     let mut lam: Vec<f64> = working.iter().map(|&w| lambda[w]).collect();
     let ln_i_max = I_MAX.ln();
-    // Residual and scales at the current evaluation.
-    let residual = |ev: &Evaluation, y: &[f64], lam: &[f64], ln_i: f64| -> (Vec<f64>, Vec<f64>) {
-        let mut f = vec![0.0; m];
-        let mut sc = vec![0.0; m];
+    // Residual and scales at the current evaluation, written into `f` and `sc`.
+    let residual = |ev: &Evaluation, y: &[f64], lam: &[f64], ln_i: f64, f: &mut [f64], sc: &mut [f64]| {
         for k in 0..n {
             f[k] = -totals[k];
             sc[k] = totals[k].abs();
@@ -1250,7 +1265,6 @@ fn joint_phases(
         let i = ln_i.exp();
         f[m - 1] = ionic - i;
         sc[m - 1] = i;
-        (f, sc)
     };
     let merit = |f: &[f64], sc: &[f64]| -> f64 {
         f.iter()
@@ -1265,10 +1279,15 @@ fn joint_phases(
             .fold(0.0, f64::max)
     };
     evaluate(sys, ev, p);
-    let (mut f, mut sc) = residual(ev, &p.y, &lam, p.ln_i);
+    let (mut f, mut sc) = (vec![0.0; m], vec![0.0; m]);
+    let (mut tf, mut ts) = (vec![0.0; m], vec![0.0; m]);
+    residual(ev, &p.y, &lam, p.ln_i, &mut f, &mut sc);
     let mut phi = merit(&f, &sc);
     let mut last_step = f64::INFINITY;
     let mut trial = p.clone();
+    let mut tlam = lam.clone();
+    let mut jac = DMatrix::<f64>::zeros(m, m);
+    let mut rhs = DVector::<f64>::zeros(m);
     for it in 0..40 {
         if worst(&f, &sc) <= tol && last_step <= 1e-9 {
             for (j, &w) in working.iter().enumerate() {
@@ -1277,7 +1296,7 @@ fn joint_phases(
             return Some(it);
         }
         let i = p.ln_i.exp();
-        let mut jac = DMatrix::<f64>::zeros(m, m);
+        jac.fill(0.0);
         for (idx, &s) in lay.species.iter().enumerate() {
             let c = ev.conc[s];
             if c == 0.0 {
@@ -1303,25 +1322,23 @@ fn joint_phases(
             }
         }
         // Row scaling by the residual scales keeps trace components' digits.
-        let mut rhs = DVector::from_iterator(m, f.iter().map(|v| -v));
         for row in 0..m {
             let s = if sc[row] > 0.0 { 1.0 / sc[row] } else { 1.0 };
             for col in 0..m {
                 jac[(row, col)] *= s;
             }
-            rhs[row] *= s;
+            rhs[row] = -f[row] * s;
         }
-        let mut dx = jac.lu().solve(&rhs)?;
-        if dx.iter().any(|v| !v.is_finite()) {
+        if !jac.clone().lu().solve_mut(&mut rhs) || rhs.iter().any(|v| !v.is_finite()) {
             return None;
         }
+        let dx = &mut rhs;
         let big = (0..n).map(|k| dx[k].abs()).fold(dx[m - 1].abs(), f64::max);
         if big > MAX_STEP {
-            dx *= MAX_STEP / big;
+            *dx *= MAX_STEP / big;
         }
         let mut alpha = 1.0;
         let mut accepted = false;
-        let mut tlam = lam.clone();
         for _ in 0..30 {
             for (k, &c) in act.iter().enumerate() {
                 trial.y[c] = p.y[c] + alpha * dx[k];
@@ -1331,14 +1348,14 @@ fn joint_phases(
             }
             trial.ln_i = (p.ln_i + alpha * dx[m - 1]).clamp(I_MIN.ln(), ln_i_max);
             evaluate(sys, ev, &trial);
-            let (tf, ts) = residual(ev, &trial.y, &tlam, trial.ln_i);
+            residual(ev, &trial.y, &tlam, trial.ln_i, &mut tf, &mut ts);
             let tphi = merit(&tf, &ts);
             if tphi.is_finite() && tphi <= (1.0 - 1e-4 * alpha) * phi {
                 last_step = alpha * dx.amax();
                 p.clone_from(&trial);
                 lam.clone_from(&tlam);
-                f = tf;
-                sc = ts;
+                std::mem::swap(&mut f, &mut tf);
+                std::mem::swap(&mut sc, &mut ts);
                 phi = tphi;
                 accepted = true;
                 break;

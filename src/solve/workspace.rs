@@ -111,46 +111,19 @@ impl Solver {
     /// Solves `system` in `workspace`, starting from the workspace's last solution, and
     /// returns pH, p\[H\], ionic strength and the largest residual: the same numbers as
     /// [`Solver::solve`] gives (to round-off of the start), without building the full result.
-    /// On the fast path (no coupling species, an activity model whose γ depends on the ionic
-    /// strength only, or SIT without tabulated pairs in the system) nothing is allocated once
+    /// On the fast path (no coupling species, no solid, gas or fixed pH, an activity model
+    /// whose γ depends on the ionic strength only, or SIT without tabulated pairs in the
+    /// system) nothing is allocated once
     /// the workspace has grown to the system; otherwise this solves in full and reads the
     /// result. Warnings are not produced: use [`Solver::solve`] where they are wanted.
     ///
     /// Errors as [`Solver::solve`].
     pub fn solve_ph(&self, system: &System, workspace: &mut Workspace) -> Result<PhSolution> {
         let sys = system;
-        let lean = self.path == PathChoice::Auto
-            && sys.uncoupled()
-            && sys.interactions.known.is_empty()
-            && !(sys.ph_convention == PhConvention::BatesGuggenheim && sys.model == ActivityModel::Sit);
-        if lean {
-            for start in [workspace.start, None] {
-                let mut ev = workspace.take_evaluation(sys);
-                let r = fast::solve_in(sys, start, self.tolerance, &mut workspace.bufs, &mut ev);
-                let out = match r {
-                    Ok((point, _)) => {
-                        let s = read(sys, &ev, point.y[0], point.ln_i);
-                        let l = point.y[0];
-                        workspace.bufs.keep_y(point.y);
-                        s.map(|s| (s, (l, point.ln_i)))
-                    }
-                    Err(e @ Error::IonicStrengthBeyondLimit { .. }) => {
-                        workspace.conc = ev.conc;
-                        workspace.ln_gamma = ev.ln_gamma;
-                        return Err(e);
-                    }
-                    Err(_) => None,
-                };
-                workspace.conc = ev.conc;
-                workspace.ln_gamma = ev.ln_gamma;
-                if let Some((s, at)) = out {
-                    workspace.start = Some(at);
-                    return Ok(s);
-                }
-                if start.is_none() {
-                    break;
-                }
-            }
+        if self.lean_applies(sys)
+            && let Some(s) = self.solve_lean(sys, workspace)?
+        {
+            return Ok(s);
         }
         // Not the fast path, or it did not give a finite result: the full solve decides
         // (the general path, or the error).
@@ -167,11 +140,59 @@ impl Solver {
 }
 
 impl Solver {
+    /// Whether [`Solver::solve_ph`] solves `sys` on the fast path in the workspace: no phase
+    /// relation (a solid allowed to form, a fixed partial pressure or pH; solids that are only
+    /// reported are read after the solve), the fast path chosen, and γ that depend on the
+    /// ionic strength only.
+    fn lean_applies(&self, sys: &System) -> bool {
+        self.path == PathChoice::Auto
+            && !sys.has_phase_constraints()
+            && sys.open.iter().all(|o| !o)
+            && sys.uncoupled()
+            && sys.interactions.known.is_empty()
+            && !(sys.ph_convention == PhConvention::BatesGuggenheim && sys.model == ActivityModel::Sit)
+    }
+
+    /// The fast path in the workspace; `None` where it gives no finite result in the solver's
+    /// range (the full solve then decides). Starts from the workspace's last solution, then
+    /// cold.
+    fn solve_lean(&self, sys: &System, workspace: &mut Workspace) -> Result<Option<PhSolution>> {
+        for start in [workspace.start, None] {
+            let mut ev = workspace.take_evaluation(sys);
+            let r = fast::solve_in(sys, start, self.tolerance, &mut workspace.bufs, &mut ev);
+            let out = match r {
+                Ok((point, _)) => {
+                    let s = read(sys, &ev, point.y[0], point.ln_i);
+                    let at = (point.y[0], point.ln_i);
+                    workspace.bufs.keep_y(point.y);
+                    s.map(|s| (s, at))
+                }
+                Err(e @ Error::IonicStrengthBeyondLimit { .. }) => {
+                    workspace.conc = ev.conc;
+                    workspace.ln_gamma = ev.ln_gamma;
+                    return Err(e);
+                }
+                Err(_) => None,
+            };
+            workspace.conc = ev.conc;
+            workspace.ln_gamma = ev.ln_gamma;
+            if let Some((s, at)) = out {
+                workspace.start = Some(at);
+                return Ok(Some(s));
+            }
+            if start.is_none() {
+                break;
+            }
+        }
+        Ok(None)
+    }
+
     /// [`Solver::solve_ph`] where the full result would carry no [`Warning`](crate::Warning)
     /// (`Ok(None)` where it might: the caller then solves in full). The conditions are those
     /// under which `Equilibrium::build` adds a warning: a compilation warning, a total below
     /// the floor or beyond the tested domain, a residual above the promise, an ionic strength
-    /// beyond the model's or the pH convention's range, an SIT pair without a coefficient.
+    /// beyond the model's or the pH convention's range, an SIT pair without a coefficient, a
+    /// supersaturated solid (systems with other phases always go to the full solve).
     pub(crate) fn solve_ph_unwarned(&self, sys: &System, workspace: &mut Workspace) -> Result<Option<PhSolution>> {
         let rho = sys.water_density;
         let quiet_system = sys.compile_warnings.is_empty()
@@ -182,12 +203,22 @@ impl Solver {
                 .iter()
                 .skip(1)
                 .all(|c| c.total_molal * rho <= crate::limits::TESTED_MAX_TOTAL_MOLAR * (1.0 + 1e-12));
-        if !quiet_system {
+        if !quiet_system || !self.lean_applies(sys) {
             return Ok(None);
         }
-        let s = self.solve_ph(sys, workspace)?;
+        let Some(s) = self.solve_lean(sys, workspace)? else {
+            return Ok(None);
+        };
         let i = s.ionic_strength_molal;
-        let quiet = s.max_residual <= crate::limits::RESIDUAL_PROMISE.max(self.tolerance)
+        let y = workspace.bufs.y();
+        let supersaturated = sys.phases.iter().any(|row| {
+            let ln_q = row.ln_q(y);
+            matches!(row.kind, crate::phase::RowKind::Solid { .. })
+                && ln_q.is_finite()
+                && ln_q / LN10 > crate::phase::SUPERSATURATION_TOLERANCE
+        });
+        let quiet = !supersaturated
+            && s.max_residual <= crate::limits::RESIDUAL_PROMISE.max(self.tolerance)
             && i <= sys.model.validity_limit_molal()
             && sys.ph_convention.validity_limit_molal().is_none_or(|limit| i <= limit);
         Ok(quiet.then_some(s))
