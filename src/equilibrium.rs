@@ -562,9 +562,11 @@ impl Equilibrium {
         &self.species
     }
 
-    /// The species named `name`.
+    /// The species named `name`. A name written without the caret of the charge notation
+    /// ("CO32-" for "CO3^2-", "CaHCO3^+" for "CaHCO3+") finds the species too.
     pub fn species_named(&self, name: &str) -> Option<&SpeciesState> {
-        self.species.iter().find(|s| &*s.name == name)
+        (self.species.iter().find(|s| &*s.name == name))
+            .or_else(|| (self.species.iter()).find(|s| crate::protolyte::species_name_eq(&s.name, name)))
     }
 
     /// The distribution of every acid–base family.

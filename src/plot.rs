@@ -819,7 +819,7 @@ pub fn distribution(
     Ok(Distribution { ph: phs, families })
 }
 
-/// "HPO42-" with charge −2 → "HPO₄²⁻": the known charge suffix as superscript, and digits
+/// "HPO4^2-" (or "HPO42-") with charge −2 → "HPO₄²⁻": the known charge suffix as superscript, and digits
 /// after an element or a bracket as subscripts when the rest looks like a formula.
 fn pretty_formula(name: &str, charge: i32) -> String {
     let suffix = match charge {
@@ -831,7 +831,8 @@ fn pretty_formula(name: &str, charge: i32) -> String {
     };
     let core = if charge != 0 {
         match name.strip_suffix(suffix.as_str()) {
-            Some(c) => c,
+            // The caret of the charge notation ("CO3^2-") gives way to the superscript.
+            Some(c) => c.strip_suffix('^').unwrap_or(c),
             None => return name.to_string(),
         }
     } else {

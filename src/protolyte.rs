@@ -46,6 +46,8 @@ pub struct Protolyte {
     source: Option<String>,
     /// An analytic log K(T) equation per step, where its source gives one.
     equations: Vec<Option<LogKEquation>>,
+    /// Display names of the forms, most protonated first, where they are given.
+    form_names: Option<Vec<String>>,
 }
 
 /// Range accepted for a pKa (wider than the declared test domain −2..16).
@@ -114,6 +116,7 @@ impl Protolyte {
             ion_size_angstrom: None,
             form_ion_sizes: None,
             source: None,
+            form_names: None,
         })
     }
 
@@ -302,6 +305,68 @@ impl Protolyte {
         self
     }
 
+    /// Sets the display name of every form, most protonated first (one more name than
+    /// steps), for a family whose formula does not show where its protons sit.
+    ///
+    /// Each name ends with its form's charge in the notation [`form_name`](Self::form_name)
+    /// uses: nothing for 0, a bare sign for ±1 (`B(OH)4-`), a caret, the magnitude and the
+    /// sign otherwise (`H2en^2+`). Refuses the wrong number of names, an empty name, a name
+    /// used twice and a name whose written charge is not its form's.
+    ///
+    /// ```
+    /// use protolyte::Protolyte;
+    /// let en = Protolyte::new("ethylenediamine", &[6.85, 9.93], 2)?
+    ///     .with_form_names(&["H2en^2+", "Hen+", "en"])?;
+    /// assert_eq!(en.form_name(1), "Hen+");
+    /// assert!(Protolyte::new("x", &[4.0], 0)?.with_form_names(&["HX", "X"]).is_err());
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn with_form_names(mut self, names: &[&str]) -> Result<Self> {
+        let n = self.steps.len();
+        let refuse = |reason: String| Error::InconsistentDefinition {
+            name: self.name.clone(),
+            reason,
+        };
+        if names.len() != n + 1 {
+            return Err(refuse(format!(
+                "{} form names given for {} forms (one per form, most protonated first)",
+                names.len(),
+                n + 1
+            )));
+        }
+        let mut out = Vec::with_capacity(n + 1);
+        for (k, raw) in names.iter().enumerate() {
+            let name = raw.trim();
+            let charge = self.charge_most_protonated - k as i32;
+            if name.is_empty() {
+                return Err(refuse(format!("form name {} is empty", k + 1)));
+            }
+            if written_charge(name) != Some(charge) {
+                let ending = match charge {
+                    0 => "no charge sign".to_string(),
+                    z => format!("\"{}\"", charge_suffix(z)),
+                };
+                return Err(refuse(format!(
+                    "form name {} \"{name}\" (form with {} protons, charge {charge}) must end with {ending}",
+                    k + 1,
+                    n - k
+                )));
+            }
+            if out.iter().any(|o: &String| species_name_eq(o, name)) {
+                return Err(refuse(format!("form name \"{name}\" is given twice")));
+            }
+            out.push(name.to_string());
+        }
+        self.form_names = Some(out);
+        Ok(self)
+    }
+
+    /// The display names of the forms given with [`with_form_names`](Self::with_form_names),
+    /// most protonated first.
+    pub fn form_names(&self) -> Option<&[String]> {
+        self.form_names.as_deref()
+    }
+
     /// Records where the numbers come from.
     pub fn with_source(mut self, source: &str) -> Self {
         self.source = Some(source.to_string());
@@ -449,16 +514,20 @@ impl Protolyte {
         (-lk, gap)
     }
 
-    /// A display name for the form with `protons` bound protons, built from the formula of
-    /// the most protonated form where it shows where the protons sit: a leading Hₙ
+    /// A display name for the form with `protons` bound protons: the name given with
+    /// [`with_form_names`](Self::with_form_names), else one built from the formula of the
+    /// most protonated form where it shows where the protons sit: a leading Hₙ
     /// ("H3PO4" → "H2PO4-") or a trailing ammonium NHₖ ("NH4+" → "NH3"). Otherwise
     /// "name(Hj)" with the charge; for a `protons` above n (no such form) "name(Hj)" without
     /// one.
     ///
+    /// The charge is written as a bare sign for ±1 ("H2PO4-") and as a caret, the magnitude
+    /// and the sign otherwise ("HPO4^2-", "PO4^3-").
+    ///
     /// ```
     /// use protolyte::Protolyte;
     /// let p = Protolyte::new("phosphate", &[2.1, 7.2, 12.3], 0)?.with_formula("H3PO4");
-    /// assert_eq!(p.form_name(1), "HPO42-");
+    /// assert_eq!(p.form_name(1), "HPO4^2-");
     /// let a = Protolyte::new("ammonia", &[9.2], 1)?.with_formula("NH4+");
     /// assert_eq!(a.form_name(0), "NH3");
     /// # Ok::<(), protolyte::Error>(())
@@ -468,6 +537,9 @@ impl Protolyte {
         let Some(charge) = self.charge_of_form(protons) else {
             return format!("{}(H{protons})", self.name);
         };
+        if let Some(names) = &self.form_names {
+            return names[n - protons].clone();
+        }
         let suffix = charge_suffix(charge);
         if let Some(core) = self
             .formula
@@ -501,8 +573,8 @@ impl Protolyte {
     }
 }
 
-/// The formula without its charge ("H6Y2+" with charge +2 → "H6Y"), or `None` when the
-/// written charge does not match.
+/// The formula without its charge ("H6Y^2+" or "H6Y2+" with charge +2 → "H6Y"), or `None`
+/// when the written charge does not match.
 fn strip_charge(formula: &str, charge: i32) -> Option<&str> {
     let f = formula.trim();
     if charge == 0 {
@@ -514,7 +586,53 @@ fn strip_charge(formula: &str, charge: i32) -> Option<&str> {
     if mag == 1 {
         Some(f)
     } else {
-        f.strip_suffix(mag.to_string().as_str())
+        let f = f.strip_suffix(mag.to_string().as_str())?;
+        Some(f.strip_suffix('^').unwrap_or(f))
+    }
+}
+
+/// The charge a species name writes in the library's notation: 0 without a final sign, ±1
+/// for a bare final sign, ±m for "^m" and the sign; `None` for a caret without a magnitude.
+fn written_charge(name: &str) -> Option<i32> {
+    let sign = match name.chars().last() {
+        Some('+') => 1,
+        Some('-') => -1,
+        _ => return Some(0),
+    };
+    let body = &name[..name.len() - 1];
+    let digits = body.len() - body.trim_end_matches(|c: char| c.is_ascii_digit()).len();
+    let (head, mag) = body.split_at(body.len() - digits);
+    if head.ends_with('^') {
+        let m: i32 = mag.parse().ok().filter(|&m: &i32| m > 0)?;
+        Some(sign * m)
+    } else if body.ends_with('^') {
+        None
+    } else {
+        Some(sign)
+    }
+}
+
+/// Whether `query` names the species shown as `shown`: the same text, or `shown` as it was
+/// written before the library used one charge notation: a charge above 1 without the caret
+/// ("CO32-" for "CO3^2-", "Ca2+" for "Ca^2+") or a charge of 1 with one ("CaHCO3^+" for
+/// "CaHCO3+"). Case counts ("Co" is not "CO").
+pub(crate) fn species_name_eq(shown: &str, query: &str) -> bool {
+    if shown == query {
+        return true;
+    }
+    let Some(sign) = shown.chars().last().filter(|c| matches!(c, '+' | '-')) else {
+        return false;
+    };
+    let body = &shown[..shown.len() - 1];
+    let digits = body.len() - body.trim_end_matches(|c: char| c.is_ascii_digit()).len();
+    let (head, mag) = body.split_at(body.len() - digits);
+    let rest_is = |rest: Option<&str>, tail: &str| rest.is_some_and(|r| r.strip_suffix(sign) == Some(tail));
+    match head.strip_suffix('^') {
+        // "CO3^2-" was "CO32-".
+        Some(core) if digits > 0 => rest_is(query.strip_prefix(core), mag),
+        Some(_) => false,
+        // "CaHCO3+" was "CaHCO3^+".
+        None => rest_is(query.strip_prefix(body), "^"),
     }
 }
 
@@ -549,13 +667,14 @@ fn check_heat_capacity(name: &str, dcp: f64) -> Result<f64> {
     )
 }
 
-/// "", "+", "2+", "-", "3-".
+/// "", "+", "^2+", "-", "^3-": a bare sign for ±1, a caret, the magnitude and the sign
+/// otherwise.
 pub(crate) fn charge_suffix(z: i32) -> String {
     match z {
         0 => String::new(),
         1 => "+".into(),
         -1 => "-".into(),
-        z if z > 0 => format!("{z}+"),
-        z => format!("{}-", -z),
+        z if z > 0 => format!("^{z}+"),
+        z => format!("^{}-", -z),
     }
 }

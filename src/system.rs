@@ -584,9 +584,11 @@ impl System {
         self.components.iter().position(|c| &*c.name == name)
     }
 
-    /// Index of the species named `name`.
+    /// Index of the species named `name`. A name written without the caret of the charge
+    /// notation ("CO32-" for "CO3^2-", "CaHCO3^+" for "CaHCO3+") finds the species too.
     pub fn species_index(&self, name: &str) -> Option<usize> {
-        self.species.iter().position(|s| &*s.name == name)
+        (self.species.iter().position(|s| &*s.name == name))
+            .or_else(|| (self.species.iter()).position(|s| crate::protolyte::species_name_eq(&s.name, name)))
     }
 
     /// Sets the total of component `index` (mol/kg). Refuses H⁺ (index 0), an index out of

@@ -148,7 +148,7 @@ impl Warning {
     }
 }
 
-/// "phosphate step 2 (H2PO4- → HPO42- + H+)" or the complex's name.
+/// "phosphate step 2 (H2PO4- → HPO4^2- + H+)" or the complex's name.
 fn reaction_label(name: &str, step: &Option<(usize, (String, String))>) -> String {
     match step {
         Some((k, (acid, base))) => format!("{name} step {k} ({acid} → {base} + H+)"),

@@ -237,8 +237,8 @@ fn per_form_ion_sizes_reach_the_species() {
     let sys = r.compile(&conditions(ActivityModel::ExtendedDebyeHuckel)).unwrap();
     let size = |n: &str| sys.species().iter().find(|s| &*s.name == n).unwrap().ion_size_angstrom;
     assert_eq!(size("H2PO4-"), 4.5);
-    assert_eq!(size("HPO42-"), 4.0);
-    assert_eq!(size("PO43-"), 4.0);
+    assert_eq!(size("HPO4^2-"), 4.0);
+    assert_eq!(size("PO4^3-"), 4.0);
 }
 
 #[test]

@@ -181,7 +181,7 @@ fn structured_information_for_a_family() {
     assert_eq!(pk, [2.148, 7.198, 12.35]);
     assert_eq!(info.steps[0].dh_kj_per_mol, Some(-8.0));
     let names: Vec<&str> = info.forms.iter().map(|f| f.name.as_str()).collect();
-    assert_eq!(names, ["H3PO4", "H2PO4-", "HPO42-", "PO43-"]);
+    assert_eq!(names, ["H3PO4", "H2PO4-", "HPO4^2-", "PO4^3-"]);
     let charges: Vec<i32> = info.forms.iter().map(|f| f.charge).collect();
     assert_eq!(charges, [0, -1, -2, -3]);
     // H3PO4 97.994 g/mol from the IUPAC 2021 abridged atomic weights.

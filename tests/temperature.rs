@@ -398,7 +398,7 @@ fn warnings_name_the_step_and_the_missing_datum() {
     );
 
     let eq = solve(&demo_recipe(true), 60.0, ActivityModel::Davies);
-    let step2 = Some((2, "H2Dm-".to_string(), "HDm2-".to_string()));
+    let step2 = Some((2, "H2Dm-".to_string(), "HDm^2-".to_string()));
     assert_eq!(
         temperature_warnings(&eq),
         (

@@ -1393,7 +1393,15 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
             };
             writeln!(out, "          source: {}{memo}", e.source)?;
         }
-        writeln!(out, "{} entries", entries.len() + phases.len())
+        writeln!(out, "{} entries", entries.len() + phases.len())?;
+        // Nothing contains the query: name the closest entry, as a misspelt name elsewhere does.
+        match query
+            .filter(|_| entries.is_empty() && phases.is_empty())
+            .and_then(|q| cat.closest(q))
+        {
+            Some(e) => writeln!(out, "did you mean `{}` ({})?", e.name, e.kind.name()),
+            None => Ok(()),
+        }
     };
     w(out).map_err(output_failure)?;
     Ok(EXIT_OK)

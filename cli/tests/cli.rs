@@ -58,6 +58,53 @@ fn solve_prints_a_table() {
     assert!(out.contains("carbonate"));
 }
 
+/// Species names: one charge notation in the table, and a recipe written with the former
+/// spellings of complex names ("CaOH^+") still reads.
+#[test]
+fn solve_shows_one_charge_notation_and_reads_former_spellings() {
+    let o = protolyte(&["solve", "examples/pool_water.toml"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    for name in ["CO3^2-", "Ca^2+", "CaHCO3+", "CaOH+", "B(OH)4-", "B(OH)3"] {
+        assert!(
+            out.lines().any(|l| l.starts_with(&format!("{name} "))),
+            "{name} missing:\n{out}"
+        );
+    }
+    assert!(
+        !out.contains("(H1)") && !out.contains("^+") && !out.contains("CO32-"),
+        "{out}"
+    );
+
+    let recipe = temp_file(
+        "former_spellings.toml",
+        "format = \"protolyte-recipe/1\"\ncomplexes = [\"CaOH^+\", \"CaHCO3^+\"]\n\n[[reagents]]\nreagent = \"calcium chloride\"\nmillimolar = 1.0\n\n[[reagents]]\nreagent = \"sodium bicarbonate\"\nmillimolar = 1.0\n",
+    );
+    let o = protolyte(&["solve", "--json", recipe.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let r: SolveResult = serde_json::from_str(&stdout(&o)).unwrap();
+    let names: Vec<&str> = r.species.iter().map(|s| s.name.as_str()).collect();
+    assert!(names.contains(&"CaOH+") && names.contains(&"CaHCO3+"), "{names:?}");
+
+    // `data` with a query nothing contains names the closest entry.
+    let o = protolyte(&["data", "calcum"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(
+        stdout(&o).contains("0 entries\ndid you mean `calcium` (ion)?"),
+        "{}",
+        stdout(&o)
+    );
+
+    // A misspelt complex gets a suggestion.
+    let recipe = temp_file(
+        "misspelt_complex.toml",
+        "format = \"protolyte-recipe/1\"\ncomplexes = [\"CaHC03+\"]\n\n[[reagents]]\nreagent = \"calcium chloride\"\nmillimolar = 1.0\n",
+    );
+    let o = protolyte(&["solve", recipe.to_str().unwrap()]);
+    assert_ne!(o.status.code(), Some(0));
+    assert!(stderr(&o).contains("did you mean `CaHCO3+`?"), "{}", stderr(&o));
+}
+
 #[test]
 fn solve_json_and_stdin_and_toml_agree() {
     let o = protolyte(&["solve", "--json", "examples/hatchery_makeup.json"]);

@@ -79,35 +79,44 @@ pub const INTERACTION_COEFFICIENTS: &[InteractionCoefficient] = &[
     eps("K+", "NO3-", -0.11, 0.04, NEA_B4),
     eps("NH4+", "Cl-", -0.01, 0.01, NEA_B4),
     // alkaline-earth metals
-    eps("Mg2+", "Cl-", 0.19, 0.02, NEA_B4),
-    eps("Mg2+", "ClO4-", 0.33, 0.03, NEA_B4),
-    eps("Ca2+", "Cl-", 0.14, 0.01, NEA_B4),
-    eps("Ca2+", "ClO4-", 0.27, 0.03, NEA_B4),
+    eps("Mg^2+", "Cl-", 0.19, 0.02, NEA_B4),
+    eps("Mg^2+", "ClO4-", 0.33, 0.03, NEA_B4),
+    eps("Ca^2+", "Cl-", 0.14, 0.01, NEA_B4),
+    eps("Ca^2+", "ClO4-", 0.27, 0.03, NEA_B4),
     // anions with the alkali metals
     eps("Li+", "OH-", -0.02, 0.03, NEA_B5),
     eps("Na+", "OH-", 0.04, 0.01, NEA_B5),
     eps("K+", "OH-", 0.09, 0.01, NEA_B5),
     eps("Na+", "F-", 0.02, 0.02, NEA_B5),
     eps("Na+", "HSO4-", -0.01, 0.02, NEA_B5),
-    eps("Na+", "SO42-", -0.12, 0.06, NEA_B5),
-    eps("K+", "SO42-", -0.06, 0.02, NEA_B5),
+    eps("Na+", "SO4^2-", -0.12, 0.06, NEA_B5),
+    eps("K+", "SO4^2-", -0.06, 0.02, NEA_B5),
     eps("Na+", "HCO3-", 0.00, 0.02, NEA_B5),
     eps("K+", "HCO3-", -0.06, 0.05, NEA_B5),
-    eps("Na+", "CO32-", -0.08, 0.03, NEA_B5),
-    eps("K+", "CO32-", 0.02, 0.01, NEA_B5),
+    eps("Na+", "CO3^2-", -0.08, 0.03, NEA_B5),
+    eps("K+", "CO3^2-", 0.02, 0.01, NEA_B5),
     eps("Na+", "H2PO4-", -0.08, 0.04, NEA_B5),
     eps("K+", "H2PO4-", -0.14, 0.04, NEA_B5),
-    eps("Na+", "HPO42-", -0.15, 0.06, NEA_B5),
-    eps("Na+", "PO43-", -0.25, 0.03, NEA_B5),
+    eps("Na+", "HPO4^2-", -0.15, 0.06, NEA_B5),
+    eps("Na+", "PO4^3-", -0.25, 0.03, NEA_B5),
     eps("Na+", "C2H3O2-", 0.08, 0.01, CIAVATTA),
     eps("K+", "C2H3O2-", 0.09, 0.01, CIAVATTA),
 ];
 
 /// ε(a, b) from the built-in table in either order, or `None` when the pair is not listed.
+/// Names are species names ("Ca^2+", "Cl-"); one written without the caret ("Ca2+") is
+/// found too.
 pub fn interaction_coefficient(a: &str, b: &str) -> Option<&'static InteractionCoefficient> {
-    INTERACTION_COEFFICIENTS
-        .iter()
-        .find(|e| (e.cation == a && e.anion == b) || (e.cation == b && e.anion == a))
+    let found = |same: fn(&str, &str) -> bool| {
+        (INTERACTION_COEFFICIENTS.iter())
+            .find(|e| (same(e.cation, a) && same(e.anion, b)) || (same(e.cation, b) && same(e.anion, a)))
+    };
+    tabulated(a, b).or_else(|| found(crate::protolyte::species_name_eq))
+}
+
+/// ε(a, b) for names exactly as the table writes them (the library's own species names).
+fn tabulated(a: &str, b: &str) -> Option<&'static InteractionCoefficient> {
+    (INTERACTION_COEFFICIENTS.iter()).find(|e| (e.cation == a && e.anion == b) || (e.cation == b && e.anion == a))
 }
 
 /// The interaction pairs of one system: species index pairs with ε (log₁₀ units, kg/mol),
@@ -134,7 +143,7 @@ impl Interactions {
                 if zb >= 0 || (na == "H+" && nb == "OH-") {
                     continue;
                 }
-                match interaction_coefficient(na, nb) {
+                match tabulated(na, nb) {
                     Some(e) => out.known.push((a, b, e.epsilon_kg_per_mol)),
                     None => out.unknown.push((a, b)),
                 }
@@ -175,7 +184,7 @@ impl Interactions {
     pub(crate) fn trace_log10_term<'a>(name: &str, z: i32, species: impl Iterator<Item = (&'a str, i32, f64)>) -> f64 {
         species
             .filter(|&(_, zj, _)| zj * z < 0)
-            .filter_map(|(nj, _, m)| interaction_coefficient(name, nj).map(|e| e.epsilon_kg_per_mol * m))
+            .filter_map(|(nj, _, m)| tabulated(name, nj).map(|e| e.epsilon_kg_per_mol * m))
             .sum()
     }
 }

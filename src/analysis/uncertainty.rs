@@ -98,10 +98,11 @@ pub(crate) enum Resolved {
 impl Resolved {
     /// Resolves `input` in `system`, naming it in the error when it is absent.
     pub(crate) fn of(system: &System, input: &Input) -> Result<Self> {
-        let missing = |kind: &'static str, name: &str| Error::UnknownName {
+        // The closest name of the system's own families, components or species, if close.
+        let missing = |kind: &'static str, name: &str, names: &mut dyn Iterator<Item = &str>| Error::UnknownName {
             kind,
             name: name.to_string(),
-            suggestion: None,
+            suggestion: crate::data::suggestion(name, names.map(|n| (n, n))),
         };
         match input {
             Input::Pka { family, step } => {
@@ -109,7 +110,10 @@ impl Resolved {
                     .families()
                     .iter()
                     .position(|f| f.protolyte.name() == family)
-                    .ok_or_else(|| missing("family in this system", family))?;
+                    .ok_or_else(|| {
+                        let names = &mut system.families().iter().map(|f| f.protolyte.name());
+                        missing("family in this system", family, names)
+                    })?;
                 if system.pka(f, *step).is_none() {
                     return Err(Error::InconsistentDefinition {
                         name: family.clone(),
@@ -120,11 +124,19 @@ impl Resolved {
             }
             Input::Total { component } => match system.component_index(component) {
                 Some(c) if c > 0 => Ok(Resolved::Param(Parameter::Total(c))),
-                _ => Err(missing("component in this system", component)),
+                _ => Err(missing(
+                    "component in this system",
+                    component,
+                    &mut system.components().iter().skip(1).map(|c| &*c.name),
+                )),
             },
             Input::Log10K { species } => match system.species_index(species) {
                 Some(s) if s > 0 => Ok(Resolved::Param(Parameter::Log10K(s))),
-                _ => Err(missing("species in this system", species)),
+                _ => Err(missing(
+                    "species in this system",
+                    species,
+                    &mut system.species().iter().skip(1).map(|s| &*s.name),
+                )),
             },
             Input::StrongBase => Ok(Resolved::Param(Parameter::StrongBase)),
         }
@@ -216,9 +228,12 @@ pub struct PropagatedUncertainty {
 }
 
 impl PropagatedUncertainty {
-    /// The standard deviation of log₁₀ molality of the species named `name`.
+    /// The standard deviation of log₁₀ molality of the species named `name` (a name written
+    /// in the former charge notation, "HPO42-" for "HPO4^2-", finds it too).
     pub fn log10_molal_sd(&self, name: &str) -> Option<f64> {
-        self.species.iter().find(|s| &*s.name == name).map(|s| s.log10_molal_sd)
+        (self.species.iter().find(|s| &*s.name == name))
+            .or_else(|| (self.species.iter()).find(|s| crate::protolyte::species_name_eq(&s.name, name)))
+            .map(|s| s.log10_molal_sd)
     }
 }
 

@@ -84,6 +84,8 @@ pub(crate) struct FamilyEntry {
     #[serde(default)]
     pub synonyms: Vec<String>,
     pub formula: Option<String>,
+    /// Display names of the forms, most protonated first.
+    pub form_names: Option<Vec<String>>,
     pub charge_most_protonated: i32,
     pub steps: Vec<StepEntry>,
     pub ion_size_angstrom: Option<f64>,

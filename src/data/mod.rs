@@ -236,8 +236,10 @@ fn namespace(kind: DataKind) -> &'static [DataKind] {
     }
 }
 
-/// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens.
-/// The document reader's name-collision checks use it too, so both compare alike.
+/// A name as the catalogue compares it: trimmed, lower case, single spaces, ASCII hyphens,
+/// and no caret before a final bare sign (so "CaHCO3^+", as complexes were written before
+/// the library used one charge notation, finds "CaHCO3+"; "AlF^2+" stays apart from
+/// "AlF2+"). The document reader's name-collision checks use it too, so both compare alike.
 pub(crate) fn normalize(s: &str) -> String {
     normalized(s).into_owned()
 }
@@ -265,6 +267,8 @@ fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names are printable ASCII with single spaces (every built-in one is, lower case
     // too): copy them as they are, or lower-case them in one allocation.
     let plain = s.bytes().all(|b| b.is_ascii_graphic() || b == b' ')
+        && !s.ends_with("^+")
+        && !s.ends_with("^-")
         && !s.starts_with(' ')
         && !s.ends_with(' ')
         && !s.contains("  ");
@@ -284,7 +288,50 @@ fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
         })
         .collect::<String>()
         .to_lowercase();
-    std::borrow::Cow::Owned(s.split_whitespace().collect::<Vec<_>>().join(" "))
+    std::borrow::Cow::Owned(without_caret_before_sign(
+        s.split_whitespace().collect::<Vec<_>>().join(" "),
+    ))
+}
+
+/// "cahco3^+" → "cahco3+": the caret before a final bare sign taken out.
+fn without_caret_before_sign(mut s: String) -> String {
+    if s.ends_with("^+") || s.ends_with("^-") {
+        s.remove(s.len() - 2);
+    }
+    s
+}
+
+/// The candidate to suggest for an unknown `name`: the value of the candidate whose key is
+/// closest to it by edit distance, if it is close (within a third of the name's length, at
+/// least 2). `candidates` are (key, shown name) pairs; keys are compared as [`normalize`]
+/// leaves them, and the first of equally close candidates wins. The search is bounded: a
+/// name longer than `MAX_SUGGEST_CHARS` gets no suggestion, and a key whose length alone
+/// puts it beyond the limit is not compared. Every "did you mean" of the library comes
+/// from here.
+pub(crate) fn closest<'a, T>(name: &str, candidates: impl IntoIterator<Item = (&'a str, T)>) -> Option<T> {
+    let key = normalized(name);
+    let key_len = key.chars().count();
+    if key_len > MAX_SUGGEST_CHARS {
+        return None;
+    }
+    let limit = (key_len / 3).max(2);
+    let mut best: Option<(usize, T)> = None;
+    for (k, shown) in candidates {
+        let k = normalized(k);
+        if k.chars().count().abs_diff(key_len) > limit {
+            continue;
+        }
+        let d = levenshtein(&k, &key);
+        if d <= limit && best.as_ref().is_none_or(|(bd, _)| d < *bd) {
+            best = Some((d, shown));
+        }
+    }
+    best.map(|(_, n)| n)
+}
+
+/// [`closest`] as the name to suggest.
+pub(crate) fn suggestion<'a>(name: &str, candidates: impl IntoIterator<Item = (&'a str, &'a str)>) -> Option<String> {
+    closest(name, candidates).map(str::to_string)
 }
 
 fn levenshtein(a: &str, b: &str) -> usize {
@@ -462,30 +509,13 @@ impl Catalog {
         if let Some(idx) = self.index.get(key.as_ref()).and_then(|a| a[kind as usize]) {
             return Ok(idx);
         }
-        // Not found: suggest the closest name or synonym, if it is close. The search is
-        // bounded: a name longer than MAX_SUGGEST_CHARS gets no suggestion, and a key whose
-        // length alone puts it beyond the limit is not compared.
-        let key_len = key.chars().count();
-        let limit = (key_len / 3).max(2);
-        let mut best: Option<(usize, &str)> = None;
-        if key_len <= MAX_SUGGEST_CHARS {
-            for info in self.info.iter().filter(|i| i.kind == kind) {
-                let d = info
-                    .keys
-                    .iter()
-                    .filter(|n| n.chars().count().abs_diff(key_len) <= limit)
-                    .map(|n| levenshtein(n, &key))
-                    .min()
-                    .unwrap_or(usize::MAX);
-                if best.is_none_or(|(bd, _)| d < bd) {
-                    best = Some((d, info.name.as_str()));
-                }
-            }
-        }
+        // Not found: suggest the closest name or synonym, if it is close.
+        let candidates = (self.info.iter().filter(|i| i.kind == kind))
+            .flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info.name.as_str())));
         Err(Error::UnknownName {
             kind: kind.name(),
             name: name.to_string(),
-            suggestion: best.filter(|(d, _)| *d <= limit).map(|(_, n)| n.to_string()),
+            suggestion: suggestion(&key, candidates),
         })
     }
 
@@ -534,6 +564,24 @@ impl Catalog {
     pub fn info(&self, kind: DataKind, name: &str) -> Result<&DataInfo> {
         let i = self.find(kind, name)?;
         Ok(&self.info[self.offset(kind) + i])
+    }
+
+    /// The entry of any kind whose name or synonym is closest to `name` by edit distance, if
+    /// it is close (the same search that gives an unknown name its "did you mean"): for a
+    /// query that [`search`](Self::search) finds nothing for.
+    ///
+    /// ```
+    /// use protolyte::Catalog;
+    /// let cat = Catalog::builtin();
+    /// assert!(cat.search("calcum").is_empty());
+    /// assert_eq!(cat.closest("calcum").map(|e| e.name.as_str()), Some("calcium"));
+    /// assert!(cat.closest("no such thing anywhere").is_none());
+    /// ```
+    pub fn closest(&self, name: &str) -> Option<&DataInfo> {
+        closest(
+            name,
+            (self.info.iter()).flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info))),
+        )
     }
 
     /// Entries whose name, a synonym or formula contains `query` (case-insensitive).
@@ -1195,6 +1243,13 @@ impl Catalog {
         if let Some(f) = &e.formula {
             p = p.with_formula(f);
         }
+        if let Some(names) = &e.form_names {
+            let names: Vec<&str> = names.iter().map(String::as_str).collect();
+            p = p.with_form_names(&names).map_err(|err| match err {
+                Error::InconsistentDefinition { reason, .. } => entry.error("form_names", reason),
+                other => entry.wrap(other),
+            })?;
+        }
         if let Some(a) = e.ion_size_angstrom {
             p = p.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;
         }
@@ -1625,7 +1680,11 @@ mod tests {
             })
             .collect::<String>()
             .to_lowercase();
-        s.split_whitespace().collect::<Vec<_>>().join(" ")
+        let s = s.split_whitespace().collect::<Vec<_>>().join(" ");
+        match s.strip_suffix("^+").or_else(|| s.strip_suffix("^-")) {
+            Some(body) => format!("{body}{}", &s[s.len() - 1..]),
+            None => s,
+        }
     }
 
     #[test]
@@ -1639,6 +1698,10 @@ mod tests {
             "a\u{0b}b",
             "a\u{1}B",
             "tris\u{2212}HCl",
+            "CaHCO3^+",
+            "NaSO4^-",
+            "CO3^2-",
+            "AlF^2+",
             "Éthanol",
             "",
             " ",

@@ -5,9 +5,7 @@
 use toml::Spanned;
 
 use super::format::{GasEntry, Located, SolidEntry};
-use super::{
-    Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, levenshtein, normalize, normalized, read_equation, read_parts,
-};
+use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_equation, read_parts};
 use crate::complex::ComplexPart;
 use crate::error::{Error, Result};
 use crate::phase::{Gas, Solid};
@@ -55,19 +53,12 @@ impl Catalog {
             return Ok(idx);
         }
         let entries = if gas { &self.gas_entries } else { &self.solid_entries };
-        let key_len = key.chars().count();
-        let limit = (key_len / 3).max(2);
-        let suggestion = if key_len <= super::MAX_SUGGEST_CHARS {
-            entries
-                .iter()
-                .flat_map(|e| std::iter::once(&e.name).chain(&e.synonyms).map(move |n| (n, &e.name)))
-                .map(|(n, canonical)| (levenshtein(&normalize(n), &key), canonical))
-                .filter(|(d, _)| *d <= limit)
-                .min_by_key(|(d, _)| *d)
-                .map(|(_, n)| n.clone())
-        } else {
-            None
-        };
+        let candidates = (entries.iter()).flat_map(|e| {
+            std::iter::once(&e.name)
+                .chain(&e.synonyms)
+                .map(move |n| (n.as_str(), e.name.as_str()))
+        });
+        let suggestion = super::suggestion(&key, candidates);
         Err(Error::UnknownName {
             kind: if gas { "gas" } else { "solid" },
             name: name.to_string(),
