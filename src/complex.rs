@@ -6,7 +6,9 @@ use crate::ion::Ion;
 use crate::limits::{MAX_COMPLEX_CHARGE, MAX_COMPLEX_PARTS, MAX_COMPLEX_PROTONS, MAX_PART_COUNT};
 use crate::protolyte::Protolyte;
 use crate::quantity::Temperature;
-use crate::vant_hoff::{LogKEquation, TemperatureBasis, TemperatureGap};
+use crate::vant_hoff::{
+    LogKEquation, TemperatureBasis, TemperatureGap, checked_enthalpy, checked_equation, checked_heat_capacity,
+};
 
 /// One building block of a complex.
 #[derive(Debug, Clone, PartialEq)]
@@ -163,29 +165,18 @@ impl Complex {
 
     /// Sets the formation enthalpy ΔH° (kJ/mol) for the van't Hoff temperature correction.
     pub fn with_enthalpy_kj_per_mol(mut self, dh: f64) -> Result<Self> {
-        check_parameter(
-            &self.name,
-            "ΔH° (kJ/mol)",
-            dh,
-            -1000.0,
-            1000.0,
-            "must be finite and within ±1000",
-        )?;
-        self.dh_kj_per_mol = Some(dh);
+        self.dh_kj_per_mol = Some(checked_enthalpy(&self.name, dh)?);
         Ok(self)
     }
 
     /// Sets the heat-capacity change of formation ΔCp° (J/(mol·K)), used with ΔH°.
     pub fn with_heat_capacity_j_per_mol_k(mut self, dcp: f64) -> Result<Self> {
-        check_parameter(
+        self.dcp_j_per_mol_k = Some(checked_heat_capacity(
             &self.name,
-            "ΔCp° (J/(mol·K))",
             dcp,
-            -2000.0,
             2000.0,
             "must be finite and within ±2000",
-        )?;
-        self.dcp_j_per_mol_k = Some(dcp);
+        )?);
         Ok(self)
     }
 
@@ -209,17 +200,13 @@ impl Complex {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn with_log_k_equation(mut self, equation: LogKEquation) -> Result<Self> {
-        let at25 = equation.log10_k(Temperature::STANDARD);
-        if (at25 - self.log10_beta).abs() > 0.03 {
-            return Err(Error::InconsistentDefinition {
-                name: self.name.clone(),
-                reason: format!(
-                    "the log K equation gives log β {at25:.3} at 25 °C, the complex has {}",
-                    self.log10_beta
-                ),
-            });
-        }
-        self.equation = Some(equation);
+        self.equation = Some(checked_equation(
+            &self.name,
+            "log β ",
+            "complex",
+            self.log10_beta,
+            equation,
+        )?);
         Ok(self)
     }
 

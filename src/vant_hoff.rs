@@ -267,6 +267,45 @@ impl LogKEquation {
     }
 }
 
+/// ΔH° (kJ/mol) of the reaction of `name`, checked: finite and within ±1000.
+pub(crate) fn checked_enthalpy(name: &str, dh: f64) -> Result<f64> {
+    check_parameter(
+        name,
+        "ΔH° (kJ/mol)",
+        dh,
+        -1000.0,
+        1000.0,
+        "must be finite and within ±1000",
+    )?;
+    Ok(dh)
+}
+
+/// ΔCp° (J/(mol·K)) of the reaction of `name`, checked: finite and within ±`limit`.
+pub(crate) fn checked_heat_capacity(name: &str, dcp: f64, limit: f64, reason: &'static str) -> Result<f64> {
+    check_parameter(name, "ΔCp° (J/(mol·K))", dcp, -limit, limit, reason)?;
+    Ok(dcp)
+}
+
+/// An analytic log K(T) for the reaction of `name` (a `kind` whose 25 °C constant is
+/// `log10_k25`; `quantity` names it in the message, such as "log β " or ""), refused when
+/// the two differ at 25 °C by more than 0.03.
+pub(crate) fn checked_equation(
+    name: &str,
+    quantity: &str,
+    kind: &str,
+    log10_k25: f64,
+    equation: LogKEquation,
+) -> Result<LogKEquation> {
+    let at25 = equation.log10_k(Temperature::STANDARD);
+    if (at25 - log10_k25).abs() > 0.03 {
+        return Err(Error::InconsistentDefinition {
+            name: name.to_string(),
+            reason: format!("the log K equation gives {quantity}{at25:.3} at 25 °C, the {kind} has {log10_k25}"),
+        });
+    }
+    Ok(equation)
+}
+
 /// What is known about one reaction's temperature dependence, and so how log K(T) is
 /// computed.
 #[derive(Debug, Clone, Copy, PartialEq)]

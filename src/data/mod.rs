@@ -1142,6 +1142,30 @@ impl Catalog {
         Ok(())
     }
 
+    /// The analytic log K(T) of an entry with one reaction (a complex, solid or gas, named by
+    /// `kind`): refuses a `step`, reads the equation, and adds the equation's own citation to
+    /// `source` (as "; `label`: ...") and its `from_memory` to `from_memory`.
+    fn one_reaction_equation(
+        &self,
+        entry: &Entry,
+        q: &EquationEntry,
+        kind: &str,
+        label: &str,
+        source: &mut String,
+        from_memory: &mut bool,
+    ) -> Result<LogKEquation> {
+        if q.step.is_some() {
+            return Err(entry.error("log_k_equation.step", format!("a {kind} has one reaction: no step")));
+        }
+        let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
+        if q.source.is_some() || q.cite.is_some() {
+            let text = self.citation(entry, &q.source, &q.cite)?;
+            source.push_str(&format!("; {label}: {text}"));
+        }
+        *from_memory |= q.from_memory;
+        Ok(eq)
+    }
+
     /// The citation of an entry: its `source`, or the `[sources]` text its `cite` names.
     fn citation(&self, entry: &Entry, source: &Option<String>, cite: &Option<String>) -> Result<String> {
         match (source, cite) {
@@ -1466,19 +1490,12 @@ impl Catalog {
         }
         let (mut source, mut from_memory) = (source, e.from_memory);
         if let Some(q) = &e.log_k_equation {
-            if q.step.is_some() {
-                return Err(entry.error("log_k_equation.step", "a complex has one reaction: no step"));
-            }
-            let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
+            let eq =
+                self.one_reaction_equation(&entry, q, "complex", "log K(T) equation", &mut source, &mut from_memory)?;
             c = c
                 .with_log_k_equation(eq)
-                .map_err(|err| entry.error("log_k_equation", err))?;
-            if q.source.is_some() || q.cite.is_some() {
-                let text = self.citation(&entry, &q.source, &q.cite)?;
-                source.push_str(&format!("; log K(T) equation: {text}"));
-                c = c.with_source(&source);
-            }
-            from_memory |= q.from_memory;
+                .map_err(|err| entry.error("log_k_equation", err))?
+                .with_source(&source);
         }
         if let Some(a) = e.ion_size_angstrom {
             c = c.with_ion_size_angstrom(a).map_err(|err| entry.wrap(err))?;

@@ -5,7 +5,7 @@
 use toml::Spanned;
 
 use super::format::{GasEntry, Located, SolidEntry};
-use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_equation, read_parts};
+use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_parts};
 use crate::complex::ComplexPart;
 use crate::error::{Error, Result};
 use crate::phase::{Gas, Solid};
@@ -276,18 +276,11 @@ impl Catalog {
         }
         let (mut source, mut from_memory) = (source, e.from_memory);
         if let Some(q) = &e.log_k_equation {
-            if q.step.is_some() {
-                return Err(entry.error("log_k_equation.step", "a solid has one reaction: no step"));
-            }
-            let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
+            let eq =
+                self.one_reaction_equation(&entry, q, "solid", "log K(T) equation", &mut source, &mut from_memory)?;
             s = s
                 .with_log_k_equation(eq)
                 .map_err(|err| entry.error("log_k_equation", err))?;
-            if q.source.is_some() || q.cite.is_some() {
-                let text = self.citation(&entry, &q.source, &q.cite)?;
-                source.push_str(&format!("; log K(T) equation: {text}"));
-            }
-            from_memory |= q.from_memory;
         }
         let s = s.with_source(&source);
         let meta = Meta {
@@ -331,18 +324,11 @@ impl Catalog {
         }
         let (mut source, mut from_memory) = (source, e.from_memory);
         if let Some(q) = &e.log_k_equation {
-            if q.step.is_some() {
-                return Err(entry.error("log_k_equation.step", "a gas has one reaction: no step"));
-            }
-            let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
+            let eq =
+                self.one_reaction_equation(&entry, q, "gas", "log K_H(T) equation", &mut source, &mut from_memory)?;
             g = g
                 .with_log_k_equation(eq)
                 .map_err(|err| entry.error("log_k_equation", err))?;
-            if q.source.is_some() || q.cite.is_some() {
-                let text = self.citation(&entry, &q.source, &q.cite)?;
-                source.push_str(&format!("; log K_H(T) equation: {text}"));
-            }
-            from_memory |= q.from_memory;
         }
         let g = g.with_source(&source);
         let meta = Meta {

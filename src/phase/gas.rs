@@ -4,7 +4,9 @@
 use crate::error::{Error, Result, check_parameter};
 use crate::protolyte::Protolyte;
 use crate::quantity::Temperature;
-use crate::vant_hoff::{LogKEquation, TemperatureBasis, TemperatureGap};
+use crate::vant_hoff::{
+    LogKEquation, TemperatureBasis, TemperatureGap, checked_enthalpy, checked_equation, checked_heat_capacity,
+};
 
 /// A partial pressure, stored in bar. Henry's-law constants here refer to 1 bar; the gas is
 /// taken as ideal, so its fugacity equals its partial pressure (within about 0.5 % for CO₂ at
@@ -152,46 +154,25 @@ impl Gas {
 
     /// Sets ΔH° of dissolution (gas → aqueous form), kJ/mol.
     pub fn with_enthalpy_kj_per_mol(mut self, dh: f64) -> Result<Self> {
-        check_parameter(
-            &self.name,
-            "ΔH° (kJ/mol)",
-            dh,
-            -1000.0,
-            1000.0,
-            "must be finite and within ±1000",
-        )?;
-        self.dh_kj_per_mol = Some(dh);
+        self.dh_kj_per_mol = Some(checked_enthalpy(&self.name, dh)?);
         Ok(self)
     }
 
     /// Sets ΔCp° of dissolution, J/(mol·K).
     pub fn with_heat_capacity_j_per_mol_k(mut self, dcp: f64) -> Result<Self> {
-        check_parameter(
+        self.dcp_j_per_mol_k = Some(checked_heat_capacity(
             &self.name,
-            "ΔCp° (J/(mol·K))",
             dcp,
-            -5000.0,
             5000.0,
             "must be finite and within ±5000",
-        )?;
-        self.dcp_j_per_mol_k = Some(dcp);
+        )?);
         Ok(self)
     }
 
     /// Sets an analytic log₁₀ K_H(T); refuses one that differs from log K_H at 25 °C by
     /// more than 0.03.
     pub fn with_log_k_equation(mut self, equation: LogKEquation) -> Result<Self> {
-        let at25 = equation.log10_k(Temperature::STANDARD);
-        if (at25 - self.log10_kh).abs() > 0.03 {
-            return Err(Error::InconsistentDefinition {
-                name: self.name.clone(),
-                reason: format!(
-                    "the log K equation gives {at25:.3} at 25 °C, the gas has {}",
-                    self.log10_kh
-                ),
-            });
-        }
-        self.equation = Some(equation);
+        self.equation = Some(checked_equation(&self.name, "", "gas", self.log10_kh, equation)?);
         Ok(self)
     }
 

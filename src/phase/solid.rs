@@ -6,7 +6,9 @@ use crate::complex::ComplexPart;
 use crate::error::{Error, Result, check_int, check_parameter};
 use crate::limits::{MAX_COMPLEX_PARTS, MAX_COMPLEX_PROTONS, MAX_PART_COUNT};
 use crate::quantity::Temperature;
-use crate::vant_hoff::{LogKEquation, TemperatureBasis, TemperatureGap};
+use crate::vant_hoff::{
+    LogKEquation, TemperatureBasis, TemperatureGap, checked_enthalpy, checked_equation, checked_heat_capacity,
+};
 
 /// The charge a part brings into solution.
 pub(crate) fn part_charge(p: &ComplexPart) -> i32 {
@@ -147,29 +149,18 @@ impl Solid {
 
     /// Sets the standard enthalpy ΔH° of the dissolution reaction (kJ/mol).
     pub fn with_enthalpy_kj_per_mol(mut self, dh: f64) -> Result<Self> {
-        check_parameter(
-            &self.name,
-            "ΔH° (kJ/mol)",
-            dh,
-            -1000.0,
-            1000.0,
-            "must be finite and within ±1000",
-        )?;
-        self.dh_kj_per_mol = Some(dh);
+        self.dh_kj_per_mol = Some(checked_enthalpy(&self.name, dh)?);
         Ok(self)
     }
 
     /// Sets the heat-capacity change ΔCp° of the dissolution reaction (J/(mol·K)).
     pub fn with_heat_capacity_j_per_mol_k(mut self, dcp: f64) -> Result<Self> {
-        check_parameter(
+        self.dcp_j_per_mol_k = Some(checked_heat_capacity(
             &self.name,
-            "ΔCp° (J/(mol·K))",
             dcp,
-            -5000.0,
             5000.0,
             "must be finite and within ±5000",
-        )?;
-        self.dcp_j_per_mol_k = Some(dcp);
+        )?);
         Ok(self)
     }
 
@@ -177,17 +168,7 @@ impl Solid {
     /// log K from 25 °C. Refuses one whose value at 25 °C differs from the solid's log K by
     /// more than 0.03.
     pub fn with_log_k_equation(mut self, equation: LogKEquation) -> Result<Self> {
-        let at25 = equation.log10_k(Temperature::STANDARD);
-        if (at25 - self.log10_k).abs() > 0.03 {
-            return Err(Error::InconsistentDefinition {
-                name: self.name.clone(),
-                reason: format!(
-                    "the log K equation gives {at25:.3} at 25 °C, the solid has {}",
-                    self.log10_k
-                ),
-            });
-        }
-        self.equation = Some(equation);
+        self.equation = Some(checked_equation(&self.name, "", "solid", self.log10_k, equation)?);
         Ok(self)
     }
 
