@@ -42,7 +42,7 @@ use plotters::prelude::*;
 use crate::analysis::{
     CapacityCurve, CapacityPeak, CapacityPoint, EquivalencePoint, Stepping, Titration, TitrationPoint,
 };
-use crate::{Amount, Conditions, Constituent, Ion, Reagent, Recipe, Solver, Volume};
+use crate::{Amount, Conditions, Constituent, Ion, Reagent, Recipe, Solver, System, Volume};
 
 /// Why a plot could not be made or written.
 #[derive(Debug, thiserror::Error)]
@@ -691,6 +691,65 @@ pub struct Distribution {
 const SWEEP_CATION: &str = "inert cation (plot sweep)";
 const SWEEP_ANION: &str = "inert anion (plot sweep)";
 
+/// The system of a pH sweep: `recipe` with an inert strong base and strong acid added at
+/// zero amount, so that setting the totals of their ions moves the pH.
+struct SweepSystem {
+    sys: System,
+    /// Component index of the sweep's cation and anion.
+    cation: usize,
+    anion: usize,
+    /// Their totals in the recipe itself (mol/kg).
+    c0: f64,
+    a0: f64,
+}
+
+/// Compiles the sweep system of `recipe` for `points` points (2..=2000); `name` names the
+/// sweep in an error.
+fn sweep_system(recipe: &Recipe, conditions: &Conditions, points: usize, name: &str) -> PlotResult<SweepSystem> {
+    if !(2..=2000).contains(&points) {
+        return Err(PlotError::InvalidOption {
+            option: "points",
+            reason: "must be within 2..=2000",
+        });
+    }
+    let base = Reagent::new(
+        "strong base (plot sweep)",
+        None,
+        vec![
+            (Constituent::Ion(Ion::new(SWEEP_CATION, 1)?), 1),
+            (Constituent::Hydroxide, 1),
+        ],
+    )?;
+    let acid = Reagent::new(
+        "strong acid (plot sweep)",
+        None,
+        vec![
+            (Constituent::Proton, 1),
+            (Constituent::Ion(Ion::new(SWEEP_ANION, -1)?), 1),
+        ],
+    )?;
+    let mut r = recipe.clone();
+    r.add(&base, Amount::molal(0.0))?.add(&acid, Amount::molal(0.0))?;
+    let sys = r.compile(conditions)?;
+    let missing = || crate::Error::InconsistentDefinition {
+        name: name.into(),
+        reason: "an inert sweep ion did not enter the system".into(),
+    };
+    let cation = sys.component_index(SWEEP_CATION).ok_or_else(missing)?;
+    let anion = sys.component_index(SWEEP_ANION).ok_or_else(missing)?;
+    let (c0, a0) = (
+        sys.components()[cation].total_molal,
+        sys.components()[anion].total_molal,
+    );
+    Ok(SweepSystem {
+        sys,
+        cation,
+        anion,
+        c0,
+        a0,
+    })
+}
+
 /// Brings `recipe` to `points` evenly spaced pH values from `from` to `to` with strong base or
 /// strong acid (inert monovalent counter-ions), and records the fraction of each family's
 /// total in each of its forms, as solved at `conditions` (so with activity corrections the
@@ -723,44 +782,16 @@ pub fn distribution(
     to: f64,
     points: usize,
 ) -> PlotResult<Distribution> {
-    if !(2..=2000).contains(&points) {
-        return Err(PlotError::InvalidOption {
-            option: "points",
-            reason: "must be within 2..=2000",
-        });
-    }
-    let base = Reagent::new(
-        "strong base (plot sweep)",
-        None,
-        vec![
-            (Constituent::Ion(Ion::new(SWEEP_CATION, 1)?), 1),
-            (Constituent::Hydroxide, 1),
-        ],
-    )?;
-    let acid = Reagent::new(
-        "strong acid (plot sweep)",
-        None,
-        vec![
-            (Constituent::Proton, 1),
-            (Constituent::Ion(Ion::new(SWEEP_ANION, -1)?), 1),
-        ],
-    )?;
-    let mut r = recipe.clone();
-    r.add(&base, Amount::molal(0.0))?.add(&acid, Amount::molal(0.0))?;
-    let mut sys = r.compile(conditions)?;
+    let SweepSystem {
+        mut sys,
+        cation,
+        anion,
+        c0,
+        a0,
+    } = sweep_system(recipe, conditions, points, "distribution sweep")?;
     if sys.families().is_empty() {
         return Err(PlotError::NoData("the recipe holds no acid–base family"));
     }
-    let missing = || crate::Error::InconsistentDefinition {
-        name: "distribution sweep".into(),
-        reason: "an inert sweep ion did not enter the system".into(),
-    };
-    let cation = sys.component_index(SWEEP_CATION).ok_or_else(missing)?;
-    let anion = sys.component_index(SWEEP_ANION).ok_or_else(missing)?;
-    let (c0, a0) = (
-        sys.components()[cation].total_molal,
-        sys.components()[anion].total_molal,
-    );
     let capacity = CapacityCurve::new(recipe, conditions)?;
     let solver = Solver::default();
     let mut families: Vec<FamilyDistribution> = sys
@@ -1428,41 +1459,13 @@ pub fn saturation(
     to: f64,
     points: usize,
 ) -> PlotResult<SaturationSweep> {
-    if !(2..=2000).contains(&points) {
-        return Err(PlotError::InvalidOption {
-            option: "points",
-            reason: "must be within 2..=2000",
-        });
-    }
-    let base = Reagent::new(
-        "strong base (plot sweep)",
-        None,
-        vec![
-            (Constituent::Ion(Ion::new(SWEEP_CATION, 1)?), 1),
-            (Constituent::Hydroxide, 1),
-        ],
-    )?;
-    let acid = Reagent::new(
-        "strong acid (plot sweep)",
-        None,
-        vec![
-            (Constituent::Proton, 1),
-            (Constituent::Ion(Ion::new(SWEEP_ANION, -1)?), 1),
-        ],
-    )?;
-    let mut r = recipe.clone();
-    r.add(&base, Amount::molal(0.0))?.add(&acid, Amount::molal(0.0))?;
-    let mut sys = r.compile(conditions)?;
-    let missing = || crate::Error::InconsistentDefinition {
-        name: "saturation sweep".into(),
-        reason: "an inert sweep ion did not enter the system".into(),
-    };
-    let cation = sys.component_index(SWEEP_CATION).ok_or_else(missing)?;
-    let anion = sys.component_index(SWEEP_ANION).ok_or_else(missing)?;
-    let (c0, a0) = (
-        sys.components()[cation].total_molal,
-        sys.components()[anion].total_molal,
-    );
+    let SweepSystem {
+        mut sys,
+        cation,
+        anion,
+        c0,
+        a0,
+    } = sweep_system(recipe, conditions, points, "saturation sweep")?;
     let capacity = CapacityCurve::new(recipe, conditions)?;
     let solver = Solver::default();
     let mut phs = Vec::with_capacity(points);
