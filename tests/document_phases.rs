@@ -270,3 +270,32 @@ fn the_ion_balance_of_an_analysis_closed_on_an_ion() {
             .is_none()
     );
 }
+
+#[test]
+fn hard_water_with_phosphate_and_every_solid_allowed_settles() {
+    // An invented softening case: calcium, magnesium, carbonate, sulfate and a trace of
+    // phosphate, with every catalogue solid allowed, open to air and at a fixed pH 12. Two
+    // calcium phosphates and dolomite are supersaturated at the start together; their
+    // relations with the fixed pCO2 (or pH) leave the first working set singular. The
+    // assemblage must still settle: no allowed solid above saturation, every present one at
+    // it, balances within the promise.
+    let base = r#""reagents": [
+        { "reagent": "calcium chloride", "millimolar": 5 },
+        { "reagent": "sodium carbonate", "millimolar": 5 },
+        { "reagent": "magnesium sulfate", "millimolar": 3 },
+        { "reagent": "disodium hydrogen phosphate", "millimolar": 0.1 },
+        { "reagent": "sodium hydroxide", "millimolar": 4 } ],
+        "allow_solids": "all""#;
+    for extra in [
+        r#""partial_pressures": [{ "gas": "CO2(g)", "microatm": 420 }]"#,
+        r#""fixed_ph": 12"#,
+    ] {
+        let doc = parse_json(&format!(r#"{{ "format": "protolyte-recipe/1", {base}, {extra} }}"#));
+        let eq = solve(&doc);
+        assert!(eq.residuals().max_relative() < 1e-10, "{extra}");
+        assert!(eq.solids().iter().all(|s| s.saturation_index < 1e-8), "{extra}");
+        let present: Vec<_> = eq.solids().iter().filter(|s| s.amount_molal > 0.0).collect();
+        assert!(!present.is_empty(), "{extra}");
+        assert!(present.iter().all(|s| s.saturation_index.abs() < 1e-8), "{extra}");
+    }
+}

@@ -474,18 +474,7 @@ fn nested(sys: &System, ev: &mut Evaluation, lay: &Layout, p: &mut Point, tol: f
             return Ok(Some(iters));
         }
         ev.hold_composition();
-        let mut next = g;
-        if let Some((ip, hp)) = prev {
-            let den = h - hp;
-            if den != 0.0 && den.is_finite() {
-                let sec = i - h * (i - ip) / den;
-                if sec.is_finite() && sec > 0.5 * g.min(i) && sec < 2.0 * g.max(i) {
-                    next = sec;
-                }
-            }
-        }
-        prev = Some((i, h));
-        i = next.clamp(I_MIN, I_MAX);
+        i = secant_on_ionic_strength(i, g, &mut prev);
     }
     Ok(None)
 }
@@ -945,7 +934,22 @@ fn assemblage(
     let mut iters = 0;
     let changes = 8 * allowed.len() + 8;
     for _ in 0..changes {
-        iters += constrained_convex(sys, ev, lay, p, working, lambda, totals, tol)?;
+        match constrained_convex(sys, ev, lay, p, working, lambda, totals, tol) {
+            Ok(n) => iters += n,
+            // A set of solids whose relations leave the system singular (two phases that
+            // fix the same activities together with the others, as two calcium phosphates
+            // with a carbonate under a fixed pCO₂ can): the solid that entered last leaves,
+            // and the loop below lets it back in only if it is still supersaturated.
+            Err(e @ Error::InfeasiblePhases { .. }) => {
+                let Some(last) = working.iter().rposition(|&w| sys.phases[w].is_inequality()) else {
+                    return Err(e);
+                };
+                lambda[working[last]] = 0.0;
+                working.remove(last);
+                continue;
+            }
+            Err(e) => return Err(e),
+        }
         // A solid whose amount came out negative dissolves completely: drop the worst.
         let negative = working
             .iter()
@@ -1299,18 +1303,7 @@ fn settle(
             return Ok(iters);
         }
         ev.hold_composition();
-        let mut next = g;
-        if let Some((ip, hp)) = prev {
-            let den = h - hp;
-            if den != 0.0 && den.is_finite() {
-                let sec = i - h * (i - ip) / den;
-                if sec.is_finite() && sec > 0.5 * g.min(i) && sec < 2.0 * g.max(i) {
-                    next = sec;
-                }
-            }
-        }
-        prev = Some((i, h));
-        i = next.clamp(I_MIN, I_MAX);
+        i = secant_on_ionic_strength(i, g, &mut prev);
     }
     Err(Error::NoConvergence {
         path: "general",
@@ -1517,4 +1510,23 @@ fn assemblage_holds(
             .iter()
             .filter(|w| !working.contains(w))
             .all(|&w| sys.phases[w].ln_q(&p.y) <= 1e-10)
+}
+
+/// The next ionic strength of the fixed point I ← g(I): the secant step on h = g − I through
+/// the previous point when it stays within a factor of 2 of I and g, else g itself; bounded
+/// to [I_MIN, I_MAX]. `prev` holds the previous (I, h) and is updated.
+fn secant_on_ionic_strength(i: f64, g: f64, prev: &mut Option<(f64, f64)>) -> f64 {
+    let h = g - i;
+    let mut next = g;
+    if let Some((ip, hp)) = *prev {
+        let den = h - hp;
+        if den != 0.0 && den.is_finite() {
+            let sec = i - h * (i - ip) / den;
+            if sec.is_finite() && sec > 0.5 * g.min(i) && sec < 2.0 * g.max(i) {
+                next = sec;
+            }
+        }
+    }
+    *prev = Some((i, h));
+    next.clamp(I_MIN, I_MAX)
 }
