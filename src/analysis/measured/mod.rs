@@ -68,7 +68,7 @@ pub enum MeasuredError {
         reason: String,
     },
     /// A parameter is outside its accepted range.
-    #[error("{what} = {value} is refused: {reason}")]
+    #[error("{what} = {} is refused: {reason}", crate::error::number(*value))]
     Parameter {
         /// The parameter.
         what: String,
