@@ -167,23 +167,7 @@ pub fn amount_for_ph(
     max_amount: Amount,
 ) -> Result<Amount> {
     let target = check_target(target_ph)?;
-    max_amount.validate(reagent.name())?;
-    let amax = max_amount.value();
-    if amax <= 0.0 {
-        return Err(Error::InvalidAmount {
-            what: format!("largest amount of {}", reagent.name()),
-            value: amax,
-            unit: if matches!(max_amount, Amount::Molar(_)) {
-                "mol/L"
-            } else {
-                "mol/kg"
-            },
-        });
-    }
-    let unit = |x: f64| match max_amount {
-        Amount::Molar(_) => Amount::molar(x),
-        Amount::Molal(_) => Amount::molal(x),
-    };
+    let (amax, unit) = search_bound(reagent, max_amount)?;
     // One system with the components of both; totals = base + x · per-unit.
     let mut both = recipe.clone();
     both.add(reagent, max_amount)?;
@@ -234,4 +218,27 @@ fn retotal(sys: &mut System, t0: &[f64], dt: &[f64], x: f64) -> Result<()> {
         sys.set_total_molal(c, (t0[c] + x * dt[c]).max(0.0))?;
     }
     Ok(())
+}
+
+/// The upper end of a search for an amount of `reagent`: `max_amount` checked (valid and
+/// positive), its value, and the constructor of an amount in the same unit.
+pub(crate) fn search_bound(reagent: &Reagent, max_amount: Amount) -> Result<(f64, impl Fn(f64) -> Amount)> {
+    max_amount.validate(reagent.name())?;
+    let amax = max_amount.value();
+    if amax <= 0.0 {
+        return Err(Error::InvalidAmount {
+            what: format!("largest amount of {}", reagent.name()),
+            value: amax,
+            unit: if matches!(max_amount, Amount::Molar(_)) {
+                "mol/L"
+            } else {
+                "mol/kg"
+            },
+        });
+    }
+    let unit = move |x: f64| match max_amount {
+        Amount::Molar(_) => Amount::molar(x),
+        Amount::Molal(_) => Amount::molal(x),
+    };
+    Ok((amax, unit))
 }

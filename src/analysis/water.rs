@@ -682,22 +682,7 @@ pub fn dose_for_target(
             (v, 1e-9 * v.max(1.0))
         }
     };
-    let amax = max_amount.value();
-    if amax <= 0.0 {
-        return Err(Error::InvalidAmount {
-            what: format!("largest amount of {}", reagent.name()),
-            value: amax,
-            unit: if matches!(max_amount, Amount::Molar(_)) {
-                "mol/L"
-            } else {
-                "mol/kg"
-            },
-        });
-    }
-    let unit = |x: f64| match max_amount {
-        Amount::Molar(_) => Amount::molar(x),
-        Amount::Molal(_) => Amount::molal(x),
-    };
+    let (amax, unit) = crate::analysis::target::search_bound(reagent, max_amount)?;
     let value_at = |x: f64| -> Result<f64> {
         let mut r = recipe.clone();
         if x > 0.0 {
