@@ -579,6 +579,38 @@ impl System {
         }
     }
 
+    /// The components one unit of `reagent` adds to, with its count of each (H⁺ and OH⁻
+    /// left out: they enter the charge balance, not a total). A part whose component is not
+    /// in this system is left out.
+    ///
+    /// ```
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe};
+    ///
+    /// let cat = Catalog::builtin();
+    /// let na2co3 = cat.reagent("sodium carbonate")?;
+    /// let mut r = Recipe::new();
+    /// r.add(&na2co3, Amount::millimolar(1.0))?;
+    /// let sys = r.compile(&Conditions::default())?;
+    /// let counts = sys.component_counts(&na2co3);
+    /// let na = sys.component_index("sodium").unwrap();
+    /// assert!(counts.contains(&(na, 2.0)));
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn component_counts(&self, reagent: &crate::reagent::Reagent) -> Vec<(usize, f64)> {
+        reagent
+            .parts()
+            .iter()
+            .filter_map(|(c, n)| {
+                let name = match c {
+                    Constituent::Form { protolyte, .. } => protolyte.name(),
+                    Constituent::Ion(ion) => ion.name(),
+                    Constituent::Proton | Constituent::Hydroxide => return None,
+                };
+                self.component_index(name).map(|i| (i, f64::from(*n)))
+            })
+            .collect()
+    }
+
     /// Index of the component named `name` (a family or an ion name, or "H+").
     pub fn component_index(&self, name: &str) -> Option<usize> {
         self.components.iter().position(|c| &*c.name == name)

@@ -9,7 +9,7 @@ use std::sync::OnceLock;
 
 use protolyte::analysis::CapacityCurve;
 use protolyte::document::{self, DesignDoc, DocumentError, FitDoc, FitResult, RecipeDoc, SolveResult, TitrationDoc};
-use protolyte::{Catalog, Conditions, Constituent, Equilibrium, Error, Solver, System};
+use protolyte::{Catalog, Conditions, Equilibrium, Error, Solver, System};
 
 /// The document kinds [`run_document`] runs.
 const KINDS: &str = "\"protolyte-recipe/1\", \"protolyte-titration/1\", \"protolyte-design/1\", \"protolyte-fit/1\", \"protolyte-calibration/1\", \"protolyte-measured/1\"";
@@ -258,20 +258,7 @@ impl Composition {
         let parts = recipe
             .entries()
             .iter()
-            .map(|e| {
-                e.reagent
-                    .parts()
-                    .iter()
-                    .filter_map(|(c, n)| {
-                        let name = match c {
-                            Constituent::Form { protolyte, .. } => protolyte.name(),
-                            Constituent::Ion(ion) => ion.name(),
-                            Constituent::Proton | Constituent::Hydroxide => return None,
-                        };
-                        system.component_index(name).map(|i| (i, f64::from(*n)))
-                    })
-                    .collect()
-            })
+            .map(|e| system.component_counts(&e.reagent))
             .collect();
         Ok(Composition {
             reagent_names: recipe.entries().iter().map(|e| e.reagent.name().to_string()).collect(),

@@ -28,7 +28,7 @@ use serde::{Deserialize, Serialize};
 use super::AmountLine;
 use super::input::{AmountForm, amount_of};
 use super::{DocumentError, RecipeDoc, SolveResult};
-use crate::{Catalog, Conditions, Constituent, Equilibrium, Error, Reagent, Solver, System};
+use crate::{Catalog, Conditions, Equilibrium, Error, Reagent, Solver, System};
 
 /// Lines per block (one rayon task, one warm-start chain).
 const BLOCK: usize = 1024;
@@ -279,22 +279,7 @@ impl Template {
             .compile(&conditions)
             .map_err(|e| super::field_error("reagents", e))?;
         let reagents: Vec<Reagent> = recipe.entries().iter().map(|e| e.reagent.clone()).collect();
-        let parts = reagents
-            .iter()
-            .map(|r| {
-                r.parts()
-                    .iter()
-                    .filter_map(|(c, n)| {
-                        let name = match c {
-                            Constituent::Form { protolyte, .. } => protolyte.name(),
-                            Constituent::Ion(ion) => ion.name(),
-                            Constituent::Proton | Constituent::Hydroxide => return None,
-                        };
-                        sys.component_index(name).map(|i| (i, f64::from(*n)))
-                    })
-                    .collect()
-            })
-            .collect();
+        let parts = reagents.iter().map(|r| sys.component_counts(r)).collect();
         let totals = vec![0.0; sys.components().len()];
         Ok((
             Template {
