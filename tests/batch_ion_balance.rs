@@ -41,11 +41,11 @@ fn batch_records_carry_the_ion_balance_of_a_water_analysis() {
         let recs = records(full);
         assert_eq!(recs.len(), 2);
         let e = recs[0].ion_balance_error_percent.unwrap();
-        assert!((e - expected).abs() < 1e-9, "{e} vs {expected}");
-        assert!(e < -1.0 && e > -1.6, "{e}");
+        assert!((e - expected).abs() < 1e-9, "{e} vs {expected}"); // same number two ways (batch record vs solve document), self-consistency; 1e-9 rounding tolerance
+        assert!(e < -1.0 && e > -1.6, "{e}"); // bounds around the 'about −1.3 %' of the invented analysis above, from the solve document test; chosen for this test
         if full {
             let b = recs[0].result.as_ref().unwrap().ion_balance.as_ref().unwrap();
-            assert!((b.error_percent - expected).abs() < 1e-9);
+            assert!((b.error_percent - expected).abs() < 1e-9); // same result two ways, self-consistency; 1e-9 rounding tolerance
         }
         // A recipe that is not a water analysis has none.
         assert!(recs[1].ion_balance_error_percent.is_none());

@@ -43,7 +43,7 @@ fn csv_errors_name_the_line_and_layouts_are_honoured() {
         ("v,ph\n\"1,4\n", 2),
     ] {
         match read_csv(text, &l) {
-            Err(MeasuredError::Line { line: got, .. }) => assert_eq!(got, line, "{text:?}"),
+            Err(MeasuredError::Line { line: got, .. }) => assert_eq!(got, line, "{text:?}"), // expected line numbers counted in the invented texts above, by construction
             other => panic!("{text:?}: {other:?}"),
         }
     }
@@ -57,7 +57,7 @@ fn csv_errors_name_the_line_and_layouts_are_honoured() {
         ..CsvLayout::default()
     };
     let c = read_csv(text, &layout).unwrap();
-    assert_eq!(c.points, vec![(1.0, 3.1), (2.0, 3.4)]);
+    assert_eq!(c.points, vec![(1.0, 3.1), (2.0, 3.4)]); // the values written in the invented text above, converted (same data two ways)
     // A named column that is not there.
     let bad = CsvLayout {
         signal: Column::Name("E".into()),
@@ -77,7 +77,7 @@ fn nernst_slope_and_temperature_compensation() {
     // ln 10·R·T/F with the CODATA 2018 exact R and F: 59.159 mV at 25 °C, 54.199 mV at 0 °C,
     // 61.540 mV at 37 °C (computed from the constants).
     for (c, s) in [(25.0, 59.159), (0.0, 54.199), (37.0, 61.540)] {
-        assert!((nernst_slope_mv(Temperature::celsius(c)) - s).abs() < 1e-3, "{c} °C");
+        assert!((nernst_slope_mv(Temperature::celsius(c)) - s).abs() < 1e-3, "{c} °C"); // computed from CODATA 2018 constants (above); 1e-3 mV tolerance (values given to 3 decimals)
     }
     // Three IUPAC primary buffers at 25 °C, pH 4.005, 6.865, 9.180 (Buck et al., Pure Appl.
     // Chem. 74 (2002) 2169; from memory), read by an invented electrode of 97 % slope and
@@ -93,8 +93,8 @@ fn nernst_slope_and_temperature_compensation() {
         })
         .collect();
     let cal = ElectrodeCalibration::from_buffers(&b, Temperature::celsius(25.0)).unwrap();
-    assert!((cal.slope_percent - 97.0).abs() < 0.1, "{}", cal.slope_percent);
-    assert!((cal.offset_mv + 12.0).abs() < 0.3, "{}", cal.offset_mv);
+    assert!((cal.slope_percent - 97.0).abs() < 0.1, "{}", cal.slope_percent); // recovers the invented 97 % slope (self-consistency); 0.1 tolerance for the invented reading errors
+    assert!((cal.offset_mv + 12.0).abs() < 0.3, "{}", cal.offset_mv); // recovers the invented −12 mV offset (self-consistency); 0.3 mV tolerance for the invented reading errors
     let (se_slope, se_offset) = cal.standard_errors.unwrap();
     assert!(se_slope > 0.0 && se_offset > 0.0);
     assert!(cal.warnings.is_empty());
@@ -105,7 +105,7 @@ fn nernst_slope_and_temperature_compensation() {
             Temperature::celsius(37.0),
         )
         .unwrap();
-    assert!((ph - 9.0).abs() < 1e-3, "{ph}");
+    assert!((ph - 9.0).abs() < 1e-3, "{ph}"); // the reading built for pH 9 at 37 °C is read back, self-consistency; 1e-3 tolerance
     // A worn electrode (88 %) is accepted with a warning; buffers too close are refused.
     let worn: Vec<BufferReading> = [4.005, 9.180]
         .iter()
@@ -115,7 +115,7 @@ fn nernst_slope_and_temperature_compensation() {
         })
         .collect();
     let cal = ElectrodeCalibration::from_buffers(&worn, Temperature::celsius(25.0)).unwrap();
-    assert_eq!(cal.warnings.len(), 1);
+    assert_eq!(cal.warnings.len(), 1); // one warning for the invented 88 % electrode
     let close = [
         BufferReading {
             ph: 7.0,
@@ -168,21 +168,21 @@ fn gran_lines_follow_grans_relations() {
     let before = g.before.unwrap();
     assert_eq!(before.fit.function, GranFunction::WeakAcidBuffer);
     assert!(
-        (before.fit.endpoint_ml - 20.0).abs() < 0.01,
+        (before.fit.endpoint_ml - 20.0).abs() < 0.01, // Ve = 20 mL by construction (Gran 1952, above); 0.01 mL tolerance chosen for this test
         "{}",
         before.fit.endpoint_ml
     );
     assert!(
-        (before.fit.slope / -10f64.powf(-4.76) - 1.0).abs() < 0.02,
+        (before.fit.slope / -10f64.powf(-4.76) - 1.0).abs() < 0.02, // slope −Ka (Gran 1952, above); 2 % tolerance chosen for this test
         "{}",
         before.fit.slope
     );
     let after = g.after.unwrap();
     assert_eq!(after.fit.function, GranFunction::ExcessBase);
-    assert!((after.fit.endpoint_ml - 20.0).abs() < 1e-3, "{}", after.fit.endpoint_ml);
+    assert!((after.fit.endpoint_ml - 20.0).abs() < 1e-3, "{}", after.fit.endpoint_ml); // Ve = 20 mL by construction (Gran 1952, above); 1e-3 mL tolerance chosen for this test
     // Slope c_b/Kw per mL: 0.1 mol/L / 1e-14 (Kw at 25 °C, common practice) = 1e13 per L, i.e.
     // 1e13 in (mL·10^pH) per mL.
-    assert!((after.fit.slope / 1e13 - 1.0).abs() < 0.02, "{}", after.fit.slope);
+    assert!((after.fit.slope / 1e13 - 1.0).abs() < 0.02, "{}", after.fit.slope); // c_b/Kw (Gran 1952; Kw common practice, above); 2 % tolerance chosen for this test
     // A strong acid: the excess-acid function is chosen before the endpoint.
     let data = curve(-2.0, 0.08, &volumes(20.0));
     let g = gran_both_sides(&data, 25.0, 20.0).unwrap();
@@ -200,7 +200,7 @@ fn smoothed_derivative_finds_the_endpoint_in_noise() {
         .collect();
     let e = smoothed_endpoints(&data, 2, 0.5).unwrap();
     assert_eq!(e.len(), 1, "{e:?}");
-    assert!((e[0].volume_ml - 20.0).abs() < 0.1, "{}", e[0].volume_ml);
+    assert!((e[0].volume_ml - 20.0).abs() < 0.1, "{}", e[0].volume_ml); // within one step (0.1 mL) of Ve = 20 mL, as stated above
 }
 
 #[test]
@@ -244,8 +244,8 @@ fn round_trip_recovers_the_content_and_covers_it() {
     let coverage = covered as f64 / n as f64;
     let mean = sum / n as f64;
     eprintln!("round trip: {n} replicates, mean {mean:.6} mol/L, k = 2 coverage {coverage:.3}");
-    assert!((mean / truth - 1.0).abs() < 5e-4, "mean {mean}");
-    assert!((0.92..=1.0).contains(&coverage), "coverage {coverage}");
+    assert!((mean / truth - 1.0).abs() < 5e-4, "mean {mean}"); // mean recovers the truth, self-consistency; 5e-4 relative tolerance chosen for this test
+    assert!((0.92..=1.0).contains(&coverage), "coverage {coverage}"); // about 95 % (GUM, above) less a margin of several binomial standard deviations, chosen for this test
 }
 
 #[test]
@@ -272,10 +272,10 @@ fn content_units_and_budget() {
         }),
     })
     .unwrap();
-    assert!((c.mol_per_l - 0.04).abs() < 1e-15);
-    assert!((c.g_per_l - 3.6012).abs() < 1e-12);
-    assert!((c.g_per_100_ml - 0.36012).abs() < 1e-12);
-    assert!((c.percent_w_w.unwrap() - 18.006).abs() < 1e-9);
+    assert!((c.mol_per_l - 0.04).abs() < 1e-15); // computed above from the inputs (self-consistency); 1e-15 rounding tolerance
+    assert!((c.g_per_l - 3.6012).abs() < 1e-12); // computed above from the inputs (self-consistency); 1e-12 rounding tolerance
+    assert!((c.g_per_100_ml - 0.36012).abs() < 1e-12); // computed above from the inputs (self-consistency); 1e-12 rounding tolerance
+    assert!((c.percent_w_w.unwrap() - 18.006).abs() < 1e-9); // computed above from the inputs (self-consistency); 1e-9 rounding tolerance
     // GUM 5.1.6: relative uncertainties add in quadrature.
     let expected = ((0.01f64 / 20.0).powi(2)
         + (0.03f64 / 20.0).powi(2)
@@ -284,9 +284,9 @@ fn content_units_and_budget() {
         + (0.0001f64 / 5.0).powi(2)
         + (0.09f64 / 250.0).powi(2))
     .sqrt();
-    assert!((c.relative_standard_uncertainty - expected).abs() < 1e-15);
+    assert!((c.relative_standard_uncertainty - expected).abs() < 1e-15); // GUM 5.1.6 (above), same result two ways; 1e-15 rounding tolerance
     let shares: f64 = c.budget.iter().map(|b| b.share).sum();
-    assert!((shares - 1.0).abs() < 1e-12);
+    assert!((shares - 1.0).abs() < 1e-12); // budget shares sum to 1, by definition; 1e-12 rounding tolerance
     assert_eq!(c.budget[0].source, "titrant concentration");
     // Refused inputs are named.
     let mut bad = ContentInputs {

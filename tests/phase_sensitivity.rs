@@ -113,7 +113,7 @@ fn check(sys: &System, rows: &[&str]) -> f64 {
         let fd_ph = (pu - pd) / (2.0 * h);
         let an_ph = sens.dph(param).unwrap();
         let err = (an_ph - fd_ph).abs() / (1e-3 + fd_ph.abs());
-        assert!(err < 1e-4, "{param:?}: dpH analytic {an_ph} vs {fd_ph}");
+        assert!(err < 1e-4, "{param:?}: dpH analytic {an_ph} vs {fd_ph}"); // analytic vs finite differences, same result two ways; 1e-4 tolerance chosen for this test
         worst = worst.max(err);
         for s in 0..lu.len() {
             if eq.species()[s].molal < 1e-12 {
@@ -122,7 +122,7 @@ fn check(sys: &System, rows: &[&str]) -> f64 {
             let fd = (lu[s] - ld[s]) / (2.0 * h);
             let an = sens.dlog10_molal(s, param).unwrap();
             let err = (an - fd).abs() / (1e-3 + fd.abs());
-            assert!(err < 1e-4, "{param:?} species {s}: analytic {an} vs {fd}");
+            assert!(err < 1e-4, "{param:?} species {s}: analytic {an} vs {fd}"); // analytic vs finite differences, same result two ways; 1e-4 tolerance chosen for this test
             worst = worst.max(err);
         }
         for (j, &n) in rows.iter().enumerate() {
@@ -133,7 +133,7 @@ fn check(sys: &System, rows: &[&str]) -> f64 {
                 _ => au[j].abs().max(1e-9),
             };
             let err = (an - fd).abs() / (1e-3 * scale + fd.abs());
-            assert!(err < 1e-4, "{param:?} row {n}: analytic {an} vs {fd}");
+            assert!(err < 1e-4, "{param:?} row {n}: analytic {an} vs {fd}"); // analytic vs finite differences, same result two ways; 1e-4 tolerance chosen for this test
             worst = worst.max(err);
         }
     }
@@ -144,7 +144,7 @@ fn check(sys: &System, rows: &[&str]) -> f64 {
 fn calcite_present_matches_finite_differences() {
     let sys = calcite_water();
     let eq = sys.solve().unwrap();
-    assert!(eq.solid("calcite").unwrap().amount_molal > 1e-4);
+    assert!(eq.solid("calcite").unwrap().amount_molal > 1e-4); // 1e-4: calcite clearly present, bound chosen for this test
     let worst = check(&sys, &["calcite"]);
     eprintln!("calcite water: worst relative disagreement {worst:.2e}");
 }
@@ -162,7 +162,7 @@ fn open_co2_matches_finite_differences() {
         sens.dph(protolyte::Parameter::StrongBase).unwrap(),
         sens.dph(Parameter::Total(na)).unwrap(),
     );
-    assert!((a - b).abs() < 1e-9 * b.abs(), "{a} vs {b}");
+    assert!((a - b).abs() < 1e-9 * b.abs(), "{a} vs {b}"); // same result two ways (see comment above); 1e-9 relative tolerance
     assert!(a > 0.0);
     eprintln!("open CO2: worst relative disagreement {worst:.2e}");
 }
@@ -174,7 +174,7 @@ fn fixed_ph_matches_finite_differences() {
     let sens = eq.sensitivities(&sys).unwrap();
     // The pH is imposed: no parameter moves it.
     for c in 1..sys.components().len() {
-        assert!(sens.dph(Parameter::Total(c)).unwrap().abs() < 1e-12);
+        assert!(sens.dph(Parameter::Total(c)).unwrap().abs() < 1e-12); // imposed pH: zero derivative, by definition; 1e-12 rounding tolerance
     }
     let worst = check(&sys, &["pH"]);
     eprintln!("fixed pH: worst relative disagreement {worst:.2e}");
@@ -215,31 +215,31 @@ fn with_constants(lk: f64, lkh: f64) -> (System, f64, f64) {
 }
 
 #[test]
-fn solid_and_gas_constants_match_finite_differences() {
+fn solid_and_gas_constants_match_finite_differences() { // inputs near the catalogue's calcite and CO2 constants; the check is against finite differences, so any value serves
     let (lk, lkh) = (-8.48, -1.47);
     let (sys, _, amount) = with_constants(lk, lkh);
-    assert!(amount > 1e-4);
+    assert!(amount > 1e-4); // 1e-4: calcite clearly present, bound chosen for this test
     let sens = sys.solve().unwrap().sensitivities(&sys).unwrap();
     let h = 1e-5;
     let (_, pu, au) = with_constants(lk + h, lkh);
     let (_, pd, ad) = with_constants(lk - h, lkh);
     let (fd_ph, fd_amount) = ((pu - pd) / (2.0 * h), (au - ad) / (2.0 * h));
     let an = sens.dph_dphase_log10k("test calcite").unwrap();
-    assert!((an - fd_ph).abs() < 1e-4 * fd_ph.abs().max(1e-3), "{an} vs {fd_ph}");
+    assert!((an - fd_ph).abs() < 1e-4 * fd_ph.abs().max(1e-3), "{an} vs {fd_ph}"); // analytic vs finite differences, same result two ways; 1e-4 tolerance chosen for this test
     let an_amount = sens
         .dphase_amount_dphase_log10k("test calcite", "test calcite")
         .unwrap();
     assert!(
-        (an_amount - fd_amount).abs() < 1e-4 * fd_amount.abs(),
+        (an_amount - fd_amount).abs() < 1e-4 * fd_amount.abs(), // analytic vs finite differences, same result two ways; 1e-4 tolerance chosen for this test
         "{an_amount} vs {fd_amount}"
     );
     let (_, pu, _) = with_constants(lk, lkh + h);
     let (_, pd, _) = with_constants(lk, lkh - h);
     let fd = (pu - pd) / (2.0 * h);
     let an = sens.dph_dphase_log10k("CO2(g)").unwrap();
-    assert!((an - fd).abs() < 1e-4 * fd.abs().max(1e-3), "{an} vs {fd}");
+    assert!((an - fd).abs() < 1e-4 * fd.abs().max(1e-3), "{an} vs {fd}"); // analytic vs finite differences, same result two ways; 1e-4 tolerance chosen for this test
     // Aragonite, reported but not allowed to form: its constant has no effect.
-    assert_eq!(sens.dph_dphase_log10k("aragonite"), Some(0.0));
+    assert_eq!(sens.dph_dphase_log10k("aragonite"), Some(0.0)); // not allowed to form, so no effect: zero by definition
     // A name that is no row gives none.
     assert!(sens.dph_dphase_log10k("no such solid").is_none());
 }

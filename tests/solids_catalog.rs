@@ -34,7 +34,7 @@ fn charge_of_parts(cat: &Catalog, name: &str, parts: &[toml::Value]) -> i64 {
             continue;
         }
         let count = p.get("count").and_then(|c| c.as_integer()).unwrap_or(1);
-        assert!((1..=12).contains(&count), "{name}: part count {count}");
+        assert!((1..=12).contains(&count), "{name}: part count {count}"); // 1..=12: plausibility bound chosen for this test
         if let Some(ion) = p.get("ion").and_then(|v| v.as_str()) {
             let ion = cat.ion(ion).unwrap_or_else(|e| panic!("{name}: ion part {ion}: {e}"));
             z += count * i64::from(ion.charge());
@@ -56,7 +56,7 @@ fn the_solids_file_has_the_agreed_shape_and_size() {
     let (doc, list) = solids();
     assert_eq!(doc["format"].as_str(), Some("protolyte-catalog/1"));
     // Issue 9 asks for at least 25 solids, naming these.
-    assert!(list.len() >= 25, "{} solids", list.len());
+    assert!(list.len() >= 25, "{} solids", list.len()); // 25: lower bound on the number of entries in data/solids.toml, chosen for this test
     let names: BTreeSet<String> = list.iter().map(|s| s["name"].as_str().unwrap().to_string()).collect();
     assert_eq!(names.len(), list.len(), "duplicate solid names");
     for required in [
@@ -149,15 +149,15 @@ fn every_solid_names_its_source_and_has_a_molar_mass() {
                 sources.contains_key(c.as_str().unwrap()),
                 "{name}: cite key {c} not in [sources]"
             ),
-            (None, Some(src)) => assert!(src.as_str().unwrap().len() > 10, "{name}: source"),
+            (None, Some(src)) => assert!(src.as_str().unwrap().len() > 10, "{name}: source"), // 10 characters: plausibility bound chosen for this test
             _ => panic!("{name}: exactly one of cite and source"),
         }
         assert!(s["from_memory"].as_bool().is_some(), "{name}: from_memory");
         let formula = s["formula"].as_str().unwrap();
         let m = molar_mass_from_formula(formula, 0).unwrap_or_else(|e| panic!("{name}: formula {formula}: {e}"));
-        assert!(m > 1.0 && m < 2000.0, "{name}: molar mass {m}");
+        assert!(m > 1.0 && m < 2000.0, "{name}: molar mass {m}"); // 1–2000 g/mol: plausibility bounds chosen for this test
         let k = float(s, "log_k").unwrap_or_else(|| panic!("{name}: log_k"));
-        assert!(k.is_finite() && k.abs() < 100.0, "{name}: log_k {k}");
+        assert!(k.is_finite() && k.abs() < 100.0, "{name}: log_k {k}"); // 100: plausibility bound chosen for this test
     }
 }
 
@@ -178,7 +178,7 @@ fn equations_agree_with_the_25_degree_constants() {
             .iter()
             .map(|v| v.as_float().unwrap())
             .collect();
-        assert_eq!(c.len(), 5, "{name}");
+        assert_eq!(c.len(), 5, "{name}"); // five coefficients: the equation form in docs/catalog-format.md (same form as computed below)
         let r: Vec<f64> = eq["range_celsius"]
             .as_array()
             .unwrap()
@@ -186,17 +186,17 @@ fn equations_agree_with_the_25_degree_constants() {
             .map(|v| v.as_float().unwrap())
             .collect();
         assert!(r[0] <= 25.0 && 25.0 <= r[1], "{name}: range {r:?}");
-        let t = 298.15_f64;
+        let t = 298.15_f64; // 298.15 K = 25 °C, by definition
         let at = c[0] + c[1] * t + c[2] / t + c[3] * t.log10() + c[4] / (t * t);
         let k = float(s, "log_k").unwrap();
-        assert!((at - k).abs() <= 0.03, "{name}: equation {at} vs log_k {k}");
+        assert!((at - k).abs() <= 0.03, "{name}: equation {at} vs log_k {k}"); // 0.03: the rule of docs/catalog-format.md (comment above), self-consistency of the file
         if let Some(key) = eq.get("cite") {
             assert!(sources.contains_key(key.as_str().unwrap()), "{name}");
         } else {
             assert!(eq.get("source").is_some(), "{name}: equation source");
         }
     }
-    assert!(with_equation >= 10, "{with_equation} equations");
+    assert!(with_equation >= 10, "{with_equation} equations"); // 10: lower bound on the number of equations, chosen for this test
 }
 
 #[test]
@@ -215,11 +215,11 @@ fn the_enthalpy_agrees_with_the_equation_where_both_are_given() {
             .iter()
             .map(|v| v.as_float().unwrap())
             .collect();
-        let t = 298.15_f64;
+        let t = 298.15_f64; // 298.15 K = 25 °C, by definition
         let dlogk_dt = c[1] - c[2] / (t * t) + c[3] / (t * std::f64::consts::LN_10) - 2.0 * c[4] / (t * t * t);
-        let dh_eq = std::f64::consts::LN_10 * 8.314_462_618e-3 * t * t * dlogk_dt;
+        let dh_eq = std::f64::consts::LN_10 * 8.314_462_618e-3 * t * t * dlogk_dt; // gas constant R in kJ/(mol·K), the CODATA 2018 exact value (as named in tests/measured.rs)
         assert!(
-            (dh_eq - dh).abs() < 4.0,
+            (dh_eq - dh).abs() < 4.0, // 4 kJ/mol: the 'few kJ/mol' of the comment above, tolerance chosen for this test
             "{name}: ΔH° {dh} vs equation {dh_eq:.2} kJ/mol"
         );
     }
@@ -238,9 +238,9 @@ fn the_catalogue_loads_every_solid_of_the_file() {
         let name = s["name"].as_str().unwrap();
         let solid = cat.solid(name).unwrap_or_else(|e| panic!("{name}: {e}"));
         let k = float(s, "log_k").unwrap();
-        assert!((solid.log10_k() - k).abs() < 1e-12, "{name}");
+        assert!((solid.log10_k() - k).abs() < 1e-12, "{name}"); // same value two ways (file vs loaded solid); 1e-12 rounding tolerance
         assert!(
-            (solid.log10_k_at(t25) - k).abs() <= 0.03,
+            (solid.log10_k_at(t25) - k).abs() <= 0.03, // 0.03: the rule of docs/catalog-format.md, as in the test above
             "{name}: {}",
             solid.log10_k_at(t25)
         );

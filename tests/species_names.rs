@@ -64,7 +64,7 @@ fn every_built_in_name_writes_its_charge_in_one_notation() {
             _ => {}
         }
     }
-    assert!(seen > 200, "only {seen} names checked");
+    assert!(seen > 200, "only {seen} names checked"); // 200: lower bound on the catalogue's size, chosen for this test
     assert!(machine_made("borate(H1)") && machine_made("borate(H0)-"));
     assert!(!machine_made("(HOCH2CH2)2NH2+"));
 }
@@ -94,7 +94,7 @@ fn the_five_families_without_a_proton_prefix_have_their_forms_named() {
         .unwrap()
         .molar_mass_g_per_mol
         .unwrap();
-    assert!((ca - 40.078).abs() < 1e-9);
+    assert!((ca - 40.078).abs() < 1e-9); // IUPAC standard atomic weight of calcium (the source tests/water_analysis.rs names); 1e-9 rounding tolerance
 }
 
 #[test]

@@ -51,22 +51,22 @@ fn soda_ash_into_hard_water_precipitates_calcite() {
         .map(|p| p.equilibrium.solid("calcite").unwrap().amount_molal * (v0_ml + p.volume_ml))
         .collect();
     assert_eq!(formed[0], 0.0, "the acidified water starts undersaturated");
-    assert!(*formed.last().unwrap() > 0.05, "calcite forms: {formed:?}");
+    assert!(*formed.last().unwrap() > 0.05, "calcite forms: {formed:?}"); // 0.05 mmol: lower bound chosen for this test (scenario values, doc comment)
     assert!(
-        formed.windows(2).all(|w| w[1] >= w[0] - 1e-12),
+        formed.windows(2).all(|w| w[1] >= w[0] - 1e-12), // monotonic growth, invariant; 1e-12 rounding tolerance
         "the calcite formed never decreases: {formed:?}"
     );
     assert!(curve.windows(2).all(|w| w[1].ph > w[0].ph), "pH rises monotonically");
     for p in &curve {
         let eq = &p.equilibrium;
         // Mass balances over aqueous + solid hold (the residuals include the solid).
-        assert!(eq.residuals().max_relative() < 1e-9, "{:?}", eq.residuals());
+        assert!(eq.residuals().max_relative() < 1e-9, "{:?}", eq.residuals()); // solver residual tolerance chosen for this test
         // Calcium: dissolved + calcite = the diluted total.
         let total = t.system_at(Volume::milliliters(p.volume_ml)).unwrap().components()[ca].total_molal;
         let held = eq.dissolved_total_molal("calcium").unwrap() + eq.solid("calcite").unwrap().amount_molal;
-        assert!((held - total).abs() <= 1e-10 * total, "{held} vs {total}");
+        assert!((held - total).abs() <= 1e-10 * total, "{held} vs {total}"); // mass balance of calcium, by definition; 1e-10 relative rounding tolerance
         // Never supersaturated in an allowed solid.
-        assert!(eq.saturation_index("calcite").unwrap() <= 1e-8);
+        assert!(eq.saturation_index("calcite").unwrap() <= 1e-8); // equilibrium with a present solid: SI ≤ 0, by definition; 1e-8 tolerance
     }
     // The analytic slope against central differences, with calcite absent and present.
     let mut worst: f64 = 0.0;
@@ -74,7 +74,7 @@ fn soda_ash_into_hard_water_precipitates_calcite() {
         let fd = fd_slope(&t, p.volume_ml);
         let err = (p.dph_dv_per_ml - fd).abs() / fd.abs().max(1e-3);
         assert!(
-            err < 1e-4,
+            err < 1e-4, // analytic vs central difference, same result two ways; 1e-4 tolerance chosen for this test
             "at {} mL: analytic {} vs {fd}",
             p.volume_ml,
             p.dph_dv_per_ml
@@ -107,7 +107,7 @@ fn adaptive_curve_through_the_appearance_of_calcite() {
     // Each point equals a cold solve at its volume (the warm start changes nothing).
     for p in curve.iter().step_by(5) {
         let cold = t.ph_at(Volume::milliliters(p.volume_ml)).unwrap();
-        assert!((cold - p.ph).abs() < 1e-9, "{} vs {cold}", p.ph);
+        assert!((cold - p.ph).abs() < 1e-9, "{} vs {cold}", p.ph); // warm vs cold solve, same result two ways; 1e-9 tolerance
     }
 }
 
@@ -131,18 +131,18 @@ fn open_co2_titration() {
         let eq = &p.equilibrium;
         let g = eq.gas("CO2(g)").unwrap();
         assert!(g.fixed);
-        assert!((g.partial_pressure.bar() / Pressure::microatm(420.0).bar() - 1.0).abs() < 1e-9);
-        assert!(eq.residuals().max_relative() < 1e-9, "{:?}", eq.residuals());
+        assert!((g.partial_pressure.bar() / Pressure::microatm(420.0).bar() - 1.0).abs() < 1e-9); // the imposed 420 µatm (scenario value) is kept, by definition; 1e-9 tolerance
+        assert!(eq.residuals().max_relative() < 1e-9, "{:?}", eq.residuals()); // solver residual tolerance chosen for this test
     }
     // Past the equivalence (10 mL) the CO₂ taken up from the air is given back: the DIC at
     // the end is the one of water at 420 µatm, far below that of the start.
-    assert!(curve.last().unwrap().equilibrium.dic_molal() < 0.1 * curve[0].equilibrium.dic_molal());
+    assert!(curve.last().unwrap().equilibrium.dic_molal() < 0.1 * curve[0].equilibrium.dic_molal()); // factor 0.1: margin chosen for this test
     let mut worst: f64 = 0.0;
     for p in curve.iter().skip(1).step_by(3) {
         let fd = fd_slope(&t, p.volume_ml);
         let err = (p.dph_dv_per_ml - fd).abs() / fd.abs().max(1e-3);
         assert!(
-            err < 1e-4,
+            err < 1e-4, // analytic vs central difference, same result two ways; 1e-4 tolerance chosen for this test
             "at {} mL: analytic {} vs {fd}",
             p.volume_ml,
             p.dph_dv_per_ml
@@ -158,7 +158,7 @@ fn target_ph_searches_with_calcite_forming() {
     let t = hard_water_with_soda_ash();
     let v = t.volume_for_ph(8.3, Volume::milliliters(10.0)).unwrap();
     let p = t.point(v, None).unwrap();
-    assert!((p.ph - 8.3).abs() < 1e-8, "{}", p.ph);
+    assert!((p.ph - 8.3).abs() < 1e-8, "{}", p.ph); // target pH 8.3 is the requested one (scenario value): search hits its target, self-consistency; 1e-8 tolerance
     // Lime dose to pH 9.5 for the same water, calcite allowed.
     let cat = Catalog::builtin();
     let mut water = Recipe::new();
@@ -174,7 +174,7 @@ fn target_ph_searches_with_calcite_forming() {
     let mut check = water.clone();
     check.add(&lime, dose).unwrap();
     let eq = check.compile(&davies()).unwrap().solve().unwrap();
-    assert!((eq.ph() - 9.5).abs() < 1e-8, "{}", eq.ph());
+    assert!((eq.ph() - 9.5).abs() < 1e-8, "{}", eq.ph()); // target pH 9.5 is the requested one (scenario value): self-consistency; 1e-8 tolerance
     assert!(
         eq.solid("calcite").unwrap().amount_molal > 0.0,
         "lime softening precipitates calcite"

@@ -20,9 +20,9 @@ def test_titration_endpoints():
     t = pl.titrate(acid(), 20.0, base(), 30.0, points=61)
     # 2.0 mmol acid, 0.1 mol/L base: equivalence at 20.0 mL (stoichiometry, common practice).
     assert len(t.equivalence_points) == 1
-    assert close(t.equivalence_points[0]["volume_ml"], 20.0, 1e-6)
+    assert close(t.equivalence_points[0]["volume_ml"], 20.0, 1e-6) # 1e-6 tolerance chosen for this test
     half = t.half_equivalence_points[0]
-    assert close(half["volume_ml"], 10.0, 1e-6)
+    assert close(half["volume_ml"], 10.0, 1e-6) # half of 20.0 mL, by definition; 1e-6 tolerance chosen for this test
     # Ideal solution: pH at half-equivalence within 0.01 of pKa 4.756 (common practice).
     assert close(half["ph"], 4.756, 0.01)
     assert np.all(np.diff(t.volume_ml) > 0) and np.all(np.diff(t.ph) > 0)
@@ -35,8 +35,8 @@ def test_capacity_sweep_peak_at_pka():
     assert beta.shape == (36,)
     # β of a weak acid peaks near pH = pKa at ln10·C/4 (Van Slyke; common practice).
     i = int(np.argmax(beta))
-    assert close(ph[i], 4.756, 0.1)
-    assert close(beta[i], math.log(10) * (0.1 / 0.99705) / 4, 0.002)
+    assert close(ph[i], 4.756, 0.1) # 0.1: the sweep's pH step, tolerance chosen for this test
+    assert close(beta[i], math.log(10) * (0.1 / 0.99705) / 4, 0.002) # Van Slyke peak (above), molal with water's density 0.99705 kg/L at 25 °C (Kell 1975, as named in test_solve.py); 0.002 tolerance chosen for this test
     assert np.all(np.diff(base_molal) > 0)
 
 
@@ -51,7 +51,7 @@ def test_design_check_solve_meets_target():
         "adjuster": {"reagent": "hydrochloric acid", "stock_molar": 1.0},
     }
     r = pl.design(doc)
-    assert abs(r["check_ph"] - 8.0) < 0.01
+    assert abs(r["check_ph"] - 8.0) < 0.01 # the requested target pH 8.0 is met, self-consistency; 0.01 tolerance chosen for this test
     assert r["lines"]
 
 
@@ -72,4 +72,4 @@ def test_fit_recovers_the_concentration_it_was_made_with():
     }
     r = pl.fit(doc)
     assert r["converged"]
-    assert close(r["estimates"][0]["value"], 0.1, 1e-6)
+    assert close(r["estimates"][0]["value"], 0.1, 1e-6) # the 0.1 mol/L the data were made with, self-consistency; 1e-6 tolerance chosen for this test
