@@ -90,7 +90,7 @@ fn hydroxide_and_carbonate_first_endpoint_has_no_break() {
     assert!(e[2].usable(), "{:?}", e[2].verdict);
     // The strong base's step is checked for overlap with the carbonate step.
     assert!(
-        matches!(e[0].flags[..], [BreakFlag::StepsClose { delta_pka }] if (delta_pka - (14.0 - 10.33)).abs() < 0.05), // 14.0 = pKw (Kw 1.0e-14, common practice, as below); 10.33 carbonate pKa2 as stated above (no source named); 0.05 tolerance chosen for this test
+        matches!(e[0].flags[..], [BreakFlag::StepsClose { delta_pka }] if (delta_pka - (14.0 - 10.33)).abs() < 0.05), // 14.0 = pKw (Kw 1.0e-14, common practice, as below); 10.33 carbonate pKa2 as the CRC Handbook's dissociation-constant table lists it (the catalogue holds Goldberg et al. 2002's 10.329; data/families.toml); 0.05 tolerance chosen for this test
         "{:?}",
         e[0].flags
     );

@@ -215,7 +215,8 @@ fn with_constants(lk: f64, lkh: f64) -> (System, f64, f64) {
 }
 
 #[test]
-fn solid_and_gas_constants_match_finite_differences() { // inputs near the catalogue's calcite and CO2 constants; the check is against finite differences, so any value serves
+fn solid_and_gas_constants_match_finite_differences() {
+    // inputs near the catalogue's calcite and CO2 constants; the check is against finite differences, so any value serves
     let (lk, lkh) = (-8.48, -1.47);
     let (sys, _, amount) = with_constants(lk, lkh);
     assert!(amount > 1e-4); // 1e-4: calcite clearly present, bound chosen for this test

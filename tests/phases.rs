@@ -221,7 +221,7 @@ fn closed_system_reports_partial_pressure_alkalinity_and_dic() {
     // Its pCO2 follows Henry's law from H2CO3*: a(H2CO3) / K_H.
     let h2co3 = eq.species_named("H2CO3").unwrap().activity;
     let p = eq.gas("CO2(g)").unwrap().partial_pressure.bar();
-    assert!((p / (h2co3 / 10f64.powf(-1.474)) - 1.0).abs() < 1e-12); // self-consistency with the catalogue's log K_H −1.474 (no source named in this file); 1e-12 tolerance
+    assert!((p / (h2co3 / 10f64.powf(-1.474)) - 1.0).abs() < 1e-12); // self-consistency with the catalogue's log K_H −1.474 (data/gases.toml: Plummer & Busenberg 1982 at 25 °C); 1e-12 tolerance
 }
 
 fn ideal() -> Conditions {

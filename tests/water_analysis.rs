@@ -260,7 +260,7 @@ fn precipitation_potential_is_half_the_alkalinity_lost() {
     assert!((p.mol_per_kg - lost_ca).abs() < 1e-9 * lost_ca, "{p:?} vs {lost_ca}"); // CCPP = ΔCa, by definition (above); 1e-9 relative tolerance
     assert!(after.saturation_index("calcite").unwrap().abs() < 1e-8); // saturated after settling, by definition; 1e-8 tolerance
     // mg/L as CaCO3: 100.09 g/mol, times the density of water at 25 °C.
-    assert!((p.mg_per_l_as_caco3 - p.mol_per_kg * 0.997_05 * 100_086.9).abs() < 1e-3 * p.mg_per_l_as_caco3); // unit conversion, self-consistency: 100 086.9 mg/mol CaCO3 from IUPAC atomic weights (above); 0.997 05 kg/L water density at 25 °C (source not named in this file); 1e-3 relative tolerance
+    assert!((p.mg_per_l_as_caco3 - p.mol_per_kg * 0.997_05 * 100_086.9).abs() < 1e-3 * p.mg_per_l_as_caco3); // unit conversion, self-consistency: 100 086.9 mg/mol CaCO3 from IUPAC atomic weights (above); 0.997 05 kg/L water density at 25 °C (G. S. Kell, J. Chem. Eng. Data 20 (1975) 97, from memory); 1e-3 relative tolerance
     assert!(p.ph_after < p.ph_before);
 }
 
