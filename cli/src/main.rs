@@ -327,10 +327,12 @@ fn solve(file: &Path, json: bool, plots: [Option<&Path>; 3], out: &mut impl Writ
         .compile(&conditions)
         .and_then(|s| s.solve())
         .map_err(|e| chem(&name, e))?;
-    let mut result = SolveResult::from_equilibrium(&eq).named(doc.name.clone());
-    if let Some(ion) = doc.charge_balance_on.as_deref().and_then(|n| catalog().ion(n).ok()) {
-        result = result.with_ion_balance(ion.charge());
-    }
+    // A water analysis closed on an ion: its ion balance as entered (the closing ion and the
+    // solids present read from the recipe, so that an ion of the document's own definitions
+    // and what precipitated are counted).
+    let result = SolveResult::from_equilibrium(&eq)
+        .named(doc.name.clone())
+        .with_ion_balance_of(&recipe);
     if json {
         write_json(out, &result)?;
     } else {

@@ -353,6 +353,11 @@ impl SolveResult {
     /// species of the result (complexes with their own charge, H⁺ and OH⁻ included), less
     /// the closing ion's addition; left unset without a closing ion or for a charge of 0.
     ///
+    /// A solid present in the result holds ions of the water as entered that this result's
+    /// species no longer show; without the solid's definition the balance cannot be judged,
+    /// so it is left unset then: use [`SolveResult::with_ion_balance_of`], which reads the
+    /// solids from the recipe.
+    ///
     /// ```
     /// use protolyte::document::{RecipeDoc, SolveResult, parse};
     /// use protolyte::Catalog;
@@ -370,7 +375,70 @@ impl SolveResult {
     /// assert!(b.error_percent < -1.0 && b.error_percent > -3.0, "{b:?}");
     /// # Ok::<(), Box<dyn std::error::Error>>(())
     /// ```
-    pub fn with_ion_balance(mut self, charge: i32) -> Self {
+    pub fn with_ion_balance(self, charge: i32) -> Self {
+        if self.solids.iter().any(|s| s.amount_mol_per_kg > 0.0) {
+            return self;
+        }
+        self.ion_balance_adding(charge, 0.0, 0.0)
+    }
+
+    /// The same result with the ion balance of the water as entered (see
+    /// [`SolveResult::with_ion_balance`]), the closing ion and its charge read from `recipe`'s
+    /// constraints, and what each solid present holds added back at the charges of its
+    /// dissolution parts (a solid's cations to the cations, its anions to the anions): the
+    /// water as entered, before anything precipitated. Left unset when the recipe closes the
+    /// charge balance on no ion, or when a solid present is not among the recipe's solids.
+    ///
+    /// ```
+    /// use protolyte::document::{RecipeDoc, SolveResult, parse};
+    /// use protolyte::Catalog;
+    /// // 5 mmol/kg calcium chloride (10 meq/kg of each sign) and 8 meq/kg of alkalinity, closed
+    /// // on sodium: as entered, 10 meq/kg of cations against 18 meq/kg of anions, −28.6 %,
+    /// // whether or not calcite precipitates from it.
+    /// let doc: RecipeDoc = parse(r#"{ "reagents": [ { "reagent": "calcium chloride", "molal": 0.005 } ],
+    ///   "fixed_alkalinity_meq_per_kg": 8.0, "fixed_dic_mmol_per_kg": 5.0,
+    ///   "charge_balance_on": "sodium", "allow_solids": ["calcite"] }"#, "a.json")?;
+    /// let (recipe, conditions) = doc.to_recipe(&Catalog::builtin())?;
+    /// let eq = recipe.compile(&conditions)?.solve()?;
+    /// assert!(eq.solid("calcite").unwrap().amount_molal > 1e-3);
+    /// let b = SolveResult::from_equilibrium(&eq).with_ion_balance_of(&recipe).ion_balance.unwrap();
+    /// assert!((b.error_percent - 100.0 * (10.0 - 18.0) / 28.0).abs() < 0.05, "{b:?}");
+    /// # Ok::<(), Box<dyn std::error::Error>>(())
+    /// ```
+    pub fn with_ion_balance_of(self, recipe: &crate::Recipe) -> Self {
+        let Some(charge) = recipe.constraints().iter().find_map(|c| match c {
+            crate::Constraint::ChargeBalanceOn(ion) => Some(ion.charge()),
+            _ => None,
+        }) else {
+            return self;
+        };
+        let (mut cations, mut anions) = (0.0, 0.0);
+        for s in self.solids.iter().filter(|s| s.amount_mol_per_kg > 0.0) {
+            // The allowed solid's own definition wins over a reported one of the same name,
+            // as in the solve.
+            let Some(solid) = recipe
+                .allowed_solids()
+                .iter()
+                .chain(recipe.reported_solids())
+                .find(|d| d.name() == s.name)
+            else {
+                return self;
+            };
+            for (part, n) in solid.parts() {
+                let q = f64::from(crate::phase::part_charge(part)) * f64::from(*n) * s.amount_mol_per_kg;
+                if q > 0.0 {
+                    cations += q;
+                } else {
+                    anions -= q;
+                }
+            }
+        }
+        self.ion_balance_adding(charge, cations, anions)
+    }
+
+    /// The ion balance of the species, less the closing ion's addition, plus `cations` and
+    /// `anions` (mol/kg of charge) held elsewhere.
+    fn ion_balance_adding(mut self, charge: i32, extra_cations: f64, extra_anions: f64) -> Self {
         let Some(added) = self.charge_balance_ion.as_ref().map(|c| c.added_mol_per_kg) else {
             return self;
         };
@@ -378,7 +446,7 @@ impl SolveResult {
             return self;
         }
         let z = f64::from(charge);
-        let (mut cations, mut anions) = (0.0, 0.0);
+        let (mut cations, mut anions) = (extra_cations, extra_anions);
         for s in &self.species {
             let q = f64::from(s.charge) * s.mol_per_kg;
             if q > 0.0 {
