@@ -55,3 +55,93 @@ fn the_ion_balance_without_solids_is_the_same_either_way() {
     let b = r.with_ion_balance_of(&recipe).ion_balance.unwrap();
     assert_eq!(a, b);
 }
+
+fn ideal() -> Conditions {
+    Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal)
+}
+
+/// A water analysis: 1 mmol/kg calcium chloride, DIC 2.2 mmol/kg, alkalinity 2.0 meq/kg,
+/// sodium closing the balance.
+fn analysis() -> Recipe {
+    let cat = Catalog::builtin();
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(1e-3))
+        .unwrap()
+        .fix_dic(2.2e-3)
+        .unwrap()
+        .fix_alkalinity(2.0e-3)
+        .unwrap()
+        .close_charge_balance_on(&cat.ion("sodium").unwrap())
+        .unwrap();
+    r
+}
+
+#[test]
+fn diluting_a_water_analysis_dilutes_its_dic_and_alkalinity() {
+    let d = analysis().diluted(10.0).unwrap();
+    let eq = d.compile(&ideal()).unwrap().solve().unwrap();
+    // Ten-fold dilution with pure water: every conserved total is a tenth (by definition of
+    // dilution); DIC and total alkalinity are conserved quantities.
+    assert!((eq.dic_molal() / 2.2e-4 - 1.0).abs() < 1e-9, "{}", eq.dic_molal());
+    assert!((eq.total_alkalinity_molal() / 2.0e-4 - 1.0).abs() < 1e-9);
+    assert!((eq.dissolved_total_molal("calcium").unwrap() / 1e-4 - 1.0).abs() < 1e-9);
+    // The sodium that closes the balance is a tenth of the undiluted water's.
+    let whole = analysis().compile(&ideal()).unwrap().solve().unwrap();
+    let (_, na) = whole.charge_balance_ion_added_molal().unwrap();
+    let (_, na10) = eq.charge_balance_ion_added_molal().unwrap();
+    assert!((na10 / (na / 10.0) - 1.0).abs() < 1e-9, "{na} {na10}");
+}
+
+#[test]
+fn mixing_water_analyses_mixes_their_dic_and_alkalinity() {
+    let cat = Catalog::builtin();
+    let mut other = Recipe::new();
+    other
+        .add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(3e-3))
+        .unwrap()
+        .fix_dic(4.2e-3)
+        .unwrap()
+        .fix_alkalinity(4.0e-3)
+        .unwrap()
+        .close_charge_balance_on(&cat.ion("sodium").unwrap())
+        .unwrap();
+    let m = Recipe::mix(&[(&analysis(), Volume::liters(1.0)), (&other, Volume::liters(3.0))]).unwrap();
+    let eq = m.compile(&ideal()).unwrap().solve().unwrap();
+    // Volume-weighted means (1:3, the mixing rule of Recipe::mix): DIC (2.2 + 3·4.2)/4 = 3.7,
+    // alkalinity (2.0 + 3·4.0)/4 = 3.5, calcium (1 + 3·3)/4 = 2.5 mmol/kg (worked by hand).
+    assert!((eq.dic_molal() / 3.7e-3 - 1.0).abs() < 1e-9, "{}", eq.dic_molal());
+    assert!((eq.total_alkalinity_molal() / 3.5e-3 - 1.0).abs() < 1e-9);
+    assert!((eq.dissolved_total_molal("calcium").unwrap() / 2.5e-3 - 1.0).abs() < 1e-9);
+}
+
+#[test]
+fn mixing_a_fixed_dic_with_a_carbonate_reagent_is_refused_not_guessed() {
+    let cat = Catalog::builtin();
+    let mut soda = Recipe::new();
+    soda.add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(1e-3))
+        .unwrap();
+    let Err(err) = Recipe::mix(&[(&analysis(), Volume::liters(1.0)), (&soda, Volume::liters(1.0))]) else {
+        panic!("mixed without knowing the DIC");
+    };
+    let text = err.to_string();
+    assert!(text.contains("DIC") && text.contains("carbonate"), "{text}");
+}
+
+#[test]
+fn mixing_with_pure_water_halves_a_fixed_dic() {
+    let m = Recipe::mix(&[
+        (&analysis(), Volume::liters(1.0)),
+        (&Recipe::new(), Volume::liters(1.0)),
+    ])
+    .unwrap();
+    assert!(
+        m.constraints().contains(&Constraint::Dic(1.1e-3)),
+        "{:?}",
+        m.constraints()
+    );
+    assert!(
+        m.constraints().contains(&Constraint::Alkalinity(1.0e-3)),
+        "{:?}",
+        m.constraints()
+    );
+}
