@@ -314,6 +314,84 @@ impl Recipe {
         Ok(self)
     }
 
+    /// Adds `amount` of `reagent` as a dose to a water: as [`Recipe::add`], and where the
+    /// recipe fixes its DIC or its total alkalinity (a water analysis entered as measured),
+    /// those are raised by what the dose brings, so that it counts: per mole of reagent, its
+    /// carbonate units for the DIC, and for the alkalinity its family forms' protons below the
+    /// reference level ([`ALKALINITY_REFERENCE_PKA`](crate::phase::ALKALINITY_REFERENCE_PKA))
+    /// and its OH⁻, less the protons above it and its H⁺. `conditions` gives the density of
+    /// water that turns a molar amount into mol/kg. Refuses what [`Recipe::add`] refuses and
+    /// a DIC or alkalinity the dose would take out of its range.
+    ///
+    /// ```
+    /// use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe, Temperature};
+    /// let cat = Catalog::builtin();
+    /// let ideal = Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal);
+    /// let mut water = Recipe::new();
+    /// water.fix_dic(2.2e-3)?.fix_alkalinity(2.0e-3)?.close_charge_balance_on(&cat.ion("sodium")?)?;
+    /// let mut dosed = water.clone();
+    /// dosed.add_dose(&cat.reagent("hydrochloric acid")?, Amount::molal(1e-3), &ideal)?;
+    /// let eq = dosed.compile(&ideal)?.solve()?;
+    /// // 1 mmol/kg of a strong acid takes 1 meq/kg of alkalinity (by definition).
+    /// assert!((eq.total_alkalinity_molal() - 1.0e-3).abs() < 1e-12);
+    /// assert!(eq.ph() < water.compile(&ideal)?.solve()?.ph());
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn add_dose(
+        &mut self,
+        reagent: &Reagent,
+        amount: Amount,
+        conditions: &crate::system::Conditions,
+    ) -> Result<&mut Self> {
+        use crate::reagent::Constituent;
+        amount.validate(reagent.name())?;
+        let fixes = self
+            .constraints
+            .iter()
+            .any(|c| matches!(c, Constraint::Dic(_) | Constraint::Alkalinity(_)));
+        if !fixes {
+            return self.add(reagent, amount);
+        }
+        let molal = amount.molal_value(crate::water::density_kg_per_l(conditions.temperature)?);
+        let (mut carbon, mut alkalinity) = (0.0, 0.0);
+        for (c, n) in reagent.parts() {
+            let n = f64::from(*n);
+            match c {
+                Constituent::Form { protolyte, protons } => {
+                    if protolyte.name() == "carbonate" {
+                        carbon += n;
+                    }
+                    alkalinity += n * (crate::phase::reference_protons(protolyte) as f64 - *protons as f64);
+                }
+                Constituent::Proton => alkalinity -= n,
+                Constituent::Hydroxide => alkalinity += n,
+                Constituent::Ion(_) => {}
+            }
+        }
+        let mut raised = self.constraints.clone();
+        for c in &mut raised {
+            match c {
+                Constraint::Dic(d) => {
+                    *d = crate::error::check_amount_max("DIC after the dose", *d + carbon * molal, "mol/kg")?;
+                }
+                Constraint::Alkalinity(a) => {
+                    *a = crate::error::check_parameter(
+                        "total alkalinity after the dose",
+                        "mol/kg",
+                        *a + alkalinity * molal,
+                        -100.0,
+                        100.0,
+                        "must be finite and within ±100",
+                    )?;
+                }
+                _ => {}
+            }
+        }
+        self.add(reagent, amount)?;
+        self.constraints = raised;
+        Ok(self)
+    }
+
     /// Adds `mass` of `reagent` dissolved and made up to `final_volume`. The reagent needs a
     /// molar mass.
     ///

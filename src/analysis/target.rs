@@ -168,6 +168,21 @@ pub fn amount_for_ph(
 ) -> Result<Amount> {
     let target = check_target(target_ph)?;
     let (amax, unit) = search_bound(reagent, max_amount)?;
+    // A water entered with a fixed DIC or alkalinity: the dose raises those constraints (see
+    // `Recipe::add_dose`), which the one-system search below would leave where they were.
+    if recipe
+        .constraints()
+        .iter()
+        .any(|c| matches!(c, crate::Constraint::Dic(_) | crate::Constraint::Alkalinity(_)))
+    {
+        return crate::analysis::water::dose_for_target(
+            recipe,
+            reagent,
+            conditions,
+            &crate::analysis::water::DoseTarget::Ph(target),
+            max_amount,
+        );
+    }
     // One system with the components of both; totals = base + x · per-unit.
     let mut both = recipe.clone();
     both.add(reagent, max_amount)?;

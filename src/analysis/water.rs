@@ -569,7 +569,9 @@ pub fn precipitation_potential(
     let mut excess = 1e-3;
     for _ in 0..6 {
         let mut offered = with.clone();
-        offered.add(&caco3, Amount::molal(excess))?;
+        // As a dose: a water entered with a fixed DIC and alkalinity gets the carbon and
+        // the alkalinity of the offered calcium carbonate too.
+        offered.add_dose(&caco3, Amount::molal(excess), conditions)?;
         let after = offered.compile(conditions)?.solve()?;
         let left = after.solid("calcite").map_or(0.0, |s| s.amount_molal);
         if left > 0.0 {
@@ -686,7 +688,7 @@ pub fn dose_for_target(
     let value_at = |x: f64| -> Result<f64> {
         let mut r = recipe.clone();
         if x > 0.0 {
-            r.add(reagent, unit(x))?;
+            r.add_dose(reagent, unit(x), conditions)?;
         }
         let sys = r.compile(conditions)?;
         let eq = sys.solve()?;

@@ -1,0 +1,81 @@
+//! Water analyses (Langelier index, precipitation potential, dose search) on waters entered
+//! in each of the library's ways, and at the edges of their inputs: regressions found in a
+//! review.
+//!
+//! Check values: a water entered as reagents and the same water entered as a measured
+//! analysis (DIC, alkalinity, closing ion) must give the same answer (self-consistency);
+//! published values are cited where used.
+
+use protolyte::analysis::water::{DoseTarget, dose_for_target, precipitation_potential};
+use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe, Temperature};
+
+fn ideal() -> Conditions {
+    Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal)
+}
+
+/// 1 mmol/kg calcium chloride, 2 mmol/kg sodium bicarbonate, 0.5 mmol/kg hydrochloric acid:
+/// an aggressive (calcite-undersaturated) water, as reagents.
+fn as_reagents(cat: &Catalog) -> Recipe {
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(1e-3))
+        .unwrap()
+        .add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(2e-3))
+        .unwrap()
+        .add(&cat.reagent("hydrochloric acid").unwrap(), Amount::molal(0.5e-3))
+        .unwrap();
+    r
+}
+
+/// The same water as a measured analysis: calcium and chloride as salts, DIC 2 mmol/kg,
+/// alkalinity Na + 2 Ca − Cl = 2 + 2 − 2.5 = 1.5 meq/kg (worked by hand), sodium closing the
+/// balance.
+fn as_analysis(cat: &Catalog) -> Recipe {
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(1e-3))
+        .unwrap()
+        .add(&cat.reagent("sodium chloride").unwrap(), Amount::molal(0.5e-3))
+        .unwrap()
+        .fix_dic(2e-3)
+        .unwrap()
+        .fix_alkalinity(1.5e-3)
+        .unwrap()
+        .close_charge_balance_on(&cat.ion("sodium").unwrap())
+        .unwrap();
+    r
+}
+
+#[test]
+fn the_two_entries_of_one_water_are_the_same_water() {
+    let cat = Catalog::builtin();
+    let a = as_reagents(&cat).compile(&ideal()).unwrap().solve().unwrap();
+    let b = as_analysis(&cat).compile(&ideal()).unwrap().solve().unwrap();
+    assert!((a.ph() - b.ph()).abs() < 1e-9, "{} {}", a.ph(), b.ph());
+    let (_, na) = b.charge_balance_ion_added_molal().unwrap();
+    // 2 mmol/kg sodium in the reagent water, 0.5 of it entered as sodium chloride.
+    assert!((na - 1.5e-3).abs() < 1e-12, "{na}");
+}
+
+#[test]
+fn precipitation_potential_of_an_analysis_equals_that_of_its_reagents() {
+    let cat = Catalog::builtin();
+    let a = precipitation_potential(&as_reagents(&cat), &ideal(), &cat).unwrap();
+    assert!(a.saturation_index_before < 0.0 && a.mol_per_kg < 0.0, "{a:?}");
+    let b = precipitation_potential(&as_analysis(&cat), &ideal(), &cat).unwrap();
+    assert!(
+        (b.mol_per_kg / a.mol_per_kg - 1.0).abs() < 1e-6,
+        "as analysis {b:?}\nas reagents {a:?}"
+    );
+    assert!((b.ph_after - a.ph_after).abs() < 1e-6);
+}
+
+#[test]
+fn a_dose_search_on_an_analysis_equals_that_on_its_reagents() {
+    let cat = Catalog::builtin();
+    let naoh = cat.reagent("sodium hydroxide").unwrap();
+    let target = DoseTarget::Ph(8.3);
+    let a = dose_for_target(&as_reagents(&cat), &naoh, &ideal(), &target, Amount::molal(5e-3)).unwrap();
+    let b = dose_for_target(&as_analysis(&cat), &naoh, &ideal(), &target, Amount::molal(5e-3)).unwrap();
+    assert!((b.value() / a.value() - 1.0).abs() < 1e-6, "{a:?} {b:?}");
+    let c = protolyte::analysis::amount_for_ph(&as_analysis(&cat), &naoh, &ideal(), 8.3, Amount::molal(5e-3)).unwrap();
+    assert!((c.value() / a.value() - 1.0).abs() < 1e-6, "{a:?} {c:?}");
+}
