@@ -118,6 +118,14 @@ impl Recipe {
         self
     }
 
+    /// The same recipe with no solid allowed to form (the water as given).
+    pub(crate) fn without_allowed_solids(&self) -> Recipe {
+        let mut r = self.clone();
+        r.allowed.clear();
+        r.allow_all = false;
+        r
+    }
+
     /// Lets every reported solid form (the built-in catalogue's unless
     /// [`Recipe::report_solids`] chose others).
     pub fn allow_all_solids(&mut self) -> &mut Self {

@@ -79,3 +79,61 @@ fn a_dose_search_on_an_analysis_equals_that_on_its_reagents() {
     let c = protolyte::analysis::amount_for_ph(&as_analysis(&cat), &naoh, &ideal(), 8.3, Amount::molal(5e-3)).unwrap();
     assert!((c.value() / a.value() - 1.0).abs() < 1e-6, "{a:?} {c:?}");
 }
+
+#[test]
+fn precipitation_potential_starts_from_the_water_as_given_even_where_solids_are_allowed() {
+    let cat = Catalog::builtin();
+    let mut hard = Recipe::new();
+    hard.add(&cat.reagent("calcium chloride").unwrap(), Amount::millimolar(3.0))
+        .unwrap()
+        .add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::millimolar(4.0))
+        .unwrap();
+    let c = Conditions::default();
+    let plain = precipitation_potential(&hard, &c, &cat).unwrap();
+    assert!(plain.saturation_index_before > 0.1, "{plain:?}");
+    // The same water with calcite (or every solid) allowed: the water as given is the same
+    // supersaturated water (self-consistency); before the fix its SI read 0 and its pH the
+    // pH after precipitation.
+    for allow in [false, true] {
+        let mut r = hard.clone();
+        if allow {
+            r.allow_all_solids();
+        } else {
+            r.allow_solid(&cat.solid("calcite").unwrap());
+        }
+        let p = precipitation_potential(&r, &c, &cat).unwrap();
+        assert!(
+            (p.saturation_index_before - plain.saturation_index_before).abs() < 1e-9,
+            "{p:?}"
+        );
+        assert!((p.ph_before - plain.ph_before).abs() < 1e-9, "{p:?}");
+        assert!((p.mol_per_kg / plain.mol_per_kg - 1.0).abs() < 1e-6, "{p:?} {plain:?}");
+    }
+}
+
+#[test]
+fn precipitation_potential_carries_the_warnings_of_its_solves() {
+    let cat = Catalog::builtin();
+    let mut hard = Recipe::new();
+    hard.add(&cat.reagent("calcium chloride").unwrap(), Amount::millimolar(3.0))
+        .unwrap()
+        .add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::millimolar(4.0))
+        .unwrap();
+    // At 100 °C calcite's log K(T) (Plummer & Busenberg 1982, fitted 0–90 °C) is extrapolated:
+    // the result must say so.
+    let hot = Conditions::new(Temperature::celsius(100.0), ActivityModel::Davies);
+    let p = precipitation_potential(&hard, &hot, &cat).unwrap();
+    assert!(
+        p.warnings
+            .iter()
+            .any(|w| matches!(w, protolyte::Warning::TemperatureBeyondRange { name, .. } if name == "calcite")),
+        "{:?}",
+        p.warnings
+    );
+    // The supersaturation of the water as given is the premise, not repeated as a warning.
+    assert!(
+        !p.warnings
+            .iter()
+            .any(|w| matches!(w, protolyte::Warning::Supersaturated { .. }))
+    );
+}

@@ -496,7 +496,7 @@ fn calcite_log10_k(catalog: &Catalog, t: Temperature) -> Result<f64> {
 /// J. Am. Water Works Assoc. 75 (1983) 95): the amount of calcium carbonate that would
 /// precipitate (positive) or dissolve (negative) for the water to come to equilibrium with
 /// calcite in a closed system, in mg/L as CaCO₃ and mol/kg.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct PrecipitationPotential {
     /// Calcite precipitated (positive) or dissolved (negative), mol per kg of water.
     pub mol_per_kg: f64,
@@ -508,10 +508,15 @@ pub struct PrecipitationPotential {
     pub ph_after: f64,
     /// Calcite saturation index of the water as given.
     pub saturation_index_before: f64,
+    /// The warnings of the solves it rests on (the water as given and at equilibrium with
+    /// calcite), each once; the supersaturation of the water as given is not repeated here,
+    /// `saturation_index_before` says it.
+    pub warnings: Vec<crate::Warning>,
 }
 
 /// The calcium carbonate precipitation potential of the water `recipe` at `conditions`: the
-/// recipe is solved as given and again with calcite allowed to form; where the water is
+/// recipe is solved as given (with no solid allowed to form, whatever the recipe allows) and
+/// again with calcite allowed to form beside the solids the recipe allows; where the water is
 /// undersaturated, the second solve starts from an excess of calcium carbonate
 /// (`calcium carbonate` reagent), of which the part that stays undissolved is subtracted.
 /// Calcite and the reagent come from `catalog`. The system stays closed: CO₂ neither escapes
@@ -538,30 +543,44 @@ pub fn precipitation_potential(
     catalog: &Catalog,
 ) -> Result<PrecipitationPotential> {
     let calcite = catalog.solid("calcite")?;
-    let before = recipe.compile(conditions)?.solve()?;
-    let si_before = before
-        .solid("calcite")
-        .map(|s| s.saturation_index)
-        .ok_or_else(|| Error::InvalidParameter {
-            what: "calcium carbonate precipitation potential".into(),
-            parameter: "calcite saturation index",
-            value: f64::NAN,
-            reason: "the water holds no calcium or no carbonate, so calcite has no saturation index",
-        })?;
+    // The water as given: nothing precipitated yet, even where the recipe lets solids form.
+    let before = recipe.without_allowed_solids().compile(conditions)?.solve()?;
+    let si_before =
+        before
+            .solid("calcite")
+            .map(|s| s.saturation_index)
+            .ok_or_else(|| Error::InconsistentDefinition {
+                name: "calcium carbonate precipitation potential".into(),
+                reason: "the water holds no calcium or no carbonate, so calcite has no saturation index".into(),
+            })?;
     let rho = water::density_kg_per_l(conditions.temperature)?;
     let to_mg = |molal: f64| molal * rho * CACO3_G_PER_MOL * 1000.0;
+    let result = |mol_per_kg: f64, after: &crate::Equilibrium| {
+        let mut warnings: Vec<crate::Warning> = Vec::new();
+        let before_warnings = before
+            .warnings()
+            .iter()
+            .filter(|w| !matches!(w, crate::Warning::Supersaturated { .. }));
+        for w in before_warnings.chain(after.warnings()) {
+            if !warnings.contains(w) {
+                warnings.push(w.clone());
+            }
+        }
+        PrecipitationPotential {
+            mol_per_kg,
+            mg_per_l_as_caco3: to_mg(mol_per_kg),
+            ph_before: before.ph(),
+            ph_after: after.ph(),
+            saturation_index_before: si_before,
+            warnings,
+        }
+    };
     let mut with = recipe.clone();
     with.allow_solid(&calcite);
     if si_before >= 0.0 {
         let after = with.compile(conditions)?.solve()?;
         let formed = after.solid("calcite").map_or(0.0, |s| s.amount_molal);
-        return Ok(PrecipitationPotential {
-            mol_per_kg: formed,
-            mg_per_l_as_caco3: to_mg(formed),
-            ph_before: before.ph(),
-            ph_after: after.ph(),
-            saturation_index_before: si_before,
-        });
+        return Ok(result(formed, &after));
     }
     // Undersaturated: offer an excess of calcium carbonate and see how much dissolves. The
     // excess starts at 1 mmol/kg and grows tenfold until some stays undissolved.
@@ -575,14 +594,7 @@ pub fn precipitation_potential(
         let after = offered.compile(conditions)?.solve()?;
         let left = after.solid("calcite").map_or(0.0, |s| s.amount_molal);
         if left > 0.0 {
-            let dissolved = excess - left;
-            return Ok(PrecipitationPotential {
-                mol_per_kg: -dissolved,
-                mg_per_l_as_caco3: -to_mg(dissolved),
-                ph_before: before.ph(),
-                ph_after: after.ph(),
-                saturation_index_before: si_before,
-            });
+            return Ok(result(-(excess - left), &after));
         }
         excess *= 10.0;
     }
