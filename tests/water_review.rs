@@ -137,3 +137,62 @@ fn precipitation_potential_carries_the_warnings_of_its_solves() {
             .any(|w| matches!(w, protolyte::Warning::Supersaturated { .. }))
     );
 }
+
+/// 3 mmol/L calcium chloride and 4 mmol/L sodium bicarbonate, calcite allowed to form.
+fn hard_softened(cat: &Catalog) -> Recipe {
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("calcium chloride").unwrap(), Amount::millimolar(3.0))
+        .unwrap()
+        .add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::millimolar(4.0))
+        .unwrap()
+        .allow_solid(&cat.solid("calcite").unwrap());
+    r
+}
+
+#[test]
+fn lime_softening_finds_the_dose_past_which_the_hardness_rises_again() {
+    let cat = Catalog::builtin();
+    let c = Conditions::default();
+    let lime = cat.reagent("calcium hydroxide").unwrap();
+    let target = DoseTarget::HardnessMgPerLAsCaco3(150.0);
+    // Up to 10 mmol/L of lime: the hardness falls while lime turns bicarbonate into
+    // carbonate (about 2 mmol/L of lime for 4 mmol/L of bicarbonate, by stoichiometry), then
+    // rises with the excess lime, far above the start at 10 mmol/L. The target is crossed in
+    // between; before the fix the search looked at the two ends only and said 'not reached'.
+    let dose = dose_for_target(&hard_softened(&cat), &lime, &c, &target, Amount::millimolar(10.0)).unwrap();
+    assert!(dose.value() > 0.0 && dose.value() < 2.5e-3, "{dose:?}");
+    let mut dosed = hard_softened(&cat);
+    dosed.add(&lime, dose).unwrap();
+    let eq = dosed.compile(&c).unwrap().solve().unwrap();
+    let ca = eq.dissolved_total_molal("calcium").unwrap();
+    let rho = protolyte::water::density_kg_per_l(c.temperature).unwrap();
+    assert!((ca * rho * 100.0869e3 - 150.0).abs() < 1e-5, "{ca}");
+}
+
+#[test]
+fn a_saturation_index_target_for_a_solid_absent_before_the_dose() {
+    let cat = Catalog::builtin();
+    let c = Conditions::default();
+    let mut w = Recipe::new();
+    w.add(&cat.reagent("calcium chloride").unwrap(), Amount::millimolar(2.0))
+        .unwrap();
+    // No carbonate before the dose: calcite has no saturation index at zero (−∞); before the
+    // fix this was an 'unknown solid' error.
+    let soda = cat.reagent("sodium carbonate").unwrap();
+    let target = DoseTarget::SaturationIndex {
+        solid: "calcite".into(),
+        value: 0.0,
+    };
+    let dose = dose_for_target(&w, &soda, &c, &target, Amount::millimolar(5.0)).unwrap();
+    let mut dosed = w.clone();
+    dosed.add(&soda, dose).unwrap();
+    let eq = dosed.compile(&c).unwrap().solve().unwrap();
+    assert!(eq.saturation_index("calcite").unwrap().abs() < 1e-8);
+    // A name the recipe does not know is still an error that names it.
+    let bad = DoseTarget::SaturationIndex {
+        solid: "calcitte".into(),
+        value: 0.0,
+    };
+    let err = dose_for_target(&w, &soda, &c, &bad, Amount::millimolar(5.0)).unwrap_err();
+    assert!(err.to_string().contains("calcitte"), "{err}");
+}

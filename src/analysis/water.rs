@@ -636,10 +636,13 @@ impl DoseTarget {
 /// `recipe` to `target` at `conditions`, with the recipe's gases, constraints and allowed
 /// solids in force at every dose (lime softening: allow calcite and ask for a hardness).
 ///
-/// The target quantity must change monotonically with the dose over the bracket; the root is
-/// found by bisection safeguarded regula falsi (Illinois) to 1e-9 of the target's scale.
-/// Errors: a target outside the values reached at zero and at `max_amount`, a solid the
-/// results do not report, an invalid amount.
+/// Where the target is not crossed between zero and `max_amount` (the quantity need not
+/// change monotonically: lime softening lowers the hardness until the carbonate is spent,
+/// then raises it), the range is searched in 16 equal steps for the first crossing. The root is then found by safeguarded regula falsi
+/// (Illinois) to 1e-9 of the target's scale. A solid whose parts are absent at some dose (no
+/// carbonate before sodium carbonate is dosed) has a saturation index of −∞ there.
+/// Errors: a target not crossed at any of those doses, a solid the recipe neither reports nor
+/// allows, an invalid amount.
 ///
 /// ```
 /// use protolyte::analysis::water::{DoseTarget, dose_for_target};
@@ -706,15 +709,24 @@ pub fn dose_for_target(
         let eq = sys.solve()?;
         match target {
             DoseTarget::Ph(_) => Ok(eq.ph()),
-            DoseTarget::SaturationIndex { solid, .. } => {
-                eq.solid(solid)
-                    .map(|s| s.saturation_index)
-                    .ok_or_else(|| Error::UnknownName {
-                        kind: "solid in the result",
-                        name: solid.clone(),
-                        suggestion: None,
-                    })
-            }
+            DoseTarget::SaturationIndex { solid, .. } => match eq.solid(solid) {
+                Some(s) => Ok(s.saturation_index),
+                // A solid of the recipe's that one of whose parts is absent at this dose:
+                // the limit of its saturation index as that part goes to zero.
+                None if recipe
+                    .reported_solids()
+                    .iter()
+                    .chain(recipe.allowed_solids())
+                    .any(|s| s.name() == solid) =>
+                {
+                    Ok(f64::NEG_INFINITY)
+                }
+                None => Err(Error::UnknownName {
+                    kind: "solid reported or allowed by the recipe",
+                    name: solid.clone(),
+                    suggestion: None,
+                }),
+            },
             DoseTarget::HardnessMgPerLAsCaco3(_) => {
                 let rho = water::density_kg_per_l(conditions.temperature)?;
                 let molal: f64 = ["calcium", "magnesium"]
@@ -731,7 +743,7 @@ pub fn dose_for_target(
         what: format!("dose of {} for {}", reagent.name(), target.describe()),
         parameter: "target",
         value: goal,
-        reason: "not reached between zero and the largest amount given",
+        reason: "not reached at zero, at the largest amount given, nor at 15 doses between",
     };
     if fa.abs() <= tol {
         return Ok(unit(0.0));
@@ -740,7 +752,25 @@ pub fn dose_for_target(
         return Ok(unit(amax));
     }
     if fa.signum() == fb.signum() {
-        return Err(not_reached());
+        // Not crossed between the ends: look for the first crossing inside.
+        const STEPS: usize = 16;
+        let mut crossing = None;
+        for k in 1..STEPS {
+            let x = amax * k as f64 / STEPS as f64;
+            let fx = value_at(x)? - goal;
+            if fx.abs() <= tol {
+                return Ok(unit(x));
+            }
+            if fx.signum() != fa.signum() {
+                crossing = Some((x, fx));
+                break;
+            }
+            (a, fa) = (x, fx);
+        }
+        let Some((x, fx)) = crossing else {
+            return Err(not_reached());
+        };
+        (b, fb) = (x, fx);
     }
     // Illinois regula falsi: a secant step inside the bracket, halving the weight of an end
     // kept twice; falls back to bisection when the step would not move.
