@@ -146,46 +146,6 @@ fn nernst_slope_follows_the_pharmacopeia() {
     }
 }
 
-/// A published two-buffer calibration at 30 °C: a glass electrode read 139.3 mV in 0.05 m
-/// potassium dihydrogen citrate (pH 3.766) and −79.0 mV in 0.08 m HEPES + 0.08 m NaHEPES +
-/// 0.08 m NaCl (pH 7.454); an unknown read 21.7 mV. These are the readings of an exercise
-/// of D. C. Harris, *Quantitative Chemical Analysis* (W. H. Freeman), chapter "Electrodes
-/// and Potentiometry" (the attribution, edition and problem number are from memory: the
-/// stored copy, https://askanewquestion.com/questions/calibration-of-a-glass-electrode-gave-a-reading-of-139-3-mv-with-0-05/1199405,
-/// quotes the exercise without naming its source). The exercise asks for the slope and the
-/// unknown's pH; its answers are not in the stored copy, so the values checked here follow
-/// from the published readings by the two-point definition (slope = ΔE/ΔpH; the unknown by
-/// the relation of USP ⟨791⟩, pH = pH_S + (E_S − E)/slope in the sign of these readings):
-/// 218.3 mV / 3.688 = 59.192 mV per pH, 98.41 % of the 60.15 mV the USP formula gives at
-/// 30 °C, the potential at pH 7 139.3 − 59.192 × 3.234 = −52.13 mV, and the unknown at
-/// pH 3.766 + 117.6/59.192 = 5.7528. These follow exactly from the published readings, so
-/// each tolerance covers only the rounding of the value as written here (the percentage
-/// also the rounding of the USP formula).
-#[test]
-fn published_two_buffer_calibration_at_30_c() {
-    let t = Temperature::celsius(30.0);
-    let readings = [
-        BufferReading {
-            ph: 3.766,
-            millivolts: 139.3,
-        },
-        BufferReading {
-            ph: 7.454,
-            millivolts: -79.0,
-        },
-    ];
-    let cal = ElectrodeCalibration::from_buffers(&readings, t).unwrap();
-    assert!((cal.slope_mv_per_ph - 59.192).abs() < 1e-3, "{}", cal.slope_mv_per_ph); // 218.3/3.688 from the published readings (above); 1e-3 for the rounding of 59.192
-    assert!((cal.slope_percent - 98.41).abs() < 0.03, "{}", cal.slope_percent); // 59.192 / 60.15 (USP ⟨791⟩ k at 30 °C, above); 0.03 % from the USP formula's rounding
-    assert!((cal.offset_mv + 52.13).abs() < 0.01, "{}", cal.offset_mv); // 139.3 − 59.192 × (7 − 3.766), from the published readings (above); 0.01 mV for rounding
-    let ph = cal.ph(21.7, t).unwrap();
-    assert!((ph - 5.7528).abs() < 1e-4, "{ph}"); // 3.766 + 117.6/59.192 from the published readings (above); 1e-4 for the rounding of 5.7528
-    // The two buffers are reproduced exactly: two points fix the line.
-    for b in &readings {
-        assert!((cal.ph(b.millivolts, t).unwrap() - b.ph).abs() < 1e-9); // the calibration's own buffers, by definition of a two-point line
-    }
-}
-
 /// The ideal curve of 25 mL of a monoprotic acid (pKa `pka`, `c` mol/L) with 0.1 mol/L
 /// NaOH at `volumes`.
 fn curve(pka: f64, c: f64, volumes: &[f64]) -> Vec<(f64, f64)> {
