@@ -196,3 +196,84 @@ fn a_saturation_index_target_for_a_solid_absent_before_the_dose() {
     let err = dose_for_target(&w, &soda, &c, &bad, Amount::millimolar(5.0)).unwrap_err();
     assert!(err.to_string().contains("calcitte"), "{err}");
 }
+
+mod properties {
+    use super::*;
+    use proptest::prelude::*;
+    use protolyte::analysis::water::{CarbonateWater, langelier};
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(48))]
+
+        /// Any hard or soft water, cold or hot, open or closed: the precipitation potential is
+        /// an error or a finite amount whose sign is that of the saturation index (by
+        /// definition of the CCPP), and the water after it sits at calcite saturation.
+        #[test]
+        fn precipitation_potential_has_the_sign_of_the_saturation_index(
+            log_ca in -5.0f64..-1.5,
+            log_hco3 in -5.0f64..-1.5,
+            acid in -3e-3f64..3e-3,
+            t in 0.0f64..100.0,
+            analysis in any::<bool>(),
+        ) {
+            let cat = Catalog::builtin();
+            let (ca, hco3) = (10f64.powf(log_ca), 10f64.powf(log_hco3));
+            let mut r = Recipe::new();
+            r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(ca)).unwrap();
+            if analysis {
+                // As measured: the DIC and alkalinity of the same water, sodium closing.
+                r.fix_dic(hco3).unwrap().fix_alkalinity(hco3 - acid).unwrap()
+                    .close_charge_balance_on(&cat.ion("sodium").unwrap()).unwrap();
+            } else {
+                r.add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(hco3)).unwrap();
+                if acid > 0.0 {
+                    r.add(&cat.reagent("hydrochloric acid").unwrap(), Amount::molal(acid)).unwrap();
+                } else {
+                    r.add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molal(-acid)).unwrap();
+                }
+            }
+            let c = Conditions::new(Temperature::celsius(t), ActivityModel::Davies);
+            if let Ok(p) = precipitation_potential(&r, &c, &cat) {
+                prop_assert!(p.mol_per_kg.is_finite() && p.mg_per_l_as_caco3.is_finite());
+                prop_assert!(p.ph_before.is_finite() && p.ph_after.is_finite());
+                prop_assert!(p.saturation_index_before.is_finite());
+                if p.saturation_index_before > 1e-9 {
+                    prop_assert!(p.mol_per_kg >= 0.0, "{p:?}");
+                } else if p.saturation_index_before < -1e-9 {
+                    prop_assert!(p.mol_per_kg <= 0.0, "{p:?}");
+                }
+                // After: the water with the CCPP taken out (or put in) is at saturation; the
+                // same water with calcite allowed.
+                let mut with = r.clone();
+                with.allow_solid(&cat.solid("calcite").unwrap());
+                if p.mol_per_kg < 0.0 {
+                    with.add_dose(&cat.reagent("calcium carbonate").unwrap(), Amount::molal(-p.mol_per_kg), &c).unwrap();
+                    let eq = with.compile(&c).unwrap().solve().unwrap();
+                    // Dissolving exactly the CCPP brings it to saturation (by definition;
+                    // tolerance for the dissolution found by difference).
+                    prop_assert!(eq.saturation_index("calcite").unwrap().abs() < 1e-6, "{:?}", eq.solid("calcite"));
+                }
+            }
+        }
+
+        /// The Langelier index over its whole input domain: an error or finite numbers with
+        /// LSI = pH − pHs.
+        #[test]
+        fn langelier_is_finite_or_refused(
+            t in 0.0f64..100.0,
+            ph in 0.0f64..14.0,
+            ca in 0.01f64..2000.0,
+            alk in 0.01f64..2000.0,
+            tds in 0.0f64..20000.0,
+        ) {
+            let cat = Catalog::builtin();
+            if let Ok(w) = CarbonateWater::from_lab_units(Temperature::celsius(t), ph, ca, alk, tds)
+                && let Ok(l) = langelier(&w, &cat)
+            {
+                prop_assert!(l.ph_saturation.is_finite() && l.index.is_finite());
+                prop_assert!((l.index - (ph - l.ph_saturation)).abs() < 1e-12);
+                prop_assert!(l.ph_saturation > 0.0 && l.ph_saturation < 14.0, "{l:?}");
+            }
+        }
+    }
+}
