@@ -145,3 +145,30 @@ fn mixing_with_pure_water_halves_a_fixed_dic() {
         m.constraints()
     );
 }
+
+#[test]
+fn a_refused_alkalinity_or_dic_is_quoted_in_the_unit_it_was_written_in() {
+    let cat = Catalog::builtin();
+    for (text, field, quoted) in [
+        (
+            r#"{ "fixed_dic_mmol_per_kg": -1 }"#,
+            "fixed_dic_mmol_per_kg",
+            "-1 mmol/kg",
+        ),
+        (
+            r#"{ "fixed_dic_mmol_per_kg": 1e6 }"#,
+            "fixed_dic_mmol_per_kg",
+            "1000000 mmol/kg",
+        ),
+        (
+            r#"{ "fixed_alkalinity_meq_per_kg": 1e300 }"#,
+            "fixed_alkalinity_meq_per_kg",
+            "1e300",
+        ),
+    ] {
+        let doc: RecipeDoc = parse(text, "w.json").unwrap();
+        let err = doc.to_recipe(&cat).unwrap_err().to_string();
+        // Before: "-0.001 mol/kg", "1000 mol/kg", "1e297": numbers the document does not hold.
+        assert!(err.contains(field) && err.contains(quoted), "{err}");
+    }
+}
