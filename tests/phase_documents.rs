@@ -172,3 +172,20 @@ fn a_refused_alkalinity_or_dic_is_quoted_in_the_unit_it_was_written_in() {
         assert!(err.contains(field) && err.contains(quoted), "{err}");
     }
 }
+
+#[test]
+fn a_buffer_capacity_of_a_held_ph_is_refused_naming_the_constraint() {
+    let cat = Catalog::builtin();
+    let mut r = Recipe::new();
+    r.add(&cat.reagent("acetic acid").unwrap(), Amount::millimolar(10.0))
+        .unwrap()
+        .fix_ph(5.0)
+        .unwrap();
+    // Before: 'invalid pH 6: not reached with up to 20 mol/kg of strong acid or base'.
+    let err = protolyte::analysis::CapacityCurve::new(&r, &Conditions::default()).unwrap_err();
+    assert!(err.to_string().contains("pH fixed at 5"), "{err}");
+    let mut a = Recipe::new();
+    a.fix_alkalinity(2e-3).unwrap();
+    let err = protolyte::analysis::CapacityCurve::new(&a, &Conditions::default()).unwrap_err();
+    assert!(err.to_string().contains("alkalinity"), "{err}");
+}
