@@ -189,3 +189,33 @@ fn a_buffer_capacity_of_a_held_ph_is_refused_naming_the_constraint() {
     let err = protolyte::analysis::CapacityCurve::new(&a, &Conditions::default()).unwrap_err();
     assert!(err.to_string().contains("alkalinity"), "{err}");
 }
+
+#[test]
+fn a_fixed_ph_read_under_bates_guggenheim_is_flagged() {
+    let doc: RecipeDoc = parse(
+        r#"{ "ph_convention": "bates-guggenheim", "activity": "davies",
+             "reagents": [ { "reagent": "sodium chloride", "molar": 0.1 },
+                           { "reagent": "sodium bicarbonate", "millimolar": 2 } ],
+             "fixed_ph": 8.0 }"#,
+        "bg.json",
+    )
+    .unwrap();
+    let (recipe, conditions) = doc.to_recipe(&Catalog::builtin()).unwrap();
+    let eq = recipe.compile(&conditions).unwrap().solve().unwrap();
+    let r = SolveResult::from_equilibrium(&eq).with_recipe(&recipe);
+    // The pH reported differs from the one fixed (the conventions differ at I = 0.1); before,
+    // nothing said why a 'fixed_ph' of 8 read otherwise.
+    assert!((r.ph - 8.0).abs() > 1e-4, "{}", r.ph);
+    assert!(r.warnings.iter().any(|w| w.contains("fixed at 8")), "{:?}", r.warnings);
+    // Under the model's own convention the fixed pH is the one reported, with no such note.
+    let model: RecipeDoc = parse(
+        r#"{ "reagents": [ { "reagent": "sodium chloride", "molar": 0.1 } ], "fixed_ph": 8.0 }"#,
+        "m.json",
+    )
+    .unwrap();
+    let (recipe, conditions) = model.to_recipe(&Catalog::builtin()).unwrap();
+    let eq = recipe.compile(&conditions).unwrap().solve().unwrap();
+    let r = SolveResult::from_equilibrium(&eq).with_recipe(&recipe);
+    assert!((r.ph - 8.0).abs() < 1e-9);
+    assert!(!r.warnings.iter().any(|w| w.contains("fixed at")));
+}

@@ -331,10 +331,10 @@ fn solve(file: &Path, json: bool, plots: [Option<&Path>; 3], out: &mut impl Writ
         .map_err(|e| chem(&name, e))?;
     // A water analysis closed on an ion: its ion balance as entered (the closing ion and the
     // solids present read from the recipe, so that an ion of the document's own definitions
-    // and what precipitated are counted).
+    // and what precipitated are counted); a fixed pH read under another pH convention.
     let result = SolveResult::from_equilibrium(&eq)
         .named(doc.name.clone())
-        .with_ion_balance_of(&recipe);
+        .with_recipe(&recipe);
     if json {
         write_json(out, &result)?;
     } else {

@@ -436,6 +436,41 @@ impl SolveResult {
         self.ion_balance_adding(charge, cations, anions)
     }
 
+    /// The same result with what its `recipe` adds to it: the ion balance as entered
+    /// ([`SolveResult::with_ion_balance_of`]) and, where the recipe fixes the pH and the
+    /// result reports it under another convention (Bates–Guggenheim), a warning that says so:
+    /// a fixed pH is held on the activity model's own scale, −log₁₀ a(H⁺), so the pH reported
+    /// differs from it.
+    ///
+    /// ```
+    /// use protolyte::document::{RecipeDoc, SolveResult, parse};
+    /// use protolyte::Catalog;
+    /// let doc: RecipeDoc = parse(r#"{ "ph_convention": "bates-guggenheim",
+    ///   "reagents": [ { "reagent": "sodium chloride", "molal": 0.05 } ], "fixed_ph": 8.0 }"#, "a.json")?;
+    /// let (recipe, conditions) = doc.to_recipe(&Catalog::builtin())?;
+    /// let eq = recipe.compile(&conditions)?.solve()?;
+    /// let r = SolveResult::from_equilibrium(&eq).with_recipe(&recipe);
+    /// assert!(r.ph != 8.0);
+    /// assert!(r.warnings.iter().any(|w| w.contains("fixed at 8")), "{:?}", r.warnings);
+    /// # Ok::<(), Box<dyn std::error::Error>>(())
+    /// ```
+    pub fn with_recipe(self, recipe: &crate::Recipe) -> Self {
+        let mut r = self.with_ion_balance_of(recipe);
+        let fixed = recipe.constraints().iter().find_map(|c| match c {
+            crate::Constraint::Ph(ph) => Some(*ph),
+            _ => None,
+        });
+        if let (Some(ph), Some(convention)) = (fixed, r.ph_convention.as_deref())
+            && (r.ph - ph).abs() > 1e-9
+        {
+            r.warnings.push(format!(
+                "the pH was fixed at {ph} on the activity model's own scale (−log a(H+)); under the {convention} convention it reads {:.4}",
+                r.ph
+            ));
+        }
+        r
+    }
+
     /// The ion balance of the species, less the closing ion's addition, plus `cations` and
     /// `anions` (mol/kg of charge) held elsewhere.
     fn ion_balance_adding(mut self, charge: i32, extra_cations: f64, extra_anions: f64) -> Self {
