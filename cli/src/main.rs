@@ -1459,9 +1459,11 @@ fn equation_json(q: Option<protolyte::vant_hoff::LogKEquation>) -> serde_json::V
 }
 
 /// "log K = a + b·T + c/T + d·log T + e/T² (0–60 °C)" with the coefficients, zero terms left out.
+/// The equation as the library applies it: the change of log K from 25 °C (its value at
+/// 25 °C may differ from the entry's log K by up to 0.03, a difference of units or of fits).
 fn equation_text(q: protolyte::vant_hoff::LogKEquation) -> String {
     let [a, b, c, d, e] = q.coefficients();
-    let mut t = format!("log K = {a}");
+    let mut t = format!("log K(T) = log K(25 °C) + f(T) − f(298.15 K), f(T) = {a}");
     for (v, unit) in [(b, "·T"), (c, "/T"), (d, "·log T"), (e, "/T²")] {
         if v != 0.0 {
             let sign = if v < 0.0 { '−' } else { '+' };

@@ -47,3 +47,18 @@ fn a_water_analysis_keeps_its_dic_in_the_plots() {
         "analysis"
     )));
 }
+
+#[test]
+fn data_shows_a_log_k_equation_as_it_is_applied() {
+    // The equation of CO2(g) (Plummer & Busenberg 1982) gives −1.468 at 25 °C, per atm; the
+    // entry's log K_H is −1.474, per bar. The library applies the equation's change from
+    // 25 °C; before, `data` printed "log K = <equation>", a value the entry does not use.
+    let o = Command::new(env!("CARGO_BIN_EXE_protolyte"))
+        .args(["data", "CO2(g)"])
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(o.status.success());
+    assert!(text.contains("log K(T) = log K(25 °C) + f(T) − f(298.15 K)"), "{text}");
+    assert!(text.contains("log K_H -1.474"), "{text}");
+}
