@@ -1453,12 +1453,14 @@ fn equation_json(q: Option<protolyte::vant_hoff::LogKEquation>) -> serde_json::V
         Some(q) => serde_json::json!({
             "coefficients": q.coefficients(),
             "range_celsius": [q.range().min_celsius, q.range().max_celsius],
+            "applied_as": "log K(T) = log K(25 °C) + f(T) - f(298.15 K), f(T) = a + b·T + c/T + d·log10 T + e/T², T in K",
         }),
         None => serde_json::Value::Null,
     }
 }
 
-/// "log K = a + b·T + c/T + d·log T + e/T² (0–60 °C)" with the coefficients, zero terms left out.
+/// "log K(T) = log K(25 °C) + f(T) − f(298.15 K), f(T) = a + b·T + c/T + d·log T + e/T²
+/// (0–60 °C)" with the coefficients, zero terms left out.
 /// The equation as the library applies it: the change of log K from 25 °C (its value at
 /// 25 °C may differ from the entry's log K by up to 0.03, a difference of units or of fits).
 fn equation_text(q: protolyte::vant_hoff::LogKEquation) -> String {

@@ -61,4 +61,10 @@ fn data_shows_a_log_k_equation_as_it_is_applied() {
     assert!(o.status.success());
     assert!(text.contains("log K(T) = log K(25 °C) + f(T) − f(298.15 K)"), "{text}");
     assert!(text.contains("log K_H -1.474"), "{text}");
+    let o = Command::new(env!("CARGO_BIN_EXE_protolyte"))
+        .args(["data", "--json", "CO2(g)"])
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(text.contains("\"applied_as\""), "{text}");
 }
