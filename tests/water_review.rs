@@ -277,3 +277,19 @@ mod properties {
         }
     }
 }
+
+#[test]
+fn a_zero_where_a_positive_value_is_needed_is_refused_for_what_it_is() {
+    use protolyte::analysis::water::CarbonateWater;
+    let cat = Catalog::builtin();
+    // Before: "invalid amount for calcium: 0 mol/L (amounts must be finite and not
+    // negative)", which 0 is.
+    let err = CarbonateWater::new(Temperature::celsius(25.0), 8.0, 0.0, 2e-3, 0.01).unwrap_err();
+    assert!(err.to_string().contains("must be positive"), "{err}");
+    let err = CarbonateWater::new(Temperature::celsius(25.0), 8.0, 1e-3, 20.0, 0.01).unwrap_err();
+    assert!(err.to_string().contains("at most 10"), "{err}");
+    let naoh = cat.reagent("sodium hydroxide").unwrap();
+    let err =
+        protolyte::analysis::amount_for_ph(&as_reagents(&cat), &naoh, &ideal(), 8.0, Amount::molal(0.0)).unwrap_err();
+    assert!(err.to_string().contains("must be positive"), "{err}");
+}

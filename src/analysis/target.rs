@@ -241,14 +241,15 @@ pub(crate) fn search_bound(reagent: &Reagent, max_amount: Amount) -> Result<(f64
     max_amount.validate(reagent.name())?;
     let amax = max_amount.value();
     if amax <= 0.0 {
-        return Err(Error::InvalidAmount {
+        return Err(Error::InvalidParameter {
             what: format!("largest amount of {}", reagent.name()),
-            value: amax,
-            unit: if matches!(max_amount, Amount::Molar(_)) {
-                "mol/L"
+            parameter: if matches!(max_amount, Amount::Molar(_)) {
+                "amount (mol/L)"
             } else {
-                "mol/kg"
+                "amount (mol/kg)"
             },
+            value: amax,
+            reason: "must be positive: the search runs from zero to it",
         });
     }
     let unit = move |x: f64| match max_amount {

@@ -296,17 +296,19 @@ impl CarbonateWater {
             });
         }
         check_parameter("water", "pH", ph, 0.0, 14.0, "must be finite and within 0..14")?;
-        for (v, what, unit) in [
-            (calcium_mol_per_l, "calcium", "mol/L"),
-            (alkalinity_eq_per_l, "total alkalinity", "eq/L"),
+        for (v, parameter, reason) in [
+            (
+                calcium_mol_per_l,
+                "calcium (mol/L)",
+                "must be positive and at most 10 mol/L (a water without calcium has no calcite saturation)",
+            ),
+            (
+                alkalinity_eq_per_l,
+                "total alkalinity (eq/L)",
+                "must be positive and at most 10 eq/L (a water without alkalinity has no calcite saturation)",
+            ),
         ] {
-            if !(v.is_finite() && v > 0.0 && v <= 10.0) {
-                return Err(Error::InvalidAmount {
-                    what: what.into(),
-                    value: v,
-                    unit,
-                });
-            }
+            check_parameter("water", parameter, v, f64::MIN_POSITIVE, 10.0, reason)?;
         }
         check_parameter(
             "water",
