@@ -219,3 +219,19 @@ fn a_fixed_ph_read_under_bates_guggenheim_is_flagged() {
     assert!((r.ph - 8.0).abs() < 1e-9);
     assert!(!r.warnings.iter().any(|w| w.contains("fixed at")));
 }
+
+#[test]
+fn a_refused_partial_pressure_is_quoted_in_the_unit_it_was_written_in() {
+    let doc: RecipeDoc = parse(
+        r#"{ "partial_pressures": [ { "gas": "CO2(g)", "atm": 1000 } ] }"#,
+        "p.json",
+    )
+    .unwrap();
+    let err = doc.to_recipe(&Catalog::builtin()).unwrap_err().to_string();
+    // Before: "invalid partial pressure (bar) for CO2(g): 1013.25", a number not in the
+    // document, at `partial_pressures[0]` without the unit's field.
+    assert!(
+        err.contains("partial_pressures[0].atm") && err.contains("1000 atm"),
+        "{err}"
+    );
+}

@@ -1003,12 +1003,24 @@ impl PartialPressureDoc {
                 ),
             ));
         }
-        Ok(match unit {
+        let p = match unit {
             "atm" => Pressure::atm(v),
             "bar" => Pressure::bar_value(v),
             "pascal" => Pressure::pascal(v),
             _ => Pressure::microatm(v),
-        })
+        };
+        // The library's range (1000 bar), said in the unit written.
+        if p.bar() > 1000.0 {
+            return Err(field_error(
+                format!("{path}.{unit}"),
+                format!(
+                    "{} {unit} is {} bar, above the 1000 bar accepted (Henry's law with an ideal gas is far outside its use there)",
+                    crate::error::number(v),
+                    crate::error::number(p.bar())
+                ),
+            ));
+        }
+        Ok(p)
     }
 }
 
