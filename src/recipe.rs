@@ -88,7 +88,8 @@ impl Recipe {
     }
 
     /// Lets `solid` form (or dissolve) at equilibrium: the solver finds whether it is
-    /// present and how much of it. Its saturation index is reported too.
+    /// present and how much of it. Its saturation index is reported too. A solid allowed
+    /// under a name already allowed replaces the earlier definition.
     ///
     /// ```
     /// use protolyte::{Amount, Catalog, Conditions, Recipe};
@@ -104,8 +105,11 @@ impl Recipe {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn allow_solid(&mut self, solid: &Solid) -> &mut Self {
-        if !self.allowed.iter().any(|s| s.name() == solid.name()) {
-            self.allowed.push(solid.clone());
+        // One solid a name: a later definition under a name already allowed replaces the
+        // earlier one (before, it was dropped without a word).
+        match self.allowed.iter_mut().find(|s| s.name() == solid.name()) {
+            Some(s) => *s = solid.clone(),
+            None => self.allowed.push(solid.clone()),
         }
         self
     }

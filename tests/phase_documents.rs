@@ -235,3 +235,16 @@ fn a_refused_partial_pressure_is_quoted_in_the_unit_it_was_written_in() {
         "{err}"
     );
 }
+
+#[test]
+fn a_solid_allowed_again_under_its_name_replaces_the_first() {
+    let cat = Catalog::builtin();
+    let c = cat.solid("calcite").unwrap();
+    // An invented log K of −8.0 for the second definition (a scenario, not a datum).
+    let mine = protolyte::Solid::new("calcite", c.parts().to_vec(), -8.0).unwrap();
+    let mut r = Recipe::new();
+    r.allow_solid(&c).allow_solid(&mine);
+    // Before: the second definition was dropped without a word, the catalogue's kept.
+    assert_eq!(r.allowed_solids().len(), 1);
+    assert_eq!(r.allowed_solids()[0].log10_k(), -8.0);
+}
