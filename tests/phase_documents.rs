@@ -248,3 +248,20 @@ fn a_solid_allowed_again_under_its_name_replaces_the_first() {
     assert_eq!(r.allowed_solids().len(), 1);
     assert_eq!(r.allowed_solids()[0].log10_k(), -8.0);
 }
+
+#[test]
+fn no_acid_or_base_is_reported_beside_a_closing_ion() {
+    let doc: RecipeDoc = parse(
+        r#"{ "reagents": [ { "reagent": "calcium chloride", "millimolar": 5 } ],
+             "fixed_dic_mmol_per_kg": 5, "fixed_ph": 8.5, "charge_balance_on": "sodium",
+             "allow_solids": ["calcite"] }"#,
+        "c.json",
+    )
+    .unwrap();
+    let (recipe, conditions) = doc.to_recipe(&Catalog::builtin()).unwrap();
+    let eq = recipe.compile(&conditions).unwrap().solve().unwrap();
+    // The closing ion takes the charge, so the H+ a fixed pH takes is zero up to round-off
+    // (charge balance, by definition); before, "1.2e-17 mol/kg of base added" was reported.
+    assert!(eq.proton_uptake_molal().abs() < 1e-12);
+    assert_eq!(SolveResult::from_equilibrium(&eq).proton_uptake_mol_per_kg, None);
+}

@@ -290,6 +290,14 @@ fn check(cat: &Catalog, c: &Case, r: &Recipe, eq: &Equilibrium) -> Result<(), St
             ));
         }
     }
+    // With an ion closing the charge balance, a fixed pH or alkalinity takes no H+ (the
+    // closing ion takes the charge; charge balance, by definition).
+    if let Some((_, added)) = eq.charge_balance_ion_added_molal() {
+        let scale = expect.values().fold(added.abs(), |m, v| m.max(v.abs())).max(1e-12);
+        if eq.proton_uptake_molal().abs() > 1e-9 * scale {
+            return Err(format!("H+ taken {} beside a closing ion", eq.proton_uptake_molal()));
+        }
+    }
     let a = eq.total_alkalinity_molal();
     if c.fix == 1 && (eq.ph() - c.ph).abs() > 1e-8 {
         return Err(format!("pH {} instead of the fixed {}", eq.ph(), c.ph));

@@ -228,8 +228,9 @@ pub struct SolveResult {
     /// Dissolved inorganic carbon, mol per kg of water.
     #[serde(default)]
     pub dic_mol_per_kg: f64,
-    /// With a fixed pH: the H+ taken up to hold it, mol per kg of water (negative: base);
-    /// left out when zero (no fixed pH).
+    /// With a fixed pH or alkalinity: the H+ taken up to hold it, mol per kg of water
+    /// (negative: base); left out when zero (no fixed pH) and when an ion closes the charge
+    /// balance (which takes that charge instead).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proton_uptake_mol_per_kg: Option<f64>,
     /// With the charge balance closed on an ion: that ion and the amount of it the balance
@@ -307,7 +308,12 @@ impl SolveResult {
             total_alkalinity_eq_per_kg: eq.total_alkalinity_molal(),
             carbonate_alkalinity_eq_per_kg: eq.carbonate_alkalinity_molal(),
             dic_mol_per_kg: eq.dic_molal(),
-            proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0).then(|| eq.proton_uptake_molal()),
+            // With an ion closing the charge balance, the H+ a fixed pH or alkalinity takes is
+            // zero by construction (the closing ion takes the charge): what the solver leaves
+            // there is round-off, not an acid or base to report.
+            proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0
+                && eq.charge_balance_ion_added_molal().is_none())
+            .then(|| eq.proton_uptake_molal()),
             charge_balance_ion: eq
                 .charge_balance_ion_added_molal()
                 .map(|(ion, v)| ChargeBalanceIonResult {
