@@ -293,3 +293,16 @@ fn a_zero_where_a_positive_value_is_needed_is_refused_for_what_it_is() {
         protolyte::analysis::amount_for_ph(&as_reagents(&cat), &naoh, &ideal(), 8.0, Amount::molal(0.0)).unwrap_err();
     assert!(err.to_string().contains("must be positive"), "{err}");
 }
+
+#[test]
+fn a_ph_dose_on_a_held_ph_is_refused_naming_the_hold() {
+    let cat = Catalog::builtin();
+    let mut r = as_reagents(&cat);
+    r.fix_ph(7.0).unwrap();
+    let naoh = cat.reagent("sodium hydroxide").unwrap();
+    let err = dose_for_target(&r, &naoh, &ideal(), &DoseTarget::Ph(8.0), Amount::molal(1e-2)).unwrap_err();
+    // Before: 'not reached', after 17 solves.
+    assert!(err.to_string().contains("pH fixed at 7"), "{err}");
+    let err = protolyte::analysis::amount_for_ph(&r, &naoh, &ideal(), 8.0, Amount::molal(1e-2)).unwrap_err();
+    assert!(err.to_string().contains("pH fixed at 7"), "{err}");
+}

@@ -169,12 +169,14 @@ pub fn amount_for_ph(
     let target = check_target(target_ph)?;
     let (amax, unit) = search_bound(reagent, max_amount)?;
     // A water entered with a fixed DIC or alkalinity: the dose raises those constraints (see
-    // `Recipe::add_dose`), which the one-system search below would leave where they were.
-    if recipe
-        .constraints()
-        .iter()
-        .any(|c| matches!(c, crate::Constraint::Dic(_) | crate::Constraint::Alkalinity(_)))
-    {
+    // `Recipe::add_dose`), which the one-system search below would leave where they were. The
+    // dose search also refuses a recipe that holds its pH.
+    if recipe.constraints().iter().any(|c| {
+        matches!(
+            c,
+            crate::Constraint::Dic(_) | crate::Constraint::Alkalinity(_) | crate::Constraint::Ph(_)
+        )
+    }) {
         return crate::analysis::water::dose_for_target(
             recipe,
             reagent,

@@ -702,6 +702,19 @@ pub fn dose_for_target(
         }
     };
     let (amax, unit) = crate::analysis::target::search_bound(reagent, max_amount)?;
+    if let (DoseTarget::Ph(_), Some(c)) = (
+        target,
+        recipe
+            .constraints()
+            .iter()
+            .find(|c| matches!(c, crate::Constraint::Ph(_))),
+    ) {
+        return Err(Error::ConflictingConstraints {
+            first: c.describe(),
+            second: format!("a dose of {} for {}", reagent.name(), target.describe()),
+            reason: "the recipe holds the pH that the dose would move".into(),
+        });
+    }
     let value_at = |x: f64| -> Result<f64> {
         let mut r = recipe.clone();
         if x > 0.0 {
