@@ -265,3 +265,23 @@ fn no_acid_or_base_is_reported_beside_a_closing_ion() {
     assert!(eq.proton_uptake_molal().abs() < 1e-12);
     assert_eq!(SolveResult::from_equilibrium(&eq).proton_uptake_mol_per_kg, None);
 }
+
+#[test]
+fn a_solid_allowed_without_its_parts_is_named_in_a_warning() {
+    let doc: RecipeDoc = parse(
+        r#"{ "reagents": [ { "reagent": "sodium chloride", "millimolar": 1 } ],
+             "allow_solids": ["calcite", "halite"] }"#,
+        "s.json",
+    )
+    .unwrap();
+    let (recipe, conditions) = doc.to_recipe(&Catalog::builtin()).unwrap();
+    let eq = recipe.compile(&conditions).unwrap().solve().unwrap();
+    let r = SolveResult::from_equilibrium(&eq).with_recipe(&recipe);
+    // Before: calcite (no calcium, no carbonate here) vanished from the answer unmentioned.
+    assert!(
+        r.warnings.iter().any(|w| w.starts_with("calcite was allowed")),
+        "{:?}",
+        r.warnings
+    );
+    assert!(!r.warnings.iter().any(|w| w.starts_with("halite")), "{:?}", r.warnings);
+}

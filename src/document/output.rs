@@ -443,7 +443,8 @@ impl SolveResult {
     }
 
     /// The same result with what its `recipe` adds to it: the ion balance as entered
-    /// ([`SolveResult::with_ion_balance_of`]) and, where the recipe fixes the pH and the
+    /// ([`SolveResult::with_ion_balance_of`]), a warning for each solid allowed by name whose
+    /// parts the solution lacks (left out of the solve) and, where the recipe fixes the pH and the
     /// result reports it under another convention (Bates–Guggenheim), a warning that says so:
     /// a fixed pH is held on the activity model's own scale, −log₁₀ a(H⁺), so the pH reported
     /// differs from it.
@@ -466,6 +467,16 @@ impl SolveResult {
             crate::Constraint::Ph(ph) => Some(*ph),
             _ => None,
         });
+        // A solid named to form whose parts the solution lacks is left out of the solve:
+        // say so, rather than leave the request unanswered.
+        for solid in recipe.allowed_solids() {
+            if !r.solids.iter().any(|s| s.name == solid.name()) {
+                r.warnings.push(format!(
+                    "{} was allowed to form, but the solution lacks one of its parts, so it is left out",
+                    solid.name()
+                ));
+            }
+        }
         if let (Some(ph), Some(convention)) = (fixed, r.ph_convention.as_deref())
             && (r.ph - ph).abs() > 1e-9
         {
