@@ -256,6 +256,45 @@ mod properties {
             }
         }
 
+        /// A pH dose search on any water, as reagents or as a measured analysis: the dose it
+        /// returns brings the water to the target (by definition of the search; 1e-7 pH).
+        #[test]
+        fn a_ph_dose_reaches_its_target(
+            log_ca in -4.0f64..-2.0,
+            log_hco3 in -4.0f64..-2.0,
+            frac in 0.05f64..0.95,
+            base in any::<bool>(),
+            analysis in any::<bool>(),
+            calcite in any::<bool>(),
+        ) {
+            let cat = Catalog::builtin();
+            let (ca, hco3) = (10f64.powf(log_ca), 10f64.powf(log_hco3));
+            let mut r = Recipe::new();
+            r.add(&cat.reagent("calcium chloride").unwrap(), Amount::molal(ca)).unwrap();
+            if analysis {
+                r.fix_dic(hco3).unwrap().fix_alkalinity(hco3).unwrap()
+                    .close_charge_balance_on(&cat.ion("sodium").unwrap()).unwrap();
+            } else {
+                r.add(&cat.reagent("sodium bicarbonate").unwrap(), Amount::molal(hco3)).unwrap();
+            }
+            if calcite {
+                r.allow_solid(&cat.solid("calcite").unwrap());
+            }
+            let c = ideal();
+            let reagent = cat.reagent(if base { "sodium hydroxide" } else { "hydrochloric acid" }).unwrap();
+            let max = Amount::molal(5.0 * hco3);
+            let ph = |x: f64| {
+                let mut d = r.clone();
+                d.add_dose(&reagent, Amount::molal(x), &c).unwrap();
+                d.compile(&c).unwrap().solve().unwrap().ph()
+            };
+            let (p0, p1) = (ph(0.0), ph(max.value()));
+            let target = p0 + frac * (p1 - p0);
+            let dose = dose_for_target(&r, &reagent, &c, &DoseTarget::Ph(target), max).unwrap();
+            prop_assert!(dose.value() >= 0.0 && dose.value() <= max.value());
+            prop_assert!((ph(dose.value()) - target).abs() < 1e-7, "{} {}", ph(dose.value()), target);
+        }
+
         /// The Langelier index over its whole input domain: an error or finite numbers with
         /// LSI = pH − pHs.
         #[test]
