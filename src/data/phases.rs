@@ -4,7 +4,8 @@
 
 use toml::Spanned;
 
-use super::format::{GasEntry, Located, SolidEntry};
+use super::format::{GasEntry, SolidEntry};
+use super::located::Located;
 use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_parts};
 use crate::complex::ComplexPart;
 use crate::error::{Error, Result};
