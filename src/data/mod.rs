@@ -141,8 +141,18 @@ pub struct DataInfo {
     pub log_k_equations: Vec<Option<LogKEquation>>,
     /// The constituents of a reagent or the parts of a complex, in words ("2 × sodium").
     pub parts: Vec<String>,
-    /// The name and synonyms normalised for lookup.
-    keys: Vec<String>,
+}
+
+impl DataInfo {
+    /// The name and synonyms normalised for lookup, in order.
+    fn keys(&self) -> impl Iterator<Item = String> + '_ {
+        std::iter::once(&self.name).chain(&self.synonyms).map(|n| normalize(n))
+    }
+}
+
+/// `names` normalised for lookup, in order.
+fn keys_of(names: &[&str]) -> Vec<String> {
+    names.iter().map(|n| normalize(n)).collect()
 }
 
 /// Built-in and user-defined definitions, looked up by name or synonym (case-insensitive).
@@ -257,11 +267,7 @@ pub(crate) fn normalize(s: &str) -> String {
 /// single spaces, no space at either end) and it fits; `None` otherwise.
 fn plain_lowercase<'b>(s: &str, buf: &'b mut [u8]) -> Option<&'b str> {
     let bytes = s.as_bytes();
-    let plain = bytes.iter().all(|&b| b.is_ascii_graphic() || b == b' ')
-        && !s.starts_with(' ')
-        && !s.ends_with(' ')
-        && !s.contains("  ");
-    if !plain || bytes.len() > buf.len() {
+    if bytes.len() > buf.len() || plain_ascii(s).is_none() {
         return None;
     }
     let out = &mut buf[..bytes.len()];
@@ -271,17 +277,33 @@ fn plain_lowercase<'b>(s: &str, buf: &'b mut [u8]) -> Option<&'b str> {
     std::str::from_utf8(out).ok()
 }
 
+/// Whether `s` is printable ASCII with single spaces and none at either end (what
+/// [`normalized`] only lower-cases), and if so whether it has an upper-case letter; one pass.
+fn plain_ascii(s: &str) -> Option<bool> {
+    let bytes = s.as_bytes();
+    if bytes.first() == Some(&b' ') || bytes.last() == Some(&b' ') {
+        return None;
+    }
+    let (mut upper, mut prev_space) = (false, false);
+    for &b in bytes {
+        let space = b == b' ';
+        if !(b.is_ascii_graphic() || space) || (space && prev_space) {
+            return None;
+        }
+        upper |= b.is_ascii_uppercase();
+        prev_space = space;
+    }
+    Some(upper)
+}
+
 fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names are printable ASCII with single spaces (every built-in one is, lower case
     // too): copy them as they are, or lower-case them in one allocation.
-    let plain = s.bytes().all(|b| b.is_ascii_graphic() || b == b' ')
-        && !s.ends_with("^+")
+    if !s.ends_with("^+")
         && !s.ends_with("^-")
-        && !s.starts_with(' ')
-        && !s.ends_with(' ')
-        && !s.contains("  ");
-    if plain {
-        return if s.bytes().any(|b| b.is_ascii_uppercase()) {
+        && let Some(upper) = plain_ascii(s)
+    {
+        return if upper {
             std::borrow::Cow::Owned(s.to_ascii_lowercase())
         } else {
             std::borrow::Cow::Borrowed(s)
@@ -540,8 +562,10 @@ impl Catalog {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close.
-        let candidates = (self.info.iter().filter(|i| i.kind == kind))
-            .flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info.name.as_str())));
+        let keyed: Vec<(String, &str)> = (self.info.iter().filter(|i| i.kind == kind))
+            .flat_map(|info| info.keys().map(move |k| (k, info.name.as_str())))
+            .collect();
+        let candidates = keyed.iter().map(|(k, n)| (k.as_str(), *n));
         Err(Error::UnknownName {
             kind: kind.name(),
             name: name.to_string(),
@@ -608,10 +632,10 @@ impl Catalog {
     /// assert!(cat.closest("no such thing anywhere").is_none());
     /// ```
     pub fn closest(&self, name: &str) -> Option<&DataInfo> {
-        closest(
-            name,
-            (self.info.iter()).flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info))),
-        )
+        let keyed: Vec<(String, &DataInfo)> = (self.info.iter())
+            .flat_map(|info| info.keys().map(move |k| (k, info)))
+            .collect();
+        closest(name, keyed.iter().map(|(k, info)| (k.as_str(), *info)))
     }
 
     /// Entries whose name, a synonym or formula contains `query` (case-insensitive).
@@ -635,11 +659,11 @@ impl Catalog {
     }
 
     /// The entries (kind, index within the kind) whose name or synonym equals one of `names`
-    /// (normalised), among the kinds that share a namespace with `kind`.
-    fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, DataKind, usize)> {
+    /// (`keys`: the names normalised), among the kinds that share a namespace with `kind`.
+    fn conflicts(&self, kind: DataKind, names: &[&str], keys: &[String]) -> Vec<(String, DataKind, usize)> {
         let mut out = Vec::new();
-        for n in names {
-            if let Some(a) = self.index.get(normalized(n).as_ref()) {
+        for (n, key) in names.iter().zip(keys) {
+            if let Some(a) = self.index.get(key.as_str()) {
                 for &k in namespace(kind) {
                     if let Some(idx) = a[k as usize] {
                         out.push((n.to_string(), k, idx));
@@ -659,12 +683,13 @@ impl Catalog {
         }
     }
 
-    /// Refuses a name or synonym already taken (see [`Catalog::add_protolyte`]).
-    fn check_new(&self, kind: DataKind, names: &[&str]) -> Result<()> {
+    /// Refuses a name or synonym already taken (see [`Catalog::add_protolyte`]); `keys` are
+    /// the names normalised ([`keys_of`]).
+    fn check_new(&self, kind: DataKind, names: &[&str], keys: &[String]) -> Result<()> {
         if kind != DataKind::Reagent {
-            self.check_phase_names(kind.name(), names)?;
+            self.check_phase_names(kind.name(), names, keys)?;
         }
-        match self.conflicts(kind, names).first() {
+        match self.conflicts(kind, names, keys).first() {
             Some((name, k, idx)) => Err(self.conflict_error(kind, name, *k, *idx)),
             None => Ok(()),
         }
@@ -675,7 +700,7 @@ impl Catalog {
     /// another kind, or by two different entries.
     fn replacement_target(&self, kind: DataKind, names: &[&str]) -> Result<Option<usize>> {
         let mut target: Option<usize> = None;
-        for (name, k, idx) in self.conflicts(kind, names) {
+        for (name, k, idx) in self.conflicts(kind, names, &keys_of(names)) {
             if k != kind || target.is_some_and(|t| t != idx) {
                 return Err(self.conflict_error(kind, &name, k, idx));
             }
@@ -799,18 +824,15 @@ impl Catalog {
         }
     }
 
-    /// Records an entry's description at the end of its kind's group and indexes its names.
-    /// Call before pushing the definition.
-    fn push_info(&mut self, mut info: DataInfo, synonyms: &[&str]) {
+    /// Records an entry's description at the end of its kind's group and indexes its names
+    /// (`keys`: its name and `synonyms` normalised, [`keys_of`]). Call before pushing the
+    /// definition.
+    fn push_info(&mut self, mut info: DataInfo, synonyms: &[&str], keys: Vec<String>) {
         info.synonyms = synonyms.iter().map(|s| s.to_string()).collect();
-        info.keys = std::iter::once(info.name.as_str())
-            .chain(synonyms.iter().copied())
-            .map(normalize)
-            .collect();
         let kind = info.kind;
         let idx = self.len_of(kind);
-        for k in &info.keys {
-            self.index.entry(k.clone()).or_default()[kind as usize].get_or_insert(idx);
+        for k in keys {
+            self.index.entry(k).or_default()[kind as usize].get_or_insert(idx);
         }
         let at = self.offset(kind) + idx;
         self.info.insert(at, info);
@@ -839,7 +861,8 @@ impl Catalog {
     fn add_protolyte_with(&mut self, p: Protolyte, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![p.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Protolyte, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Protolyte, &names, &keys)?;
         let pk: Vec<String> = p.steps().iter().map(|s| format!("{}", s.pka)).collect();
         let summary = format!(
             "pKa {} (25 °C); most protonated charge {:+}",
@@ -876,9 +899,8 @@ impl Catalog {
             dcp_j_per_mol_k: None,
             log_k_equations: (0..p.proton_count()).map(|k| p.log_k_equation(k)).collect(),
             parts: Vec::new(),
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.protolytes.push(p);
         Ok(())
     }
@@ -891,7 +913,8 @@ impl Catalog {
     fn add_ion_with(&mut self, ion: Ion, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![ion.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Ion, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Ion, &names, &keys)?;
         let formula = ion.display_name().to_string();
         let info = DataInfo {
             kind: DataKind::Ion,
@@ -912,9 +935,8 @@ impl Catalog {
             dcp_j_per_mol_k: None,
             log_k_equations: Vec::new(),
             parts: Vec::new(),
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.ions.push(ion);
         Ok(())
     }
@@ -927,7 +949,8 @@ impl Catalog {
     fn add_reagent_with(&mut self, r: Reagent, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![r.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Reagent, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Reagent, &names, &keys)?;
         let molar_mass = r.molar_mass_g_per_mol().or(meta.molar_mass);
         let summary = match molar_mass {
             Some(m) => format!("M = {m} g/mol"),
@@ -937,15 +960,21 @@ impl Catalog {
             .parts()
             .iter()
             .map(|(c, n)| {
-                let what = match c {
+                // "{n} × {what}", written in one string.
+                let mut s = n.to_string();
+                s.push_str(" × ");
+                match c {
                     Constituent::Form { protolyte, protons } => {
-                        format!("{} ({})", protolyte.form_name(*protons), protolyte.name())
+                        s.push_str(&protolyte.form_name(*protons));
+                        s.push_str(" (");
+                        s.push_str(protolyte.name());
+                        s.push(')');
                     }
-                    Constituent::Ion(i) => i.name().to_string(),
-                    Constituent::Proton => "H+".into(),
-                    Constituent::Hydroxide => "OH-".into(),
-                };
-                format!("{n} × {what}")
+                    Constituent::Ion(i) => s.push_str(i.name()),
+                    Constituent::Proton => s.push_str("H+"),
+                    Constituent::Hydroxide => s.push_str("OH-"),
+                }
+                s
             })
             .collect();
         let info = DataInfo {
@@ -967,9 +996,8 @@ impl Catalog {
             dcp_j_per_mol_k: None,
             log_k_equations: Vec::new(),
             parts,
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.reagents.push(r);
         Ok(())
     }
@@ -983,7 +1011,8 @@ impl Catalog {
     fn add_complex_with(&mut self, c: Complex, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![c.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Complex, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Complex, &names, &keys)?;
         let parts = c
             .parts()
             .iter()
@@ -1015,9 +1044,8 @@ impl Catalog {
             dcp_j_per_mol_k: c.dcp_j_per_mol_k(),
             log_k_equations: vec![c.log_k_equation()],
             parts,
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.complexes.push(c);
         Ok(())
     }
@@ -1043,8 +1071,8 @@ impl Catalog {
         for info in &self.info {
             let idx = per_kind[info.kind as usize];
             per_kind[info.kind as usize] += 1;
-            for k in &info.keys {
-                self.index.entry(k.clone()).or_default()[info.kind as usize].get_or_insert(idx);
+            for k in info.keys() {
+                self.index.entry(k).or_default()[info.kind as usize].get_or_insert(idx);
             }
         }
     }
@@ -1138,7 +1166,6 @@ impl Catalog {
     /// Adds every entry of a parsed file (families and ions first, so that reagents and
     /// complexes may refer to them).
     fn apply(&mut self, file: CatalogFile, loc: &Located) -> Result<()> {
-        let mut sources = self.sources.clone();
         for (k, v) in &file.sources {
             if v.trim().is_empty() {
                 return Err(loc.error(
@@ -1148,9 +1175,22 @@ impl Catalog {
                     format!("`{k}` is empty"),
                 ));
             }
-            sources.insert(k.clone(), v.clone());
         }
-        self.sources = sources;
+        self.sources.extend(file.sources);
+        // Room for every entry and name of the file at once (no regrowing entry by entry).
+        fn names<T>(entries: &[Spanned<T>], synonyms: impl Fn(&T) -> usize) -> usize {
+            entries.iter().map(|e| 1 + synonyms(e.get_ref())).sum()
+        }
+        self.index.reserve(
+            names(&file.family, |e| e.synonyms.len())
+                + names(&file.ion, |e| e.synonyms.len())
+                + names(&file.reagent, |e| e.synonyms.len())
+                + names(&file.complex, |e| e.synonyms.len()),
+        );
+        self.info
+            .reserve(file.family.len() + file.ion.len() + file.reagent.len() + file.complex.len());
+        self.phase_index
+            .reserve(names(&file.solid, |e| e.synonyms.len()) + names(&file.gas, |e| e.synonyms.len()));
         for e in &file.family {
             self.apply_family(e, loc)?;
         }
@@ -1273,7 +1313,7 @@ impl Catalog {
             let (a, b) = (pair[0].pka, pair[1].pka);
             if b < a {
                 return Err(loc.error(
-                    loc.line_of_item(&entry.span, "steps", k + 1),
+                    loc.line_of_item(&entry.span(), "steps", k + 1),
                     &entry.label(),
                     &format!("steps[{}].pka", k + 1),
                     format!("pKa values ascend, most protonated form first: {b} follows {a}"),
@@ -1355,7 +1395,7 @@ impl Catalog {
         }
         // The line of the i-th [[family.log_k_equation]] table of this entry, for errors.
         let eq_error = |i: usize, field: &str, message: String| {
-            let start = entry.span.start.min(loc.text.len());
+            let start = entry.span().start.min(loc.text.len());
             let rest = &loc.text[start..];
             let end = rest
                 .get(1..)
@@ -1553,7 +1593,9 @@ fn read_equation(q: &EquationEntry) -> Result<LogKEquation> {
 /// An entry being read: where it is, for errors.
 struct Entry<'a> {
     loc: &'a Located<'a>,
-    span: std::ops::Range<usize>,
+    /// The span of the entry's `[[table]]` header (the entry's whole text is found from it
+    /// only when an error needs a line: [`Entry::span`]).
+    header: std::ops::Range<usize>,
     kind: DataKind,
     /// The table name shown in messages ("family", ..., "solid", "gas").
     table: &'static str,
@@ -1561,11 +1603,10 @@ struct Entry<'a> {
 }
 
 impl<'a> Entry<'a> {
-    fn new(loc: &'a Located<'a>, span: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
-        let span = loc.entry_range(span);
+    fn new(loc: &'a Located<'a>, header: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
         Entry {
             loc,
-            span,
+            header,
             kind,
             table: kind.table(),
             name,
@@ -1579,13 +1620,18 @@ impl<'a> Entry<'a> {
         e
     }
 
+    /// The text range of the whole entry, for the line of a field.
+    fn span(&self) -> std::ops::Range<usize> {
+        self.loc.entry_range(self.header.clone())
+    }
+
     fn label(&self) -> String {
         format!("{} `{}`", self.table, self.name)
     }
 
     fn error(&self, field: &str, message: impl std::fmt::Display) -> Error {
         let key = field.split(['[', '.']).next().unwrap_or(field);
-        let line = self.loc.line_of_key(&self.span, key);
+        let line = self.loc.line_of_key(&self.span(), key);
         self.loc.error(line, &self.label(), field, message)
     }
 
@@ -1629,7 +1675,7 @@ struct PartAt<'a> {
 impl PartAt<'_> {
     fn error(&self, key: &str, message: impl std::fmt::Display) -> Error {
         self.loc.error(
-            self.loc.line_of_item(&self.entry.span, "parts", self.k),
+            self.loc.line_of_item(&self.entry.span(), "parts", self.k),
             &self.entry.label(),
             &format!("parts[{}].{key}", self.k),
             message,

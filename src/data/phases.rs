@@ -6,16 +6,17 @@ use toml::Spanned;
 
 use super::format::{GasEntry, SolidEntry};
 use super::located::Located;
-use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_parts};
+use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, keys_of, normalized, read_parts};
 use crate::complex::ComplexPart;
 use crate::error::{Error, Result};
 use crate::phase::{Gas, Solid};
 
 impl Catalog {
     /// Refuses a name already held by a solid or a gas.
-    pub(super) fn check_phase_names(&self, kind: &'static str, names: &[&str]) -> Result<()> {
-        for n in names {
-            if let Some(&(gas, idx)) = self.phase_index.get(normalized(n).as_ref()) {
+    /// Refuses a name already held by a solid or a gas (`keys`: `names` normalised).
+    pub(super) fn check_phase_names(&self, kind: &'static str, names: &[&str], keys: &[String]) -> Result<()> {
+        for (n, key) in names.iter().zip(keys) {
+            if let Some(&(gas, idx)) = self.phase_index.get(key.as_str()) {
                 let (existing_kind, existing_name) = if gas {
                     ("gas", self.gas_entries[idx].name.clone())
                 } else {
@@ -33,9 +34,9 @@ impl Catalog {
     }
 
     /// Refuses a solid's or gas's name held by any entry of the shared namespace.
-    fn check_new_phase(&self, kind: &'static str, names: &[&str]) -> Result<()> {
-        self.check_phase_names(kind, names)?;
-        if let Some((name, k, idx)) = self.conflicts(DataKind::Complex, names).into_iter().next() {
+    fn check_new_phase(&self, kind: &'static str, names: &[&str], keys: &[String]) -> Result<()> {
+        self.check_phase_names(kind, names, keys)?;
+        if let Some((name, k, idx)) = self.conflicts(DataKind::Complex, names, keys).into_iter().next() {
             return Err(Error::NameConflict {
                 name,
                 kind,
@@ -139,18 +140,19 @@ impl Catalog {
         self.add_gas_with(gas, synonyms, meta)
     }
 
-    fn add_phase_names(&mut self, gas: bool, idx: usize, name: &str, synonyms: &[&str]) {
-        for n in std::iter::once(name).chain(synonyms.iter().copied()) {
-            self.phase_index.entry(normalize(n)).or_insert((gas, idx));
+    fn add_phase_names(&mut self, gas: bool, idx: usize, keys: Vec<String>) {
+        for k in keys {
+            self.phase_index.entry(k).or_insert((gas, idx));
         }
     }
 
     fn add_solid_with(&mut self, solid: Solid, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![solid.name()];
         names.extend_from_slice(synonyms);
-        self.check_new_phase("solid", &names)?;
+        let keys = keys_of(&names);
+        self.check_new_phase("solid", &names, &keys)?;
         let idx = self.solids.len();
-        self.add_phase_names(false, idx, solid.name(), synonyms);
+        self.add_phase_names(false, idx, keys);
         let parts: Vec<String> = solid
             .parts()
             .iter()
@@ -177,9 +179,10 @@ impl Catalog {
     fn add_gas_with(&mut self, gas: Gas, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![gas.name()];
         names.extend_from_slice(synonyms);
-        self.check_new_phase("gas", &names)?;
+        let keys = keys_of(&names);
+        self.check_new_phase("gas", &names, &keys)?;
         let idx = self.gases.len();
-        self.add_phase_names(true, idx, gas.name(), synonyms);
+        self.add_phase_names(true, idx, keys);
         self.gas_entries.push(PhaseEntry {
             kind: "gas",
             name: gas.name().to_string(),
