@@ -15,102 +15,102 @@ pub(crate) const CATALOG_FORMAT: &str = "protolyte-catalog/1";
 
 /// One catalogue file.
 #[derive(Debug, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct CatalogFile {
-    pub format: Option<Spanned<String>>,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de> + Ord"))]
+pub(crate) struct CatalogFile<S = String> {
+    pub format: Option<Spanned<S>>,
     /// Citations by key, for entries that `cite` them.
     #[serde(default)]
-    pub sources: BTreeMap<String, String>,
+    pub sources: BTreeMap<S, S>,
     #[serde(default)]
-    pub family: Vec<Spanned<FamilyEntry>>,
+    pub family: Vec<Spanned<FamilyEntry<S>>>,
     #[serde(default)]
-    pub ion: Vec<Spanned<IonEntry>>,
+    pub ion: Vec<Spanned<IonEntry<S>>>,
     #[serde(default)]
-    pub reagent: Vec<Spanned<ReagentEntry>>,
+    pub reagent: Vec<Spanned<ReagentEntry<S>>>,
     #[serde(default)]
-    pub complex: Vec<Spanned<ComplexEntry>>,
+    pub complex: Vec<Spanned<ComplexEntry<S>>>,
     #[serde(default)]
-    pub solid: Vec<Spanned<SolidEntry>>,
+    pub solid: Vec<Spanned<SolidEntry<S>>>,
     #[serde(default)]
-    pub gas: Vec<Spanned<GasEntry>>,
+    pub gas: Vec<Spanned<GasEntry<S>>>,
 }
 
 /// A solid: its dissolution reaction (parts as a complex's) and log K at 25 °C.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct SolidEntry {
-    pub name: String,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct SolidEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
-    pub parts: Vec<PartEntry>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
+    pub parts: Vec<PartEntry<S>>,
     pub log_k: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// An analytic log K(T) equation (`[solid.log_k_equation]`, without `step`).
-    pub log_k_equation: Option<EquationEntry>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub log_k_equation: Option<EquationEntry<S>>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
 }
 
 /// A gas: the family form it dissolves to and log K_H at 25 °C.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct GasEntry {
-    pub name: String,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct GasEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     /// `{ family = "...", protons = n }`: the neutral aqueous form.
-    pub dissolves_to: PartEntry,
+    pub dissolves_to: PartEntry<S>,
     pub log_kh: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// An analytic log K_H(T) equation (`[gas.log_k_equation]`, without `step`).
-    pub log_k_equation: Option<EquationEntry>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub log_k_equation: Option<EquationEntry<S>>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
 }
 
 /// An acid–base family.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct FamilyEntry {
-    pub name: String,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct FamilyEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     /// Display names of the forms, most protonated first.
-    pub form_names: Option<Vec<String>>,
+    pub form_names: Option<Vec<S>>,
     pub charge_most_protonated: i32,
-    pub steps: Vec<StepEntry>,
+    pub steps: Vec<StepEntry<S>>,
     pub ion_size_angstrom: Option<f64>,
     pub form_ion_sizes_angstrom: Option<Vec<f64>>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
     pub replace: bool,
     /// Analytic log K(T) equations, each naming its step (`[[family.log_k_equation]]`).
     #[serde(default)]
-    pub log_k_equation: Vec<EquationEntry>,
+    pub log_k_equation: Vec<EquationEntry<S>>,
 }
 
 /// One dissociation step.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct StepEntry {
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct StepEntry<S = String> {
     pub pka: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// The source of this step's ΔH°/ΔCp° where it is not the family's.
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     /// True when this step's ΔH°/ΔCp° were entered from memory of their source.
     #[serde(default)]
     pub from_memory: bool,
@@ -119,32 +119,32 @@ pub(crate) struct StepEntry {
 /// An analytic equation log₁₀ K = a + b·T + c/T + d·log₁₀ T + e/T² (T in kelvin) for one
 /// reaction, with the range its source fitted.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct EquationEntry {
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct EquationEntry<S = String> {
     /// The step (1 = the most protonated form's dissociation); families only.
     pub step: Option<usize>,
     /// a, b, c, d, e.
     pub coefficients: [f64; 5],
     /// Lowest and highest temperature of the fit, °C.
     pub range_celsius: [f64; 2],
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
 }
 
 /// A simple ion.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct IonEntry {
-    pub name: String,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct IonEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     pub charge: i32,
     pub ion_size_angstrom: Option<f64>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
@@ -153,16 +153,16 @@ pub(crate) struct IonEntry {
 
 /// A reagent.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct ReagentEntry {
-    pub name: String,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct ReagentEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     pub molar_mass_g_per_mol: Option<f64>,
-    pub parts: Vec<PartEntry>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub parts: Vec<PartEntry<S>>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
@@ -171,20 +171,20 @@ pub(crate) struct ReagentEntry {
 
 /// A complex or ion pair.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct ComplexEntry {
-    pub name: String,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct ComplexEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub parts: Vec<PartEntry>,
+    pub synonyms: Vec<S>,
+    pub parts: Vec<PartEntry<S>>,
     pub log_beta: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// An analytic log β(T) equation (`[complex.log_k_equation]`, without `step`).
-    pub log_k_equation: Option<EquationEntry>,
+    pub log_k_equation: Option<EquationEntry<S>>,
     pub ion_size_angstrom: Option<f64>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
@@ -194,12 +194,12 @@ pub(crate) struct ComplexEntry {
 /// One part of a reagent or complex: exactly one of `family` (with `protons`), `base`, `ion`,
 /// `proton`, `hydroxide`, with `count` (default 1) for the named ones.
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct PartEntry {
-    pub family: Option<String>,
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct PartEntry<S = String> {
+    pub family: Option<S>,
     pub protons: Option<u32>,
-    pub base: Option<String>,
-    pub ion: Option<String>,
+    pub base: Option<S>,
+    pub ion: Option<S>,
     pub proton: Option<i32>,
     pub hydroxide: Option<i32>,
     pub count: Option<i32>,
@@ -257,21 +257,22 @@ fn unpack<T>(items: Vec<Span<T>>) -> Vec<Spanned<T>> {
 /// of parsing their TOML. [`PackedFile::unpack`] gives back the very [`CatalogFile`] that
 /// [`parse`] gives for the same text (a test holds them equal).
 #[derive(Debug, Serialize, Deserialize, PartialEq)]
-pub(crate) struct PackedFile {
-    pub format: Option<Span<String>>,
-    pub sources: BTreeMap<String, String>,
-    pub family: Vec<Span<FamilyEntry>>,
-    pub ion: Vec<Span<IonEntry>>,
-    pub reagent: Vec<Span<ReagentEntry>>,
-    pub complex: Vec<Span<ComplexEntry>>,
-    pub solid: Vec<Span<SolidEntry>>,
-    pub gas: Vec<Span<GasEntry>>,
+#[serde(bound(serialize = "S: Serialize", deserialize = "S: Deserialize<'de> + Ord"))]
+pub(crate) struct PackedFile<S = String> {
+    pub format: Option<Span<S>>,
+    pub sources: BTreeMap<S, S>,
+    pub family: Vec<Span<FamilyEntry<S>>>,
+    pub ion: Vec<Span<IonEntry<S>>>,
+    pub reagent: Vec<Span<ReagentEntry<S>>>,
+    pub complex: Vec<Span<ComplexEntry<S>>>,
+    pub solid: Vec<Span<SolidEntry<S>>>,
+    pub gas: Vec<Span<GasEntry<S>>>,
 }
 
-impl PackedFile {
+impl<S> PackedFile<S> {
     /// The compact form of a file as read.
     #[cfg_attr(not(test), allow(dead_code))] // the build script's (and the tests')
-    pub fn pack(f: CatalogFile) -> Self {
+    pub fn pack(f: CatalogFile<S>) -> Self {
         PackedFile {
             format: f.format.map(|s| {
                 let r = s.span();
@@ -288,7 +289,7 @@ impl PackedFile {
     }
 
     /// The file as read, back from its compact form.
-    pub fn unpack(self) -> CatalogFile {
+    pub fn unpack(self) -> CatalogFile<S> {
         CatalogFile {
             format: self.format.map(|(a, b, v)| Spanned::new(a..b, v)),
             sources: self.sources,
@@ -304,4 +305,11 @@ impl PackedFile {
 
 /// What the build script writes for the built-in files: for each of [`BUILTIN_PATHS`], in
 /// order, the file as read or why it could not be read.
-pub(crate) type PackedBuiltin = Vec<Result<PackedFile, ParseFailure>>;
+pub(crate) type PackedBuiltin<S = String> = Vec<Result<PackedFile<S>, ParseFailure>>;
+
+/// The text fields of a file as read: owned (`String`: a user's file, parsed at run time) or
+/// borrowed from the embedded compact form (`&'static str`: the built-in files, decoded
+/// without a copy of each text).
+pub(crate) trait Text: std::ops::Deref<Target = str> + Into<String> + std::fmt::Display {}
+
+impl<T: std::ops::Deref<Target = str> + Into<String> + std::fmt::Display> Text for T {}

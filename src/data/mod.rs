@@ -19,7 +19,7 @@ use std::sync::OnceLock;
 
 use format::{
     CATALOG_FORMAT, CatalogFile, ComplexEntry, EquationEntry, FamilyEntry, IonEntry, PackedBuiltin, PartEntry,
-    ReagentEntry,
+    ReagentEntry, Text,
 };
 use located::Located;
 use toml::Spanned;
@@ -415,7 +415,9 @@ impl Catalog {
     #[doc(hidden)]
     pub fn read_builtin() -> Self {
         let mut cat = Catalog::empty();
-        let packed: PackedBuiltin = match postcard::from_bytes(BUILTIN_PACKED) {
+        // The texts are borrowed from the embedded bytes: no copy of each until a definition
+        // or description keeps it.
+        let packed: PackedBuiltin<&'static str> = match postcard::from_bytes(BUILTIN_PACKED) {
             Ok(p) => p,
             Err(e) => {
                 cat.problems.push(format!(
@@ -508,7 +510,7 @@ impl Catalog {
     }
 
     /// Checks and adds the entries of a file as read (see [`Catalog::load`]).
-    fn load_parsed(&mut self, file: CatalogFile, loc: &Located, atomic: bool) -> Result<()> {
+    fn load_parsed<S: Text>(&mut self, file: CatalogFile<S>, loc: &Located, atomic: bool) -> Result<()> {
         match &file.format {
             None => {
                 return Err(loc.error(
@@ -518,7 +520,7 @@ impl Catalog {
                     format!("missing: a catalogue file starts with format = \"{CATALOG_FORMAT}\""),
                 ));
             }
-            Some(f) if f.get_ref() != CATALOG_FORMAT => {
+            Some(f) if &**f.get_ref() != CATALOG_FORMAT => {
                 return Err(loc.error(
                     loc.line_of(f.span().start),
                     "",
@@ -1165,7 +1167,7 @@ impl Catalog {
 
     /// Adds every entry of a parsed file (families and ions first, so that reagents and
     /// complexes may refer to them).
-    fn apply(&mut self, file: CatalogFile, loc: &Located) -> Result<()> {
+    fn apply<S: Text>(&mut self, file: CatalogFile<S>, loc: &Located) -> Result<()> {
         for (k, v) in &file.sources {
             if v.trim().is_empty() {
                 return Err(loc.error(
@@ -1176,7 +1178,8 @@ impl Catalog {
                 ));
             }
         }
-        self.sources.extend(file.sources);
+        self.sources
+            .extend(file.sources.into_iter().map(|(k, v)| (k.into(), v.into())));
         // Room for every entry and name of the file at once (no regrowing entry by entry).
         fn names<T>(entries: &[Spanned<T>], synonyms: impl Fn(&T) -> usize) -> usize {
             entries.iter().map(|e| 1 + synonyms(e.get_ref())).sum()
@@ -1215,10 +1218,10 @@ impl Catalog {
     /// The analytic log K(T) of an entry with one reaction (a complex, solid or gas, named by
     /// `kind`): refuses a `step`, reads the equation, and adds the equation's own citation to
     /// `source` (as "; `label`: ...") and its `from_memory` to `from_memory`.
-    fn one_reaction_equation(
+    fn one_reaction_equation<S: Text>(
         &self,
         entry: &Entry,
-        q: &EquationEntry,
+        q: &EquationEntry<S>,
         kind: &str,
         label: &str,
         source: &mut String,
@@ -1229,7 +1232,7 @@ impl Catalog {
         }
         let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
         if q.source.is_some() || q.cite.is_some() {
-            let text = self.citation(entry, &q.source, &q.cite)?;
+            let text = self.citation(entry, q.source.as_deref(), q.cite.as_deref())?;
             source.push_str(&format!("; {label}: {text}"));
         }
         *from_memory |= q.from_memory;
@@ -1237,7 +1240,7 @@ impl Catalog {
     }
 
     /// The citation of an entry: its `source`, or the `[sources]` text its `cite` names.
-    fn citation(&self, entry: &Entry, source: &Option<String>, cite: &Option<String>) -> Result<String> {
+    fn citation(&self, entry: &Entry, source: Option<&str>, cite: Option<&str>) -> Result<String> {
         match (source, cite) {
             (Some(_), Some(_)) => Err(entry.error("cite", "give either `source` or `cite`, not both")),
             (None, None) => Err(entry.error(
@@ -1256,15 +1259,15 @@ impl Catalog {
 
     /// Adds a definition through the `add_*` functions, or through the `replace_*` machinery
     /// when the file says `replace = true` (then an entry of that name must exist).
-    fn place(
+    fn place<S: Text>(
         &mut self,
         kind: DataKind,
         entry: &Entry,
         replace: bool,
-        synonyms: &[String],
+        synonyms: &[S],
         add: impl FnOnce(&mut Catalog, &[&str]) -> Result<()>,
     ) -> Result<()> {
-        let refs: Vec<&str> = synonyms.iter().map(String::as_str).collect();
+        let refs: Vec<&str> = synonyms.iter().map(|s| &**s).collect();
         let named = |e: Error| match e {
             Error::NameConflict {
                 name,
@@ -1305,10 +1308,10 @@ impl Catalog {
         Ok(())
     }
 
-    fn apply_family(&mut self, spanned: &Spanned<FamilyEntry>, loc: &Located) -> Result<()> {
+    fn apply_family<S: Text>(&mut self, spanned: &Spanned<FamilyEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Protolyte, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         for (k, pair) in e.steps.windows(2).enumerate() {
             let (a, b) = (pair[0].pka, pair[1].pka);
             if b < a {
@@ -1338,7 +1341,7 @@ impl Catalog {
             p = p.with_formula(f);
         }
         if let Some(names) = &e.form_names {
-            let names: Vec<&str> = names.iter().map(String::as_str).collect();
+            let names: Vec<&str> = names.iter().map(|n| &**n).collect();
             p = p.with_form_names(&names).map_err(|err| match err {
                 Error::InconsistentDefinition { reason, .. } => entry.error("form_names", reason),
                 other => entry.wrap(other),
@@ -1388,7 +1391,7 @@ impl Catalog {
         let (mut source, mut from_memory) = (source, e.from_memory);
         for (k, s) in e.steps.iter().enumerate() {
             if s.source.is_some() || s.cite.is_some() {
-                let text = self.citation(&entry, &s.source, &s.cite)?;
+                let text = self.citation(&entry, s.source.as_deref(), s.cite.as_deref())?;
                 source.push_str(&format!("; step {} ΔH°/ΔCp°: {text}", k + 1));
                 from_memory |= s.from_memory;
             }
@@ -1431,7 +1434,7 @@ impl Catalog {
                 .with_log_k_equation(step - 1, eq)
                 .map_err(|err| eq_error(i, &field, err.to_string()))?;
             if q.source.is_some() || q.cite.is_some() {
-                let text = self.citation(&entry, &q.source, &q.cite)?;
+                let text = self.citation(&entry, q.source.as_deref(), q.cite.as_deref())?;
                 source.push_str(&format!("; log K(T) equation of step {step}: {text}"));
             }
             from_memory |= q.from_memory;
@@ -1448,10 +1451,10 @@ impl Catalog {
         })
     }
 
-    fn apply_ion(&mut self, spanned: &Spanned<IonEntry>, loc: &Located) -> Result<()> {
+    fn apply_ion<S: Text>(&mut self, spanned: &Spanned<IonEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Ion, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let mut ion = Ion::new(&e.name, e.charge).map_err(|err| entry.wrap(err))?;
         if let Some(f) = &e.formula {
             ion = ion.with_formula(f);
@@ -1470,10 +1473,10 @@ impl Catalog {
         })
     }
 
-    fn apply_reagent(&mut self, spanned: &Spanned<ReagentEntry>, loc: &Located) -> Result<()> {
+    fn apply_reagent<S: Text>(&mut self, spanned: &Spanned<ReagentEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Reagent, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let parts = read_parts(
             &e.parts,
             loc,
@@ -1522,10 +1525,10 @@ impl Catalog {
         })
     }
 
-    fn apply_complex(&mut self, spanned: &Spanned<ComplexEntry>, loc: &Located) -> Result<()> {
+    fn apply_complex<S: Text>(&mut self, spanned: &Spanned<ComplexEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Complex, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let parts = read_parts(
             &e.parts,
             loc,
@@ -1583,7 +1586,7 @@ impl Catalog {
 }
 
 /// A log K(T) equation as read from a file.
-fn read_equation(q: &EquationEntry) -> Result<LogKEquation> {
+fn read_equation<S>(q: &EquationEntry<S>) -> Result<LogKEquation> {
     LogKEquation::new(
         q.coefficients,
         ValidityRange::celsius(q.range_celsius[0], q.range_celsius[1])?,
@@ -1692,7 +1695,7 @@ enum PartRef<'a> {
 }
 
 /// Which part this is; exactly one of `family`, `base`, `ion`, `proton`, `hydroxide`.
-fn read_part<'a>(p: &'a PartEntry, at: &PartAt) -> Result<PartRef<'a>> {
+fn read_part<'a, S: Text>(p: &'a PartEntry<S>, at: &PartAt) -> Result<PartRef<'a>> {
     let given = [
         p.family.is_some(),
         p.base.is_some(),
@@ -1731,8 +1734,8 @@ fn read_part<'a>(p: &'a PartEntry, at: &PartAt) -> Result<PartRef<'a>> {
 /// The parts of a reagent or complex, in order: for each, which part it is, turned into the
 /// definition's own part by `kind` (which refuses the kinds the definition does not take),
 /// then its count, checked by `count`. The first error met is returned.
-fn read_parts<C, N>(
-    parts: &[PartEntry],
+fn read_parts<C, N, S: Text>(
+    parts: &[PartEntry<S>],
     loc: &Located,
     entry: &Entry,
     mut kind: impl FnMut(PartRef<'_>, &PartAt) -> Result<C>,
@@ -1749,7 +1752,7 @@ fn read_parts<C, N>(
 }
 
 /// The count of a part: `count` (default 1), or the value of `proton` / `hydroxide`.
-fn read_count(p: &PartEntry, at: &PartAt) -> Result<i32> {
+fn read_count<S>(p: &PartEntry<S>, at: &PartAt) -> Result<i32> {
     let n = p.proton.or(p.hydroxide).or(p.count).unwrap_or(1);
     if n == 0 {
         return Err(at.error("count", "a count of 0"));

@@ -4,7 +4,7 @@
 
 use toml::Spanned;
 
-use super::format::{GasEntry, SolidEntry};
+use super::format::{GasEntry, SolidEntry, Text};
 use super::located::Located;
 use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, keys_of, normalized, read_parts};
 use crate::complex::ComplexPart;
@@ -236,10 +236,10 @@ impl Catalog {
         Ok(())
     }
 
-    pub(super) fn apply_solid(&mut self, spanned: &Spanned<SolidEntry>, loc: &Located) -> Result<()> {
+    pub(super) fn apply_solid<S: Text>(&mut self, spanned: &Spanned<SolidEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::phase(loc, spanned.span(), "solid", &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let parts = read_parts(
             &e.parts,
             loc,
@@ -293,15 +293,15 @@ impl Catalog {
             origin: loc.file.to_string(),
             molar_mass: None,
         };
-        let refs: Vec<&str> = e.synonyms.iter().map(String::as_str).collect();
+        let refs: Vec<&str> = e.synonyms.iter().map(|s| &**s).collect();
         self.add_solid_with(s, &refs, meta)
             .map_err(|err| phase_conflict(&entry, err))
     }
 
-    pub(super) fn apply_gas(&mut self, spanned: &Spanned<GasEntry>, loc: &Located) -> Result<()> {
+    pub(super) fn apply_gas<S: Text>(&mut self, spanned: &Spanned<GasEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::phase(loc, spanned.span(), "gas", &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let (Some(family), Some(protons)) = (&e.dissolves_to.family, e.dissolves_to.protons) else {
             return Err(entry.error(
                 "dissolves_to",
@@ -341,7 +341,7 @@ impl Catalog {
             origin: loc.file.to_string(),
             molar_mass: None,
         };
-        let refs: Vec<&str> = e.synonyms.iter().map(String::as_str).collect();
+        let refs: Vec<&str> = e.synonyms.iter().map(|s| &**s).collect();
         self.add_gas_with(g, &refs, meta)
             .map_err(|err| phase_conflict(&entry, err))
     }
