@@ -826,6 +826,35 @@ impl Catalog {
         }
     }
 
+    /// The display name of form `protons` of `p` (as [`Protolyte::form_name`] gives it):
+    /// borrowed from the description of this catalog's family of the same name when that
+    /// family has all that a form's name depends on alike (name, formula, charge, number of
+    /// steps, form names), else computed. Reagents and complexes read from a file hold the
+    /// catalog's own families, so their forms are named once, when the family is added.
+    fn form_name_of<'s>(&'s self, p: &Protolyte, protons: usize) -> std::borrow::Cow<'s, str> {
+        let own = self
+            .index
+            .get(normalized(p.name()).as_ref())
+            .and_then(|a| a[DataKind::Protolyte as usize])
+            .filter(|&i| {
+                let q = &self.protolytes[i];
+                q.name() == p.name()
+                    && q.formula() == p.formula()
+                    && q.charge_most_protonated() == p.charge_most_protonated()
+                    && q.proton_count() == p.proton_count()
+                    && q.form_names() == p.form_names()
+            })
+            .and_then(|i| {
+                let forms = &self.info[self.offset(DataKind::Protolyte) + i].forms;
+                let form = forms.get(p.proton_count().checked_sub(protons)?)?;
+                (form.protons == protons).then_some(form.name.as_str())
+            });
+        match own {
+            Some(name) => std::borrow::Cow::Borrowed(name),
+            None => std::borrow::Cow::Owned(p.form_name(protons)),
+        }
+    }
+
     /// Records an entry's description at the end of its kind's group and indexes its names
     /// (`keys`: its name and `synonyms` normalised, [`keys_of`]). Call before pushing the
     /// definition.
@@ -967,7 +996,7 @@ impl Catalog {
                 s.push_str(" × ");
                 match c {
                     Constituent::Form { protolyte, protons } => {
-                        s.push_str(&protolyte.form_name(*protons));
+                        s.push_str(&self.form_name_of(protolyte, *protons));
                         s.push_str(" (");
                         s.push_str(protolyte.name());
                         s.push(')');
@@ -1019,12 +1048,20 @@ impl Catalog {
             .parts()
             .iter()
             .map(|(p, n)| {
-                let what = match p {
-                    ComplexPart::Base(f) => format!("{} ({})", f.form_name(0), f.name()),
-                    ComplexPart::Ion(i) => i.name().to_string(),
-                    ComplexPart::Proton => "H+".into(),
-                };
-                format!("{n} × {what}")
+                // "{n} × {what}", written in one string.
+                let mut s = n.to_string();
+                s.push_str(" × ");
+                match p {
+                    ComplexPart::Base(f) => {
+                        s.push_str(&self.form_name_of(f, 0));
+                        s.push_str(" (");
+                        s.push_str(f.name());
+                        s.push(')');
+                    }
+                    ComplexPart::Ion(i) => s.push_str(i.name()),
+                    ComplexPart::Proton => s.push_str("H+"),
+                }
+                s
             })
             .collect();
         let info = DataInfo {
@@ -1811,6 +1848,70 @@ mod tests {
         assert_eq!(fast.gas_entries, slow.gas_entries);
         assert_eq!(fast.phase_index, slow.phase_index);
         assert_eq!(fast.replaced, slow.replaced);
+    }
+
+    /// Each reagent's and complex's parts in words, with every form named as the family's
+    /// own `form_name` names it (the descriptions borrow the names given when the family was
+    /// added; a family of the same name that names its forms otherwise gets its own names).
+    #[test]
+    fn part_texts_name_forms_as_their_families_do() {
+        use crate::{ComplexPart, Constituent, Protolyte, Reagent};
+        fn reagent_text(r: &Reagent) -> Vec<String> {
+            (r.parts().iter())
+                .map(|(c, n)| match c {
+                    Constituent::Form { protolyte, protons } => {
+                        format!("{n} × {} ({})", protolyte.form_name(*protons), protolyte.name())
+                    }
+                    Constituent::Ion(i) => format!("{n} × {}", i.name()),
+                    Constituent::Proton => format!("{n} × H+"),
+                    Constituent::Hydroxide => format!("{n} × OH-"),
+                })
+                .collect()
+        }
+        let mut cat = Catalog::read_builtin();
+        let reagents = cat.info.iter().filter(|i| i.kind == super::DataKind::Reagent);
+        assert_eq!(reagents.clone().count(), cat.reagents.len());
+        for (r, info) in cat.reagents.iter().zip(reagents) {
+            assert_eq!(info.parts, reagent_text(r), "{}", r.name());
+        }
+        let complexes = cat.info.iter().filter(|i| i.kind == super::DataKind::Complex);
+        for (c, info) in cat.complexes.iter().zip(complexes) {
+            let want: Vec<String> = (c.parts().iter())
+                .map(|(p, n)| match p {
+                    ComplexPart::Base(f) => format!("{n} × {} ({})", f.form_name(0), f.name()),
+                    ComplexPart::Ion(i) => format!("{n} × {}", i.name()),
+                    ComplexPart::Proton => format!("{n} × H+"),
+                })
+                .collect();
+            assert_eq!(info.parts, want, "{}", c.name());
+        }
+        // A reagent built in code on a family that shares the built-in acetate's name but not
+        // its formula: its forms are named from its own formula.
+        let own = Protolyte::new("acetate", &[4.0], 0).expect("family").with_formula("HQ");
+        assert_ne!(
+            own.form_name(0),
+            cat.protolyte("acetate").expect("built in").form_name(0)
+        );
+        let sodium = cat.ion("sodium").expect("built in");
+        let r = Reagent::new(
+            "sodium Q (test)",
+            None,
+            vec![
+                (
+                    Constituent::Form {
+                        protolyte: own,
+                        protons: 0,
+                    },
+                    1,
+                ),
+                (Constituent::Ion(sodium), 1),
+            ],
+        )
+        .expect("reagent");
+        cat.add_reagent(r.clone(), &[]).expect("added");
+        let info = cat.info(super::DataKind::Reagent, "sodium Q (test)").expect("found");
+        assert_eq!(info.parts, reagent_text(&r));
+        assert!(info.parts[0].starts_with("1 × Q-"), "{:?}", info.parts);
     }
 
     /// A fault in a built-in file is reported as a user's file reports it: the same message,

@@ -156,7 +156,7 @@ impl Catalog {
         let parts: Vec<String> = solid
             .parts()
             .iter()
-            .map(|(p, n)| format!("{n} × {}", part_name(p)))
+            .map(|(p, n)| format!("{n} × {}", self.part_name(p)))
             .collect();
         self.solid_entries.push(PhaseEntry {
             kind: "solid",
@@ -191,7 +191,7 @@ impl Catalog {
             summary: format!(
                 "log K_H {} mol/(kg·bar) (25 °C), dissolves to {}",
                 gas.log10_kh(),
-                gas.family().form_name(gas.protons())
+                self.form_name_of(gas.family(), gas.protons())
             ),
             source: meta.source,
             from_memory: meta.from_memory,
@@ -199,6 +199,15 @@ impl Catalog {
         });
         self.gases.push(gas);
         Ok(())
+    }
+
+    /// A solid's part in words: the form or ion's display name.
+    fn part_name<'s>(&'s self, p: &'s ComplexPart) -> std::borrow::Cow<'s, str> {
+        match p {
+            ComplexPart::Base(f) => self.form_name_of(f, 0),
+            ComplexPart::Ion(i) => std::borrow::Cow::Borrowed(i.display_name()),
+            ComplexPart::Proton => std::borrow::Cow::Borrowed("H+"),
+        }
     }
 
     /// Rebuilds the solids and gases built on a replaced family or ion.
@@ -369,13 +378,5 @@ fn part_is(p: &ComplexPart, name: &str) -> bool {
         ComplexPart::Base(b) => b.name() == name,
         ComplexPart::Ion(i) => i.name() == name,
         ComplexPart::Proton => false,
-    }
-}
-
-fn part_name(p: &ComplexPart) -> String {
-    match p {
-        ComplexPart::Base(f) => f.form_name(0),
-        ComplexPart::Ion(i) => i.display_name().to_string(),
-        ComplexPart::Proton => "H+".into(),
     }
 }
