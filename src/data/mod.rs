@@ -434,10 +434,14 @@ impl Catalog {
             ));
             return cat;
         }
-        for ((name, text), file) in BUILTIN_FILES.into_iter().zip(packed) {
+        let files: Vec<_> = packed.into_iter().map(|f| f.map(format::PackedFile::unpack)).collect();
+        // Room for the entries of all the files at once.
+        let room = (files.iter().flatten()).fold(Room::default(), |r, f| r.add(Room::of(f)));
+        cat.reserve(room);
+        for ((name, text), file) in BUILTIN_FILES.into_iter().zip(files) {
             let origin = format!("built-in {name}");
             let loc = Located { file: &origin, text };
-            let read = file.map(format::PackedFile::unpack).map_err(|f| loc.parse_error(f));
+            let read = file.map_err(|f| loc.parse_error(f));
             if let Err(e) = read.and_then(|file| cat.load_parsed(file, &loc, false)) {
                 cat.problems.push(e.to_string());
             }
@@ -1215,22 +1219,10 @@ impl Catalog {
                 ));
             }
         }
+        // Room for every entry and name of the file at once (no regrowing entry by entry).
+        self.reserve(Room::of(&file));
         self.sources
             .extend(file.sources.into_iter().map(|(k, v)| (k.into(), v.into())));
-        // Room for every entry and name of the file at once (no regrowing entry by entry).
-        fn names<T>(entries: &[Spanned<T>], synonyms: impl Fn(&T) -> usize) -> usize {
-            entries.iter().map(|e| 1 + synonyms(e.get_ref())).sum()
-        }
-        self.index.reserve(
-            names(&file.family, |e| e.synonyms.len())
-                + names(&file.ion, |e| e.synonyms.len())
-                + names(&file.reagent, |e| e.synonyms.len())
-                + names(&file.complex, |e| e.synonyms.len()),
-        );
-        self.info
-            .reserve(file.family.len() + file.ion.len() + file.reagent.len() + file.complex.len());
-        self.phase_index
-            .reserve(names(&file.solid, |e| e.synonyms.len()) + names(&file.gas, |e| e.synonyms.len()));
         for e in &file.family {
             self.apply_family(e, loc)?;
         }
@@ -1619,6 +1611,40 @@ impl Catalog {
         self.place(DataKind::Complex, &entry, e.replace, &e.synonyms, |cat, syn| {
             cat.add_complex_with(c, syn, meta)
         })
+    }
+}
+
+/// How many entries and names a file adds: (names of families, ions, reagents and complexes;
+/// their entries; names of solids and gases).
+#[derive(Clone, Copy, Default)]
+struct Room(usize, usize, usize);
+
+impl Room {
+    fn of<S>(file: &CatalogFile<S>) -> Self {
+        fn names<T>(entries: &[Spanned<T>], synonyms: impl Fn(&T) -> usize) -> usize {
+            entries.iter().map(|e| 1 + synonyms(e.get_ref())).sum()
+        }
+        Room(
+            names(&file.family, |e| e.synonyms.len())
+                + names(&file.ion, |e| e.synonyms.len())
+                + names(&file.reagent, |e| e.synonyms.len())
+                + names(&file.complex, |e| e.synonyms.len()),
+            file.family.len() + file.ion.len() + file.reagent.len() + file.complex.len(),
+            names(&file.solid, |e| e.synonyms.len()) + names(&file.gas, |e| e.synonyms.len()),
+        )
+    }
+
+    fn add(self, other: Room) -> Self {
+        Room(self.0 + other.0, self.1 + other.1, self.2 + other.2)
+    }
+}
+
+impl Catalog {
+    /// Makes room for `room` more names and entries (a no-op where there is room already).
+    fn reserve(&mut self, room: Room) {
+        self.index.reserve(room.0);
+        self.info.reserve(room.1);
+        self.phase_index.reserve(room.2);
     }
 }
 
