@@ -15,10 +15,11 @@ use std::path::PathBuf;
 fn main() {
     println!("cargo::rerun-if-changed=build.rs");
     println!("cargo::rerun-if-changed=src/data/format.rs");
+    let root = PathBuf::from(std::env::var_os("CARGO_MANIFEST_DIR").expect("cargo sets CARGO_MANIFEST_DIR"));
     let mut packed: format::PackedBuiltin = Vec::new();
     for path in format::BUILTIN_PATHS {
         println!("cargo::rerun-if-changed={path}");
-        let text = match std::fs::read_to_string(path) {
+        let text = match std::fs::read_to_string(root.join(path)) {
             Ok(t) => t,
             Err(e) => panic!("cannot read the built-in catalogue file {path}: {e}"),
         };
