@@ -7,7 +7,8 @@
 //!
 //! Usage: `icount CASE REPETITIONS` with CASE one of `monoprotic_davies`,
 //! `three_families_davies`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
-//! `lookup_synonym`, `general_three_families_davies`. Run natively it only checks that the case works.
+//! `lookup_synonym`, `general_three_families_davies`, `read_builtin_catalog` (the built-in
+//! catalogue read from its embedded files, as `Catalog::builtin` does once). Run natively it only checks that the case works.
 
 use protolyte::analysis::Titration;
 use protolyte::solve::Workspace;
@@ -144,7 +145,7 @@ fn main() {
     run(&args[1], n);
 }
 
-const CASES: [&str; 7] = [
+const CASES: [&str; 8] = [
     "monoprotic_davies",
     "three_families_davies",
     "three_families_davies_workspace",
@@ -152,6 +153,7 @@ const CASES: [&str; 7] = [
     "titration_1000_davies",
     "lookup_synonym",
     "general_three_families_davies",
+    "read_builtin_catalog",
 ];
 
 fn run(case: &str, n: usize) {
@@ -210,6 +212,11 @@ fn run(case: &str, n: usize) {
                 r.molar_mass_g_per_mol().unwrap_or(0.0)
             })
         }
+        "read_builtin_catalog" => measured(n, || {
+            let cat = Catalog::read_builtin();
+            assert!(cat.load_problems().is_empty());
+            black_box(cat).entries().len() as f64
+        }),
         other => panic!("unknown case {other}; one of {CASES:?}"),
     };
     black_box(acc);
