@@ -134,7 +134,8 @@ impl PlotOptions {
         self
     }
 
-    /// Marks a pH on the distribution and capacity plots.
+    /// Marks a pH on the distribution and capacity plots (a pH outside the plotted range is
+    /// not drawn; a pH that is not finite is refused when plotting).
     pub fn mark_ph(mut self, ph: f64) -> Self {
         self.mark_ph = Some(ph);
         self
@@ -151,6 +152,12 @@ impl PlotOptions {
             return Err(PlotError::InvalidOption {
                 option: "height",
                 reason: "must be within 240..=4000 pixels",
+            });
+        }
+        if self.mark_ph.is_some_and(|p| !p.is_finite()) {
+            return Err(PlotError::InvalidOption {
+                option: "mark_ph",
+                reason: "must be a finite pH",
             });
         }
         Ok(())

@@ -88,7 +88,8 @@ impl Recipe {
     }
 
     /// Lets `solid` form (or dissolve) at equilibrium: the solver finds whether it is
-    /// present and how much of it. Its saturation index is reported too.
+    /// present and how much of it. Its saturation index is reported too. A solid allowed
+    /// under a name already allowed replaces the earlier definition.
     ///
     /// ```
     /// use protolyte::{Amount, Catalog, Conditions, Recipe};
@@ -104,8 +105,11 @@ impl Recipe {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn allow_solid(&mut self, solid: &Solid) -> &mut Self {
-        if !self.allowed.iter().any(|s| s.name() == solid.name()) {
-            self.allowed.push(solid.clone());
+        // One solid a name: a later definition under a name already allowed replaces the
+        // earlier one (before, it was dropped without a word).
+        match self.allowed.iter_mut().find(|s| s.name() == solid.name()) {
+            Some(s) => *s = solid.clone(),
+            None => self.allowed.push(solid.clone()),
         }
         self
     }
@@ -116,6 +120,14 @@ impl Recipe {
             self.allow_solid(s);
         }
         self
+    }
+
+    /// The same recipe with no solid allowed to form (the water as given).
+    pub(crate) fn without_allowed_solids(&self) -> Recipe {
+        let mut r = self.clone();
+        r.allowed.clear();
+        r.allow_all = false;
+        r
     }
 
     /// Lets every reported solid form (the built-in catalogue's unless
@@ -314,6 +326,84 @@ impl Recipe {
         Ok(self)
     }
 
+    /// Adds `amount` of `reagent` as a dose to a water: as [`Recipe::add`], and where the
+    /// recipe fixes its DIC or its total alkalinity (a water analysis entered as measured),
+    /// those are raised by what the dose brings, so that it counts: per mole of reagent, its
+    /// carbonate units for the DIC, and for the alkalinity its family forms' protons below the
+    /// reference level ([`ALKALINITY_REFERENCE_PKA`](crate::phase::ALKALINITY_REFERENCE_PKA))
+    /// and its OH⁻, less the protons above it and its H⁺. `conditions` gives the density of
+    /// water that turns a molar amount into mol/kg. Refuses what [`Recipe::add`] refuses and
+    /// a DIC or alkalinity the dose would take out of its range.
+    ///
+    /// ```
+    /// use protolyte::{ActivityModel, Amount, Catalog, Conditions, Recipe, Temperature};
+    /// let cat = Catalog::builtin();
+    /// let ideal = Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal);
+    /// let mut water = Recipe::new();
+    /// water.fix_dic(2.2e-3)?.fix_alkalinity(2.0e-3)?.close_charge_balance_on(&cat.ion("sodium")?)?;
+    /// let mut dosed = water.clone();
+    /// dosed.add_dose(&cat.reagent("hydrochloric acid")?, Amount::molal(1e-3), &ideal)?;
+    /// let eq = dosed.compile(&ideal)?.solve()?;
+    /// // 1 mmol/kg of a strong acid takes 1 meq/kg of alkalinity (by definition).
+    /// assert!((eq.total_alkalinity_molal() - 1.0e-3).abs() < 1e-12);
+    /// assert!(eq.ph() < water.compile(&ideal)?.solve()?.ph());
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn add_dose(
+        &mut self,
+        reagent: &Reagent,
+        amount: Amount,
+        conditions: &crate::system::Conditions,
+    ) -> Result<&mut Self> {
+        use crate::reagent::Constituent;
+        amount.validate(reagent.name())?;
+        let fixes = self
+            .constraints
+            .iter()
+            .any(|c| matches!(c, Constraint::Dic(_) | Constraint::Alkalinity(_)));
+        if !fixes {
+            return self.add(reagent, amount);
+        }
+        let molal = amount.molal_value(crate::water::density_kg_per_l(conditions.temperature)?);
+        let (mut carbon, mut alkalinity) = (0.0, 0.0);
+        for (c, n) in reagent.parts() {
+            let n = f64::from(*n);
+            match c {
+                Constituent::Form { protolyte, protons } => {
+                    if protolyte.name() == "carbonate" {
+                        carbon += n;
+                    }
+                    alkalinity += n * (crate::phase::reference_protons(protolyte) as f64 - *protons as f64);
+                }
+                Constituent::Proton => alkalinity -= n,
+                Constituent::Hydroxide => alkalinity += n,
+                Constituent::Ion(_) => {}
+            }
+        }
+        let mut raised = self.constraints.clone();
+        for c in &mut raised {
+            match c {
+                Constraint::Dic(d) => {
+                    *d = crate::error::check_amount_max("DIC after the dose", *d + carbon * molal, "mol/kg")?;
+                }
+                Constraint::Alkalinity(a) => {
+                    *a = crate::error::check_parameter(
+                        "total alkalinity after the dose",
+                        "mol/kg",
+                        *a + alkalinity * molal,
+                        -100.0,
+                        100.0,
+                        "must be finite and within ±100",
+                    )?;
+                }
+                _ => {}
+            }
+        }
+        self.add(reagent, amount)?;
+        self.constraints = raised;
+        Ok(self)
+    }
+
     /// Adds `mass` of `reagent` dissolved and made up to `final_volume`. The reagent needs a
     /// molar mass.
     ///
@@ -395,7 +485,9 @@ impl Recipe {
         &self.complexes
     }
 
-    /// The recipe diluted `factor`-fold with water (factor ≥ 1).
+    /// The recipe diluted `factor`-fold with water (factor ≥ 1). A fixed DIC and a fixed
+    /// alkalinity are amounts and are diluted with the reagents; a fixed pH, a fixed partial
+    /// pressure and the ion closing the charge balance are conditions and stay.
     ///
     /// ```
     /// use protolyte::{Amount, Catalog, Recipe};
@@ -412,14 +504,27 @@ impl Recipe {
         for e in &mut out.entries {
             e.amount = e.amount.scaled(1.0 / factor);
         }
+        for c in &mut out.constraints {
+            match c {
+                Constraint::Dic(d) => *d /= factor,
+                Constraint::Alkalinity(a) => *a /= factor,
+                _ => {}
+            }
+        }
         Ok(out)
     }
 
     /// Mixes solutions by volume. Volumes are taken as additive (no volume change on mixing),
     /// the dilute-solution assumption: each amount is scaled by its solution's share of the
     /// total volume; molal amounts are scaled the same way (water mass taken proportional to
-    /// volume). Complexes of all parts are kept. Refuses volumes that are negative or not
-    /// finite, a zero total volume and one that overflows.
+    /// volume). Complexes of all parts are kept. A fixed DIC or alkalinity is an amount and is
+    /// mixed the same way (the volume-weighted mean of the parts'); a fixed pH, partial
+    /// pressure or closing ion is a condition and holds for the mixture. Refuses volumes that
+    /// are negative or not finite, a zero total volume and one that overflows, two parts whose
+    /// conditions conflict, and a fixed DIC (or alkalinity) beside a part whose carbon (or
+    /// alkalinity) is not known without solving it: one with carbonate reagents but no fixed
+    /// DIC (or one with acids, bases or a fixed pH but no fixed alkalinity)
+    /// ([`Error::ConflictingConstraints`]).
     ///
     /// ```
     /// use protolyte::{Amount, Catalog, Recipe, Volume};
@@ -473,15 +578,119 @@ impl Recipe {
                     match c {
                         Constraint::Ph(ph) => out.fix_ph(*ph)?,
                         Constraint::PartialPressure { gas, pressure } => out.fix_partial_pressure(gas, *pressure)?,
-                        Constraint::Alkalinity(a) => out.fix_alkalinity(*a)?,
-                        Constraint::Dic(d) => out.fix_dic(*d)?,
+                        // Amounts: mixed below.
+                        Constraint::Alkalinity(_) | Constraint::Dic(_) => &mut out,
                         Constraint::ChargeBalanceOn(ion) => out.close_charge_balance_on(ion)?,
                     };
                 }
             }
         }
+        if let Some(dic) = mixed_amount(
+            parts,
+            total,
+            "DIC",
+            |c| match c {
+                Constraint::Dic(d) => Some(*d),
+                _ => None,
+            },
+            carbon_unknown,
+        )? {
+            out.fix_dic(dic)?;
+        }
+        if let Some(alk) = mixed_amount(
+            parts,
+            total,
+            "total alkalinity",
+            |c| match c {
+                Constraint::Alkalinity(a) => Some(*a),
+                _ => None,
+            },
+            alkalinity_unknown,
+        )? {
+            out.fix_alkalinity(alk)?;
+        }
         Ok(out)
     }
+}
+
+/// The volume-weighted mean of an amount fixed by a constraint (`fixed` reads it) over the
+/// parts of a mixture, `None` when no part fixes it. A part that does not fix it counts as
+/// zero when `unknown` finds nothing in it that would make it non-zero; otherwise the
+/// mixture's amount is not known without solving that part, and it is refused.
+fn mixed_amount(
+    parts: &[(&Recipe, Volume)],
+    total_l: f64,
+    what: &str,
+    fixed: impl Fn(&Constraint) -> Option<f64>,
+    unknown: fn(&Recipe) -> Option<String>,
+) -> Result<Option<f64>> {
+    let Some((i, value)) = parts
+        .iter()
+        .enumerate()
+        .find_map(|(i, (r, _))| r.constraints.iter().find_map(&fixed).map(|v| (i, v)))
+    else {
+        return Ok(None);
+    };
+    let mut sum = 0.0;
+    for (j, (r, v)) in parts.iter().enumerate() {
+        match r.constraints.iter().find_map(&fixed) {
+            Some(x) => sum += x * v.liters_value() / total_l,
+            None => {
+                if let Some(source) = unknown(r) {
+                    return Err(Error::ConflictingConstraints {
+                        first: format!("{what} fixed at {value} mol/kg in mixed solution {}", i + 1),
+                        second: format!("{source} in mixed solution {}", j + 1),
+                        reason: format!(
+                            "the mixture's {what} is known only when each solution's is: fix it in each, or in none"
+                        ),
+                    });
+                }
+            }
+        }
+    }
+    Ok(Some(sum))
+}
+
+/// What puts carbon into a recipe that does not fix its DIC, if anything.
+fn carbon_unknown(r: &Recipe) -> Option<String> {
+    for e in r.entries.iter().filter(|e| e.amount.value() != 0.0) {
+        for (c, _) in e.reagent.parts() {
+            if let crate::reagent::Constituent::Form { protolyte, .. } = c
+                && protolyte.name() == "carbonate"
+            {
+                return Some(format!("carbonate put in by `{}`", e.reagent.name()));
+            }
+        }
+    }
+    r.constraints.iter().find_map(|c| match c {
+        Constraint::PartialPressure { gas, .. } if gas.family().name() == "carbonate" => {
+            Some(format!("carbonate set by {}", c.describe()))
+        }
+        _ => None,
+    })
+}
+
+/// What gives a recipe that does not fix its alkalinity a non-zero total alkalinity, if
+/// anything: an acid, a base or a family form away from its zero level, or a fixed pH. A
+/// recipe of neutral salts of strong acids and bases (or pure water) has none.
+fn alkalinity_unknown(r: &Recipe) -> Option<String> {
+    use crate::reagent::Constituent;
+    for e in r.entries.iter().filter(|e| e.amount.value() != 0.0) {
+        for (c, _) in e.reagent.parts() {
+            let off = match c {
+                Constituent::Form { protolyte, protons } => crate::phase::reference_protons(protolyte) != *protons,
+                Constituent::Proton | Constituent::Hydroxide => true,
+                Constituent::Ion(_) => false,
+            };
+            if off {
+                return Some(format!("the alkalinity of `{}`", e.reagent.name()));
+            }
+        }
+    }
+    r.constraints.iter().find_map(|c| match c {
+        Constraint::Ph(_) => Some(c.describe()),
+        _ => None,
+    })
 }
 
 fn rename(e: Error, name: &str) -> Error {

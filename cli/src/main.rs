@@ -20,7 +20,9 @@ use protolyte::document::{
 use protolyte::plot::{
     PlotError, PlotOptions, capacity_plot, distribution_plot, saturation_plot, titration_svg, write_svg,
 };
-use protolyte::{Catalog, DataKind, Error};
+use protolyte::{
+    Amount, Catalog, ComponentKind, Conditions, Constituent, DataKind, Equilibrium, Error, Reagent, Recipe,
+};
 
 /// Exit codes.
 const EXIT_OK: u8 = 0;
@@ -327,10 +329,12 @@ fn solve(file: &Path, json: bool, plots: [Option<&Path>; 3], out: &mut impl Writ
         .compile(&conditions)
         .and_then(|s| s.solve())
         .map_err(|e| chem(&name, e))?;
-    let mut result = SolveResult::from_equilibrium(&eq).named(doc.name.clone());
-    if let Some(ion) = doc.charge_balance_on.as_deref().and_then(|n| catalog().ion(n).ok()) {
-        result = result.with_ion_balance(ion.charge());
-    }
+    // A water analysis closed on an ion: its ion balance as entered (the closing ion and the
+    // solids present read from the recipe, so that an ion of the document's own definitions
+    // and what precipitated are counted); a fixed pH read under another pH convention.
+    let result = SolveResult::from_equilibrium(&eq)
+        .named(doc.name.clone())
+        .with_recipe(&recipe);
     if json {
         write_json(out, &result)?;
     } else {
@@ -345,14 +349,7 @@ fn solve(file: &Path, json: bool, plots: [Option<&Path>; 3], out: &mut impl Writ
     // fixed pH or partial pressure, or solids allowed to form, would hold the pH or the totals
     // the sweep moves. The result's own pH is marked on each plot.
     let closed = if doc.has_phase_requests() {
-        let mut c = doc.clone();
-        c.fixed_ph = None;
-        c.partial_pressures.clear();
-        c.allow_solids = None;
-        c.fixed_alkalinity_meq_per_kg = None;
-        c.fixed_dic_mmol_per_kg = None;
-        c.charge_balance_on = None;
-        c.to_recipe(catalog()).map_err(|e| e.in_file(&name))?.0
+        closed_solution(&recipe, &conditions, &eq).map_err(|e| chem(&name, e))?
     } else {
         recipe
     };
@@ -375,6 +372,49 @@ fn solve(file: &Path, json: bool, plots: [Option<&Path>; 3], out: &mut impl Writ
         write_svg(p, &svg).map_err(|e| plot_failure(p, e))?;
     }
     Ok(EXIT_OK)
+}
+
+/// The solution of `eq` closed: what the phase requests of `recipe` left dissolved (a DIC,
+/// the carbon taken up from a gas, the ion that closed the charge balance, less what
+/// precipitated), each family and ion at its dissolved total, with no phase request. Each
+/// enters as a neutral reagent (a family's most protonated form, an ion with OH⁻ or H⁺):
+/// where the pH starts does not matter to the plots, which move it with strong acid or base.
+fn closed_solution(recipe: &Recipe, conditions: &Conditions, eq: &Equilibrium) -> Result<Recipe, Error> {
+    let system = recipe.compile(conditions)?;
+    let mut closed = Recipe::new();
+    closed
+        .report_solids(recipe.reported_solids())
+        .report_gases(recipe.reported_gases())
+        .add_complexes(recipe.complexes());
+    for comp in system.components().iter().skip(1) {
+        let Some(total) = eq.dissolved_total_molal(&comp.name) else {
+            continue;
+        };
+        let (part, charge) = match &comp.kind {
+            ComponentKind::Family(f) => {
+                let p = &system.families()[*f].protolyte;
+                let n = p.proton_count();
+                (
+                    Constituent::Form {
+                        protolyte: p.clone(),
+                        protons: n,
+                    },
+                    p.charge_most_protonated(),
+                )
+            }
+            ComponentKind::Ion(ion) => (Constituent::Ion(ion.clone()), ion.charge()),
+            ComponentKind::Proton => continue,
+        };
+        let mut parts = vec![(part, 1)];
+        if charge > 0 {
+            parts.push((Constituent::Hydroxide, charge.unsigned_abs()));
+        } else if charge < 0 {
+            parts.push((Constituent::Proton, charge.unsigned_abs()));
+        }
+        let reagent = Reagent::new(&format!("{} (dissolved)", comp.name), None, parts)?;
+        closed.add(&reagent, Amount::molal(total.max(0.0)))?;
+    }
+    Ok(closed)
 }
 
 fn write_solve_table(out: &mut impl Write, r: &SolveResult) -> io::Result<()> {
@@ -1413,15 +1453,19 @@ fn equation_json(q: Option<protolyte::vant_hoff::LogKEquation>) -> serde_json::V
         Some(q) => serde_json::json!({
             "coefficients": q.coefficients(),
             "range_celsius": [q.range().min_celsius, q.range().max_celsius],
+            "applied_as": "log K(T) = log K(25 °C) + f(T) - f(298.15 K), f(T) = a + b·T + c/T + d·log10 T + e/T², T in K",
         }),
         None => serde_json::Value::Null,
     }
 }
 
-/// "log K = a + b·T + c/T + d·log T + e/T² (0–60 °C)" with the coefficients, zero terms left out.
+/// "log K(T) = log K(25 °C) + f(T) − f(298.15 K), f(T) = a + b·T + c/T + d·log T + e/T²
+/// (0–60 °C)" with the coefficients, zero terms left out.
+/// The equation as the library applies it: the change of log K from 25 °C (its value at
+/// 25 °C may differ from the entry's log K by up to 0.03, a difference of units or of fits).
 fn equation_text(q: protolyte::vant_hoff::LogKEquation) -> String {
     let [a, b, c, d, e] = q.coefficients();
-    let mut t = format!("log K = {a}");
+    let mut t = format!("log K(T) = log K(25 °C) + f(T) − f(298.15 K), f(T) = {a}");
     for (v, unit) in [(b, "·T"), (c, "/T"), (d, "·log T"), (e, "/T²")] {
         if v != 0.0 {
             let sign = if v < 0.0 { '−' } else { '+' };

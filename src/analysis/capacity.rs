@@ -81,8 +81,22 @@ pub struct CapacityCurve {
 }
 
 impl CapacityCurve {
-    /// The solution of `recipe` at `conditions`, ready to be moved in pH.
+    /// The solution of `recipe` at `conditions`, ready to be moved in pH. A fixed pCO₂ or
+    /// allowed solids stay in force (the capacity of the open system, or with the solids);
+    /// a fixed pH or alkalinity would hold what the strong acid or base moves, and is refused
+    /// ([`Error::ConflictingConstraints`]).
     pub fn new(recipe: &Recipe, conditions: &Conditions) -> Result<Self> {
+        if let Some(c) = recipe
+            .constraints()
+            .iter()
+            .find(|c| matches!(c, crate::Constraint::Ph(_) | crate::Constraint::Alkalinity(_)))
+        {
+            return Err(Error::ConflictingConstraints {
+                first: c.describe(),
+                second: "the strong acid or base a buffer capacity adds".into(),
+                reason: "the constraint holds the pH (or the alkalinity) that the acid or base would move".into(),
+            });
+        }
         let base = Reagent::new(
             "strong base (inert cation)",
             None,

@@ -168,6 +168,23 @@ pub fn amount_for_ph(
 ) -> Result<Amount> {
     let target = check_target(target_ph)?;
     let (amax, unit) = search_bound(reagent, max_amount)?;
+    // A water entered with a fixed DIC or alkalinity: the dose raises those constraints (see
+    // `Recipe::add_dose`), which the one-system search below would leave where they were. The
+    // dose search also refuses a recipe that holds its pH.
+    if recipe.constraints().iter().any(|c| {
+        matches!(
+            c,
+            crate::Constraint::Dic(_) | crate::Constraint::Alkalinity(_) | crate::Constraint::Ph(_)
+        )
+    }) {
+        return crate::analysis::water::dose_for_target(
+            recipe,
+            reagent,
+            conditions,
+            &crate::analysis::water::DoseTarget::Ph(target),
+            max_amount,
+        );
+    }
     // One system with the components of both; totals = base + x · per-unit.
     let mut both = recipe.clone();
     both.add(reagent, max_amount)?;
@@ -226,14 +243,15 @@ pub(crate) fn search_bound(reagent: &Reagent, max_amount: Amount) -> Result<(f64
     max_amount.validate(reagent.name())?;
     let amax = max_amount.value();
     if amax <= 0.0 {
-        return Err(Error::InvalidAmount {
+        return Err(Error::InvalidParameter {
             what: format!("largest amount of {}", reagent.name()),
-            value: amax,
-            unit: if matches!(max_amount, Amount::Molar(_)) {
-                "mol/L"
+            parameter: if matches!(max_amount, Amount::Molar(_)) {
+                "amount (mol/L)"
             } else {
-                "mol/kg"
+                "amount (mol/kg)"
             },
+            value: amax,
+            reason: "must be positive: the search runs from zero to it",
         });
     }
     let unit = move |x: f64| match max_amount {

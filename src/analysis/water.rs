@@ -296,17 +296,19 @@ impl CarbonateWater {
             });
         }
         check_parameter("water", "pH", ph, 0.0, 14.0, "must be finite and within 0..14")?;
-        for (v, what, unit) in [
-            (calcium_mol_per_l, "calcium", "mol/L"),
-            (alkalinity_eq_per_l, "total alkalinity", "eq/L"),
+        for (v, parameter, reason) in [
+            (
+                calcium_mol_per_l,
+                "calcium (mol/L)",
+                "must be positive and at most 10 mol/L (a water without calcium has no calcite saturation)",
+            ),
+            (
+                alkalinity_eq_per_l,
+                "total alkalinity (eq/L)",
+                "must be positive and at most 10 eq/L (a water without alkalinity has no calcite saturation)",
+            ),
         ] {
-            if !(v.is_finite() && v > 0.0 && v <= 10.0) {
-                return Err(Error::InvalidAmount {
-                    what: what.into(),
-                    value: v,
-                    unit,
-                });
-            }
+            check_parameter("water", parameter, v, f64::MIN_POSITIVE, 10.0, reason)?;
         }
         check_parameter(
             "water",
@@ -496,7 +498,7 @@ fn calcite_log10_k(catalog: &Catalog, t: Temperature) -> Result<f64> {
 /// J. Am. Water Works Assoc. 75 (1983) 95): the amount of calcium carbonate that would
 /// precipitate (positive) or dissolve (negative) for the water to come to equilibrium with
 /// calcite in a closed system, in mg/L as CaCO₃ and mol/kg.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct PrecipitationPotential {
     /// Calcite precipitated (positive) or dissolved (negative), mol per kg of water.
     pub mol_per_kg: f64,
@@ -508,10 +510,15 @@ pub struct PrecipitationPotential {
     pub ph_after: f64,
     /// Calcite saturation index of the water as given.
     pub saturation_index_before: f64,
+    /// The warnings of the solves it rests on (the water as given and at equilibrium with
+    /// calcite), each once; the supersaturation of the water as given is not repeated here,
+    /// `saturation_index_before` says it.
+    pub warnings: Vec<crate::Warning>,
 }
 
 /// The calcium carbonate precipitation potential of the water `recipe` at `conditions`: the
-/// recipe is solved as given and again with calcite allowed to form; where the water is
+/// recipe is solved as given (with no solid allowed to form, whatever the recipe allows) and
+/// again with calcite allowed to form beside the solids the recipe allows; where the water is
 /// undersaturated, the second solve starts from an excess of calcium carbonate
 /// (`calcium carbonate` reagent), of which the part that stays undissolved is subtracted.
 /// Calcite and the reagent come from `catalog`. The system stays closed: CO₂ neither escapes
@@ -538,30 +545,44 @@ pub fn precipitation_potential(
     catalog: &Catalog,
 ) -> Result<PrecipitationPotential> {
     let calcite = catalog.solid("calcite")?;
-    let before = recipe.compile(conditions)?.solve()?;
-    let si_before = before
-        .solid("calcite")
-        .map(|s| s.saturation_index)
-        .ok_or_else(|| Error::InvalidParameter {
-            what: "calcium carbonate precipitation potential".into(),
-            parameter: "calcite saturation index",
-            value: f64::NAN,
-            reason: "the water holds no calcium or no carbonate, so calcite has no saturation index",
-        })?;
+    // The water as given: nothing precipitated yet, even where the recipe lets solids form.
+    let before = recipe.without_allowed_solids().compile(conditions)?.solve()?;
+    let si_before =
+        before
+            .solid("calcite")
+            .map(|s| s.saturation_index)
+            .ok_or_else(|| Error::InconsistentDefinition {
+                name: "calcium carbonate precipitation potential".into(),
+                reason: "the water holds no calcium or no carbonate, so calcite has no saturation index".into(),
+            })?;
     let rho = water::density_kg_per_l(conditions.temperature)?;
     let to_mg = |molal: f64| molal * rho * CACO3_G_PER_MOL * 1000.0;
+    let result = |mol_per_kg: f64, after: &crate::Equilibrium| {
+        let mut warnings: Vec<crate::Warning> = Vec::new();
+        let before_warnings = before
+            .warnings()
+            .iter()
+            .filter(|w| !matches!(w, crate::Warning::Supersaturated { .. }));
+        for w in before_warnings.chain(after.warnings()) {
+            if !warnings.contains(w) {
+                warnings.push(w.clone());
+            }
+        }
+        PrecipitationPotential {
+            mol_per_kg,
+            mg_per_l_as_caco3: to_mg(mol_per_kg),
+            ph_before: before.ph(),
+            ph_after: after.ph(),
+            saturation_index_before: si_before,
+            warnings,
+        }
+    };
     let mut with = recipe.clone();
     with.allow_solid(&calcite);
     if si_before >= 0.0 {
         let after = with.compile(conditions)?.solve()?;
         let formed = after.solid("calcite").map_or(0.0, |s| s.amount_molal);
-        return Ok(PrecipitationPotential {
-            mol_per_kg: formed,
-            mg_per_l_as_caco3: to_mg(formed),
-            ph_before: before.ph(),
-            ph_after: after.ph(),
-            saturation_index_before: si_before,
-        });
+        return Ok(result(formed, &after));
     }
     // Undersaturated: offer an excess of calcium carbonate and see how much dissolves. The
     // excess starts at 1 mmol/kg and grows tenfold until some stays undissolved.
@@ -569,18 +590,13 @@ pub fn precipitation_potential(
     let mut excess = 1e-3;
     for _ in 0..6 {
         let mut offered = with.clone();
-        offered.add(&caco3, Amount::molal(excess))?;
+        // As a dose: a water entered with a fixed DIC and alkalinity gets the carbon and
+        // the alkalinity of the offered calcium carbonate too.
+        offered.add_dose(&caco3, Amount::molal(excess), conditions)?;
         let after = offered.compile(conditions)?.solve()?;
         let left = after.solid("calcite").map_or(0.0, |s| s.amount_molal);
         if left > 0.0 {
-            let dissolved = excess - left;
-            return Ok(PrecipitationPotential {
-                mol_per_kg: -dissolved,
-                mg_per_l_as_caco3: -to_mg(dissolved),
-                ph_before: before.ph(),
-                ph_after: after.ph(),
-                saturation_index_before: si_before,
-            });
+            return Ok(result(-(excess - left), &after));
         }
         excess *= 10.0;
     }
@@ -622,10 +638,13 @@ impl DoseTarget {
 /// `recipe` to `target` at `conditions`, with the recipe's gases, constraints and allowed
 /// solids in force at every dose (lime softening: allow calcite and ask for a hardness).
 ///
-/// The target quantity must change monotonically with the dose over the bracket; the root is
-/// found by bisection safeguarded regula falsi (Illinois) to 1e-9 of the target's scale.
-/// Errors: a target outside the values reached at zero and at `max_amount`, a solid the
-/// results do not report, an invalid amount.
+/// Where the target is not crossed between zero and `max_amount` (the quantity need not
+/// change monotonically: lime softening lowers the hardness until the carbonate is spent,
+/// then raises it), the range is searched in 16 equal steps for the first crossing. The root is then found by safeguarded regula falsi
+/// (Illinois) to 1e-9 of the target's scale. A solid whose parts are absent at some dose (no
+/// carbonate before sodium carbonate is dosed) has a saturation index of −∞ there.
+/// Errors: a target not crossed at any of those doses, a solid the recipe neither reports nor
+/// allows, an invalid amount.
 ///
 /// ```
 /// use protolyte::analysis::water::{DoseTarget, dose_for_target};
@@ -683,24 +702,46 @@ pub fn dose_for_target(
         }
     };
     let (amax, unit) = crate::analysis::target::search_bound(reagent, max_amount)?;
+    if let (DoseTarget::Ph(_), Some(c)) = (
+        target,
+        recipe
+            .constraints()
+            .iter()
+            .find(|c| matches!(c, crate::Constraint::Ph(_))),
+    ) {
+        return Err(Error::ConflictingConstraints {
+            first: c.describe(),
+            second: format!("a dose of {} for {}", reagent.name(), target.describe()),
+            reason: "the recipe holds the pH that the dose would move".into(),
+        });
+    }
     let value_at = |x: f64| -> Result<f64> {
         let mut r = recipe.clone();
         if x > 0.0 {
-            r.add(reagent, unit(x))?;
+            r.add_dose(reagent, unit(x), conditions)?;
         }
         let sys = r.compile(conditions)?;
         let eq = sys.solve()?;
         match target {
             DoseTarget::Ph(_) => Ok(eq.ph()),
-            DoseTarget::SaturationIndex { solid, .. } => {
-                eq.solid(solid)
-                    .map(|s| s.saturation_index)
-                    .ok_or_else(|| Error::UnknownName {
-                        kind: "solid in the result",
-                        name: solid.clone(),
-                        suggestion: None,
-                    })
-            }
+            DoseTarget::SaturationIndex { solid, .. } => match eq.solid(solid) {
+                Some(s) => Ok(s.saturation_index),
+                // A solid of the recipe's that one of whose parts is absent at this dose:
+                // the limit of its saturation index as that part goes to zero.
+                None if recipe
+                    .reported_solids()
+                    .iter()
+                    .chain(recipe.allowed_solids())
+                    .any(|s| s.name() == solid) =>
+                {
+                    Ok(f64::NEG_INFINITY)
+                }
+                None => Err(Error::UnknownName {
+                    kind: "solid reported or allowed by the recipe",
+                    name: solid.clone(),
+                    suggestion: None,
+                }),
+            },
             DoseTarget::HardnessMgPerLAsCaco3(_) => {
                 let rho = water::density_kg_per_l(conditions.temperature)?;
                 let molal: f64 = ["calcium", "magnesium"]
@@ -717,7 +758,7 @@ pub fn dose_for_target(
         what: format!("dose of {} for {}", reagent.name(), target.describe()),
         parameter: "target",
         value: goal,
-        reason: "not reached between zero and the largest amount given",
+        reason: "not reached at zero, at the largest amount given, nor at 15 doses between",
     };
     if fa.abs() <= tol {
         return Ok(unit(0.0));
@@ -726,7 +767,25 @@ pub fn dose_for_target(
         return Ok(unit(amax));
     }
     if fa.signum() == fb.signum() {
-        return Err(not_reached());
+        // Not crossed between the ends: look for the first crossing inside.
+        const STEPS: usize = 16;
+        let mut crossing = None;
+        for k in 1..STEPS {
+            let x = amax * k as f64 / STEPS as f64;
+            let fx = value_at(x)? - goal;
+            if fx.abs() <= tol {
+                return Ok(unit(x));
+            }
+            if fx.signum() != fa.signum() {
+                crossing = Some((x, fx));
+                break;
+            }
+            (a, fa) = (x, fx);
+        }
+        let Some((x, fx)) = crossing else {
+            return Err(not_reached());
+        };
+        (b, fb) = (x, fx);
     }
     // Illinois regula falsi: a secant step inside the bracket, halving the weight of an end
     // kept twice; falls back to bisection when the step would not move.

@@ -1003,12 +1003,24 @@ impl PartialPressureDoc {
                 ),
             ));
         }
-        Ok(match unit {
+        let p = match unit {
             "atm" => Pressure::atm(v),
             "bar" => Pressure::bar_value(v),
             "pascal" => Pressure::pascal(v),
             _ => Pressure::microatm(v),
-        })
+        };
+        // The library's range (1000 bar), said in the unit written.
+        if p.bar() > 1000.0 {
+            return Err(field_error(
+                format!("{path}.{unit}"),
+                format!(
+                    "{} {unit} is {} bar, above the 1000 bar accepted (Henry's law with an ideal gas is far outside its use there)",
+                    crate::error::number(v),
+                    crate::error::number(p.bar())
+                ),
+            ));
+        }
+        Ok(p)
     }
 }
 
@@ -1113,14 +1125,36 @@ fn apply_phases(recipe: &mut Recipe, cat: &Catalog, doc: &RecipeDoc) -> Result<(
     if let Some(ph) = fixed_ph {
         recipe.fix_ph(ph).map_err(|e| field_error("fixed_ph", e))?;
     }
+    // The ranges are checked in the document's own units first, so that a refused value is
+    // quoted as written.
     if let Some(a) = doc.fixed_alkalinity_meq_per_kg {
-        recipe
-            .fix_alkalinity(a * 1e-3)
-            .map_err(|e| field_error("fixed_alkalinity_meq_per_kg", e))?;
+        crate::error::check_parameter(
+            "total alkalinity",
+            "meq/kg",
+            a,
+            -1e5,
+            1e5,
+            "must be finite and within ±100000 meq/kg",
+        )
+        .and_then(|a| recipe.fix_alkalinity(a * 1e-3))
+        .map_err(|e| field_error("fixed_alkalinity_meq_per_kg", e))?;
     }
     if let Some(d) = doc.fixed_dic_mmol_per_kg {
-        recipe
-            .fix_dic(d * 1e-3)
+        crate::error::check_amount_max("DIC", d * 1e-3, "mol/kg")
+            .map_err(|e| match e {
+                crate::Error::AmountTooLarge { what, limit, .. } => crate::Error::AmountTooLarge {
+                    what,
+                    value: d,
+                    unit: "mmol/kg",
+                    limit: limit * 1e3,
+                },
+                _ => crate::Error::InvalidAmount {
+                    what: "DIC".into(),
+                    value: d,
+                    unit: "mmol/kg",
+                },
+            })
+            .and_then(|d| recipe.fix_dic(d))
             .map_err(|e| field_error("fixed_dic_mmol_per_kg", e))?;
     }
     if let Some(n) = &doc.charge_balance_on {

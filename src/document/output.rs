@@ -228,8 +228,9 @@ pub struct SolveResult {
     /// Dissolved inorganic carbon, mol per kg of water.
     #[serde(default)]
     pub dic_mol_per_kg: f64,
-    /// With a fixed pH: the H+ taken up to hold it, mol per kg of water (negative: base);
-    /// left out when zero (no fixed pH).
+    /// With a fixed pH or alkalinity: the H+ taken up to hold it, mol per kg of water
+    /// (negative: base); left out when zero (no fixed pH) and when an ion closes the charge
+    /// balance (which takes that charge instead).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proton_uptake_mol_per_kg: Option<f64>,
     /// With the charge balance closed on an ion: that ion and the amount of it the balance
@@ -307,7 +308,12 @@ impl SolveResult {
             total_alkalinity_eq_per_kg: eq.total_alkalinity_molal(),
             carbonate_alkalinity_eq_per_kg: eq.carbonate_alkalinity_molal(),
             dic_mol_per_kg: eq.dic_molal(),
-            proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0).then(|| eq.proton_uptake_molal()),
+            // With an ion closing the charge balance, the H+ a fixed pH or alkalinity takes is
+            // zero by construction (the closing ion takes the charge): what the solver leaves
+            // there is round-off, not an acid or base to report.
+            proton_uptake_mol_per_kg: (eq.proton_uptake_molal() != 0.0
+                && eq.charge_balance_ion_added_molal().is_none())
+            .then(|| eq.proton_uptake_molal()),
             charge_balance_ion: eq
                 .charge_balance_ion_added_molal()
                 .map(|(ion, v)| ChargeBalanceIonResult {
@@ -353,6 +359,11 @@ impl SolveResult {
     /// species of the result (complexes with their own charge, H⁺ and OH⁻ included), less
     /// the closing ion's addition; left unset without a closing ion or for a charge of 0.
     ///
+    /// A solid present in the result holds ions of the water as entered that this result's
+    /// species no longer show; without the solid's definition the balance cannot be judged,
+    /// so it is left unset then: use [`SolveResult::with_ion_balance_of`], which reads the
+    /// solids from the recipe.
+    ///
     /// ```
     /// use protolyte::document::{RecipeDoc, SolveResult, parse};
     /// use protolyte::Catalog;
@@ -370,7 +381,116 @@ impl SolveResult {
     /// assert!(b.error_percent < -1.0 && b.error_percent > -3.0, "{b:?}");
     /// # Ok::<(), Box<dyn std::error::Error>>(())
     /// ```
-    pub fn with_ion_balance(mut self, charge: i32) -> Self {
+    pub fn with_ion_balance(self, charge: i32) -> Self {
+        if self.solids.iter().any(|s| s.amount_mol_per_kg > 0.0) {
+            return self;
+        }
+        self.ion_balance_adding(charge, 0.0, 0.0)
+    }
+
+    /// The same result with the ion balance of the water as entered (see
+    /// [`SolveResult::with_ion_balance`]), the closing ion and its charge read from `recipe`'s
+    /// constraints, and what each solid present holds added back at the charges of its
+    /// dissolution parts (a solid's cations to the cations, its anions to the anions): the
+    /// water as entered, before anything precipitated. Left unset when the recipe closes the
+    /// charge balance on no ion, or when a solid present is not among the recipe's solids.
+    ///
+    /// ```
+    /// use protolyte::document::{RecipeDoc, SolveResult, parse};
+    /// use protolyte::Catalog;
+    /// // 5 mmol/kg calcium chloride (10 meq/kg of each sign) and 8 meq/kg of alkalinity, closed
+    /// // on sodium: as entered, 10 meq/kg of cations against 18 meq/kg of anions, −28.6 %,
+    /// // whether or not calcite precipitates from it.
+    /// let doc: RecipeDoc = parse(r#"{ "reagents": [ { "reagent": "calcium chloride", "molal": 0.005 } ],
+    ///   "fixed_alkalinity_meq_per_kg": 8.0, "fixed_dic_mmol_per_kg": 5.0,
+    ///   "charge_balance_on": "sodium", "allow_solids": ["calcite"] }"#, "a.json")?;
+    /// let (recipe, conditions) = doc.to_recipe(&Catalog::builtin())?;
+    /// let eq = recipe.compile(&conditions)?.solve()?;
+    /// assert!(eq.solid("calcite").unwrap().amount_molal > 1e-3);
+    /// let b = SolveResult::from_equilibrium(&eq).with_ion_balance_of(&recipe).ion_balance.unwrap();
+    /// assert!((b.error_percent - 100.0 * (10.0 - 18.0) / 28.0).abs() < 0.05, "{b:?}");
+    /// # Ok::<(), Box<dyn std::error::Error>>(())
+    /// ```
+    pub fn with_ion_balance_of(self, recipe: &crate::Recipe) -> Self {
+        let Some(charge) = recipe.constraints().iter().find_map(|c| match c {
+            crate::Constraint::ChargeBalanceOn(ion) => Some(ion.charge()),
+            _ => None,
+        }) else {
+            return self;
+        };
+        let (mut cations, mut anions) = (0.0, 0.0);
+        for s in self.solids.iter().filter(|s| s.amount_mol_per_kg > 0.0) {
+            // The allowed solid's own definition wins over a reported one of the same name,
+            // as in the solve.
+            let Some(solid) = recipe
+                .allowed_solids()
+                .iter()
+                .chain(recipe.reported_solids())
+                .find(|d| d.name() == s.name)
+            else {
+                return self;
+            };
+            for (part, n) in solid.parts() {
+                let q = f64::from(crate::phase::part_charge(part)) * f64::from(*n) * s.amount_mol_per_kg;
+                if q > 0.0 {
+                    cations += q;
+                } else {
+                    anions -= q;
+                }
+            }
+        }
+        self.ion_balance_adding(charge, cations, anions)
+    }
+
+    /// The same result with what its `recipe` adds to it: the ion balance as entered
+    /// ([`SolveResult::with_ion_balance_of`]), a warning for each solid allowed by name whose
+    /// parts the solution lacks (left out of the solve) and, where the recipe fixes the pH and the
+    /// result reports it under another convention (Bates–Guggenheim), a warning that says so:
+    /// a fixed pH is held on the activity model's own scale, −log₁₀ a(H⁺), so the pH reported
+    /// differs from it.
+    ///
+    /// ```
+    /// use protolyte::document::{RecipeDoc, SolveResult, parse};
+    /// use protolyte::Catalog;
+    /// let doc: RecipeDoc = parse(r#"{ "ph_convention": "bates-guggenheim",
+    ///   "reagents": [ { "reagent": "sodium chloride", "molal": 0.05 } ], "fixed_ph": 8.0 }"#, "a.json")?;
+    /// let (recipe, conditions) = doc.to_recipe(&Catalog::builtin())?;
+    /// let eq = recipe.compile(&conditions)?.solve()?;
+    /// let r = SolveResult::from_equilibrium(&eq).with_recipe(&recipe);
+    /// assert!(r.ph != 8.0);
+    /// assert!(r.warnings.iter().any(|w| w.contains("fixed at 8")), "{:?}", r.warnings);
+    /// # Ok::<(), Box<dyn std::error::Error>>(())
+    /// ```
+    pub fn with_recipe(self, recipe: &crate::Recipe) -> Self {
+        let mut r = self.with_ion_balance_of(recipe);
+        let fixed = recipe.constraints().iter().find_map(|c| match c {
+            crate::Constraint::Ph(ph) => Some(*ph),
+            _ => None,
+        });
+        // A solid named to form whose parts the solution lacks is left out of the solve:
+        // say so, rather than leave the request unanswered.
+        for solid in recipe.allowed_solids() {
+            if !r.solids.iter().any(|s| s.name == solid.name()) {
+                r.warnings.push(format!(
+                    "{} was allowed to form, but the solution lacks one of its parts, so it is left out",
+                    solid.name()
+                ));
+            }
+        }
+        if let (Some(ph), Some(convention)) = (fixed, r.ph_convention.as_deref())
+            && (r.ph - ph).abs() > 1e-9
+        {
+            r.warnings.push(format!(
+                "the pH was fixed at {ph} on the activity model's own scale (−log a(H+)); under the {convention} convention it reads {:.4}",
+                r.ph
+            ));
+        }
+        r
+    }
+
+    /// The ion balance of the species, less the closing ion's addition, plus `cations` and
+    /// `anions` (mol/kg of charge) held elsewhere.
+    fn ion_balance_adding(mut self, charge: i32, extra_cations: f64, extra_anions: f64) -> Self {
         let Some(added) = self.charge_balance_ion.as_ref().map(|c| c.added_mol_per_kg) else {
             return self;
         };
@@ -378,7 +498,7 @@ impl SolveResult {
             return self;
         }
         let z = f64::from(charge);
-        let (mut cations, mut anions) = (0.0, 0.0);
+        let (mut cations, mut anions) = (extra_cations, extra_anions);
         for s in &self.species {
             let q = f64::from(s.charge) * s.mol_per_kg;
             if q > 0.0 {
