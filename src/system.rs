@@ -192,8 +192,9 @@ pub struct System {
     pub(crate) members: Vec<Vec<usize>>,
     /// The free species of each component, where it has one.
     pub(crate) free_species: Vec<Option<usize>>,
-    /// Names of the families, shared with results.
-    pub(crate) family_names: Vec<Arc<str>>,
+    /// The names and shapes every result of this system shares (species, families,
+    /// components).
+    pub(crate) layout: Arc<crate::equilibrium::ResultLayout>,
     /// ν(H⁺) of each species as an integer, and each species' charge as a float.
     pub(crate) nu_h: Vec<i32>,
     pub(crate) charge_f: Vec<f64>,
@@ -434,7 +435,6 @@ impl System {
                     .flatten()
             })
             .collect();
-        let family_names = b.families.iter().map(|f| Arc::from(f.protolyte.name())).collect();
         let species_len = species.len();
         // ν(H⁺) of every species within ±MAX_COMPLEX_PROTONS (families have at most 12 steps
         // and complexes are checked where they are made; this guards the fast path's table).
@@ -480,6 +480,11 @@ impl System {
         } else {
             Interactions::default()
         };
+        let layout = Arc::new(crate::equilibrium::ResultLayout::new(
+            &species,
+            &b.families,
+            &b.components,
+        ));
         Ok(System {
             temperature: t,
             model: conditions.activity,
@@ -498,7 +503,7 @@ impl System {
             terms,
             members,
             free_species,
-            family_names,
+            layout,
             nu_h_span,
             fast_coef,
             nu_h,
@@ -713,7 +718,7 @@ impl System {
                 reason: format!("family {family} has no dissociation step {step}"),
             });
         };
-        let name = self.family_names[family].clone();
+        let name = self.layout.family_names[family].clone();
         crate::error::check_parameter(&name, "pKa", pka, -10.0, 25.0, "must be finite and within -10..25")?;
         let forms = self.families[family].forms.clone();
         let n = forms.len() - 1;

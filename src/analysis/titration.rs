@@ -472,10 +472,10 @@ fn dph_along_uncoupled(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Option<f64
     let nc = sys.components.len();
     let i = eq.ionic_strength_molal();
     let prof = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
-    let sp = eq.species();
+    let sp = eq.molal();
     // d ln m_s = ν_s dL − (d ln γ_s/dI)·I du + d ln a_g, with L = ln a(H⁺), u = ln I.
     let term = |s: usize| -> (f64, f64, f64, f64) {
-        let m = sp[s].molal;
+        let m = sp[s];
         let z = sys.charge_f[s];
         let gi = prof.at(sys.species[s].charge, sys.species[s].ion_size_angstrom).1 * LN10 * i;
         (m, z, f64::from(sys.nu_h[s]), gi)

@@ -133,7 +133,7 @@ impl Solver {
             ph: eq.ph(),
             p_h_molal: eq.p_h_molal(),
             ionic_strength_molal: eq.ionic_strength_molal(),
-            max_residual: eq.residuals().max_relative(),
+            max_residual: eq.max_residual(),
             path: eq.path(),
         })
     }
