@@ -7,7 +7,7 @@
 //!
 //! Usage: `icount CASE REPETITIONS` with CASE one of `monoprotic_davies`,
 //! `three_families_davies`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
-//! `lookup_synonym`, `general_three_families_davies`. Run natively it only checks that the case works.
+//! `titration_1000_davies_lean`, `lookup_synonym`, `general_three_families_davies`. Run natively it only checks that the case works.
 
 use protolyte::analysis::Titration;
 use protolyte::solve::Workspace;
@@ -144,12 +144,13 @@ fn main() {
     run(&args[1], n);
 }
 
-const CASES: [&str; 7] = [
+const CASES: [&str; 8] = [
     "monoprotic_davies",
     "three_families_davies",
     "three_families_davies_workspace",
     "eight_families_complex_edh",
     "titration_1000_davies",
+    "titration_1000_davies_lean",
     "lookup_synonym",
     "general_three_families_davies",
 ];
@@ -184,7 +185,7 @@ fn run(case: &str, n: usize) {
             let s = eight_families();
             measured(n, || black_box(&s).solve().expect("solve").ph())
         }
-        "titration_1000_davies" => {
+        "titration_1000_davies" | "titration_1000_davies_lean" => {
             let cat = Catalog::builtin();
             let mut acid = Recipe::new();
             acid.add(&cat.reagent("acetic acid").expect("reagent"), Amount::molar(0.1))
@@ -196,10 +197,18 @@ fn run(case: &str, n: usize) {
             let volumes: Vec<Volume> = (0..1000)
                 .map(|i| Volume::milliliters(50.0 * i as f64 / 999.0))
                 .collect();
-            measured(n, || {
-                let c = black_box(&t).curve(black_box(&volumes)).expect("curve");
-                c.last().map_or(0.0, |p| p.ph)
-            })
+            if case == "titration_1000_davies_lean" {
+                // The lean curve: pH, dpH/dv and I per point, no `Equilibrium` per point.
+                measured(n, || {
+                    let c = black_box(&t).ph_curve(black_box(&volumes)).expect("curve");
+                    c.last().map_or(0.0, |p| p.ph)
+                })
+            } else {
+                measured(n, || {
+                    let c = black_box(&t).curve(black_box(&volumes)).expect("curve");
+                    c.last().map_or(0.0, |p| p.ph)
+                })
+            }
         }
         "lookup_synonym" => {
             let cat = Catalog::builtin();

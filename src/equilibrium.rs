@@ -935,9 +935,14 @@ impl Solver {
     /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
     /// does not converge.
     pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
-        if previous.unknowns().len() == system.components.len()
-            && let Ok((point, ev, iters, path)) =
-                self.run(system, Some((previous.unknowns(), previous.ln_ionic_strength())))
+        self.solve_from_unknowns(system, previous.unknowns(), previous.ln_ionic_strength())
+    }
+
+    /// [`Solver::solve_from`] a previous solution's unknowns (ln a of each component) and
+    /// ln I.
+    pub(crate) fn solve_from_unknowns(&self, system: &System, y: &[f64], ln_i: f64) -> Result<Equilibrium> {
+        if y.len() == system.components.len()
+            && let Ok((point, ev, iters, path)) = self.run(system, Some((y, ln_i)))
             && let Ok(eq) = Equilibrium::build(system, point, ev, iters, path, self.tolerance_value())
         {
             return Ok(eq);
