@@ -108,7 +108,7 @@ pub use equilibrium::{Equilibrium, FamilyState, Residuals, SpeciesState};
 pub use error::{CatalogFileError, Error, Result};
 pub use ion::Ion;
 pub use phase::{Constraint, Gas, GasState, Pressure, Solid, SolidState};
-pub use protolyte::{Protolyte, Step};
+pub use protolyte::{Protolyte, Step, species_name_eq};
 pub use quantity::{Amount, Mass, Temperature, Volume};
 pub use reagent::{Constituent, Reagent};
 pub use recipe::{Entry, Recipe};

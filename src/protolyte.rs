@@ -615,8 +615,17 @@ fn written_charge(name: &str) -> Option<i32> {
 /// Whether `query` names the species shown as `shown`: the same text, or `shown` as it was
 /// written before the library used one charge notation: a charge above 1 without the caret
 /// ("CO32-" for "CO3^2-", "Ca2+" for "Ca^2+") or a charge of 1 with one ("CaHCO3^+" for
-/// "CaHCO3+"). Case counts ("Co" is not "CO").
-pub(crate) fn species_name_eq(shown: &str, query: &str) -> bool {
+/// "CaHCO3+"). Case counts ("Co" is not "CO"). Every lookup of a species by name uses this
+/// rule; it is public so that the bindings find labels the same way.
+///
+/// ```
+/// use protolyte::species_name_eq;
+/// assert!(species_name_eq("CO3^2-", "CO32-"));
+/// assert!(species_name_eq("CaHCO3+", "CaHCO3^+"));
+/// assert!(!species_name_eq("AlF2+", "AlF^2+"));
+/// assert!(!species_name_eq("CO3^2-", "co32-"));
+/// ```
+pub fn species_name_eq(shown: &str, query: &str) -> bool {
     if shown == query {
         return true;
     }

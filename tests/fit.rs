@@ -372,3 +372,43 @@ fn refusals_name_the_problem() {
         Ok(r) => assert!(r.correlation[(0, 1)].abs() > 0.99, "{}", r.correlation),
     }
 }
+
+/// A fit unknown that names nothing in the curves gets the library's "did you mean": the
+/// closest name the curves do have, shown as the unknown would be; a name far from every
+/// one, a pKa step the family lacks and an electrode offset get none.
+#[test]
+fn misspelled_unknown_gets_a_suggestion() {
+    let t = acetic_titration(0.01, 4.8, 0.1, &Conditions::default());
+    let data: Vec<(Volume, f64)> = (1..=6)
+        .map(|i| (Volume::milliliters(i as f64), 4.0 + 0.1 * i as f64))
+        .collect();
+    let refused = |unknown: Unknown| {
+        let mut fit = TitrationFit::new();
+        fit.add_curve(t.clone(), &data).unwrap();
+        fit.estimate(unknown, Scope::Shared).unwrap();
+        match fit.run() {
+            Err(protolyte::Error::UnknownName { suggestion, .. }) => suggestion,
+            other => panic!("expected an unknown name, got {other:?}"),
+        }
+    };
+    assert_eq!(refused(Unknown::pka("acid HB", 0)).as_deref(), Some("pKa1 of acid HA"));
+    assert_eq!(
+        refused(Unknown::AnalyteTotal("acid H".into())).as_deref(),
+        Some("analyte total of acid HA (mol/L)")
+    );
+    assert_eq!(
+        refused(Unknown::TitrantTotal("sodum".into())).as_deref(),
+        Some("titrant total of sodium (mol/L)")
+    );
+    // The message carries it.
+    let mut fit = TitrationFit::new();
+    fit.add_curve(t.clone(), &data).unwrap();
+    fit.estimate(Unknown::TitrantTotal("sodum".into()), Scope::Shared)
+        .unwrap();
+    let msg = fit.run().unwrap_err().to_string();
+    assert!(msg.contains("did you mean `titrant total of sodium (mol/L)`"), "{msg}");
+    // Nothing close; the family is there but not its second step; H⁺ is not offered.
+    assert_eq!(refused(Unknown::pka("phosphate", 0)), None);
+    assert_eq!(refused(Unknown::pka("acid HA", 1)), None);
+    assert_eq!(refused(Unknown::AnalyteTotal("H+".into())), None);
+}

@@ -129,6 +129,23 @@ fn nernst_slope_and_temperature_compensation() {
     assert!(ElectrodeCalibration::from_buffers(&close, Temperature::celsius(25.0)).is_err());
 }
 
+/// The slope the United States Pharmacopeia states for temperature compensation: "the value
+/// of k is the change in potential per unit change in pH and is theoretically
+/// [0.05916 + 0.000198(t − 25)] volts at any temperature t" (USP 32–NF 27 (2009), general
+/// chapter ⟨791⟩ pH; stored copy read at
+/// https://drugfuture.com/Pharmacopoeia/usp32/pub/data/v32270/usp32nf27s0_c791.html).
+/// The Nernst slope from R and F must agree with it from 0 to 50 °C within the chapter's
+/// rounding: ±0.005 mV from 0.05916 V and ±0.0005 mV/K × |t − 25| ≤ 0.0125 mV from
+/// 0.000198 V/K, 0.0175 mV in all; the tolerance is 0.02 mV.
+#[test]
+fn nernst_slope_follows_the_pharmacopeia() {
+    for t in [0.0, 10.0, 25.0, 30.0, 37.0, 40.0, 50.0] {
+        let usp_mv = 1e3 * (0.05916 + 0.000198 * (t - 25.0)); // USP ⟨791⟩ (above)
+        let ours = nernst_slope_mv(Temperature::celsius(t));
+        assert!((ours - usp_mv).abs() < 0.02, "{t} °C: {ours} vs {usp_mv}"); // USP ⟨791⟩ formula; 0.02 mV tolerance from its rounding (above)
+    }
+}
+
 /// The ideal curve of 25 mL of a monoprotic acid (pKa `pka`, `c` mol/L) with 0.1 mol/L
 /// NaOH at `volumes`.
 fn curve(pka: f64, c: f64, volumes: &[f64]) -> Vec<(f64, f64)> {

@@ -285,6 +285,57 @@ fn lactic_acid_pka_0_to_50_c() {
     assert!(w <= 0.005, "lactic acid: largest deviation {w:.4}");
 }
 
+/// Malic acid: M. Eden and R. G. Bates, J. Res. NBS 62 (1959) 161, from Harned cells at 5 K
+/// intervals from 0 to 50 °C: pK1 = A1/T − 5.1382 + 0.013550·T and pK2 = A2/T − 6.2364 +
+/// 0.019353·T (read from a stored copy of the abstract, in which one digit of each A is
+/// illegible: A1 = 135x.85, A2 = 165x.53; 1358.85 and 1659.53 are used, the readings that come
+/// nearest their stated 25 °C constants). The built-in ΔH° and ΔCp° are these equations'
+/// derivatives at 25 °C, so the test checks that derivation and the constant-ΔCp° integration
+/// against the equations' own shape (which implies a ΔCp° proportional to T), not an
+/// independent measurement; the changes from 25 °C are compared, since the built-in 25 °C pKa
+/// are the CRC's. Tolerance 0.005: the illegible digit moves the change from 25 °C by at most
+/// 9 K·(1/273.15 − 1/298.15) K⁻¹ = 0.003 at 0 °C, the rounding of ΔH° to 0.1 kJ/mol by at most
+/// 0.0015 at 25 K from 25 °C, and the difference of form is below 0.001 over 0–50 °C.
+#[test]
+fn malic_acid_pka_0_to_50_c() {
+    let eden_bates = [(1358.85, -5.1382, 0.013550), (1659.53, -6.2364, 0.019353)];
+    for (step, (a, b, c)) in eden_bates.into_iter().enumerate() {
+        let pk = |t: f64| {
+            let k = t + 273.15;
+            a / k + b + c * k
+        };
+        let base = pka_of("malate", step, 25.0) - pk(25.0);
+        let published: Vec<(f64, f64)> = [0.0, 10.0, 20.0, 30.0, 40.0, 50.0]
+            .iter()
+            .map(|&t| (t, pk(t) + base))
+            .collect();
+        let w = worst_pka_deviation("malate", step, &published);
+        assert!(w <= 0.005, "malic acid step {}: largest deviation {w:.4}", step + 1);
+    }
+}
+
+/// Salicylic acid, first step: its dissociation constant passes through a shallow maximum
+/// near 40 °C, "a shallow maximum in K1 near 40 °C" from spectrophotometry over 10–85 °C
+/// (J. Chem. Soc., Faraday Trans. 1 71 (1975) 1215; read from a stored copy of the abstract),
+/// independent of the titrimetric study of S. J. Khouri, D. Alsaad and A. M. Altwaiq
+/// (J. Solution Chem., 2024, doi:10.1007/s10953-023-01351-7) whose van 't Hoff enthalpies
+/// the built-in ΔH° and ΔCp° come from. The built-in pKa1 must therefore be lowest between
+/// 35 and 50 °C on a 1 K grid from 10 to 70 °C (the published statement is "near 40 °C"; the
+/// built-in data put the minimum at 43 °C).
+#[test]
+fn salicylic_acid_k1_has_its_maximum_near_40_c() {
+    let grid: Vec<f64> = (10..=70).map(f64::from).collect();
+    let lowest =
+        grid.iter()
+            .map(|&t| (t, pka_of("salicylate", 0, t)))
+            .fold(
+                (f64::NAN, f64::INFINITY),
+                |best, (t, p)| if p < best.1 { (t, p) } else { best },
+            );
+    eprintln!("salicylic acid pKa1 lowest at {} °C: {:.4}", lowest.0, lowest.1);
+    assert!((35.0..=50.0).contains(&lowest.0), "lowest pKa1 at {} °C", lowest.0);
+}
+
 // ------------------------------------------------------------------------- warnings
 
 /// A family of our own (invented numbers, a demo) with three steps: step 1 without any

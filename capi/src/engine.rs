@@ -94,6 +94,16 @@ pub fn catalog() -> &'static Catalog {
     CATALOG.get_or_init(Catalog::builtin)
 }
 
+/// Of `labels` (species names as a result shows them, among other labels), the one `name`
+/// names: the same text, else the first that `name` spells in a notation the library used
+/// before (the rule of every species lookup, [`protolyte::species_name_eq`]: "CO32-" names
+/// "CO3^2-", "CaHCO3^+" names "CaHCO3+").
+pub fn species_label<'a>(labels: &'a [String], name: &str) -> Option<&'a str> {
+    (labels.iter().find(|l| *l == name))
+        .or_else(|| labels.iter().find(|l| protolyte::species_name_eq(l, name)))
+        .map(String::as_str)
+}
+
 /// Reads a document (JSON or TOML) whose `format` names its kind.
 fn format_of(text: &str) -> Result<String, Failure> {
     let value: serde_json::Value = document::parse(text, DOCUMENT_NAME)?;

@@ -49,6 +49,7 @@ __all__ = [
     "Conditions",
     "Recipe",
     "Equilibrium",
+    "SpeciesDict",
     "Sensitivities",
     "Uncertainty",
     "TitrationResult",
@@ -250,6 +251,30 @@ def _check_finite(lines: Iterable[Mapping[str, Any]]) -> None:
                 raise InputError(f"field `reagents[{i}].{k}`: {v} is not a finite amount")
 
 
+class SpeciesDict(dict):  # type: ignore[type-arg]
+    """A dict keyed by species name that also answers to the spellings used before every
+    charge was written one way (``d["CO32-"]`` finds ``"CO3^2-"``, ``d["CaHCO3^+"]`` finds
+    ``"CaHCO3+"``), by the rule of every species lookup of the library. A present key is
+    used as it is; the keys listed stay the names as shown."""
+
+    def _shown(self, key: Any) -> Optional[str]:
+        if not isinstance(key, str):
+            return None
+        return _native.species_label(list(self.keys()), key)
+
+    def __missing__(self, key: Any) -> Any:
+        found = self._shown(key)
+        if found is None:
+            raise KeyError(key)
+        return dict.__getitem__(self, found)
+
+    def __contains__(self, key: object) -> bool:
+        return dict.__contains__(self, key) or self._shown(key) is not None
+
+    def get(self, key: Any, default: Any = None) -> Any:
+        return self[key] if key in self else default
+
+
 @dataclass(frozen=True)
 class Species:
     """One species at equilibrium."""
@@ -275,7 +300,7 @@ class Sensitivities:
     dph_dstrong_base_molal: float
     dph_dtotal: Dict[str, float]
     dph_dpka: Dict[str, List[float]]
-    dph_dlog10k: Dict[str, float]
+    dph_dlog10k: "SpeciesDict"
 
 
 @dataclass(frozen=True)
@@ -287,7 +312,7 @@ class Uncertainty:
     ph_sd: float
     ph_gradient: List[float]
     ph_variance_shares: List[float]
-    log10_molal_sd: Dict[str, float]
+    log10_molal_sd: "SpeciesDict"
 
 
 class Equilibrium:
@@ -342,11 +367,23 @@ class Equilibrium:
         """What a caller should know about this result (a model past its validity, ...)."""
         return list(self._doc.get("warnings", []))
 
-    def species_frame(self) -> "Any":
-        """The species as a pandas DataFrame indexed by name."""
-        import pandas as pd
+    def species_named(self, name: str) -> Species:
+        """The species named ``name``: its name as shown, or as it was spelt before every
+        charge was written one way (``"CO32-"`` for ``"CO3^2-"``, ``"CaHCO3^+"`` for
+        ``"CaHCO3+"``). Raises ``KeyError`` when no species has that name."""
+        rows = {s["name"]: s for s in self._doc["species"]}
+        found = _native.species_label(list(rows), name)
+        if found is None:
+            raise KeyError(name)
+        return Species(**rows[found])
 
-        return pd.DataFrame(self._doc["species"]).set_index("name")
+    def species_frame(self) -> "Any":
+        """The species as a pandas DataFrame indexed by name. ``.loc``, ``.at`` and ``[]``
+        also find a species by the spelling used before every charge was written one way
+        (``frame.loc["CO32-"]`` is the row ``CO3^2-``)."""
+        from ._frames import SpeciesFrame
+
+        return SpeciesFrame(self._doc["species"]).set_index("name")
 
     def to_dict(self) -> Dict[str, Any]:
         """The result document as a dict."""
@@ -360,7 +397,7 @@ class Equilibrium:
             s["dph_dstrong_base_per_mol_per_kg"],
             s["dph_dtotal_per_mol_per_kg"],
             s["dph_dpka"],
-            s["dph_dlog10k"],
+            SpeciesDict(s["dph_dlog10k"]),
         )
 
     def uncertainty(
@@ -393,7 +430,7 @@ class Equilibrium:
         )
         return Uncertainty(
             u["ph"], u["ph_sd"], u["ph_gradient"], u["ph_variance_shares"],
-            {s["name"]: s["log10_molal_sd"] for s in u["species"]},
+            SpeciesDict({s["name"]: s["log10_molal_sd"] for s in u["species"]}),
         )
 
     def __repr__(self) -> str:
@@ -423,7 +460,8 @@ class ManyResult:
     def to_frame(self) -> "Any":
         """A pandas DataFrame: ph, p_h_molal, ionic_strength_mol_per_kg, max_residual,
         warnings, error (None where the row solved), and one column per species when asked
-        for."""
+        for (then its species columns also answer to the spelling used before every charge
+        was written one way: ``frame["CO32-"]`` is the column ``CO3^2-``)."""
         import pandas as pd
 
         cols: Dict[str, Any] = {
@@ -437,10 +475,13 @@ class ManyResult:
         for i, _, m in self.errors:
             err[i] = m
         cols["error"] = pd.array(err, dtype="string")
-        if self.species_molal is not None:
-            for k, name in enumerate(self.species_names):
-                cols[name] = self.species_molal[:, k]
-        return pd.DataFrame(cols)
+        if self.species_molal is None:
+            return pd.DataFrame(cols)
+        from ._frames import SpeciesFrame
+
+        for k, name in enumerate(self.species_names):
+            cols[name] = self.species_molal[:, k]
+        return SpeciesFrame(cols)
 
 
 def _many(batch: "_native.Batch", values: Any, columns: int, amounts: bool, threads: int, species: bool) -> ManyResult:

@@ -171,6 +171,13 @@ fn catalog_entry(name: &str) -> PyResult<String> {
     })))
 }
 
+/// Of `labels`, the one `name` names: the same text, or an older spelling of a species
+/// name ("CO32-" for "CO3^2-", "CaHCO3^+" for "CaHCO3+"); None when none is named.
+#[pyfunction]
+fn species_label(labels: Vec<String>, name: &str) -> Option<String> {
+    engine::species_label(&labels, name).map(str::to_string)
+}
+
 /// A solved recipe: the compiled system and its equilibrium, for the result document, the
 /// sensitivities and the propagation of uncertainty.
 #[pyclass(frozen, module = "protolyte._native")]
@@ -418,6 +425,7 @@ fn native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(catalog_search, m)?)?;
     m.add_function(wrap_pyfunction!(catalog_entry, m)?)?;
     m.add_function(wrap_pyfunction!(ph_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(species_label, m)?)?;
     m.add_class::<Solution>()?;
     m.add_class::<Batch>()?;
     m.add("ProtolyteError", py.get_type::<ProtolyteError>())?;

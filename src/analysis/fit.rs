@@ -415,6 +415,42 @@ impl TitrationFit {
         }
     }
 
+    /// For an unknown that none of `curves` has, the one they do have whose name is closest
+    /// to its name (by the library's one "did you mean" search), described as the unknown
+    /// would be. None when the name itself is there (a pKa step the family lacks) or nothing
+    /// is close.
+    fn suggestion(&self, unknown: &Unknown, curves: &[usize]) -> Option<String> {
+        let (name, rebuilt): (&str, fn(String) -> Unknown) = match unknown {
+            Unknown::AnalyteTotal(c) => (c, Unknown::AnalyteTotal),
+            Unknown::TitrantTotal(c) => (c, Unknown::TitrantTotal),
+            Unknown::Pka { family, .. } => (family, |f| Unknown::Pka { family: f, step: 0 }),
+            Unknown::ElectrodeOffset => return None,
+        };
+        let names: Vec<&str> = curves
+            .iter()
+            .flat_map(|&k| {
+                let sys = &self.curves[k].base;
+                let names: Box<dyn Iterator<Item = &str>> = match unknown {
+                    // Every component but H⁺ (component 0), which no total can be fitted for.
+                    Unknown::AnalyteTotal(_) | Unknown::TitrantTotal(_) => {
+                        Box::new(sys.components().iter().skip(1).map(|c| &*c.name))
+                    }
+                    _ => Box::new(sys.families().iter().map(|f| f.protolyte.name())),
+                };
+                names
+            })
+            .collect();
+        if names.contains(&name) {
+            return None;
+        }
+        let found = crate::data::suggestion(name, names.iter().map(|&n| (n, n)))?;
+        let mut suggested = rebuilt(found);
+        if let (Unknown::Pka { step, .. }, Unknown::Pka { step: s, .. }) = (unknown, &mut suggested) {
+            *s = *step;
+        }
+        Some(suggested.describe())
+    }
+
     fn model_value(&self, a: Action, k: usize) -> f64 {
         let c = &self.curves[k];
         match a {
@@ -457,7 +493,7 @@ impl TitrationFit {
                 return Err(Error::UnknownName {
                     kind: "fit unknown (no curve has it)",
                     name: u.describe(),
-                    suggestion: None,
+                    suggestion: self.suggestion(u, &curves),
                 });
             };
             start.push(s0.unwrap_or_else(|| self.model_value(a0, k0)));
