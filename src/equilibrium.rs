@@ -147,15 +147,13 @@ pub struct Equilibrium {
     /// The names and shapes shared with the system (one reference count per result).
     layout: Arc<ResultLayout>,
     water_density: f64,
-    /// Molality of each species.
-    molal: Vec<f64>,
-    /// ln γ of each species.
-    ln_gamma: Vec<f64>,
-    /// The fractions of every family's forms (family after family, as
-    /// [`ResultLayout::family_start`]); then per family (total, complexed fraction, mean bound
-    /// protons); then per component (active: 1 or 0, dissolved total, free molality, relative
-    /// mass residual).
-    numbers: Vec<f64>,
+    /// Every number of the result in one buffer: the molality of each species, then ln γ of
+    /// each species, then the derived numbers (the
+    /// fractions of every family's forms, family after family as
+    /// [`ResultLayout::family_start`]; per family (total, complexed fraction, mean bound
+    /// protons); per component (active: 1 or 0, dissolved total, free molality, relative mass
+    /// residual)), then the unknowns (ln a of each component).
+    data: Vec<f64>,
     charge_molal: f64,
     charge_relative: f64,
     ionic_strength_relative: f64,
@@ -163,7 +161,6 @@ pub struct Equilibrium {
     iterations: usize,
     path: SolverPath,
     warnings: Vec<Warning>,
-    unknowns: Vec<f64>,
     ln_i: f64,
     /// What the result says about the other phases and the measured quantities.
     phases: PhaseReport,
@@ -218,6 +215,11 @@ impl ResultLayout {
     /// Offset of the per-component numbers.
     fn component_numbers(&self) -> usize {
         self.family_numbers() + 3 * self.families()
+    }
+
+    /// The count of derived numbers.
+    fn numbers_len(&self) -> usize {
+        self.component_numbers() + 4 * self.component_names.len()
     }
 }
 
@@ -293,7 +295,12 @@ impl Equilibrium {
         let nc = sys.components.len();
         let layout = &sys.layout;
         let (fam_at, comp_at) = (layout.family_numbers(), layout.component_numbers());
-        let mut numbers = vec![0.0; comp_at + 4 * nc];
+        let ns = sys.species.len();
+        let mut data = Vec::with_capacity(2 * ns + layout.numbers_len() + nc);
+        data.extend_from_slice(&ev.conc);
+        data.extend_from_slice(&ev.ln_gamma);
+        data.resize(2 * ns + layout.numbers_len(), 0.0);
+        let numbers = &mut data[2 * ns..];
         // One pass over the species: the aqueous total of every component (into the
         // per-component numbers), total alkalinity (proton condition at the reference level
         // of each family) and carbonate alkalinity.
@@ -546,7 +553,9 @@ impl Equilibrium {
             });
         }
         let dic_molal = sys.carbonate.map_or(0.0, |c| numbers[aqueous(c)]);
+        data.extend_from_slice(&point.y);
         let Evaluation { conc, ln_gamma, .. } = ev;
+        crate::solve::fast::recycle(conc, ln_gamma, point.y);
         Ok(Equilibrium {
             ph,
             p_h_molal,
@@ -557,9 +566,7 @@ impl Equilibrium {
             ph_convention: sys.ph_convention,
             layout: Arc::clone(layout),
             water_density: rho,
-            molal: conc,
-            ln_gamma,
-            numbers,
+            data,
             charge_molal: charge,
             charge_relative,
             ionic_strength_relative,
@@ -567,7 +574,6 @@ impl Equilibrium {
             iterations,
             path,
             warnings,
-            unknowns: point.y,
             ln_i: point.ln_i,
             phases: PhaseReport {
                 solids,
@@ -590,7 +596,7 @@ impl Equilibrium {
     fn assemble(&self) -> Records {
         let lay = &*self.layout;
         let rho = self.water_density;
-        let species = (self.molal.iter().zip(&self.ln_gamma))
+        let species = (self.molal().iter().zip(self.ln_gamma()))
             .enumerate()
             .map(|(s, (&m, &lg))| {
                 let g = lg.exp();
@@ -607,11 +613,11 @@ impl Equilibrium {
         let fam_at = lay.family_numbers();
         let families = (0..lay.families())
             .map(|f| {
-                let n = &self.numbers[fam_at + 3 * f..fam_at + 3 * f + 3];
+                let n = &self.numbers()[fam_at + 3 * f..fam_at + 3 * f + 3];
                 FamilyState {
                     name: lay.family_names[f].clone(),
                     total_molal: n[0],
-                    fractions: self.numbers[lay.family_start[f]..lay.family_start[f + 1]].to_vec(),
+                    fractions: self.numbers()[lay.family_start[f]..lay.family_start[f + 1]].to_vec(),
                     complexed_fraction: n[1],
                     mean_bound_protons: n[2],
                 }
@@ -619,7 +625,7 @@ impl Equilibrium {
             .collect();
         let comp_at = lay.component_numbers();
         let active: Vec<(usize, &[f64])> = (1..lay.component_names.len())
-            .map(|c| (c, &self.numbers[comp_at + 4 * c..comp_at + 4 * c + 4]))
+            .map(|c| (c, &self.numbers()[comp_at + 4 * c..comp_at + 4 * c + 4]))
             .filter(|(_, n)| n[0] != 0.0)
             .collect();
         let pick = |k: usize| -> Vec<(Arc<str>, f64)> {
@@ -645,14 +651,26 @@ impl Equilibrium {
 
     /// Molality of each species, in the system's species order (no records assembled).
     pub(crate) fn molal(&self) -> &[f64] {
-        &self.molal
+        &self.data[..self.layout.species_names.len()]
+    }
+
+    /// ln γ of each species.
+    fn ln_gamma(&self) -> &[f64] {
+        let ns = self.layout.species_names.len();
+        &self.data[ns..2 * ns]
+    }
+
+    /// The derived numbers (see [`Equilibrium::data`]).
+    fn numbers(&self) -> &[f64] {
+        let ns = self.layout.species_names.len();
+        &self.data[2 * ns..2 * ns + self.layout.numbers_len()]
     }
 
     /// The largest relative residual over every equation solved, as
     /// [`Residuals::max_relative`] gives it (no records assembled).
     pub(crate) fn max_residual(&self) -> f64 {
         let comp_at = self.layout.component_numbers();
-        (self.numbers[comp_at..].chunks_exact(4).skip(1))
+        (self.numbers()[comp_at..].chunks_exact(4).skip(1))
             .filter(|n| n[0] != 0.0)
             .map(|n| n[3].abs())
             .fold(self.charge_relative.abs(), f64::max)
@@ -862,7 +880,8 @@ impl Equilibrium {
 
     /// ln a of each component (−∞ for components with zero total), H⁺ first.
     pub(crate) fn unknowns(&self) -> &[f64] {
-        &self.unknowns
+        let ns = self.layout.species_names.len();
+        &self.data[2 * ns + self.layout.numbers_len()..]
     }
 
     /// ln I.
@@ -873,7 +892,7 @@ impl Equilibrium {
     /// The solver's point, for warm starts and sensitivities.
     pub(crate) fn point(&self) -> Point {
         Point {
-            y: self.unknowns.clone(),
+            y: self.unknowns().to_vec(),
             ln_i: self.ln_i,
         }
     }
@@ -917,7 +936,7 @@ impl PartialEq for Equilibrium {
             && self.iterations == other.iterations
             && self.path == other.path
             && self.warnings == other.warnings
-            && self.unknowns == other.unknowns
+            && self.unknowns() == other.unknowns()
             && self.ln_i == other.ln_i
             && self.phases == other.phases
             && self.records() == other.records()

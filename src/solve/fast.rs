@@ -46,6 +46,10 @@ pub(crate) struct Buffers {
     /// The point's component activities (given to the point; a caller that is done with it
     /// hands it back with [`Buffers::keep_y`]).
     y: Vec<f64>,
+    /// The molalities and ln γ of an evaluation whose result has been read (see
+    /// [`recycle`]).
+    conc: Vec<f64>,
+    ln_gamma: Vec<f64>,
 }
 
 impl Buffers {
@@ -84,6 +88,8 @@ pub(crate) struct Fast<'a> {
     pw: [f64; 2 * NU_SPAN + 1],
     /// The buffer the next point's activities are written into.
     y: Vec<f64>,
+    /// Buffers kept for the next evaluation (not used here).
+    spare: (Vec<f64>, Vec<f64>),
     /// The system's uncoupled species by component (`System::fast_members`).
     members: &'a [Member],
     member_start: &'a [usize],
@@ -139,7 +145,11 @@ struct Joint {
 impl<'a> Fast<'a> {
     #[cfg(test)]
     pub(crate) fn new(sys: &'a System) -> Self {
-        Self::with(sys, Buffers::default(), Evaluation::without_slopes(sys))
+        Self::with(
+            sys,
+            Buffers::default(),
+            Evaluation::without_slopes_in(sys, Vec::new(), Vec::new()),
+        )
     }
 
     /// The fast path on `sys` in the given buffers (resized as needed) and evaluation (which
@@ -152,6 +162,8 @@ impl<'a> Fast<'a> {
             old_ln_gamma,
             sig,
             y,
+            conc,
+            ln_gamma,
         } = bufs;
         work.clear();
         work.resize(ns + 2 * nc, 0.0);
@@ -165,6 +177,7 @@ impl<'a> Fast<'a> {
             old_ln_gamma,
             l_ref: f64::NAN,
             pw: [1.0; 2 * NU_SPAN + 1],
+            spare: (conc, ln_gamma),
             members: &sys.fast_members,
             member_start: &sys.fast_member_start,
             sig,
@@ -180,6 +193,8 @@ impl<'a> Fast<'a> {
                 old_ln_gamma: self.old_ln_gamma,
                 sig: self.sig,
                 y: self.y,
+                conc: self.spare.0,
+                ln_gamma: self.spare.1,
             },
             self.ev,
         )
@@ -682,16 +697,27 @@ fn no_root(l: f64, evals: usize) -> Error {
 /// (ln a(H⁺), ln I); `tol` the relative ionic-strength tolerance. Returns the point, the
 /// evaluation at it and the number of pH-equation evaluations.
 pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result<(Point, Evaluation, usize)> {
-    let bufs = SPARE.take().unwrap_or_default();
-    let fast = Fast::with(sys, bufs, Evaluation::without_slopes(sys));
+    let mut bufs = SPARE.take().unwrap_or_default();
+    let ev = Evaluation::without_slopes_in(sys, std::mem::take(&mut bufs.conc), std::mem::take(&mut bufs.ln_gamma));
+    let fast = Fast::with(sys, bufs, ev);
     let (result, fast) = run(fast, start, tol, true);
     let (bufs, ev) = fast.into_parts();
     SPARE.set(Some(bufs));
     result.map(|(p, n)| (p, ev, n))
 }
 
+/// Keeps an evaluation's molalities and ln γ and a point's activities, once the result has
+/// been read from them, for the next fast solve on this thread.
+pub(crate) fn recycle(conc: Vec<f64>, ln_gamma: Vec<f64>, y: Vec<f64>) {
+    let mut bufs = SPARE.take().unwrap_or_default();
+    bufs.conc = conc;
+    bufs.ln_gamma = ln_gamma;
+    bufs.y = y;
+    SPARE.set(Some(bufs));
+}
+
 /// [`solve`] in caller-owned buffers and evaluation (sized for `sys`, as
-/// [`Evaluation::without_slopes`] makes it). Gives the point and the evaluations spent.
+/// [`Evaluation::without_slopes_in`] makes it). Gives the point and the evaluations spent.
 pub(crate) fn solve_in(
     sys: &System,
     start: Option<(f64, f64)>,
