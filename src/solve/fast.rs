@@ -330,7 +330,7 @@ impl<'a> Fast<'a> {
         y.resize(nc, f64::NEG_INFINITY);
         y[0] = l;
         let mut ionic = 0.0;
-        let (work, pw, members) = (&self.work[..ns], &self.pw, &self.members[..]);
+        let (work, pw, members) = (&self.work[..ns], &self.pw, self.members);
         let conc = &mut self.ev.conc;
         for m in &members[self.member_start[0]..self.member_start[1]] {
             let c = work[m.s] * pw[m.k];
