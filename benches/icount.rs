@@ -6,7 +6,7 @@
 //! (a counting global allocator).
 //!
 //! Usage: `icount CASE REPETITIONS` with CASE one of `monoprotic_davies`,
-//! `three_families_davies`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
+//! `three_families_davies`, `three_families_davies_records`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
 //! `titration_1000_davies_lean`, `lookup_synonym`, `general_three_families_davies`. Run natively it only checks that the case works.
 
 use protolyte::analysis::Titration;
@@ -144,9 +144,10 @@ fn main() {
     run(&args[1], n);
 }
 
-const CASES: [&str; 8] = [
+const CASES: [&str; 9] = [
     "monoprotic_davies",
     "three_families_davies",
+    "three_families_davies_records",
     "three_families_davies_workspace",
     "eight_families_complex_edh",
     "titration_1000_davies",
@@ -164,6 +165,17 @@ fn run(case: &str, n: usize) {
         "three_families_davies" => {
             let s = system(&THREE, ActivityModel::Davies);
             measured(n, || black_box(&s).solve().expect("solve").ph())
+        }
+        "three_families_davies_records" => {
+            // The full solve with every record read (species, families, residuals), which the
+            // result assembles on first access.
+            let s = system(&THREE, ActivityModel::Davies);
+            measured(n, || {
+                let eq = black_box(&s).solve().expect("solve");
+                let species: f64 = eq.species().iter().map(|x| x.activity).sum();
+                let fractions: f64 = eq.families().iter().map(|f| f.fractions[0]).sum();
+                eq.ph() + species + fractions + eq.residuals().max_relative()
+            })
         }
         "three_families_davies_workspace" => {
             // The same solve through `Solver::solve_ph` in a reused workspace, each repetition
