@@ -47,7 +47,8 @@ const MAX_TEMPLATES: usize = 64;
 pub struct BatchOptions {
     /// Write the full result (every species and family) in each record.
     pub full: bool,
-    /// Lines read per chunk (at least one block).
+    /// Lines read per chunk at most (at least one block); the first chunks are shorter (two
+    /// blocks, then four times the last), so that the workers start early.
     pub chunk_lines: usize,
 }
 
@@ -55,7 +56,7 @@ impl Default for BatchOptions {
     fn default() -> Self {
         BatchOptions {
             full: false,
-            chunk_lines: 16 * BLOCK,
+            chunk_lines: 64 * BLOCK,
         }
     }
 }
@@ -774,16 +775,20 @@ where
     let mut bytes = 0u64;
     let mut current: Vec<RawLine> = Vec::with_capacity(chunk);
     let mut next: Vec<RawLine> = Vec::with_capacity(chunk);
-    // The first chunk is read before anything else can run: a short one (two blocks, so the
-    // block boundaries stay at the same line numbers) gets the workers going sooner.
-    let first_chunk = (2 * sizes.block.max(1)).min(chunk);
-    let (mut n, mut got, mut eof) = read_chunk(&mut input, &mut current, first_chunk)?;
+    // The first chunk is read before anything else can run: a short one (two blocks) gets
+    // the workers going sooner. Each next chunk is four times the last (up to `chunk`), so
+    // that it is read in the time the workers take over the last one, and the chunks (where
+    // a worker may wait for the other's last block) are few. Every size is a whole number of
+    // blocks, so the blocks start at the same line numbers whatever the sizes.
+    let mut size = (2 * sizes.block.max(1)).min(chunk);
+    let (mut n, mut got, mut eof) = read_chunk(&mut input, &mut current, size)?;
     bytes += got;
     // The records of the chunk solved last, written while the next one is solved.
     let mut pending: Vec<(Vec<u8>, usize, usize)> = Vec::new();
     while n > 0 {
         // Solve this chunk and read the next one on the workers (a helper thread waits for
         // them) while this thread writes the records of the previous chunk.
+        size = (4 * size).min(chunk);
         let (solved, written) = std::thread::scope(|scope| {
             let work = scope.spawn(|| {
                 rayon::join(
@@ -791,7 +796,7 @@ where
                         if eof {
                             Ok((0, 0, true))
                         } else {
-                            read_chunk(&mut input, &mut next, chunk)
+                            read_chunk(&mut input, &mut next, size)
                         }
                     },
                     || solve_chunk(&current[..n], first_line, sizes, make),
