@@ -7,7 +7,8 @@
 //!
 //! Usage: `icount CASE REPETITIONS` with CASE one of `monoprotic_davies`,
 //! `three_families_davies`, `three_families_davies_records`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
-//! `titration_1000_davies_lean`, `lookup_synonym`, `general_three_families_davies`. Run natively it only checks that the case works.
+//! `titration_1000_davies_lean`, `lookup_synonym`, `general_three_families_davies`, `read_builtin_catalog` (the built-in
+//! catalogue read from its embedded files, as `Catalog::builtin` does once). Run natively it only checks that the case works.
 
 use protolyte::analysis::Titration;
 use protolyte::solve::Workspace;
@@ -144,7 +145,7 @@ fn main() {
     run(&args[1], n);
 }
 
-const CASES: [&str; 9] = [
+const CASES: [&str; 10] = [
     "monoprotic_davies",
     "three_families_davies",
     "three_families_davies_records",
@@ -154,6 +155,7 @@ const CASES: [&str; 9] = [
     "titration_1000_davies_lean",
     "lookup_synonym",
     "general_three_families_davies",
+    "read_builtin_catalog",
 ];
 
 fn run(case: &str, n: usize) {
@@ -231,6 +233,11 @@ fn run(case: &str, n: usize) {
                 r.molar_mass_g_per_mol().unwrap_or(0.0)
             })
         }
+        "read_builtin_catalog" => measured(n, || {
+            let cat = Catalog::read_builtin();
+            assert!(cat.load_problems().is_empty());
+            black_box(cat).entries().len() as f64
+        }),
         other => panic!("unknown case {other}; one of {CASES:?}"),
     };
     black_box(acc);

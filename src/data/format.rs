@@ -1,116 +1,116 @@
 //! The catalogue file format, `protolyte-catalog/1` (documented for users in
-//! `docs/catalog-format.md`): the shapes of a file as read, and where in the text each field
-//! sits (for errors that name the line).
+//! `docs/catalog-format.md`): the shapes of a file as read, the TOML reader, and the compact
+//! form of a read file that the build script writes for the built-in files.
+//!
+//! The build script (`build.rs`) compiles this file on its own, so it uses nothing of the
+//! crate: only `std`, `serde`, `toml`.
 
 use std::collections::BTreeMap;
-use std::ops::Range;
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 use toml::Spanned;
-
-use crate::error::{CatalogFileError, Error};
 
 /// The format tag every catalogue file carries.
 pub(crate) const CATALOG_FORMAT: &str = "protolyte-catalog/1";
 
 /// One catalogue file.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct CatalogFile {
-    pub format: Option<Spanned<String>>,
+#[derive(Debug, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de> + Ord"))]
+pub(crate) struct CatalogFile<S = String> {
+    pub format: Option<Spanned<S>>,
     /// Citations by key, for entries that `cite` them.
     #[serde(default)]
-    pub sources: BTreeMap<String, String>,
+    pub sources: BTreeMap<S, S>,
     #[serde(default)]
-    pub family: Vec<Spanned<FamilyEntry>>,
+    pub family: Vec<Spanned<FamilyEntry<S>>>,
     #[serde(default)]
-    pub ion: Vec<Spanned<IonEntry>>,
+    pub ion: Vec<Spanned<IonEntry<S>>>,
     #[serde(default)]
-    pub reagent: Vec<Spanned<ReagentEntry>>,
+    pub reagent: Vec<Spanned<ReagentEntry<S>>>,
     #[serde(default)]
-    pub complex: Vec<Spanned<ComplexEntry>>,
+    pub complex: Vec<Spanned<ComplexEntry<S>>>,
     #[serde(default)]
-    pub solid: Vec<Spanned<SolidEntry>>,
+    pub solid: Vec<Spanned<SolidEntry<S>>>,
     #[serde(default)]
-    pub gas: Vec<Spanned<GasEntry>>,
+    pub gas: Vec<Spanned<GasEntry<S>>>,
 }
 
 /// A solid: its dissolution reaction (parts as a complex's) and log K at 25 °C.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct SolidEntry {
-    pub name: String,
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct SolidEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
-    pub parts: Vec<PartEntry>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
+    pub parts: Vec<PartEntry<S>>,
     pub log_k: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// An analytic log K(T) equation (`[solid.log_k_equation]`, without `step`).
-    pub log_k_equation: Option<EquationEntry>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub log_k_equation: Option<EquationEntry<S>>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
 }
 
 /// A gas: the family form it dissolves to and log K_H at 25 °C.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct GasEntry {
-    pub name: String,
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct GasEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     /// `{ family = "...", protons = n }`: the neutral aqueous form.
-    pub dissolves_to: PartEntry,
+    pub dissolves_to: PartEntry<S>,
     pub log_kh: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// An analytic log K_H(T) equation (`[gas.log_k_equation]`, without `step`).
-    pub log_k_equation: Option<EquationEntry>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub log_k_equation: Option<EquationEntry<S>>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
 }
 
 /// An acid–base family.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct FamilyEntry {
-    pub name: String,
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct FamilyEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     /// Display names of the forms, most protonated first.
-    pub form_names: Option<Vec<String>>,
+    pub form_names: Option<Vec<S>>,
     pub charge_most_protonated: i32,
-    pub steps: Vec<StepEntry>,
+    pub steps: Vec<StepEntry<S>>,
     pub ion_size_angstrom: Option<f64>,
     pub form_ion_sizes_angstrom: Option<Vec<f64>>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
     pub replace: bool,
     /// Analytic log K(T) equations, each naming its step (`[[family.log_k_equation]]`).
     #[serde(default)]
-    pub log_k_equation: Vec<EquationEntry>,
+    pub log_k_equation: Vec<EquationEntry<S>>,
 }
 
 /// One dissociation step.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct StepEntry {
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct StepEntry<S = String> {
     pub pka: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// The source of this step's ΔH°/ΔCp° where it is not the family's.
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     /// True when this step's ΔH°/ΔCp° were entered from memory of their source.
     #[serde(default)]
     pub from_memory: bool,
@@ -118,33 +118,33 @@ pub(crate) struct StepEntry {
 
 /// An analytic equation log₁₀ K = a + b·T + c/T + d·log₁₀ T + e/T² (T in kelvin) for one
 /// reaction, with the range its source fitted.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct EquationEntry {
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct EquationEntry<S = String> {
     /// The step (1 = the most protonated form's dissociation); families only.
     pub step: Option<usize>,
     /// a, b, c, d, e.
     pub coefficients: [f64; 5],
     /// Lowest and highest temperature of the fit, °C.
     pub range_celsius: [f64; 2],
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
 }
 
 /// A simple ion.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct IonEntry {
-    pub name: String,
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct IonEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     pub charge: i32,
     pub ion_size_angstrom: Option<f64>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
@@ -152,17 +152,17 @@ pub(crate) struct IonEntry {
 }
 
 /// A reagent.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct ReagentEntry {
-    pub name: String,
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct ReagentEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub formula: Option<String>,
+    pub synonyms: Vec<S>,
+    pub formula: Option<S>,
     pub molar_mass_g_per_mol: Option<f64>,
-    pub parts: Vec<PartEntry>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub parts: Vec<PartEntry<S>>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
@@ -170,21 +170,21 @@ pub(crate) struct ReagentEntry {
 }
 
 /// A complex or ion pair.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct ComplexEntry {
-    pub name: String,
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct ComplexEntry<S = String> {
+    pub name: S,
     #[serde(default)]
-    pub synonyms: Vec<String>,
-    pub parts: Vec<PartEntry>,
+    pub synonyms: Vec<S>,
+    pub parts: Vec<PartEntry<S>>,
     pub log_beta: f64,
     pub dh_kj_per_mol: Option<f64>,
     pub dcp_j_per_mol_k: Option<f64>,
     /// An analytic log β(T) equation (`[complex.log_k_equation]`, without `step`).
-    pub log_k_equation: Option<EquationEntry>,
+    pub log_k_equation: Option<EquationEntry<S>>,
     pub ion_size_angstrom: Option<f64>,
-    pub source: Option<String>,
-    pub cite: Option<String>,
+    pub source: Option<S>,
+    pub cite: Option<S>,
     #[serde(default)]
     pub from_memory: bool,
     #[serde(default)]
@@ -193,114 +193,123 @@ pub(crate) struct ComplexEntry {
 
 /// One part of a reagent or complex: exactly one of `family` (with `protons`), `base`, `ion`,
 /// `proton`, `hydroxide`, with `count` (default 1) for the named ones.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub(crate) struct PartEntry {
-    pub family: Option<String>,
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields, bound(deserialize = "S: Deserialize<'de>"))]
+pub(crate) struct PartEntry<S = String> {
+    pub family: Option<S>,
     pub protons: Option<u32>,
-    pub base: Option<String>,
-    pub ion: Option<String>,
+    pub base: Option<S>,
+    pub ion: Option<S>,
     pub proton: Option<i32>,
     pub hydroxide: Option<i32>,
     pub count: Option<i32>,
 }
 
-/// Where a file's text is: its name and the start of each line, for line numbers.
-pub(crate) struct Located<'a> {
-    pub file: &'a str,
-    pub text: &'a str,
+/// The built-in data files, in the order they are read (paths from the crate root). The
+/// library embeds the same files, in this order (`BUILTIN_FILES` in `data/mod.rs`).
+#[cfg_attr(not(test), allow(dead_code))] // the build script's list; the tests hold the library's equal to it
+pub(crate) const BUILTIN_PATHS: [&str; 6] = [
+    "data/families.toml",
+    "data/ions.toml",
+    "data/reagents.toml",
+    "data/complexes.toml",
+    "data/solids.toml",
+    "data/gases.toml",
+];
+
+/// Why a text is not a catalogue file as TOML: the byte offset of the fault where the reader
+/// knows it, and its message.
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+pub(crate) struct ParseFailure {
+    pub at: Option<usize>,
+    pub message: String,
 }
 
-impl Located<'_> {
-    /// The 1-based line of byte offset `at`.
-    pub fn line_of(&self, at: usize) -> usize {
-        let at = at.min(self.text.len());
-        self.text.as_bytes()[..at].iter().filter(|&&b| b == b'\n').count() + 1
-    }
+/// Reads catalogue text (TOML) into the shapes above; checks nothing beyond the shapes.
+pub(crate) fn parse(text: &str) -> Result<CatalogFile, ParseFailure> {
+    toml::from_str(text).map_err(|e| ParseFailure {
+        at: e.span().map(|s| s.start),
+        message: e.message().trim().to_string(),
+    })
+}
 
-    /// The text range of the entry whose `[[table]]` header spans `header`: up to the next
-    /// table header written at the start of a line, or the end of the file.
-    pub fn entry_range(&self, header: Range<usize>) -> Range<usize> {
-        let from = header.end.min(self.text.len());
-        let end = self.text[from..]
-            .find("\n[")
-            .map(|i| from + i + 1)
-            .unwrap_or(self.text.len());
-        header.start..end
-    }
+/// A value with the byte range of its text, as a plain pair (what [`Spanned`] holds, in a
+/// form that serialises both).
+pub(crate) type Span<T> = (usize, usize, T);
 
-    /// The line where `key = ...` is written inside `span` (an entry), else the entry's first line.
-    pub fn line_of_key(&self, span: &Range<usize>, key: &str) -> usize {
-        let end = span.end.min(self.text.len());
-        let start = span.start.min(end);
-        let body = &self.text[start..end];
-        let mut offset = start;
-        for line in body.split_inclusive('\n') {
-            let t = line.trim_start().trim_start_matches(['{', ',', ' ']);
-            if let Some(rest) = t.strip_prefix(key)
-                && rest.trim_start().starts_with('=')
-            {
-                return self.line_of(offset);
-            }
-            // Inline tables: `{ pka = 4.1, dh_kj_per_mol = ... }`.
-            if let Some(i) = line
-                .find(&format!(" {key} ="))
-                .or_else(|| line.find(&format!("{{{key} =")))
-                && !line.trim_start().starts_with('#')
-            {
-                return self.line_of(offset + i);
-            }
-            offset += line.len();
+#[cfg_attr(not(test), allow(dead_code))] // packing is the build script's (and the tests')
+fn pack<T>(items: Vec<Spanned<T>>) -> Vec<Span<T>> {
+    items
+        .into_iter()
+        .map(|s| {
+            let r = s.span();
+            (r.start, r.end, s.into_inner())
+        })
+        .collect()
+}
+
+fn unpack<T>(items: Vec<Span<T>>) -> Vec<Spanned<T>> {
+    items.into_iter().map(|(a, b, v)| Spanned::new(a..b, v)).collect()
+}
+
+/// A [`CatalogFile`] in a form that serialises with its spans: what the build script writes
+/// for each built-in file (with `postcard`), so that the library decodes the files instead
+/// of parsing their TOML. [`PackedFile::unpack`] gives back the very [`CatalogFile`] that
+/// [`parse`] gives for the same text (a test holds them equal).
+#[derive(Debug, Serialize, Deserialize, PartialEq)]
+#[serde(bound(serialize = "S: Serialize", deserialize = "S: Deserialize<'de> + Ord"))]
+pub(crate) struct PackedFile<S = String> {
+    pub format: Option<Span<S>>,
+    pub sources: BTreeMap<S, S>,
+    pub family: Vec<Span<FamilyEntry<S>>>,
+    pub ion: Vec<Span<IonEntry<S>>>,
+    pub reagent: Vec<Span<ReagentEntry<S>>>,
+    pub complex: Vec<Span<ComplexEntry<S>>>,
+    pub solid: Vec<Span<SolidEntry<S>>>,
+    pub gas: Vec<Span<GasEntry<S>>>,
+}
+
+impl<S> PackedFile<S> {
+    /// The compact form of a file as read.
+    #[cfg_attr(not(test), allow(dead_code))] // the build script's (and the tests')
+    pub fn pack(f: CatalogFile<S>) -> Self {
+        PackedFile {
+            format: f.format.map(|s| {
+                let r = s.span();
+                (r.start, r.end, s.into_inner())
+            }),
+            sources: f.sources,
+            family: pack(f.family),
+            ion: pack(f.ion),
+            reagent: pack(f.reagent),
+            complex: pack(f.complex),
+            solid: pack(f.solid),
+            gas: pack(f.gas),
         }
-        self.line_of(span.start)
     }
 
-    /// The line of the `k`-th inline table in the array `key = [...]` inside `span`, else the
-    /// line of `key`.
-    pub fn line_of_item(&self, span: &Range<usize>, key: &str, k: usize) -> usize {
-        let key_line = self.line_of_key(span, key);
-        let end = span.end.min(self.text.len());
-        // Byte offset where the key's line starts.
-        let mut start = 0;
-        for _ in 1..key_line {
-            match self.text[start..].find('\n') {
-                Some(i) => start += i + 1,
-                None => break,
-            }
+    /// The file as read, back from its compact form.
+    pub fn unpack(self) -> CatalogFile<S> {
+        CatalogFile {
+            format: self.format.map(|(a, b, v)| Spanned::new(a..b, v)),
+            sources: self.sources,
+            family: unpack(self.family),
+            ion: unpack(self.ion),
+            reagent: unpack(self.reagent),
+            complex: unpack(self.complex),
+            solid: unpack(self.solid),
+            gas: unpack(self.gas),
         }
-        let (mut depth, mut seen, mut in_str, mut in_comment) = (0usize, 0usize, false, false);
-        for (i, c) in self.text[start.min(end)..end].char_indices() {
-            match c {
-                '\n' => in_comment = false,
-                _ if in_comment => {}
-                '"' => in_str = !in_str,
-                _ if in_str => {}
-                '#' => in_comment = true,
-                '{' => {
-                    if depth == 0 {
-                        if seen == k {
-                            return self.line_of(start + i);
-                        }
-                        seen += 1;
-                    }
-                    depth += 1;
-                }
-                '}' => depth = depth.saturating_sub(1),
-                ']' if depth == 0 => break,
-                _ => {}
-            }
-        }
-        key_line
-    }
-
-    /// An error at `line` for `entry`'s `field`.
-    pub fn error(&self, line: usize, entry: &str, field: &str, message: impl std::fmt::Display) -> Error {
-        Error::CatalogFile(Box::new(CatalogFileError {
-            file: self.file.to_string(),
-            line,
-            entry: entry.to_string(),
-            field: field.to_string(),
-            message: message.to_string(),
-        }))
     }
 }
+
+/// What the build script writes for the built-in files: for each of [`BUILTIN_PATHS`], in
+/// order, the file as read or why it could not be read.
+pub(crate) type PackedBuiltin<S = String> = Vec<Result<PackedFile<S>, ParseFailure>>;
+
+/// The text fields of a file as read: owned (`String`: a user's file, parsed at run time) or
+/// borrowed from the embedded compact form (`&'static str`: the built-in files, decoded
+/// without a copy of each text).
+pub(crate) trait Text: std::ops::Deref<Target = str> + Into<String> + std::fmt::Display {}
+
+impl<T: std::ops::Deref<Target = str> + Into<String> + std::fmt::Display> Text for T {}

@@ -77,7 +77,15 @@ const ATOMIC_WEIGHTS: &[(&str, f64)] = &[
 ];
 
 fn atomic_weight(symbol: &str) -> Option<f64> {
-    ATOMIC_WEIGHTS.iter().find(|(s, _)| *s == symbol).map(|&(_, w)| w)
+    // Symbols are one or two bytes: compared byte by byte in place (no call per entry).
+    let b = symbol.as_bytes();
+    ATOMIC_WEIGHTS
+        .iter()
+        .find(|(s, _)| {
+            let t = s.as_bytes();
+            t.len() == b.len() && t.iter().zip(b).all(|(x, y)| x == y)
+        })
+        .map(|&(_, w)| w)
 }
 
 /// The molar mass (g/mol) of a chemical formula, from the IUPAC 2021 abridged standard atomic

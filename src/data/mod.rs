@@ -8,6 +8,7 @@
 
 mod format;
 mod formula;
+mod located;
 mod phases;
 
 pub use formula::molar_mass_from_formula;
@@ -17,8 +18,10 @@ use std::path::Path;
 use std::sync::OnceLock;
 
 use format::{
-    CATALOG_FORMAT, CatalogFile, ComplexEntry, EquationEntry, FamilyEntry, IonEntry, Located, PartEntry, ReagentEntry,
+    CATALOG_FORMAT, CatalogFile, ComplexEntry, EquationEntry, FamilyEntry, IonEntry, PackedBuiltin, PartEntry,
+    ReagentEntry, Text,
 };
+use located::Located;
 use toml::Spanned;
 
 use crate::complex::{Complex, ComplexPart};
@@ -29,7 +32,8 @@ use crate::protolyte::{Protolyte, Step};
 use crate::reagent::{Constituent, Reagent};
 use crate::vant_hoff::{LogKEquation, ValidityRange};
 
-/// The built-in data files, embedded at build time: (name shown in messages, text).
+/// The built-in data files, embedded at build time: (name shown in messages, text). The texts
+/// serve the messages that name a line; the entries are read from [`BUILTIN_PACKED`].
 const BUILTIN_FILES: [(&str, &str); 6] = [
     ("data/families.toml", include_str!("../../data/families.toml")),
     ("data/ions.toml", include_str!("../../data/ions.toml")),
@@ -38,6 +42,10 @@ const BUILTIN_FILES: [(&str, &str); 6] = [
     ("data/solids.toml", include_str!("../../data/solids.toml")),
     ("data/gases.toml", include_str!("../../data/gases.toml")),
 ];
+
+/// The same files as read by `format::parse`, in the compact form the build script writes
+/// (`build.rs`): decoding it costs a small part of parsing the TOML.
+const BUILTIN_PACKED: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/builtin-catalog.postcard"));
 
 /// What kind of thing a catalog entry is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
@@ -133,8 +141,18 @@ pub struct DataInfo {
     pub log_k_equations: Vec<Option<LogKEquation>>,
     /// The constituents of a reagent or the parts of a complex, in words ("2 × sodium").
     pub parts: Vec<String>,
-    /// The name and synonyms normalised for lookup.
-    keys: Vec<String>,
+}
+
+impl DataInfo {
+    /// The name and synonyms normalised for lookup, in order.
+    fn keys(&self) -> impl Iterator<Item = String> + '_ {
+        std::iter::once(&self.name).chain(&self.synonyms).map(|n| normalize(n))
+    }
+}
+
+/// `names` normalised for lookup, in order.
+fn keys_of(names: &[&str]) -> Vec<String> {
+    names.iter().map(|n| normalize(n)).collect()
 }
 
 /// Built-in and user-defined definitions, looked up by name or synonym (case-insensitive).
@@ -249,11 +267,7 @@ pub(crate) fn normalize(s: &str) -> String {
 /// single spaces, no space at either end) and it fits; `None` otherwise.
 fn plain_lowercase<'b>(s: &str, buf: &'b mut [u8]) -> Option<&'b str> {
     let bytes = s.as_bytes();
-    let plain = bytes.iter().all(|&b| b.is_ascii_graphic() || b == b' ')
-        && !s.starts_with(' ')
-        && !s.ends_with(' ')
-        && !s.contains("  ");
-    if !plain || bytes.len() > buf.len() {
+    if bytes.len() > buf.len() || plain_ascii(s).is_none() {
         return None;
     }
     let out = &mut buf[..bytes.len()];
@@ -263,17 +277,33 @@ fn plain_lowercase<'b>(s: &str, buf: &'b mut [u8]) -> Option<&'b str> {
     std::str::from_utf8(out).ok()
 }
 
+/// Whether `s` is printable ASCII with single spaces and none at either end (what
+/// [`normalized`] only lower-cases), and if so whether it has an upper-case letter; one pass.
+fn plain_ascii(s: &str) -> Option<bool> {
+    let bytes = s.as_bytes();
+    if bytes.first() == Some(&b' ') || bytes.last() == Some(&b' ') {
+        return None;
+    }
+    let (mut upper, mut prev_space) = (false, false);
+    for &b in bytes {
+        let space = b == b' ';
+        if !(b.is_ascii_graphic() || space) || (space && prev_space) {
+            return None;
+        }
+        upper |= b.is_ascii_uppercase();
+        prev_space = space;
+    }
+    Some(upper)
+}
+
 fn normalized(s: &str) -> std::borrow::Cow<'_, str> {
     // Most names are printable ASCII with single spaces (every built-in one is, lower case
     // too): copy them as they are, or lower-case them in one allocation.
-    let plain = s.bytes().all(|b| b.is_ascii_graphic() || b == b' ')
-        && !s.ends_with("^+")
+    if !s.ends_with("^+")
         && !s.ends_with("^-")
-        && !s.starts_with(' ')
-        && !s.ends_with(' ')
-        && !s.contains("  ");
-    if plain {
-        return if s.bytes().any(|b| b.is_ascii_uppercase()) {
+        && let Some(upper) = plain_ascii(s)
+    {
+        return if upper {
             std::borrow::Cow::Owned(s.to_ascii_lowercase())
         } else {
             std::borrow::Cow::Borrowed(s)
@@ -385,8 +415,34 @@ impl Catalog {
     #[doc(hidden)]
     pub fn read_builtin() -> Self {
         let mut cat = Catalog::empty();
-        for (name, text) in BUILTIN_FILES {
-            if let Err(e) = cat.load(text, &format!("built-in {name}"), false) {
+        // The texts are borrowed from the embedded bytes: no copy of each until a definition
+        // or description keeps it.
+        let packed: PackedBuiltin<&'static str> = match postcard::from_bytes(BUILTIN_PACKED) {
+            Ok(p) => p,
+            Err(e) => {
+                cat.problems.push(format!(
+                    "the built-in catalogue written by the build script cannot be decoded: {e}"
+                ));
+                return cat;
+            }
+        };
+        if packed.len() != BUILTIN_FILES.len() {
+            cat.problems.push(format!(
+                "the build script wrote {} built-in files, the library embeds {}",
+                packed.len(),
+                BUILTIN_FILES.len()
+            ));
+            return cat;
+        }
+        let files: Vec<_> = packed.into_iter().map(|f| f.map(format::PackedFile::unpack)).collect();
+        // Room for the entries of all the files at once.
+        let room = (files.iter().flatten()).fold(Room::default(), |r, f| r.add(Room::of(f)));
+        cat.reserve(room);
+        for ((name, text), file) in BUILTIN_FILES.into_iter().zip(files) {
+            let origin = format!("built-in {name}");
+            let loc = Located { file: &origin, text };
+            let read = file.map_err(|f| loc.parse_error(f));
+            if let Err(e) = read.and_then(|file| cat.load_parsed(file, &loc, false)) {
                 cat.problems.push(e.to_string());
             }
         }
@@ -453,10 +509,12 @@ impl Catalog {
     /// (the built-in files need no copy: a refused entry there is a data bug, tested for).
     fn load(&mut self, text: &str, origin: &str, atomic: bool) -> Result<()> {
         let loc = Located { file: origin, text };
-        let file: CatalogFile = toml::from_str(text).map_err(|e| {
-            let line = e.span().map(|s| loc.line_of(s.start)).unwrap_or(1);
-            loc.error(line, "", "", e.message().trim())
-        })?;
+        let file = format::parse(text).map_err(|f| loc.parse_error(f))?;
+        self.load_parsed(file, &loc, atomic)
+    }
+
+    /// Checks and adds the entries of a file as read (see [`Catalog::load`]).
+    fn load_parsed<S: Text>(&mut self, file: CatalogFile<S>, loc: &Located, atomic: bool) -> Result<()> {
         match &file.format {
             None => {
                 return Err(loc.error(
@@ -466,7 +524,7 @@ impl Catalog {
                     format!("missing: a catalogue file starts with format = \"{CATALOG_FORMAT}\""),
                 ));
             }
-            Some(f) if f.get_ref() != CATALOG_FORMAT => {
+            Some(f) if &**f.get_ref() != CATALOG_FORMAT => {
                 return Err(loc.error(
                     loc.line_of(f.span().start),
                     "",
@@ -481,11 +539,11 @@ impl Catalog {
         }
         if atomic {
             let mut next = self.clone();
-            next.apply(file, &loc)?;
+            next.apply(file, loc)?;
             *self = next;
             Ok(())
         } else {
-            self.apply(file, &loc)
+            self.apply(file, loc)
         }
     }
 
@@ -510,8 +568,10 @@ impl Catalog {
             return Ok(idx);
         }
         // Not found: suggest the closest name or synonym, if it is close.
-        let candidates = (self.info.iter().filter(|i| i.kind == kind))
-            .flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info.name.as_str())));
+        let keyed: Vec<(String, &str)> = (self.info.iter().filter(|i| i.kind == kind))
+            .flat_map(|info| info.keys().map(move |k| (k, info.name.as_str())))
+            .collect();
+        let candidates = keyed.iter().map(|(k, n)| (k.as_str(), *n));
         Err(Error::UnknownName {
             kind: kind.name(),
             name: name.to_string(),
@@ -578,10 +638,10 @@ impl Catalog {
     /// assert!(cat.closest("no such thing anywhere").is_none());
     /// ```
     pub fn closest(&self, name: &str) -> Option<&DataInfo> {
-        closest(
-            name,
-            (self.info.iter()).flat_map(|info| info.keys.iter().map(move |k| (k.as_str(), info))),
-        )
+        let keyed: Vec<(String, &DataInfo)> = (self.info.iter())
+            .flat_map(|info| info.keys().map(move |k| (k, info)))
+            .collect();
+        closest(name, keyed.iter().map(|(k, info)| (k.as_str(), *info)))
     }
 
     /// Entries whose name, a synonym or formula contains `query` (case-insensitive).
@@ -605,11 +665,11 @@ impl Catalog {
     }
 
     /// The entries (kind, index within the kind) whose name or synonym equals one of `names`
-    /// (normalised), among the kinds that share a namespace with `kind`.
-    fn conflicts(&self, kind: DataKind, names: &[&str]) -> Vec<(String, DataKind, usize)> {
+    /// (`keys`: the names normalised), among the kinds that share a namespace with `kind`.
+    fn conflicts(&self, kind: DataKind, names: &[&str], keys: &[String]) -> Vec<(String, DataKind, usize)> {
         let mut out = Vec::new();
-        for n in names {
-            if let Some(a) = self.index.get(normalized(n).as_ref()) {
+        for (n, key) in names.iter().zip(keys) {
+            if let Some(a) = self.index.get(key.as_str()) {
                 for &k in namespace(kind) {
                     if let Some(idx) = a[k as usize] {
                         out.push((n.to_string(), k, idx));
@@ -629,12 +689,13 @@ impl Catalog {
         }
     }
 
-    /// Refuses a name or synonym already taken (see [`Catalog::add_protolyte`]).
-    fn check_new(&self, kind: DataKind, names: &[&str]) -> Result<()> {
+    /// Refuses a name or synonym already taken (see [`Catalog::add_protolyte`]); `keys` are
+    /// the names normalised ([`keys_of`]).
+    fn check_new(&self, kind: DataKind, names: &[&str], keys: &[String]) -> Result<()> {
         if kind != DataKind::Reagent {
-            self.check_phase_names(kind.name(), names)?;
+            self.check_phase_names(kind.name(), names, keys)?;
         }
-        match self.conflicts(kind, names).first() {
+        match self.conflicts(kind, names, keys).first() {
             Some((name, k, idx)) => Err(self.conflict_error(kind, name, *k, *idx)),
             None => Ok(()),
         }
@@ -645,7 +706,7 @@ impl Catalog {
     /// another kind, or by two different entries.
     fn replacement_target(&self, kind: DataKind, names: &[&str]) -> Result<Option<usize>> {
         let mut target: Option<usize> = None;
-        for (name, k, idx) in self.conflicts(kind, names) {
+        for (name, k, idx) in self.conflicts(kind, names, &keys_of(names)) {
             if k != kind || target.is_some_and(|t| t != idx) {
                 return Err(self.conflict_error(kind, &name, k, idx));
             }
@@ -769,18 +830,44 @@ impl Catalog {
         }
     }
 
-    /// Records an entry's description at the end of its kind's group and indexes its names.
-    /// Call before pushing the definition.
-    fn push_info(&mut self, mut info: DataInfo, synonyms: &[&str]) {
+    /// The display name of form `protons` of `p` (as [`Protolyte::form_name`] gives it):
+    /// borrowed from the description of this catalog's family of the same name when that
+    /// family has all that a form's name depends on alike (name, formula, charge, number of
+    /// steps, form names), else computed. Reagents and complexes read from a file hold the
+    /// catalog's own families, so their forms are named once, when the family is added.
+    fn form_name_of<'s>(&'s self, p: &Protolyte, protons: usize) -> std::borrow::Cow<'s, str> {
+        let own = self
+            .index
+            .get(normalized(p.name()).as_ref())
+            .and_then(|a| a[DataKind::Protolyte as usize])
+            .filter(|&i| {
+                let q = &self.protolytes[i];
+                q.name() == p.name()
+                    && q.formula() == p.formula()
+                    && q.charge_most_protonated() == p.charge_most_protonated()
+                    && q.proton_count() == p.proton_count()
+                    && q.form_names() == p.form_names()
+            })
+            .and_then(|i| {
+                let forms = &self.info[self.offset(DataKind::Protolyte) + i].forms;
+                let form = forms.get(p.proton_count().checked_sub(protons)?)?;
+                (form.protons == protons).then_some(form.name.as_str())
+            });
+        match own {
+            Some(name) => std::borrow::Cow::Borrowed(name),
+            None => std::borrow::Cow::Owned(p.form_name(protons)),
+        }
+    }
+
+    /// Records an entry's description at the end of its kind's group and indexes its names
+    /// (`keys`: its name and `synonyms` normalised, [`keys_of`]). Call before pushing the
+    /// definition.
+    fn push_info(&mut self, mut info: DataInfo, synonyms: &[&str], keys: Vec<String>) {
         info.synonyms = synonyms.iter().map(|s| s.to_string()).collect();
-        info.keys = std::iter::once(info.name.as_str())
-            .chain(synonyms.iter().copied())
-            .map(normalize)
-            .collect();
         let kind = info.kind;
         let idx = self.len_of(kind);
-        for k in &info.keys {
-            self.index.entry(k.clone()).or_default()[kind as usize].get_or_insert(idx);
+        for k in keys {
+            self.index.entry(k).or_default()[kind as usize].get_or_insert(idx);
         }
         let at = self.offset(kind) + idx;
         self.info.insert(at, info);
@@ -809,7 +896,8 @@ impl Catalog {
     fn add_protolyte_with(&mut self, p: Protolyte, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![p.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Protolyte, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Protolyte, &names, &keys)?;
         let pk: Vec<String> = p.steps().iter().map(|s| format!("{}", s.pka)).collect();
         let summary = format!(
             "pKa {} (25 °C); most protonated charge {:+}",
@@ -846,9 +934,8 @@ impl Catalog {
             dcp_j_per_mol_k: None,
             log_k_equations: (0..p.proton_count()).map(|k| p.log_k_equation(k)).collect(),
             parts: Vec::new(),
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.protolytes.push(p);
         Ok(())
     }
@@ -861,7 +948,8 @@ impl Catalog {
     fn add_ion_with(&mut self, ion: Ion, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![ion.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Ion, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Ion, &names, &keys)?;
         let formula = ion.display_name().to_string();
         let info = DataInfo {
             kind: DataKind::Ion,
@@ -882,9 +970,8 @@ impl Catalog {
             dcp_j_per_mol_k: None,
             log_k_equations: Vec::new(),
             parts: Vec::new(),
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.ions.push(ion);
         Ok(())
     }
@@ -897,7 +984,8 @@ impl Catalog {
     fn add_reagent_with(&mut self, r: Reagent, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![r.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Reagent, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Reagent, &names, &keys)?;
         let molar_mass = r.molar_mass_g_per_mol().or(meta.molar_mass);
         let summary = match molar_mass {
             Some(m) => format!("M = {m} g/mol"),
@@ -907,15 +995,21 @@ impl Catalog {
             .parts()
             .iter()
             .map(|(c, n)| {
-                let what = match c {
+                // "{n} × {what}", written in one string.
+                let mut s = n.to_string();
+                s.push_str(" × ");
+                match c {
                     Constituent::Form { protolyte, protons } => {
-                        format!("{} ({})", protolyte.form_name(*protons), protolyte.name())
+                        s.push_str(&self.form_name_of(protolyte, *protons));
+                        s.push_str(" (");
+                        s.push_str(protolyte.name());
+                        s.push(')');
                     }
-                    Constituent::Ion(i) => i.name().to_string(),
-                    Constituent::Proton => "H+".into(),
-                    Constituent::Hydroxide => "OH-".into(),
-                };
-                format!("{n} × {what}")
+                    Constituent::Ion(i) => s.push_str(i.name()),
+                    Constituent::Proton => s.push_str("H+"),
+                    Constituent::Hydroxide => s.push_str("OH-"),
+                }
+                s
             })
             .collect();
         let info = DataInfo {
@@ -937,9 +1031,8 @@ impl Catalog {
             dcp_j_per_mol_k: None,
             log_k_equations: Vec::new(),
             parts,
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.reagents.push(r);
         Ok(())
     }
@@ -953,17 +1046,26 @@ impl Catalog {
     fn add_complex_with(&mut self, c: Complex, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![c.name()];
         names.extend_from_slice(synonyms);
-        self.check_new(DataKind::Complex, &names)?;
+        let keys = keys_of(&names);
+        self.check_new(DataKind::Complex, &names, &keys)?;
         let parts = c
             .parts()
             .iter()
             .map(|(p, n)| {
-                let what = match p {
-                    ComplexPart::Base(f) => format!("{} ({})", f.form_name(0), f.name()),
-                    ComplexPart::Ion(i) => i.name().to_string(),
-                    ComplexPart::Proton => "H+".into(),
-                };
-                format!("{n} × {what}")
+                // "{n} × {what}", written in one string.
+                let mut s = n.to_string();
+                s.push_str(" × ");
+                match p {
+                    ComplexPart::Base(f) => {
+                        s.push_str(&self.form_name_of(f, 0));
+                        s.push_str(" (");
+                        s.push_str(f.name());
+                        s.push(')');
+                    }
+                    ComplexPart::Ion(i) => s.push_str(i.name()),
+                    ComplexPart::Proton => s.push_str("H+"),
+                }
+                s
             })
             .collect();
         let info = DataInfo {
@@ -985,9 +1087,8 @@ impl Catalog {
             dcp_j_per_mol_k: c.dcp_j_per_mol_k(),
             log_k_equations: vec![c.log_k_equation()],
             parts,
-            keys: Vec::new(),
         };
-        self.push_info(info, synonyms);
+        self.push_info(info, synonyms, keys);
         self.complexes.push(c);
         Ok(())
     }
@@ -1013,8 +1114,8 @@ impl Catalog {
         for info in &self.info {
             let idx = per_kind[info.kind as usize];
             per_kind[info.kind as usize] += 1;
-            for k in &info.keys {
-                self.index.entry(k.clone()).or_default()[info.kind as usize].get_or_insert(idx);
+            for k in info.keys() {
+                self.index.entry(k).or_default()[info.kind as usize].get_or_insert(idx);
             }
         }
     }
@@ -1107,8 +1208,7 @@ impl Catalog {
 
     /// Adds every entry of a parsed file (families and ions first, so that reagents and
     /// complexes may refer to them).
-    fn apply(&mut self, file: CatalogFile, loc: &Located) -> Result<()> {
-        let mut sources = self.sources.clone();
+    fn apply<S: Text>(&mut self, file: CatalogFile<S>, loc: &Located) -> Result<()> {
         for (k, v) in &file.sources {
             if v.trim().is_empty() {
                 return Err(loc.error(
@@ -1118,9 +1218,11 @@ impl Catalog {
                     format!("`{k}` is empty"),
                 ));
             }
-            sources.insert(k.clone(), v.clone());
         }
-        self.sources = sources;
+        // Room for every entry and name of the file at once (no regrowing entry by entry).
+        self.reserve(Room::of(&file));
+        self.sources
+            .extend(file.sources.into_iter().map(|(k, v)| (k.into(), v.into())));
         for e in &file.family {
             self.apply_family(e, loc)?;
         }
@@ -1145,10 +1247,10 @@ impl Catalog {
     /// The analytic log K(T) of an entry with one reaction (a complex, solid or gas, named by
     /// `kind`): refuses a `step`, reads the equation, and adds the equation's own citation to
     /// `source` (as "; `label`: ...") and its `from_memory` to `from_memory`.
-    fn one_reaction_equation(
+    fn one_reaction_equation<S: Text>(
         &self,
         entry: &Entry,
-        q: &EquationEntry,
+        q: &EquationEntry<S>,
         kind: &str,
         label: &str,
         source: &mut String,
@@ -1159,7 +1261,7 @@ impl Catalog {
         }
         let eq = read_equation(q).map_err(|err| entry.error("log_k_equation", err))?;
         if q.source.is_some() || q.cite.is_some() {
-            let text = self.citation(entry, &q.source, &q.cite)?;
+            let text = self.citation(entry, q.source.as_deref(), q.cite.as_deref())?;
             source.push_str(&format!("; {label}: {text}"));
         }
         *from_memory |= q.from_memory;
@@ -1167,7 +1269,7 @@ impl Catalog {
     }
 
     /// The citation of an entry: its `source`, or the `[sources]` text its `cite` names.
-    fn citation(&self, entry: &Entry, source: &Option<String>, cite: &Option<String>) -> Result<String> {
+    fn citation(&self, entry: &Entry, source: Option<&str>, cite: Option<&str>) -> Result<String> {
         match (source, cite) {
             (Some(_), Some(_)) => Err(entry.error("cite", "give either `source` or `cite`, not both")),
             (None, None) => Err(entry.error(
@@ -1186,15 +1288,15 @@ impl Catalog {
 
     /// Adds a definition through the `add_*` functions, or through the `replace_*` machinery
     /// when the file says `replace = true` (then an entry of that name must exist).
-    fn place(
+    fn place<S: Text>(
         &mut self,
         kind: DataKind,
         entry: &Entry,
         replace: bool,
-        synonyms: &[String],
+        synonyms: &[S],
         add: impl FnOnce(&mut Catalog, &[&str]) -> Result<()>,
     ) -> Result<()> {
-        let refs: Vec<&str> = synonyms.iter().map(String::as_str).collect();
+        let refs: Vec<&str> = synonyms.iter().map(|s| &**s).collect();
         let named = |e: Error| match e {
             Error::NameConflict {
                 name,
@@ -1235,15 +1337,15 @@ impl Catalog {
         Ok(())
     }
 
-    fn apply_family(&mut self, spanned: &Spanned<FamilyEntry>, loc: &Located) -> Result<()> {
+    fn apply_family<S: Text>(&mut self, spanned: &Spanned<FamilyEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Protolyte, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         for (k, pair) in e.steps.windows(2).enumerate() {
             let (a, b) = (pair[0].pka, pair[1].pka);
             if b < a {
                 return Err(loc.error(
-                    loc.line_of_item(&entry.span, "steps", k + 1),
+                    loc.line_of_item(&entry.span(), "steps", k + 1),
                     &entry.label(),
                     &format!("steps[{}].pka", k + 1),
                     format!("pKa values ascend, most protonated form first: {b} follows {a}"),
@@ -1268,7 +1370,7 @@ impl Catalog {
             p = p.with_formula(f);
         }
         if let Some(names) = &e.form_names {
-            let names: Vec<&str> = names.iter().map(String::as_str).collect();
+            let names: Vec<&str> = names.iter().map(|n| &**n).collect();
             p = p.with_form_names(&names).map_err(|err| match err {
                 Error::InconsistentDefinition { reason, .. } => entry.error("form_names", reason),
                 other => entry.wrap(other),
@@ -1318,14 +1420,14 @@ impl Catalog {
         let (mut source, mut from_memory) = (source, e.from_memory);
         for (k, s) in e.steps.iter().enumerate() {
             if s.source.is_some() || s.cite.is_some() {
-                let text = self.citation(&entry, &s.source, &s.cite)?;
+                let text = self.citation(&entry, s.source.as_deref(), s.cite.as_deref())?;
                 source.push_str(&format!("; step {} ΔH°/ΔCp°: {text}", k + 1));
                 from_memory |= s.from_memory;
             }
         }
         // The line of the i-th [[family.log_k_equation]] table of this entry, for errors.
         let eq_error = |i: usize, field: &str, message: String| {
-            let start = entry.span.start.min(loc.text.len());
+            let start = entry.span().start.min(loc.text.len());
             let rest = &loc.text[start..];
             let end = rest
                 .get(1..)
@@ -1361,7 +1463,7 @@ impl Catalog {
                 .with_log_k_equation(step - 1, eq)
                 .map_err(|err| eq_error(i, &field, err.to_string()))?;
             if q.source.is_some() || q.cite.is_some() {
-                let text = self.citation(&entry, &q.source, &q.cite)?;
+                let text = self.citation(&entry, q.source.as_deref(), q.cite.as_deref())?;
                 source.push_str(&format!("; log K(T) equation of step {step}: {text}"));
             }
             from_memory |= q.from_memory;
@@ -1378,10 +1480,10 @@ impl Catalog {
         })
     }
 
-    fn apply_ion(&mut self, spanned: &Spanned<IonEntry>, loc: &Located) -> Result<()> {
+    fn apply_ion<S: Text>(&mut self, spanned: &Spanned<IonEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Ion, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let mut ion = Ion::new(&e.name, e.charge).map_err(|err| entry.wrap(err))?;
         if let Some(f) = &e.formula {
             ion = ion.with_formula(f);
@@ -1400,10 +1502,10 @@ impl Catalog {
         })
     }
 
-    fn apply_reagent(&mut self, spanned: &Spanned<ReagentEntry>, loc: &Located) -> Result<()> {
+    fn apply_reagent<S: Text>(&mut self, spanned: &Spanned<ReagentEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Reagent, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let parts = read_parts(
             &e.parts,
             loc,
@@ -1452,10 +1554,10 @@ impl Catalog {
         })
     }
 
-    fn apply_complex(&mut self, spanned: &Spanned<ComplexEntry>, loc: &Located) -> Result<()> {
+    fn apply_complex<S: Text>(&mut self, spanned: &Spanned<ComplexEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::new(loc, spanned.span(), DataKind::Complex, &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let parts = read_parts(
             &e.parts,
             loc,
@@ -1512,8 +1614,42 @@ impl Catalog {
     }
 }
 
+/// How many entries and names a file adds: (names of families, ions, reagents and complexes;
+/// their entries; names of solids and gases).
+#[derive(Clone, Copy, Default)]
+struct Room(usize, usize, usize);
+
+impl Room {
+    fn of<S>(file: &CatalogFile<S>) -> Self {
+        fn names<T>(entries: &[Spanned<T>], synonyms: impl Fn(&T) -> usize) -> usize {
+            entries.iter().map(|e| 1 + synonyms(e.get_ref())).sum()
+        }
+        Room(
+            names(&file.family, |e| e.synonyms.len())
+                + names(&file.ion, |e| e.synonyms.len())
+                + names(&file.reagent, |e| e.synonyms.len())
+                + names(&file.complex, |e| e.synonyms.len()),
+            file.family.len() + file.ion.len() + file.reagent.len() + file.complex.len(),
+            names(&file.solid, |e| e.synonyms.len()) + names(&file.gas, |e| e.synonyms.len()),
+        )
+    }
+
+    fn add(self, other: Room) -> Self {
+        Room(self.0 + other.0, self.1 + other.1, self.2 + other.2)
+    }
+}
+
+impl Catalog {
+    /// Makes room for `room` more names and entries (a no-op where there is room already).
+    fn reserve(&mut self, room: Room) {
+        self.index.reserve(room.0);
+        self.info.reserve(room.1);
+        self.phase_index.reserve(room.2);
+    }
+}
+
 /// A log K(T) equation as read from a file.
-fn read_equation(q: &EquationEntry) -> Result<LogKEquation> {
+fn read_equation<S>(q: &EquationEntry<S>) -> Result<LogKEquation> {
     LogKEquation::new(
         q.coefficients,
         ValidityRange::celsius(q.range_celsius[0], q.range_celsius[1])?,
@@ -1523,7 +1659,9 @@ fn read_equation(q: &EquationEntry) -> Result<LogKEquation> {
 /// An entry being read: where it is, for errors.
 struct Entry<'a> {
     loc: &'a Located<'a>,
-    span: std::ops::Range<usize>,
+    /// The span of the entry's `[[table]]` header (the entry's whole text is found from it
+    /// only when an error needs a line: [`Entry::span`]).
+    header: std::ops::Range<usize>,
     kind: DataKind,
     /// The table name shown in messages ("family", ..., "solid", "gas").
     table: &'static str,
@@ -1531,11 +1669,10 @@ struct Entry<'a> {
 }
 
 impl<'a> Entry<'a> {
-    fn new(loc: &'a Located<'a>, span: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
-        let span = loc.entry_range(span);
+    fn new(loc: &'a Located<'a>, header: std::ops::Range<usize>, kind: DataKind, name: &'a str) -> Self {
         Entry {
             loc,
-            span,
+            header,
             kind,
             table: kind.table(),
             name,
@@ -1549,13 +1686,18 @@ impl<'a> Entry<'a> {
         e
     }
 
+    /// The text range of the whole entry, for the line of a field.
+    fn span(&self) -> std::ops::Range<usize> {
+        self.loc.entry_range(self.header.clone())
+    }
+
     fn label(&self) -> String {
         format!("{} `{}`", self.table, self.name)
     }
 
     fn error(&self, field: &str, message: impl std::fmt::Display) -> Error {
         let key = field.split(['[', '.']).next().unwrap_or(field);
-        let line = self.loc.line_of_key(&self.span, key);
+        let line = self.loc.line_of_key(&self.span(), key);
         self.loc.error(line, &self.label(), field, message)
     }
 
@@ -1599,7 +1741,7 @@ struct PartAt<'a> {
 impl PartAt<'_> {
     fn error(&self, key: &str, message: impl std::fmt::Display) -> Error {
         self.loc.error(
-            self.loc.line_of_item(&self.entry.span, "parts", self.k),
+            self.loc.line_of_item(&self.entry.span(), "parts", self.k),
             &self.entry.label(),
             &format!("parts[{}].{key}", self.k),
             message,
@@ -1616,7 +1758,7 @@ enum PartRef<'a> {
 }
 
 /// Which part this is; exactly one of `family`, `base`, `ion`, `proton`, `hydroxide`.
-fn read_part<'a>(p: &'a PartEntry, at: &PartAt) -> Result<PartRef<'a>> {
+fn read_part<'a, S: Text>(p: &'a PartEntry<S>, at: &PartAt) -> Result<PartRef<'a>> {
     let given = [
         p.family.is_some(),
         p.base.is_some(),
@@ -1655,8 +1797,8 @@ fn read_part<'a>(p: &'a PartEntry, at: &PartAt) -> Result<PartRef<'a>> {
 /// The parts of a reagent or complex, in order: for each, which part it is, turned into the
 /// definition's own part by `kind` (which refuses the kinds the definition does not take),
 /// then its count, checked by `count`. The first error met is returned.
-fn read_parts<C, N>(
-    parts: &[PartEntry],
+fn read_parts<C, N, S: Text>(
+    parts: &[PartEntry<S>],
     loc: &Located,
     entry: &Entry,
     mut kind: impl FnMut(PartRef<'_>, &PartAt) -> Result<C>,
@@ -1673,7 +1815,7 @@ fn read_parts<C, N>(
 }
 
 /// The count of a part: `count` (default 1), or the value of `proton` / `hydroxide`.
-fn read_count(p: &PartEntry, at: &PartAt) -> Result<i32> {
+fn read_count<S>(p: &PartEntry<S>, at: &PartAt) -> Result<i32> {
     let n = p.proton.or(p.hydroxide).or(p.count).unwrap_or(1);
     if n == 0 {
         return Err(at.error("count", "a count of 0"));
@@ -1683,7 +1825,148 @@ fn read_count(p: &PartEntry, at: &PartAt) -> Result<i32> {
 
 #[cfg(test)]
 mod tests {
-    use super::{normalized, plain_lowercase};
+    use super::format::{self, BUILTIN_PATHS, PackedBuiltin, PackedFile};
+    use super::{BUILTIN_FILES, BUILTIN_PACKED, Catalog, normalized, plain_lowercase};
+
+    /// The compact form the build script embedded is, file by file, what the TOML reader
+    /// gives for the embedded text now: spans included, so error lines cannot drift either.
+    #[test]
+    fn embedded_compact_form_is_a_fresh_parse_of_the_data_files() {
+        let packed: PackedBuiltin = postcard::from_bytes(BUILTIN_PACKED).expect("decodes");
+        assert_eq!(packed.len(), BUILTIN_FILES.len());
+        for (((name, text), path), file) in BUILTIN_FILES.iter().zip(BUILTIN_PATHS).zip(packed) {
+            assert_eq!(
+                *name, path,
+                "the library and the build script embed the same files in one order"
+            );
+            let fresh = format::parse(text).map(PackedFile::pack);
+            assert!(fresh.is_ok(), "{name} parses");
+            assert!(
+                fresh == file,
+                "{name}: the embedded compact form differs from a fresh parse"
+            );
+        }
+    }
+
+    /// The built-in catalogue read through the compact form (`read_builtin`) is the catalogue
+    /// that the users' path (`load_toml_str`, TOML parsed at run time) builds from the same
+    /// files: every definition, description, index key, citation, solid and gas.
+    #[test]
+    fn fast_path_and_user_file_path_build_the_same_catalogue() {
+        let fast = Catalog::read_builtin();
+        assert!(fast.load_problems().is_empty(), "{:?}", fast.load_problems());
+        let mut slow = Catalog::empty();
+        for (name, text) in BUILTIN_FILES {
+            slow.load_toml_str(text, &format!("built-in {name}"))
+                .expect("loads as a user's file");
+        }
+        assert!(!fast.info.is_empty() && !fast.solids.is_empty() && !fast.gases.is_empty());
+        assert_eq!(fast.protolytes, slow.protolytes);
+        assert_eq!(fast.ions, slow.ions);
+        assert_eq!(fast.reagents, slow.reagents);
+        assert_eq!(fast.complexes, slow.complexes);
+        assert_eq!(fast.info, slow.info);
+        assert_eq!(fast.index, slow.index);
+        assert_eq!(fast.sources, slow.sources);
+        assert_eq!(fast.solids, slow.solids);
+        assert_eq!(fast.gases, slow.gases);
+        assert_eq!(fast.solid_entries, slow.solid_entries);
+        assert_eq!(fast.gas_entries, slow.gas_entries);
+        assert_eq!(fast.phase_index, slow.phase_index);
+        assert_eq!(fast.replaced, slow.replaced);
+    }
+
+    /// Each reagent's and complex's parts in words, with every form named as the family's
+    /// own `form_name` names it (the descriptions borrow the names given when the family was
+    /// added; a family of the same name that names its forms otherwise gets its own names).
+    #[test]
+    fn part_texts_name_forms_as_their_families_do() {
+        use crate::{ComplexPart, Constituent, Protolyte, Reagent};
+        fn reagent_text(r: &Reagent) -> Vec<String> {
+            (r.parts().iter())
+                .map(|(c, n)| match c {
+                    Constituent::Form { protolyte, protons } => {
+                        format!("{n} × {} ({})", protolyte.form_name(*protons), protolyte.name())
+                    }
+                    Constituent::Ion(i) => format!("{n} × {}", i.name()),
+                    Constituent::Proton => format!("{n} × H+"),
+                    Constituent::Hydroxide => format!("{n} × OH-"),
+                })
+                .collect()
+        }
+        let mut cat = Catalog::read_builtin();
+        let reagents = cat.info.iter().filter(|i| i.kind == super::DataKind::Reagent);
+        assert_eq!(reagents.clone().count(), cat.reagents.len());
+        for (r, info) in cat.reagents.iter().zip(reagents) {
+            assert_eq!(info.parts, reagent_text(r), "{}", r.name());
+        }
+        let complexes = cat.info.iter().filter(|i| i.kind == super::DataKind::Complex);
+        for (c, info) in cat.complexes.iter().zip(complexes) {
+            let want: Vec<String> = (c.parts().iter())
+                .map(|(p, n)| match p {
+                    ComplexPart::Base(f) => format!("{n} × {} ({})", f.form_name(0), f.name()),
+                    ComplexPart::Ion(i) => format!("{n} × {}", i.name()),
+                    ComplexPart::Proton => format!("{n} × H+"),
+                })
+                .collect();
+            assert_eq!(info.parts, want, "{}", c.name());
+        }
+        // A reagent built in code on a family that shares the built-in acetate's name but not
+        // its formula: its forms are named from its own formula.
+        let own = Protolyte::new("acetate", &[4.0], 0).expect("family").with_formula("HQ");
+        assert_ne!(
+            own.form_name(0),
+            cat.protolyte("acetate").expect("built in").form_name(0)
+        );
+        let sodium = cat.ion("sodium").expect("built in");
+        let r = Reagent::new(
+            "sodium Q (test)",
+            None,
+            vec![
+                (
+                    Constituent::Form {
+                        protolyte: own,
+                        protons: 0,
+                    },
+                    1,
+                ),
+                (Constituent::Ion(sodium), 1),
+            ],
+        )
+        .expect("reagent");
+        cat.add_reagent(r.clone(), &[]).expect("added");
+        let info = cat.info(super::DataKind::Reagent, "sodium Q (test)").expect("found");
+        assert_eq!(info.parts, reagent_text(&r));
+        assert!(info.parts[0].starts_with("1 × Q-"), "{:?}", info.parts);
+    }
+
+    /// A fault in a built-in file is reported as a user's file reports it: the same message,
+    /// naming the file, the line, the entry and the field.
+    #[test]
+    fn a_fault_reads_the_same_on_both_paths() {
+        let text = "format = \"protolyte-catalog/1\"\n[[family]]\nname = \"y\"\ncharge_most_protonated = 0\n\
+                    steps = [{ pka = 7.0 }, { pka = 3.0 }]\nsource = \"x\"\n";
+        let slow = Catalog::empty().load_toml_str(text, "f.toml").unwrap_err();
+        let file = PackedFile::pack(format::parse(text).expect("parses")).unpack();
+        let loc = super::Located { file: "f.toml", text };
+        let fast = Catalog::empty().load_parsed(file, &loc, false).unwrap_err();
+        assert_eq!(fast.to_string(), slow.to_string());
+        assert!(
+            slow.to_string()
+                .starts_with("f.toml:5: family `y`, field `steps[1].pka`"),
+            "{slow}"
+        );
+        // A syntax error: the same line and message.
+        let bad = "format = \"protolyte-catalog/1\"\n[[family]]\nname = \n";
+        let slow = Catalog::empty().load_toml_str(bad, "g.toml").unwrap_err();
+        let loc = super::Located {
+            file: "g.toml",
+            text: bad,
+        };
+        let fast = loc.parse_error(format::parse(bad).expect_err("does not parse"));
+        assert_eq!(fast.to_string(), slow.to_string());
+        assert!(slow.to_string().starts_with("g.toml:3:"), "{slow}");
+    }
 
     /// The slow path alone, as the reference for the shortcut (common practice: a fast path
     /// must give what the general one gives).

@@ -4,17 +4,19 @@
 
 use toml::Spanned;
 
-use super::format::{GasEntry, Located, SolidEntry};
-use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, normalize, normalized, read_parts};
+use super::format::{GasEntry, SolidEntry, Text};
+use super::located::Located;
+use super::{Catalog, DataKind, Entry, Meta, PartRef, PhaseEntry, keys_of, normalized, read_parts};
 use crate::complex::ComplexPart;
 use crate::error::{Error, Result};
 use crate::phase::{Gas, Solid};
 
 impl Catalog {
     /// Refuses a name already held by a solid or a gas.
-    pub(super) fn check_phase_names(&self, kind: &'static str, names: &[&str]) -> Result<()> {
-        for n in names {
-            if let Some(&(gas, idx)) = self.phase_index.get(normalized(n).as_ref()) {
+    /// Refuses a name already held by a solid or a gas (`keys`: `names` normalised).
+    pub(super) fn check_phase_names(&self, kind: &'static str, names: &[&str], keys: &[String]) -> Result<()> {
+        for (n, key) in names.iter().zip(keys) {
+            if let Some(&(gas, idx)) = self.phase_index.get(key.as_str()) {
                 let (existing_kind, existing_name) = if gas {
                     ("gas", self.gas_entries[idx].name.clone())
                 } else {
@@ -32,9 +34,9 @@ impl Catalog {
     }
 
     /// Refuses a solid's or gas's name held by any entry of the shared namespace.
-    fn check_new_phase(&self, kind: &'static str, names: &[&str]) -> Result<()> {
-        self.check_phase_names(kind, names)?;
-        if let Some((name, k, idx)) = self.conflicts(DataKind::Complex, names).into_iter().next() {
+    fn check_new_phase(&self, kind: &'static str, names: &[&str], keys: &[String]) -> Result<()> {
+        self.check_phase_names(kind, names, keys)?;
+        if let Some((name, k, idx)) = self.conflicts(DataKind::Complex, names, keys).into_iter().next() {
             return Err(Error::NameConflict {
                 name,
                 kind,
@@ -138,22 +140,23 @@ impl Catalog {
         self.add_gas_with(gas, synonyms, meta)
     }
 
-    fn add_phase_names(&mut self, gas: bool, idx: usize, name: &str, synonyms: &[&str]) {
-        for n in std::iter::once(name).chain(synonyms.iter().copied()) {
-            self.phase_index.entry(normalize(n)).or_insert((gas, idx));
+    fn add_phase_names(&mut self, gas: bool, idx: usize, keys: Vec<String>) {
+        for k in keys {
+            self.phase_index.entry(k).or_insert((gas, idx));
         }
     }
 
     fn add_solid_with(&mut self, solid: Solid, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![solid.name()];
         names.extend_from_slice(synonyms);
-        self.check_new_phase("solid", &names)?;
+        let keys = keys_of(&names);
+        self.check_new_phase("solid", &names, &keys)?;
         let idx = self.solids.len();
-        self.add_phase_names(false, idx, solid.name(), synonyms);
+        self.add_phase_names(false, idx, keys);
         let parts: Vec<String> = solid
             .parts()
             .iter()
-            .map(|(p, n)| format!("{n} × {}", part_name(p)))
+            .map(|(p, n)| format!("{n} × {}", self.part_name(p)))
             .collect();
         self.solid_entries.push(PhaseEntry {
             kind: "solid",
@@ -176,9 +179,10 @@ impl Catalog {
     fn add_gas_with(&mut self, gas: Gas, synonyms: &[&str], meta: Meta) -> Result<()> {
         let mut names = vec![gas.name()];
         names.extend_from_slice(synonyms);
-        self.check_new_phase("gas", &names)?;
+        let keys = keys_of(&names);
+        self.check_new_phase("gas", &names, &keys)?;
         let idx = self.gases.len();
-        self.add_phase_names(true, idx, gas.name(), synonyms);
+        self.add_phase_names(true, idx, keys);
         self.gas_entries.push(PhaseEntry {
             kind: "gas",
             name: gas.name().to_string(),
@@ -187,7 +191,7 @@ impl Catalog {
             summary: format!(
                 "log K_H {} mol/(kg·bar) (25 °C), dissolves to {}",
                 gas.log10_kh(),
-                gas.family().form_name(gas.protons())
+                self.form_name_of(gas.family(), gas.protons())
             ),
             source: meta.source,
             from_memory: meta.from_memory,
@@ -195,6 +199,15 @@ impl Catalog {
         });
         self.gases.push(gas);
         Ok(())
+    }
+
+    /// A solid's part in words: the form or ion's display name.
+    fn part_name<'s>(&'s self, p: &'s ComplexPart) -> std::borrow::Cow<'s, str> {
+        match p {
+            ComplexPart::Base(f) => self.form_name_of(f, 0),
+            ComplexPart::Ion(i) => std::borrow::Cow::Borrowed(i.display_name()),
+            ComplexPart::Proton => std::borrow::Cow::Borrowed("H+"),
+        }
     }
 
     /// Rebuilds the solids and gases built on a replaced family or ion.
@@ -232,10 +245,10 @@ impl Catalog {
         Ok(())
     }
 
-    pub(super) fn apply_solid(&mut self, spanned: &Spanned<SolidEntry>, loc: &Located) -> Result<()> {
+    pub(super) fn apply_solid<S: Text>(&mut self, spanned: &Spanned<SolidEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::phase(loc, spanned.span(), "solid", &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let parts = read_parts(
             &e.parts,
             loc,
@@ -289,15 +302,15 @@ impl Catalog {
             origin: loc.file.to_string(),
             molar_mass: None,
         };
-        let refs: Vec<&str> = e.synonyms.iter().map(String::as_str).collect();
+        let refs: Vec<&str> = e.synonyms.iter().map(|s| &**s).collect();
         self.add_solid_with(s, &refs, meta)
             .map_err(|err| phase_conflict(&entry, err))
     }
 
-    pub(super) fn apply_gas(&mut self, spanned: &Spanned<GasEntry>, loc: &Located) -> Result<()> {
+    pub(super) fn apply_gas<S: Text>(&mut self, spanned: &Spanned<GasEntry<S>>, loc: &Located) -> Result<()> {
         let e = spanned.get_ref();
         let entry = Entry::phase(loc, spanned.span(), "gas", &e.name);
-        let source = self.citation(&entry, &e.source, &e.cite)?;
+        let source = self.citation(&entry, e.source.as_deref(), e.cite.as_deref())?;
         let (Some(family), Some(protons)) = (&e.dissolves_to.family, e.dissolves_to.protons) else {
             return Err(entry.error(
                 "dissolves_to",
@@ -337,7 +350,7 @@ impl Catalog {
             origin: loc.file.to_string(),
             molar_mass: None,
         };
-        let refs: Vec<&str> = e.synonyms.iter().map(String::as_str).collect();
+        let refs: Vec<&str> = e.synonyms.iter().map(|s| &**s).collect();
         self.add_gas_with(g, &refs, meta)
             .map_err(|err| phase_conflict(&entry, err))
     }
@@ -365,13 +378,5 @@ fn part_is(p: &ComplexPart, name: &str) -> bool {
         ComplexPart::Base(b) => b.name() == name,
         ComplexPart::Ion(i) => i.name() == name,
         ComplexPart::Proton => false,
-    }
-}
-
-fn part_name(p: &ComplexPart) -> String {
-    match p {
-        ComplexPart::Base(f) => f.form_name(0),
-        ComplexPart::Ion(i) => i.display_name().to_string(),
-        ComplexPart::Proton => "H+".into(),
     }
 }
