@@ -21,6 +21,9 @@ fn bench(c: &mut Criterion) {
     c.bench_function("titration/1000_points", |b| {
         b.iter(|| black_box(&t).curve(black_box(&volumes)).expect("curve"))
     });
+    c.bench_function("titration/1000_points_lean", |b| {
+        b.iter(|| black_box(&t).ph_curve(black_box(&volumes)).expect("curve"))
+    });
     let ideal = Conditions::new(Temperature::celsius(25.0), ActivityModel::Ideal);
     let ti = Titration::new(&acid, Volume::milliliters(25.0), &base, &ideal).expect("titration");
     c.bench_function("titration/1000_points_ideal", |b| {

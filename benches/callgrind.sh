@@ -15,9 +15,9 @@ bin=$(cargo bench --bench icount --no-run --message-format=json 2>/dev/null |
 [ -x "$bin" ] || { echo "could not build benches/icount.rs" >&2; exit 1; }
 out=${KEEP:-$(mktemp -d)}
 mkdir -p "$out"
-cases=("monoprotic_davies 200" "three_families_davies 200" "three_families_davies_workspace 200"
+cases=("monoprotic_davies 200" "three_families_davies 200" "three_families_davies_records 200" "three_families_davies_workspace 200"
     "eight_families_complex_edh 50"
-    "titration_1000_davies 2" "lookup_synonym 200" "general_three_families_davies 50"
+    "titration_1000_davies 2" "titration_1000_davies_lean 2" "lookup_synonym 200" "general_three_families_davies 50"
     "read_builtin_catalog 3")
 if [ $# -ge 1 ]; then cases=("$1 ${2:-100}"); fi
 printf '%-32s %16s %12s\n' case instructions/rep allocs/rep

@@ -6,8 +6,8 @@
 //! (a counting global allocator).
 //!
 //! Usage: `icount CASE REPETITIONS` with CASE one of `monoprotic_davies`,
-//! `three_families_davies`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
-//! `lookup_synonym`, `general_three_families_davies`, `read_builtin_catalog` (the built-in
+//! `three_families_davies`, `three_families_davies_records`, `three_families_davies_workspace`, `eight_families_complex_edh`, `titration_1000_davies`,
+//! `titration_1000_davies_lean`, `lookup_synonym`, `general_three_families_davies`, `read_builtin_catalog` (the built-in
 //! catalogue read from its embedded files, as `Catalog::builtin` does once). Run natively it only checks that the case works.
 
 use protolyte::analysis::Titration;
@@ -145,12 +145,14 @@ fn main() {
     run(&args[1], n);
 }
 
-const CASES: [&str; 8] = [
+const CASES: [&str; 10] = [
     "monoprotic_davies",
     "three_families_davies",
+    "three_families_davies_records",
     "three_families_davies_workspace",
     "eight_families_complex_edh",
     "titration_1000_davies",
+    "titration_1000_davies_lean",
     "lookup_synonym",
     "general_three_families_davies",
     "read_builtin_catalog",
@@ -165,6 +167,17 @@ fn run(case: &str, n: usize) {
         "three_families_davies" => {
             let s = system(&THREE, ActivityModel::Davies);
             measured(n, || black_box(&s).solve().expect("solve").ph())
+        }
+        "three_families_davies_records" => {
+            // The full solve with every record read (species, families, residuals), which the
+            // result assembles on first access.
+            let s = system(&THREE, ActivityModel::Davies);
+            measured(n, || {
+                let eq = black_box(&s).solve().expect("solve");
+                let species: f64 = eq.species().iter().map(|x| x.activity).sum();
+                let fractions: f64 = eq.families().iter().map(|f| f.fractions[0]).sum();
+                eq.ph() + species + fractions + eq.residuals().max_relative()
+            })
         }
         "three_families_davies_workspace" => {
             // The same solve through `Solver::solve_ph` in a reused workspace, each repetition
@@ -186,7 +199,7 @@ fn run(case: &str, n: usize) {
             let s = eight_families();
             measured(n, || black_box(&s).solve().expect("solve").ph())
         }
-        "titration_1000_davies" => {
+        "titration_1000_davies" | "titration_1000_davies_lean" => {
             let cat = Catalog::builtin();
             let mut acid = Recipe::new();
             acid.add(&cat.reagent("acetic acid").expect("reagent"), Amount::molar(0.1))
@@ -198,10 +211,18 @@ fn run(case: &str, n: usize) {
             let volumes: Vec<Volume> = (0..1000)
                 .map(|i| Volume::milliliters(50.0 * i as f64 / 999.0))
                 .collect();
-            measured(n, || {
-                let c = black_box(&t).curve(black_box(&volumes)).expect("curve");
-                c.last().map_or(0.0, |p| p.ph)
-            })
+            if case == "titration_1000_davies_lean" {
+                // The lean curve: pH, dpH/dv and I per point, no `Equilibrium` per point.
+                measured(n, || {
+                    let c = black_box(&t).ph_curve(black_box(&volumes)).expect("curve");
+                    c.last().map_or(0.0, |p| p.ph)
+                })
+            } else {
+                measured(n, || {
+                    let c = black_box(&t).curve(black_box(&volumes)).expect("curve");
+                    c.last().map_or(0.0, |p| p.ph)
+                })
+            }
         }
         "lookup_synonym" => {
             let cat = Catalog::builtin();

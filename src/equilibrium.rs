@@ -1,7 +1,7 @@
 //! The result of a solve: pH, every species with its activity, family distributions,
 //! residuals and warnings.
 
-use std::sync::Arc;
+use std::sync::{Arc, OnceLock};
 
 use crate::activity::sit::Interactions;
 use crate::activity::{ActivityModel, PhConvention};
@@ -88,34 +88,6 @@ impl Residuals {
             .max(self.ionic_strength_relative.abs())
             .max(self.activity_coefficients_ln.abs())
     }
-
-    /// The equation with the largest relative residual and that residual; the equation's
-    /// name is only built by [`Residuals::equation_name`] (when a warning needs it).
-    fn worst(&self) -> (Equation, f64) {
-        let mut worst = (Equation::Charge, self.charge_relative.abs());
-        for (k, (_, v)) in self.mass_relative.iter().enumerate() {
-            if v.abs() > worst.1 {
-                worst = (Equation::Mass(k), v.abs());
-            }
-        }
-        if self.ionic_strength_relative.abs() > worst.1 {
-            worst = (Equation::IonicStrength, self.ionic_strength_relative.abs());
-        }
-        if self.activity_coefficients_ln.abs() > worst.1 {
-            worst = (Equation::ActivityCoefficients, self.activity_coefficients_ln.abs());
-        }
-        worst
-    }
-
-    /// The name of an equation, as the residual warning gives it.
-    fn equation_name(&self, equation: Equation) -> String {
-        match equation {
-            Equation::Charge => "charge balance".to_string(),
-            Equation::Mass(k) => format!("mass balance of {}", self.mass_relative[k].0),
-            Equation::IonicStrength => "ionic-strength equation".into(),
-            Equation::ActivityCoefficients => "activity-coefficient iteration".into(),
-        }
-    }
 }
 
 /// One of the equations whose residual is reported.
@@ -127,7 +99,26 @@ enum Equation {
     ActivityCoefficients,
 }
 
+impl Equation {
+    /// The equation's name, as the residual warning gives it.
+    fn name(self, components: &[Arc<str>]) -> String {
+        match self {
+            Equation::Charge => "charge balance".to_string(),
+            Equation::Mass(c) => format!("mass balance of {}", components[c]),
+            Equation::IonicStrength => "ionic-strength equation".into(),
+            Equation::ActivityCoefficients => "activity-coefficient iteration".into(),
+        }
+    }
+}
+
 /// The equilibrium state of a solution.
+///
+/// A solve keeps the species molalities and activity coefficients and the numbers derived
+/// from them (family fractions, balances); the per-species and per-family records
+/// ([`species`](Self::species), [`families`](Self::families), [`free_molal`](Self::free_molal),
+/// [`residuals`](Self::residuals), [`dissolved_totals`](Self::dissolved_totals)) are
+/// assembled from them on first access and kept, so a caller that reads only the pH does not
+/// pay for them.
 ///
 /// # Example
 ///
@@ -144,7 +135,7 @@ enum Equation {
 /// assert!(eq.residuals().max_relative() < 1e-10);
 /// # Ok::<(), protolyte::Error>(())
 /// ```
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Clone)]
 pub struct Equilibrium {
     ph: f64,
     p_h_molal: f64,
@@ -153,18 +144,93 @@ pub struct Equilibrium {
     temperature: Temperature,
     model: ActivityModel,
     ph_convention: PhConvention,
-    species: Vec<SpeciesState>,
-    families: Vec<FamilyState>,
-    free_molal: Vec<(Arc<str>, f64)>,
-    residuals: Residuals,
+    /// The names and shapes shared with the system (one reference count per result).
+    layout: Arc<ResultLayout>,
+    water_density: f64,
+    /// Every number of the result in one buffer: the molality of each species, then ln γ of
+    /// each species, then the derived numbers (the
+    /// fractions of every family's forms, family after family as
+    /// [`ResultLayout::family_start`]; per family (total, complexed fraction, mean bound
+    /// protons); per component (active: 1 or 0, dissolved total, free molality, relative mass
+    /// residual)), then the unknowns (ln a of each component).
+    data: Vec<f64>,
+    charge_molal: f64,
+    charge_relative: f64,
+    ionic_strength_relative: f64,
+    activity_coefficients_ln: f64,
     iterations: usize,
     path: SolverPath,
     warnings: Vec<Warning>,
-    unknowns: Vec<f64>,
     ln_i: f64,
-    /// What the result says about the other phases and the measured quantities (boxed: it
-    /// keeps the result small where results are moved about in bulk).
-    phases: Box<PhaseReport>,
+    /// What the result says about the other phases and the measured quantities.
+    phases: PhaseReport,
+    /// The records assembled from the numbers on first access.
+    records: OnceLock<Box<Records>>,
+}
+
+/// The names a result shares with its system: made once when the system is compiled, and
+/// referenced (not copied) by every result.
+#[derive(Debug, PartialEq)]
+pub(crate) struct ResultLayout {
+    pub(crate) species_names: Vec<Arc<str>>,
+    pub(crate) species_charges: Vec<i32>,
+    pub(crate) family_names: Vec<Arc<str>>,
+    /// Where each family's fractions start in a result's numbers (one entry more than there
+    /// are families: the last is the total count of forms).
+    pub(crate) family_start: Vec<usize>,
+    pub(crate) component_names: Vec<Arc<str>>,
+}
+
+impl ResultLayout {
+    pub(crate) fn new(
+        species: &[crate::system::Species],
+        families: &[crate::system::Family],
+        components: &[crate::system::Component],
+    ) -> Self {
+        let mut family_start = Vec::with_capacity(families.len() + 1);
+        let mut at = 0;
+        family_start.push(0);
+        for f in families {
+            at += f.forms.len();
+            family_start.push(at);
+        }
+        ResultLayout {
+            species_names: species.iter().map(|s| s.name.clone()).collect(),
+            species_charges: species.iter().map(|s| s.charge).collect(),
+            family_names: families.iter().map(|f| Arc::from(f.protolyte.name())).collect(),
+            family_start,
+            component_names: components.iter().map(|c| c.name.clone()).collect(),
+        }
+    }
+
+    fn families(&self) -> usize {
+        self.family_start.len() - 1
+    }
+
+    /// Offset of the per-family numbers.
+    fn family_numbers(&self) -> usize {
+        self.family_start[self.families()]
+    }
+
+    /// Offset of the per-component numbers.
+    fn component_numbers(&self) -> usize {
+        self.family_numbers() + 3 * self.families()
+    }
+
+    /// The count of derived numbers.
+    fn numbers_len(&self) -> usize {
+        self.component_numbers() + 4 * self.component_names.len()
+    }
+}
+
+/// The records of a result, assembled on first access.
+#[derive(Debug, Clone, PartialEq)]
+struct Records {
+    species: Vec<SpeciesState>,
+    families: Vec<FamilyState>,
+    free_molal: Vec<(Arc<str>, f64)>,
+    dissolved_totals: Vec<(Arc<str>, f64)>,
+    residuals: Residuals,
 }
 
 /// The phase part of a result.
@@ -174,7 +240,6 @@ struct PhaseReport {
     gases: Vec<GasState>,
     proton_uptake_molal: f64,
     charge_balance_ion: Option<(Arc<str>, f64)>,
-    dissolved_totals: Vec<(Arc<str>, f64)>,
     total_alkalinity_molal: f64,
     carbonate_alkalinity_molal: f64,
     dic_molal: f64,
@@ -201,22 +266,6 @@ impl Equilibrium {
         let ideal = sys.model == ActivityModel::Ideal;
         let i = if ideal { ionic } else { point.ln_i.exp() };
         let rho = sys.water_density;
-        let species: Vec<SpeciesState> = sys
-            .species
-            .iter()
-            .enumerate()
-            .map(|(s, sp)| {
-                let g = ev.ln_gamma[s].exp();
-                SpeciesState {
-                    name: sp.name.clone(),
-                    charge: sp.charge,
-                    molal: ev.conc[s],
-                    molar: ev.conc[s] * rho,
-                    gamma: g,
-                    activity: g * ev.conc[s],
-                }
-            })
-            .collect();
         let p_h_activity = -point.y[0] / LN10;
         // The solver's pH range (both paths bracket ln a(H⁺) there): a solution outside it
         // is refused rather than returned from one path and not the other.
@@ -228,18 +277,34 @@ impl Equilibrium {
             });
         }
         let sit_chloride = if sys.ph_convention == PhConvention::BatesGuggenheim && sys.model == ActivityModel::Sit {
-            Interactions::trace_log10_term("Cl-", -1, species.iter().map(|s| (&*s.name, s.charge, s.molal)))
+            Interactions::trace_log10_term(
+                "Cl-",
+                -1,
+                sys.species
+                    .iter()
+                    .zip(&ev.conc)
+                    .map(|(sp, &m)| (&*sp.name, sp.charge, m)),
+            )
         } else {
             0.0
         };
         let ph =
             p_h_activity + crate::activity::ph_convention_shift(sys.ph_convention, sys.model, i, &sys.dh, sit_chloride);
-        let h = species[0].molal;
-        let oh = species[1].activity;
+        let h = ev.conc[0];
+        let oh = ev.ln_gamma[1].exp() * ev.conc[1];
         let nc = sys.components.len();
-        // One pass over the species: the aqueous total of every component, total alkalinity
-        // (proton condition at the reference level of each family) and carbonate alkalinity.
-        let mut aqueous = vec![0.0; nc];
+        let layout = &sys.layout;
+        let (fam_at, comp_at) = (layout.family_numbers(), layout.component_numbers());
+        let ns = sys.species.len();
+        let mut data = Vec::with_capacity(2 * ns + layout.numbers_len() + nc);
+        data.extend_from_slice(&ev.conc);
+        data.extend_from_slice(&ev.ln_gamma);
+        data.resize(2 * ns + layout.numbers_len(), 0.0);
+        let numbers = &mut data[2 * ns..];
+        // One pass over the species: the aqueous total of every component (into the
+        // per-component numbers), total alkalinity (proton condition at the reference level
+        // of each family) and carbonate alkalinity.
+        let aqueous = |c: usize| comp_at + 4 * c + 1;
         let (mut alkalinity, mut carbonate_alkalinity) = (0.0, 0.0);
         // Σ ν·m over the complexes (coupling species) of each component, summed in species
         // order, for the mass balances below.
@@ -248,7 +313,7 @@ impl Equilibrium {
             let (mut level, mut nu_h, mut nu_carb) = (0.0, 0.0, 0.0);
             let coupling = sys.coupling[s];
             for &(c, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
-                aqueous[c] += v * m;
+                numbers[aqueous(c)] += v * m;
                 if coupling {
                     coupled[c] += v * m;
                 }
@@ -270,62 +335,48 @@ impl Equilibrium {
         // The amount in each phase row (none solved for: all zero).
         let solved = ev.phase_amounts.len() == sys.phases.len();
         let amount = |w: usize| if solved { ev.phase_amounts[w] } else { 0.0 };
-        let families = sys
-            .families
-            .iter()
-            .enumerate()
-            .map(|(fi, fam)| {
-                // With phases the total in solution is an output (gas exchange, solids).
-                let total = if phased {
-                    aqueous[fam.component]
-                } else {
-                    sys.components[fam.component].total_molal
-                };
-                let (fractions, complexed, mean) = if total > 0.0 {
-                    let mut free = 0.0;
-                    let mut bound = 0.0;
-                    let fr: Vec<f64> = fam
-                        .forms
-                        .iter()
-                        .enumerate()
-                        .map(|(j, &s)| {
-                            free += ev.conc[s];
-                            bound += j as f64 * ev.conc[s];
-                            ev.conc[s] / total
-                        })
-                        .collect();
-                    let complexed = (1.0 - free / total).max(0.0);
-                    (fr, complexed, if free > 0.0 { bound / free } else { 0.0 })
-                } else {
-                    // The distribution this family would have: weights exp(ln K + j L − ln γ).
-                    let u: Vec<f64> = fam
-                        .forms
-                        .iter()
-                        .map(|&s| sys.ln_k[s] + sys.nu[s * nc] * point.y[0] - ev.ln_gamma[s])
-                        .collect();
-                    let umax = u.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
-                    let e: Vec<f64> = u.iter().map(|x| (x - umax).exp()).collect();
-                    let sum: f64 = e.iter().sum();
-                    let fr: Vec<f64> = e.iter().map(|x| x / sum).collect();
-                    let mean = fr.iter().enumerate().map(|(j, a)| j as f64 * a).sum();
-                    (fr, 0.0, mean)
-                };
-                FamilyState {
-                    name: sys.family_names[fi].clone(),
-                    total_molal: total,
-                    fractions,
-                    complexed_fraction: complexed,
-                    mean_bound_protons: mean,
+        let mut families_finite = true;
+        for (fi, fam) in sys.families.iter().enumerate() {
+            // With phases the total in solution is an output (gas exchange, solids).
+            let total = if phased {
+                numbers[aqueous(fam.component)]
+            } else {
+                sys.components[fam.component].total_molal
+            };
+            let fr = &mut numbers[layout.family_start[fi]..layout.family_start[fi + 1]];
+            let (complexed, mean) = if total > 0.0 {
+                let mut free = 0.0;
+                let mut bound = 0.0;
+                for (j, (&s, f)) in fam.forms.iter().zip(fr.iter_mut()).enumerate() {
+                    free += ev.conc[s];
+                    bound += j as f64 * ev.conc[s];
+                    *f = ev.conc[s] / total;
                 }
-            })
-            .collect();
-        let n_active = (1..nc).filter(|&c| sys.component_active(c)).count();
-        let mut free_molal = Vec::with_capacity(n_active);
-        let mut mass_relative = Vec::with_capacity(n_active);
-        let mut dissolved_totals = Vec::with_capacity(n_active);
+                let complexed = (1.0 - free / total).max(0.0);
+                (complexed, if free > 0.0 { bound / free } else { 0.0 })
+            } else {
+                // The distribution this family would have: weights exp(ln K + j L − ln γ).
+                for (&s, f) in fam.forms.iter().zip(fr.iter_mut()) {
+                    *f = sys.ln_k[s] + sys.nu[s * nc] * point.y[0] - ev.ln_gamma[s];
+                }
+                let umax = fr.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+                for f in fr.iter_mut() {
+                    *f = (*f - umax).exp();
+                }
+                let sum: f64 = fr.iter().sum();
+                for f in fr.iter_mut() {
+                    *f /= sum;
+                }
+                let mean = fr.iter().enumerate().map(|(j, a)| j as f64 * a).sum();
+                (0.0, mean)
+            };
+            families_finite &= fr.iter().all(|v| v.is_finite()) && f64::is_finite(mean);
+            numbers[fam_at + 3 * fi..fam_at + 3 * fi + 3].copy_from_slice(&[total, complexed, mean]);
+        }
         // Mass in the other phases (solids formed, gas exchanged, acid or base of a fixed pH).
-        let mut elsewhere = vec![0.0; if solved { nc } else { 0 }];
-        let mut elsewhere_scale = vec![0.0; if solved { nc } else { 0 }];
+        let kept = if solved && !sys.phases.is_empty() { nc } else { 0 };
+        let mut elsewhere = vec![0.0; kept];
+        let mut elsewhere_scale = vec![0.0; kept];
         let mut charge_elsewhere = 0.0;
         for (w, row) in sys.phases.iter().enumerate() {
             let lambda = amount(w);
@@ -337,10 +388,14 @@ impl Equilibrium {
                 charge_elsewhere += lambda * row.charge;
             }
         }
+        // The worst mass balance (component, |residual|), the first of equal ones.
+        let mut worst_mass: Option<(usize, f64)> = None;
+        let mut mass_finite = true;
         for (ci, c) in sys.components.iter().enumerate().skip(1) {
             if sys.component_active(ci) {
-                dissolved_totals.push((c.name.clone(), aqueous[ci]));
-                free_molal.push((c.name.clone(), sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0)));
+                let at = comp_at + 4 * ci;
+                numbers[at] = 1.0;
+                numbers[at + 2] = sys.free_species[ci].map(|s| ev.conc[s]).unwrap_or(0.0);
                 // Σ ν·m over the species holding component ci: its uncoupled members and
                 // any complex that contains it.
                 let held: f64 =
@@ -352,7 +407,12 @@ impl Equilibrium {
                         + elsewhere_scale.get(ci).copied().unwrap_or(0.0)
                 };
                 let r = (held + elsewhere.get(ci).copied().unwrap_or(0.0) - c.total_molal) / scale;
-                mass_relative.push((c.name.clone(), if r.is_nan() { 0.0 } else { r }));
+                let r = if r.is_nan() { 0.0 } else { r };
+                numbers[at + 3] = r;
+                mass_finite &= r.is_finite();
+                if worst_mass.is_none_or(|(_, w)| r.abs() > w) {
+                    worst_mass = Some((ci, r.abs()));
+                }
             }
         }
         let charge = charge + charge_elsewhere;
@@ -386,13 +446,9 @@ impl Equilibrium {
                 RowKind::Closure => charge_balance_ion = Some((row.name.clone(), -lambda)),
             }
         }
-        let residuals = Residuals {
-            charge_molal: charge,
-            charge_relative: if charge_scale > 0.0 { charge / charge_scale } else { 0.0 },
-            mass_relative,
-            ionic_strength_relative: if ideal { 0.0 } else { (ionic - i) / i },
-            activity_coefficients_ln: ev.composition_change(sys),
-        };
+        let charge_relative = if charge_scale > 0.0 { charge / charge_scale } else { 0.0 };
+        let ionic_strength_relative = if ideal { 0.0 } else { (ionic - i) / i };
+        let activity_coefficients_ln = ev.composition_change(sys);
         let mut warnings = sys.compile_warnings.clone();
         for st in &solids {
             if st.supersaturated() {
@@ -421,11 +477,24 @@ impl Equilibrium {
             }
         }
         let promise = RESIDUAL_PROMISE.max(tolerance);
-        let (equation, worst) = residuals.worst();
-        if worst > promise {
+        // The equation with the largest relative residual (the first of equal ones, in the
+        // order charge, mass balances, ionic strength, activity coefficients).
+        let mut worst = (Equation::Charge, charge_relative.abs());
+        if let Some((ci, r)) = worst_mass
+            && r > worst.1
+        {
+            worst = (Equation::Mass(ci), r);
+        }
+        if ionic_strength_relative.abs() > worst.1 {
+            worst = (Equation::IonicStrength, ionic_strength_relative.abs());
+        }
+        if activity_coefficients_ln.abs() > worst.1 {
+            worst = (Equation::ActivityCoefficients, activity_coefficients_ln.abs());
+        }
+        if worst.1 > promise {
             warnings.push(Warning::ResidualAbovePromise {
-                equation: residuals.equation_name(equation),
-                residual: worst,
+                equation: worst.0.name(&layout.component_names),
+                residual: worst.1,
                 promise,
             });
         }
@@ -458,65 +527,155 @@ impl Equilibrium {
                 });
             }
         }
-        let eq = Equilibrium {
+        // A NaN or infinity anywhere a caller would read it refuses the result: the species'
+        // molality, γ and activity (γ only computed where it might overflow), the families'
+        // numbers and the residuals.
+        let species_finite = ev.conc.iter().zip(&ev.ln_gamma).all(|(&m, &lg)| {
+            (m.is_finite() && m.abs() <= 1e150 && lg.abs() <= 300.0) || {
+                let g = lg.exp();
+                m.is_finite() && g.is_finite() && (g * m).is_finite()
+            }
+        });
+        let (p_h_molal, poh) = (-h.log10(), -oh.log10());
+        let finite = [ph, p_h_molal, poh, i].iter().all(|v| v.is_finite())
+            && species_finite
+            && families_finite
+            && charge_relative.is_finite()
+            && ionic_strength_relative.is_finite()
+            && mass_finite;
+        if !finite {
+            return Err(Error::NoConvergence {
+                path: path.name(),
+                iterations,
+                max_residual: f64::INFINITY,
+                worst_equation: "a non-finite value in the result".into(),
+                last_ph: if ph.is_finite() { ph } else { 0.0 },
+            });
+        }
+        let dic_molal = sys.carbonate.map_or(0.0, |c| numbers[aqueous(c)]);
+        data.extend_from_slice(&point.y);
+        let Evaluation { conc, ln_gamma, .. } = ev;
+        crate::solve::fast::recycle(conc, ln_gamma, point.y);
+        Ok(Equilibrium {
             ph,
-            p_h_molal: -h.log10(),
-            poh: -oh.log10(),
+            p_h_molal,
+            poh,
             ionic_strength_molal: i,
             temperature: sys.temperature,
             model: sys.model,
             ph_convention: sys.ph_convention,
-            species,
-            families,
-            free_molal,
-            residuals,
+            layout: Arc::clone(layout),
+            water_density: rho,
+            data,
+            charge_molal: charge,
+            charge_relative,
+            ionic_strength_relative,
+            activity_coefficients_ln,
             iterations,
             path,
             warnings,
-            unknowns: point.y,
             ln_i: point.ln_i,
-            phases: Box::new(PhaseReport {
+            phases: PhaseReport {
                 solids,
                 gases,
                 proton_uptake_molal,
                 charge_balance_ion,
-                dissolved_totals,
-                dic_molal: sys.carbonate.map_or(0.0, |c| aqueous[c]),
+                dic_molal,
                 total_alkalinity_molal: alkalinity,
                 carbonate_alkalinity_molal: carbonate_alkalinity,
-            }),
-        };
-        eq.check_finite()?;
-        Ok(eq)
+            },
+            records: OnceLock::new(),
+        })
     }
 
-    /// Refuses a result with a NaN or infinity anywhere a caller would read it.
-    fn check_finite(&self) -> Result<()> {
-        let ok = [self.ph, self.p_h_molal, self.poh, self.ionic_strength_molal]
-            .iter()
-            .all(|v| v.is_finite())
-            && self
-                .species
-                .iter()
-                .all(|s| s.molal.is_finite() && s.gamma.is_finite() && s.activity.is_finite())
-            && self
-                .families
-                .iter()
-                .all(|f| f.fractions.iter().all(|v| v.is_finite()) && f.mean_bound_protons.is_finite())
-            && self.residuals.charge_relative.is_finite()
-            && self.residuals.ionic_strength_relative.is_finite()
-            && self.residuals.mass_relative.iter().all(|(_, v)| v.is_finite());
-        if ok {
-            Ok(())
-        } else {
-            Err(Error::NoConvergence {
-                path: self.path.name(),
-                iterations: self.iterations,
-                max_residual: f64::INFINITY,
-                worst_equation: "a non-finite value in the result".into(),
-                last_ph: if self.ph.is_finite() { self.ph } else { 0.0 },
+    /// The per-species and per-family records, assembled on first access.
+    fn records(&self) -> &Records {
+        self.records.get_or_init(|| Box::new(self.assemble()))
+    }
+
+    fn assemble(&self) -> Records {
+        let lay = &*self.layout;
+        let rho = self.water_density;
+        let species = (self.molal().iter().zip(self.ln_gamma()))
+            .enumerate()
+            .map(|(s, (&m, &lg))| {
+                let g = lg.exp();
+                SpeciesState {
+                    name: lay.species_names[s].clone(),
+                    charge: lay.species_charges[s],
+                    molal: m,
+                    molar: m * rho,
+                    gamma: g,
+                    activity: g * m,
+                }
             })
+            .collect();
+        let fam_at = lay.family_numbers();
+        let families = (0..lay.families())
+            .map(|f| {
+                let n = &self.numbers()[fam_at + 3 * f..fam_at + 3 * f + 3];
+                FamilyState {
+                    name: lay.family_names[f].clone(),
+                    total_molal: n[0],
+                    fractions: self.numbers()[lay.family_start[f]..lay.family_start[f + 1]].to_vec(),
+                    complexed_fraction: n[1],
+                    mean_bound_protons: n[2],
+                }
+            })
+            .collect();
+        let comp_at = lay.component_numbers();
+        let active: Vec<(usize, &[f64])> = (1..lay.component_names.len())
+            .map(|c| (c, &self.numbers()[comp_at + 4 * c..comp_at + 4 * c + 4]))
+            .filter(|(_, n)| n[0] != 0.0)
+            .collect();
+        let pick = |k: usize| -> Vec<(Arc<str>, f64)> {
+            active
+                .iter()
+                .map(|&(c, n)| (lay.component_names[c].clone(), n[k]))
+                .collect()
+        };
+        Records {
+            species,
+            families,
+            dissolved_totals: pick(1),
+            free_molal: pick(2),
+            residuals: Residuals {
+                charge_molal: self.charge_molal,
+                charge_relative: self.charge_relative,
+                mass_relative: pick(3),
+                ionic_strength_relative: self.ionic_strength_relative,
+                activity_coefficients_ln: self.activity_coefficients_ln,
+            },
         }
+    }
+
+    /// Molality of each species, in the system's species order (no records assembled).
+    pub(crate) fn molal(&self) -> &[f64] {
+        &self.data[..self.layout.species_names.len()]
+    }
+
+    /// ln γ of each species.
+    fn ln_gamma(&self) -> &[f64] {
+        let ns = self.layout.species_names.len();
+        &self.data[ns..2 * ns]
+    }
+
+    /// The derived numbers (see [`Equilibrium::data`]).
+    fn numbers(&self) -> &[f64] {
+        let ns = self.layout.species_names.len();
+        &self.data[2 * ns..2 * ns + self.layout.numbers_len()]
+    }
+
+    /// The largest relative residual over every equation solved, as
+    /// [`Residuals::max_relative`] gives it (no records assembled).
+    pub(crate) fn max_residual(&self) -> f64 {
+        let comp_at = self.layout.component_numbers();
+        (self.numbers()[comp_at..].chunks_exact(4).skip(1))
+            .filter(|n| n[0] != 0.0)
+            .map(|n| n[3].abs())
+            .fold(self.charge_relative.abs(), f64::max)
+            .max(self.ionic_strength_relative.abs())
+            .max(self.activity_coefficients_ln.abs())
     }
 
     /// pH on the molal scale under the system's [`PhConvention`] (see
@@ -559,34 +718,34 @@ impl Equilibrium {
 
     /// Every species, in the system's species order (H⁺ and OH⁻ first).
     pub fn species(&self) -> &[SpeciesState] {
-        &self.species
+        &self.records().species
     }
 
     /// The species named `name`. A name written without the caret of the charge notation
     /// ("CO32-" for "CO3^2-", "CaHCO3^+" for "CaHCO3+") finds the species too.
     pub fn species_named(&self, name: &str) -> Option<&SpeciesState> {
-        (self.species.iter().find(|s| &*s.name == name))
-            .or_else(|| (self.species.iter()).find(|s| crate::protolyte::species_name_eq(&s.name, name)))
+        (self.records().species.iter().find(|s| &*s.name == name))
+            .or_else(|| (self.records().species.iter()).find(|s| crate::protolyte::species_name_eq(&s.name, name)))
     }
 
     /// The distribution of every acid–base family.
     pub fn families(&self) -> &[FamilyState] {
-        &self.families
+        &self.records().families
     }
 
     /// The family named `name`.
     pub fn family(&self, name: &str) -> Option<&FamilyState> {
-        self.families.iter().find(|f| &*f.name == name)
+        self.records().families.iter().find(|f| &*f.name == name)
     }
 
     /// Free (uncomplexed, fully deprotonated) molality of each component with a positive total.
     pub fn free_molal(&self) -> &[(Arc<str>, f64)] {
-        &self.free_molal
+        &self.records().free_molal
     }
 
     /// Residuals of the charge, mass and ionic-strength equations at this result.
     pub fn residuals(&self) -> &Residuals {
-        &self.residuals
+        &self.records().residuals
     }
 
     /// Iterations spent (pH-equation evaluations on the fast path, Newton steps on the
@@ -672,12 +831,12 @@ impl Equilibrium {
     /// The dissolved total of each active component (mol/kg): the recipe's total less what
     /// went into solids or the gas phase.
     pub fn dissolved_totals(&self) -> &[(Arc<str>, f64)] {
-        &self.phases.dissolved_totals
+        &self.records().dissolved_totals
     }
 
     /// The dissolved total of the component named `name`, mol/kg.
     pub fn dissolved_total_molal(&self, name: &str) -> Option<f64> {
-        self.phases
+        self.records()
             .dissolved_totals
             .iter()
             .find(|(n, _)| &**n == name)
@@ -721,7 +880,8 @@ impl Equilibrium {
 
     /// ln a of each component (−∞ for components with zero total), H⁺ first.
     pub(crate) fn unknowns(&self) -> &[f64] {
-        &self.unknowns
+        let ns = self.layout.species_names.len();
+        &self.data[2 * ns + self.layout.numbers_len()..]
     }
 
     /// ln I.
@@ -732,9 +892,54 @@ impl Equilibrium {
     /// The solver's point, for warm starts and sensitivities.
     pub(crate) fn point(&self) -> Point {
         Point {
-            y: self.unknowns.clone(),
+            y: self.unknowns().to_vec(),
             ln_i: self.ln_i,
         }
+    }
+}
+
+impl std::fmt::Debug for Equilibrium {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Equilibrium")
+            .field("ph", &self.ph)
+            .field("p_h_molal", &self.p_h_molal)
+            .field("poh", &self.poh)
+            .field("ionic_strength_molal", &self.ionic_strength_molal)
+            .field("temperature", &self.temperature)
+            .field("model", &self.model)
+            .field("ph_convention", &self.ph_convention)
+            .field("species", &self.species())
+            .field("families", &self.families())
+            .field("free_molal", &self.free_molal())
+            .field("residuals", self.residuals())
+            .field("iterations", &self.iterations)
+            .field("path", &self.path)
+            .field("warnings", &self.warnings)
+            .field("solids", &self.phases.solids)
+            .field("gases", &self.phases.gases)
+            .field("dissolved_totals", &self.dissolved_totals())
+            .finish_non_exhaustive()
+    }
+}
+
+/// Two results are equal when everything a caller can read from them is (the records are
+/// compared whether or not they have been assembled).
+impl PartialEq for Equilibrium {
+    fn eq(&self, other: &Self) -> bool {
+        self.ph == other.ph
+            && self.p_h_molal == other.p_h_molal
+            && self.poh == other.poh
+            && self.ionic_strength_molal == other.ionic_strength_molal
+            && self.temperature == other.temperature
+            && self.model == other.model
+            && self.ph_convention == other.ph_convention
+            && self.iterations == other.iterations
+            && self.path == other.path
+            && self.warnings == other.warnings
+            && self.unknowns() == other.unknowns()
+            && self.ln_i == other.ln_i
+            && self.phases == other.phases
+            && self.records() == other.records()
     }
 }
 
@@ -749,9 +954,14 @@ impl Solver {
     /// e.g. the previous point of a titration). Falls back to a cold start if the warm start
     /// does not converge.
     pub fn solve_from(&self, system: &System, previous: &Equilibrium) -> Result<Equilibrium> {
-        if previous.unknowns().len() == system.components.len()
-            && let Ok((point, ev, iters, path)) =
-                self.run(system, Some((previous.unknowns(), previous.ln_ionic_strength())))
+        self.solve_from_unknowns(system, previous.unknowns(), previous.ln_ionic_strength())
+    }
+
+    /// [`Solver::solve_from`] a previous solution's unknowns (ln a of each component) and
+    /// ln I.
+    pub(crate) fn solve_from_unknowns(&self, system: &System, y: &[f64], ln_i: f64) -> Result<Equilibrium> {
+        if y.len() == system.components.len()
+            && let Ok((point, ev, iters, path)) = self.run(system, Some((y, ln_i)))
             && let Ok(eq) = Equilibrium::build(system, point, ev, iters, path, self.tolerance_value())
         {
             return Ok(eq);

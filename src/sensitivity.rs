@@ -101,7 +101,7 @@ impl Sensitivities {
         let p: Point = eq.point();
         let i = p.ln_i.exp();
         let mut ev = Evaluation::new(sys);
-        ev.hold(eq.species().iter().map(|s| s.molal));
+        ev.hold(eq.molal().iter().copied());
         ev.set_gamma(sys, i);
         ev.set_conc(sys, &p);
         let layout = Layout::new(sys);
@@ -272,7 +272,7 @@ impl Sensitivities {
         let p: Point = eq.point();
         let i = p.ln_i.exp();
         let mut ev = Evaluation::new(sys);
-        ev.hold(eq.species().iter().map(|s| s.molal));
+        ev.hold(eq.molal().iter().copied());
         ev.set_gamma(sys, i);
         ev.set_conc(sys, &p);
         let act = crate::solve::newton::active(sys);
@@ -689,7 +689,7 @@ pub(crate) fn dph_along_totals(system: &System, eq: &Equilibrium, dt: &[f64]) ->
     }
     let p = eq.point();
     let mut ev = Evaluation::new(sys);
-    ev.hold(eq.species().iter().map(|s| s.molal));
+    ev.hold(eq.molal().iter().copied());
     ev.set_gamma(sys, p.ln_i.exp());
     ev.set_conc(sys, &p);
     let layout = Layout::new(sys);

@@ -192,13 +192,17 @@ pub struct System {
     pub(crate) members: Vec<Vec<usize>>,
     /// The free species of each component, where it has one.
     pub(crate) free_species: Vec<Option<usize>>,
-    /// Names of the families, shared with results.
-    pub(crate) family_names: Vec<Arc<str>>,
+    /// The names and shapes every result of this system shares (species, families,
+    /// components).
+    pub(crate) layout: Arc<crate::equilibrium::ResultLayout>,
     /// ν(H⁺) of each species as an integer, and each species' charge as a float.
     pub(crate) nu_h: Vec<i32>,
     pub(crate) charge_f: Vec<f64>,
-    /// Per species: (ν(H⁺) as a float, max(z, 0), max(−z, 0)) for the fast path's sums.
-    pub(crate) fast_coef: Vec<(f64, f64, f64)>,
+    /// The uncoupled species by component, packed for the fast path's passes over them:
+    /// component g's are `fast_members[fast_member_start[g]..fast_member_start[g + 1]]`, in
+    /// the order of `members[g]`.
+    pub(crate) fast_members: Vec<crate::solve::fast::Member>,
+    pub(crate) fast_member_start: Vec<usize>,
     /// Largest ν(H⁺) and largest −ν(H⁺) over the uncoupled species (both ≥ 0).
     pub(crate) nu_h_span: (usize, usize),
     pub(crate) compile_warnings: Vec<Warning>,
@@ -434,7 +438,6 @@ impl System {
                     .flatten()
             })
             .collect();
-        let family_names = b.families.iter().map(|f| Arc::from(f.protolyte.name())).collect();
         let species_len = species.len();
         // ν(H⁺) of every species within ±MAX_COMPLEX_PROTONS (families have at most 12 steps
         // and complexes are checked where they are made; this guards the fast path's table).
@@ -453,12 +456,16 @@ impl System {
             }
             nu_h.push(v.round() as i32);
         }
-        let fast_coef = (0..species_len)
-            .map(|s| {
-                let z = f64::from(species[s].charge);
-                (f64::from(nu_h[s]), z.max(0.0), (-z).max(0.0))
-            })
-            .collect();
+        let mut fast_members = Vec::with_capacity(species_len);
+        let mut fast_member_start = Vec::with_capacity(nc + 1);
+        for list in &members {
+            fast_member_start.push(fast_members.len());
+            fast_members.extend(
+                list.iter()
+                    .map(|&s| crate::solve::fast::Member::new(s, nu_h[s], f64::from(species[s].charge))),
+            );
+        }
+        fast_member_start.push(fast_members.len());
         let unc = || (0..species_len).filter(|&s| !coupling[s]);
         let nu_h_span = (
             unc().map(|s| nu_h[s].max(0).unsigned_abs() as usize).max().unwrap_or(0),
@@ -480,6 +487,11 @@ impl System {
         } else {
             Interactions::default()
         };
+        let layout = Arc::new(crate::equilibrium::ResultLayout::new(
+            &species,
+            &b.families,
+            &b.components,
+        ));
         Ok(System {
             temperature: t,
             model: conditions.activity,
@@ -498,9 +510,10 @@ impl System {
             terms,
             members,
             free_species,
-            family_names,
+            layout,
             nu_h_span,
-            fast_coef,
+            fast_members,
+            fast_member_start,
             nu_h,
             charge_f,
             compile_warnings: warnings,
@@ -713,7 +726,7 @@ impl System {
                 reason: format!("family {family} has no dissociation step {step}"),
             });
         };
-        let name = self.family_names[family].clone();
+        let name = self.layout.family_names[family].clone();
         crate::error::check_parameter(&name, "pKa", pka, -10.0, 25.0, "must be finite and within -10..25")?;
         let forms = self.families[family].forms.clone();
         let n = forms.len() - 1;

@@ -25,5 +25,5 @@ pub use endpoints::{
 pub use fit::{Estimate, FitReport, Scope, TitrationFit, Unknown};
 pub use indicators::{Indicator, indicators, indicators_within};
 pub use target::amount_for_ph;
-pub use titration::{Stepping, Titration, TitrationPoint};
+pub use titration::{CurveSample, Stepping, Titration, TitrationPoint};
 pub use uncertainty::{Input, PropagatedUncertainty, Propagation, SpeciesUncertainty};

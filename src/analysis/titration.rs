@@ -21,7 +21,7 @@ use crate::equilibrium::Equilibrium;
 use crate::error::{Error, Result};
 use crate::quantity::Volume;
 use crate::recipe::Recipe;
-use crate::solve::Solver;
+use crate::solve::{Solver, Workspace};
 use crate::system::{Conditions, System};
 
 const LN10: f64 = std::f64::consts::LN_10;
@@ -55,7 +55,10 @@ pub struct Titration {
     solver: Solver,
 }
 
-/// One point of a titration curve.
+/// One point of a titration curve with its full equilibrium ([`Titration::curve`] and its
+/// siblings). Where only pH, dpH/dv and the ionic strength are wanted, the lean curves
+/// ([`Titration::ph_curve`], [`Titration::ph_curve_adaptive`]) give the same numbers without
+/// building an [`Equilibrium`] per point.
 #[derive(Debug, Clone)]
 pub struct TitrationPoint {
     /// Titrant volume added, mL.
@@ -66,6 +69,21 @@ pub struct TitrationPoint {
     pub dph_dv_per_ml: f64,
     /// The full equilibrium at this point.
     pub equilibrium: Equilibrium,
+}
+
+/// One point of a lean titration curve ([`Titration::ph_curve`],
+/// [`Titration::ph_curve_adaptive`]): the numbers of the [`TitrationPoint`] at the same
+/// volume, without the full equilibrium (and so without its warnings).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CurveSample {
+    /// Titrant volume added, mL.
+    pub volume_ml: f64,
+    /// pH.
+    pub ph: f64,
+    /// dpH/dv, per mL of titrant (analytic).
+    pub dph_dv_per_ml: f64,
+    /// Ionic strength, mol/kg.
+    pub ionic_strength_molal: f64,
 }
 
 /// How [`Titration::curve_adaptive`] chooses its volume steps.
@@ -232,6 +250,102 @@ impl<'a> Cursor<'a> {
     }
 }
 
+/// A cursor for lean curves: each point is solved in one [`Workspace`] warm-started from the
+/// previous point (see [`LeanCursor::start`]), and dpH/dv read from the workspace's
+/// molalities; a point the
+/// workspace cannot solve (coupled species, other phases, composition-dependent γ) or whose
+/// derivative needs the full implicit differentiation is solved in full as
+/// [`Cursor::point`] solves it.
+struct LeanCursor<'a> {
+    c: Cursor<'a>,
+    ws: Workspace,
+    /// The unknowns (ln a of each component) and ln I of the last point solved.
+    last_y: Vec<f64>,
+    last_ln_i: f64,
+    has_last: bool,
+    /// Where the last point was solved in the workspace: its volume (L) and the tangent of
+    /// the curve there, (d ln a(H⁺)/dv, d ln I/dv) per litre, from which the next point's
+    /// start is predicted.
+    tangent: Option<(f64, f64, f64)>,
+}
+
+/// The largest predicted move (ln units) of ln a(H⁺) or ln I taken as a start; beyond it the
+/// last point itself is the start.
+const PREDICT_MAX: f64 = 0.5;
+
+impl<'a> LeanCursor<'a> {
+    fn new(t: &'a Titration) -> Self {
+        LeanCursor {
+            c: Cursor::new(t),
+            ws: Workspace::new(),
+            last_y: Vec::new(),
+            last_ln_i: 0.0,
+            has_last: false,
+            tangent: None,
+        }
+    }
+
+    /// The start of the point at `v_l`: the last point, moved along the tangent there when
+    /// the move is small.
+    fn start(&self, v_l: f64) -> Option<(f64, f64)> {
+        if !self.has_last {
+            return None;
+        }
+        let (l, u) = (self.last_y[0], self.last_ln_i);
+        if let Some((v0, dl, du)) = self.tangent {
+            let (pl, pu) = (dl * (v_l - v0), du * (v_l - v0));
+            if pl.abs() <= PREDICT_MAX && pu.abs() <= PREDICT_MAX {
+                return Some((l + pl, u + pu));
+            }
+        }
+        Some((l, u))
+    }
+
+    /// The point at `v_l`, warm-started from the last point solved (if any).
+    fn sample(&mut self, v_l: f64) -> Result<CurveSample> {
+        self.c.set_volume(v_l)?;
+        let solver = self.c.t.solver;
+        let sys = &self.c.sys;
+        if solver.lean_applies(sys) {
+            self.ws.set_start(self.start(v_l));
+            if let Some(s) = solver.solve_lean(sys, &mut self.ws)?
+                && let Some((dl, du)) = tangent_uncoupled(sys, self.ws.molal(), s.ionic_strength_molal, &self.c.dt)
+                && dl.is_finite()
+            {
+                let d = -dl / LN10;
+                self.last_y.clear();
+                self.last_y.extend_from_slice(self.ws.unknowns());
+                self.last_ln_i = self.ws.start().map_or(0.0, |(_, li)| li);
+                self.has_last = true;
+                self.tangent = du.is_finite().then_some((v_l, dl, du));
+                return Ok(CurveSample {
+                    volume_ml: v_l * 1e3,
+                    ph: s.ph,
+                    dph_dv_per_ml: d * 1e-3,
+                    ionic_strength_molal: s.ionic_strength_molal,
+                });
+            }
+        }
+        let eq = if self.has_last {
+            solver.solve_from_unknowns(sys, &self.last_y, self.last_ln_i)?
+        } else {
+            solver.solve(sys)?
+        };
+        let d = self.c.dph_dv(&eq)?;
+        self.last_y.clear();
+        self.last_y.extend_from_slice(eq.unknowns());
+        self.last_ln_i = eq.ln_ionic_strength();
+        self.has_last = true;
+        self.tangent = None;
+        Ok(CurveSample {
+            volume_ml: v_l * 1e3,
+            ph: eq.ph(),
+            dph_dv_per_ml: d * 1e-3,
+            ionic_strength_molal: eq.ionic_strength_molal(),
+        })
+    }
+}
+
 impl Titration {
     /// A titration of `analyte_volume` of `analyte` with `titrant`, both at `conditions`.
     pub fn new(analyte: &Recipe, analyte_volume: Volume, titrant: &Recipe, conditions: &Conditions) -> Result<Self> {
@@ -347,6 +461,39 @@ impl Titration {
         Ok(out)
     }
 
+    /// The lean curve at the given volumes: the pH, dpH/dv and ionic strength of
+    /// [`Titration::curve`] at each volume (equal to round-off), without an
+    /// [`Equilibrium`] per point. Each point is solved in one reused [`Workspace`], started
+    /// from the previous point moved along the curve's tangent there (the analytic
+    /// d ln a(H⁺)/dv and d ln I/dv) when that move is small. Refuses more than
+    /// [`MAX_CURVE_POINTS`](crate::limits::MAX_CURVE_POINTS) volumes ([`Error::TooManyPoints`]).
+    ///
+    /// ```
+    /// use protolyte::analysis::Titration;
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe, Volume};
+    ///
+    /// let cat = Catalog::builtin();
+    /// let mut acid = Recipe::new();
+    /// acid.add(&cat.reagent("acetic acid")?, Amount::molar(0.1))?;
+    /// let mut base = Recipe::new();
+    /// base.add(&cat.reagent("sodium hydroxide")?, Amount::molar(0.1))?;
+    /// let t = Titration::new(&acid, Volume::milliliters(25.0), &base, &Conditions::default())?;
+    /// let volumes: Vec<Volume> = (0..=50).map(|k| Volume::milliliters(k as f64)).collect();
+    /// let lean = t.ph_curve(&volumes)?;
+    /// let full = t.curve(&volumes)?;
+    /// for (a, b) in lean.iter().zip(&full) {
+    ///     assert!((a.ph - b.ph).abs() < 1e-12);
+    ///     let i = b.equilibrium.ionic_strength_molal();
+    ///     assert!((a.ionic_strength_molal - i).abs() < 1e-12 * i);
+    /// }
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn ph_curve(&self, volumes: &[Volume]) -> Result<Vec<CurveSample>> {
+        crate::error::check_points("titration curve", volumes.len())?;
+        let mut c = LeanCursor::new(self);
+        volumes.iter().map(|v| c.sample(v.liters_value())).collect()
+    }
+
     /// The curve at `points` evenly spaced volumes from 0 to `end` (both included; fewer
     /// than 2 points give 2). Refuses an end volume that is not positive or is below
     /// [`MIN_VOLUME_LITERS`](crate::limits::MIN_VOLUME_LITERS), and more than
@@ -397,35 +544,85 @@ impl Titration {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn curve_adaptive(&self, stepping: &Stepping) -> Result<Vec<TitrationPoint>> {
-        crate::error::check_points("adaptive titration curve", stepping.max_points)?;
-        let end = crate::error::check_amount("end volume", stepping.end_l, "L")?;
-        let min_step = stepping.min_step_l.min(end.max(f64::MIN_POSITIVE));
-        let max_step = stepping.max_step_l.max(min_step);
-        let target = stepping.max_ph_step;
         let mut c = Cursor::new(self);
-        let first = c.point(0.0, None)?;
-        let mut out = vec![first];
-        let mut v = 0.0;
-        while v < end && out.len() < stepping.max_points {
-            let last = &out[out.len() - 1];
-            let slope = last.dph_dv_per_ml.abs() * 1e3;
-            let mut dv = if slope > 0.0 { target / slope } else { max_step };
-            dv = dv.clamp(min_step, max_step);
-            let prev_ph = last.ph;
-            loop {
-                let next_v = if v + dv >= end * (1.0 - 1e-12) { end } else { v + dv };
-                let p = c.point(next_v, Some(&out[out.len() - 1].equilibrium))?;
-                let moved = (p.ph - prev_ph).abs();
-                if moved <= 1.5 * target || dv <= min_step * (1.0 + 1e-9) {
-                    v = next_v;
-                    out.push(p);
-                    break;
-                }
-                dv = (0.5 * dv).max(min_step);
-            }
-        }
-        Ok(out)
+        adaptive(stepping, |v, last: Option<&TitrationPoint>| {
+            let p = c.point(v, last.map(|p| &p.equilibrium))?;
+            Ok((p.ph, p.dph_dv_per_ml, p))
+        })
     }
+
+    /// The lean adaptive curve: the volumes, pH, dpH/dv and ionic strength of
+    /// [`Titration::curve_adaptive`] (equal to round-off), without an [`Equilibrium`] per
+    /// point (see [`Titration::ph_curve`]).
+    ///
+    /// ```
+    /// use protolyte::analysis::{Stepping, Titration};
+    /// use protolyte::{Amount, Catalog, Conditions, Recipe, Volume};
+    ///
+    /// let cat = Catalog::builtin();
+    /// let mut acid = Recipe::new();
+    /// acid.add(&cat.reagent("acetic acid")?, Amount::molar(0.1))?;
+    /// let mut base = Recipe::new();
+    /// base.add(&cat.reagent("sodium hydroxide")?, Amount::molar(0.1))?;
+    /// let t = Titration::new(&acid, Volume::milliliters(25.0), &base, &Conditions::default())?;
+    /// let stepping = Stepping::new(Volume::milliliters(40.0)).max_ph_step(0.1)?;
+    /// let lean = t.ph_curve_adaptive(&stepping)?;
+    /// let full = t.curve_adaptive(&stepping)?;
+    /// assert_eq!(lean.len(), full.len());
+    /// assert!(lean.iter().zip(&full).all(|(a, b)| a.volume_ml == b.volume_ml && (a.ph - b.ph).abs() < 1e-12));
+    /// # Ok::<(), protolyte::Error>(())
+    /// ```
+    pub fn ph_curve_adaptive(&self, stepping: &Stepping) -> Result<Vec<CurveSample>> {
+        let mut c = LeanCursor::new(self);
+        // Each accepted point keeps its unknowns: a rejected trial step is not the next
+        // trial's start.
+        // Each start is the last accepted point itself, as for the full curve (a predicted
+        // start would change the steps at round-off, and with them the volumes).
+        let out = adaptive(stepping, |v, last: Option<&(CurveSample, Vec<f64>, f64)>| {
+            c.has_last = last.is_some();
+            if let Some((_, y, ln_i)) = last {
+                c.last_y.clone_from(y);
+                c.last_ln_i = *ln_i;
+            }
+            c.tangent = None;
+            let p = c.sample(v)?;
+            Ok((p.ph, p.dph_dv_per_ml, (p, c.last_y.clone(), c.last_ln_i)))
+        })?;
+        Ok(out.into_iter().map(|(p, ..)| p).collect())
+    }
+}
+
+/// The adaptive stepping of [`Titration::curve_adaptive`] over either kind of point:
+/// `solve(v, last)` gives the pH, dpH/dv (per mL) and the point at volume `v` (L),
+/// warm-started from `last`, the last point accepted.
+fn adaptive<P>(stepping: &Stepping, mut solve: impl FnMut(f64, Option<&P>) -> Result<(f64, f64, P)>) -> Result<Vec<P>> {
+    crate::error::check_points("adaptive titration curve", stepping.max_points)?;
+    let end = crate::error::check_amount("end volume", stepping.end_l, "L")?;
+    let min_step = stepping.min_step_l.min(end.max(f64::MIN_POSITIVE));
+    let max_step = stepping.max_step_l.max(min_step);
+    let target = stepping.max_ph_step;
+    let (mut last_ph, mut last_dph, first) = solve(0.0, None)?;
+    let mut out = vec![first];
+    let mut v = 0.0;
+    while v < end && out.len() < stepping.max_points {
+        let slope = last_dph.abs() * 1e3;
+        let mut dv = if slope > 0.0 { target / slope } else { max_step };
+        dv = dv.clamp(min_step, max_step);
+        let prev_ph = last_ph;
+        loop {
+            let next_v = if v + dv >= end * (1.0 - 1e-12) { end } else { v + dv };
+            let (ph, dph, p) = solve(next_v, out.last())?;
+            let moved = (ph - prev_ph).abs();
+            if moved <= 1.5 * target || dv <= min_step * (1.0 + 1e-9) {
+                v = next_v;
+                (last_ph, last_dph) = (ph, dph);
+                out.push(p);
+                break;
+            }
+            dv = (0.5 * dv).max(min_step);
+        }
+    }
+    Ok(out)
 }
 
 /// d pH along a direction of change of the totals: `dt[c]` is dT_c (mol/kg per unit of the
@@ -447,7 +644,7 @@ pub(crate) fn dph_along(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f6
             reason: "the direction or the equilibrium does not belong to this system".into(),
         });
     }
-    let d = match dph_along_uncoupled(sys, eq, dt) {
+    let d = match dph_along_uncoupled(sys, eq.molal(), eq.ionic_strength_molal(), dt) {
         Some(d) => d,
         None => crate::sensitivity::dph_along_totals(sys, eq, dt)?,
     };
@@ -463,19 +660,29 @@ pub(crate) fn dph_along(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Result<f6
 /// leaves a 2 × 2 system in d ln a(H⁺) and d ln I from the charge balance and the
 /// ionic-strength equation. `None` when the system is coupled or the direction brings in a
 /// component from a zero total.
-fn dph_along_uncoupled(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Option<f64> {
+fn dph_along_uncoupled(sys: &System, molal: &[f64], i: f64, dt: &[f64]) -> Option<f64> {
+    let (dl, _) = tangent_uncoupled(sys, molal, i, dt)?;
+    let d = -dl / LN10;
+    d.is_finite().then_some(d)
+}
+
+/// The derivatives of ln a(H⁺) and ln I along the direction `dt`, as
+/// [`dph_along_uncoupled`] takes them.
+fn tangent_uncoupled(sys: &System, molal: &[f64], i: f64, dt: &[f64]) -> Option<(f64, f64)> {
     // Phase rows (solids, fixed gases, a fixed pH) change the equations: the full implicit
     // differentiation with the rows held handles them.
     if !sys.uncoupled() || sys.has_phase_constraints() {
         return None;
     }
     let nc = sys.components.len();
-    let i = eq.ionic_strength_molal();
+    if dt.len() != nc || molal.len() != sys.species.len() {
+        return None;
+    }
     let prof = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
-    let sp = eq.species();
+    let sp = molal;
     // d ln m_s = ν_s dL − (d ln γ_s/dI)·I du + d ln a_g, with L = ln a(H⁺), u = ln I.
     let term = |s: usize| -> (f64, f64, f64, f64) {
-        let m = sp[s].molal;
+        let m = sp[s];
         let z = sys.charge_f[s];
         let gi = prof.at(sys.species[s].charge, sys.species[s].ion_size_angstrom).1 * LN10 * i;
         (m, z, f64::from(sys.nu_h[s]), gi)
@@ -526,8 +733,8 @@ fn dph_along_uncoupled(sys: &System, eq: &Equilibrium, dt: &[f64]) -> Option<f64
     a22 -= i;
     let det = a11 * a22 - a12 * a21;
     let dl = (r1 * a22 - a12 * r2) / det;
-    let d = -dl / LN10;
-    d.is_finite().then_some(d)
+    let du = (a11 * r2 - a21 * r1) / det;
+    Some((dl, du))
 }
 
 #[cfg(test)]
@@ -561,12 +768,103 @@ mod tests {
             for c in 1..nc {
                 let mut dt = vec![0.0; nc];
                 dt[c] = 1.0;
-                let fast = dph_along_uncoupled(&sys, &eq, &dt).unwrap();
+                let fast = dph_along_uncoupled(&sys, eq.molal(), eq.ionic_strength_molal(), &dt).unwrap();
                 let full = sens.dph(Parameter::Total(c)).unwrap_or(0.0);
                 assert!(
                     (fast - full).abs() <= 1e-8 * full.abs().max(1e-3),
                     "{model:?} {c}: {fast} vs {full}"
                 );
+            }
+        }
+    }
+
+    /// The lean curves give the numbers of the full ones: the same volumes, pH and dpH/dv to
+    /// round-off, on titrations that take the workspace (one and several families, every
+    /// model but SIT's pairs) and ones that fall back to the full solve (a solid allowed to
+    /// form, SIT, a complex). The scenarios are demo recipes of our own.
+    #[test]
+    fn lean_curves_equal_full_curves() {
+        let cat = Catalog::builtin();
+        let recipe = |items: &[(&str, f64)]| {
+            let mut r = Recipe::new();
+            for &(name, molar) in items {
+                r.add(&cat.reagent(name).unwrap(), Amount::molar(molar)).unwrap();
+            }
+            r
+        };
+        let base = recipe(&[("sodium hydroxide", 0.1)]);
+        let mut hard = recipe(&[("calcium chloride", 0.002), ("sodium bicarbonate", 0.002)]);
+        hard.allow_solid(&cat.solid("calcite").unwrap());
+        let soda = recipe(&[("sodium carbonate", 0.05)]);
+        let cases = [
+            (
+                recipe(&[("acetic acid", 0.1)]),
+                base.clone(),
+                ActivityModel::Davies,
+                50.0,
+            ),
+            (
+                recipe(&[
+                    ("phosphoric acid", 0.02),
+                    ("ammonium chloride", 0.01),
+                    ("boric acid", 0.01),
+                ]),
+                base.clone(),
+                ActivityModel::ExtendedDebyeHuckel,
+                30.0,
+            ),
+            (
+                recipe(&[("citric acid", 0.01)]),
+                base.clone(),
+                ActivityModel::Ideal,
+                10.0,
+            ),
+            (
+                recipe(&[("acetic acid", 0.05), ("sodium chloride", 0.5)]),
+                base.clone(),
+                ActivityModel::Sit,
+                40.0,
+            ),
+            (
+                recipe(&[("disodium edta dihydrate", 0.01), ("calcium chloride", 0.005)]),
+                base,
+                ActivityModel::Davies,
+                5.0,
+            ),
+            (hard, soda, ActivityModel::Davies, 10.0),
+        ];
+        for (k, (analyte, titrant, model, end_ml)) in cases.into_iter().enumerate() {
+            let cond = Conditions::new(Temperature::celsius(25.0), model);
+            let t = Titration::new(&analyte, Volume::milliliters(25.0), &titrant, &cond).unwrap();
+            let volumes: Vec<Volume> = (0..=40)
+                .map(|j| Volume::milliliters(end_ml * j as f64 / 40.0))
+                .collect();
+            let full = t.curve(&volumes).unwrap();
+            let lean = t.ph_curve(&volumes).unwrap();
+            let stepping = Stepping::new(Volume::milliliters(end_ml)).max_ph_step(0.1).unwrap();
+            let full_adaptive = t.curve_adaptive(&stepping).unwrap();
+            let lean_adaptive = t.ph_curve_adaptive(&stepping).unwrap();
+            assert_eq!(lean_adaptive.len(), full_adaptive.len(), "case {k}");
+            let pairs = full.iter().zip(&lean).chain(full_adaptive.iter().zip(&lean_adaptive));
+            for (f, l) in pairs {
+                assert_eq!(f.volume_ml, l.volume_ml, "case {k}");
+                assert!(
+                    (f.ph - l.ph).abs() <= 1e-12,
+                    "case {k} at {} mL: {} vs {}",
+                    f.volume_ml,
+                    f.ph,
+                    l.ph
+                );
+                let d = (f.dph_dv_per_ml - l.dph_dv_per_ml).abs();
+                assert!(
+                    d <= 1e-9 * f.dph_dv_per_ml.abs().max(1e-6),
+                    "case {k} at {} mL: dpH/dv {} vs {}",
+                    f.volume_ml,
+                    f.dph_dv_per_ml,
+                    l.dph_dv_per_ml
+                );
+                let i = f.equilibrium.ionic_strength_molal();
+                assert!((i - l.ionic_strength_molal).abs() <= 1e-12 * i, "case {k}");
             }
         }
     }

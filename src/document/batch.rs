@@ -1,7 +1,8 @@
 //! Batch runs (feature `batch`): JSON Lines of recipe documents in, JSON Lines of results out.
 //!
 //! The input is read in chunks of lines (constant memory whatever its length); each chunk is
-//! cut into blocks solved in parallel (rayon) and written back in input order. Within a
+//! cut into blocks solved in parallel (rayon) and written back in input order. The next chunk
+//! is read, and the records of the previous one written, while a chunk is solved. Within a
 //! block, recipes with the same reagent names, complexes and conditions share one compiled
 //! [`System`] (as a template): only the totals are reset from the amounts
 //! ([`System::set_total_molal`]), and each solve starts from
@@ -46,7 +47,8 @@ const MAX_TEMPLATES: usize = 64;
 pub struct BatchOptions {
     /// Write the full result (every species and family) in each record.
     pub full: bool,
-    /// Lines read per chunk (at least one block).
+    /// Lines read per chunk at most (at least one block); the first chunks are shorter (two
+    /// blocks, then four times the last), so that the workers start early.
     pub chunk_lines: usize,
 }
 
@@ -54,7 +56,7 @@ impl Default for BatchOptions {
     fn default() -> Self {
         BatchOptions {
             full: false,
-            chunk_lines: 16 * BLOCK,
+            chunk_lines: 64 * BLOCK,
         }
     }
 }
@@ -773,33 +775,63 @@ where
     let mut bytes = 0u64;
     let mut current: Vec<RawLine> = Vec::with_capacity(chunk);
     let mut next: Vec<RawLine> = Vec::with_capacity(chunk);
-    let (mut n, mut got, mut eof) = read_chunk(&mut input, &mut current, chunk)?;
+    // The first chunk is read before anything else can run: a short one (two blocks) gets
+    // the workers going sooner. Each next chunk is four times the last (up to `chunk`), so
+    // that it is read in the time the workers take over the last one, and the chunks (where
+    // a worker may wait for the other's last block) are few. Every size is a whole number of
+    // blocks, so the blocks start at the same line numbers whatever the sizes.
+    let mut size = (2 * sizes.block.max(1)).min(chunk);
+    let (mut n, mut got, mut eof) = read_chunk(&mut input, &mut current, size)?;
     bytes += got;
+    // The records of the chunk solved last, written while the next one is solved.
+    let mut pending: Vec<(Vec<u8>, usize, usize)> = Vec::new();
     while n > 0 {
-        // Solve this chunk while the next one is read.
-        let (read, results) = rayon::join(
-            || {
-                if eof {
-                    Ok((0, 0, true))
-                } else {
-                    read_chunk(&mut input, &mut next, chunk)
-                }
-            },
-            || solve_chunk(&current[..n], first_line, sizes, make),
-        );
-        for (out, records, failed) in &results {
-            output.write_all(out)?;
-            summary.records += records;
-            summary.failed += failed;
-        }
+        // Solve this chunk and read the next one on the workers (a helper thread waits for
+        // them) while this thread writes the records of the previous chunk.
+        size = (4 * size).min(chunk);
+        let (solved, written) = std::thread::scope(|scope| {
+            let work = scope.spawn(|| {
+                rayon::join(
+                    || {
+                        if eof {
+                            Ok((0, 0, true))
+                        } else {
+                            read_chunk(&mut input, &mut next, size)
+                        }
+                    },
+                    || solve_chunk(&current[..n], first_line, sizes, make),
+                )
+            });
+            let written = write_results(&mut output, &pending, &mut summary);
+            let solved = work.join().unwrap_or_else(|payload| std::panic::resume_unwind(payload));
+            (solved, written)
+        });
+        written?;
+        let (read, results) = solved;
+        pending = results;
         first_line += n;
         progress(bytes, first_line);
         (n, got, eof) = read?;
         bytes += got;
         std::mem::swap(&mut current, &mut next);
     }
+    write_results(&mut output, &pending, &mut summary)?;
     output.flush()?;
     Ok(summary)
+}
+
+/// Writes the records of solved blocks in order and counts them.
+fn write_results<W: Write>(
+    output: &mut W,
+    results: &[(Vec<u8>, usize, usize)],
+    summary: &mut BatchSummary,
+) -> io::Result<()> {
+    for (out, records, failed) in results {
+        output.write_all(out)?;
+        summary.records += records;
+        summary.failed += failed;
+    }
+    Ok(())
 }
 
 /// Reads up to `chunk` lines (and about [`CHUNK_BYTES`]) into `lines`, buffers re-used:

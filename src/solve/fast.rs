@@ -42,11 +42,14 @@ const NU_SPAN: usize = 12;
 pub(crate) struct Buffers {
     work: Vec<f64>,
     old_ln_gamma: Vec<f64>,
-    coef: Vec<[f64; 4]>,
     sig: Vec<f64>,
     /// The point's component activities (given to the point; a caller that is done with it
     /// hands it back with [`Buffers::keep_y`]).
     y: Vec<f64>,
+    /// The molalities and ln γ of an evaluation whose result has been read (see
+    /// [`recycle`]).
+    conc: Vec<f64>,
+    ln_gamma: Vec<f64>,
 }
 
 impl Buffers {
@@ -85,11 +88,41 @@ pub(crate) struct Fast<'a> {
     pw: [f64; 2 * NU_SPAN + 1],
     /// The buffer the next point's activities are written into.
     y: Vec<f64>,
-    /// Per species for the joint step: (ν(H⁺), z⁺, z⁻, z²) with z⁺ = max(z, 0) and
-    /// z⁻ = max(−z, 0).
-    coef: Vec<[f64; 4]>,
-    /// d ln γ/dI of each species at the current I (filled for the joint step only).
+    /// Buffers kept for the next evaluation (not used here).
+    spare: (Vec<f64>, Vec<f64>),
+    /// The system's uncoupled species by component (`System::fast_members`).
+    members: &'a [Member],
+    member_start: &'a [usize],
+    /// d ln γ/dI of each entry of `members` at the current I (filled for the joint step
+    /// only).
     sig: Vec<f64>,
+}
+
+/// One uncoupled species as the fast path's passes read it: its index, its position in the
+/// power table, ν(H⁺), z⁺ = max(z, 0), z⁻ = max(−z, 0) and z².
+#[derive(Debug, Default, Clone, Copy, PartialEq)]
+pub(crate) struct Member {
+    s: usize,
+    k: usize,
+    nu: f64,
+    zp: f64,
+    zn: f64,
+    z2: f64,
+}
+
+impl Member {
+    /// Species `s` with ν(H⁺) = `nu` (within ±[`NU_SPAN`], checked when the system is
+    /// compiled) and charge `z`.
+    pub(crate) fn new(s: usize, nu: i32, z: f64) -> Self {
+        Member {
+            s,
+            k: (nu + NU_SPAN as i32) as usize,
+            nu: f64::from(nu),
+            zp: z.max(0.0),
+            zn: (-z).max(0.0),
+            z2: z * z,
+        }
+    }
 }
 
 /// Everything one Newton step on (L, ln I) needs, from one pass over the species at fixed
@@ -112,7 +145,11 @@ struct Joint {
 impl<'a> Fast<'a> {
     #[cfg(test)]
     pub(crate) fn new(sys: &'a System) -> Self {
-        Self::with(sys, Buffers::default(), Evaluation::without_slopes(sys))
+        Self::with(
+            sys,
+            Buffers::default(),
+            Evaluation::without_slopes_in(sys, Vec::new(), Vec::new()),
+        )
     }
 
     /// The fast path on `sys` in the given buffers (resized as needed) and evaluation (which
@@ -123,9 +160,10 @@ impl<'a> Fast<'a> {
         let Buffers {
             mut work,
             old_ln_gamma,
-            coef,
             sig,
             y,
+            conc,
+            ln_gamma,
         } = bufs;
         work.clear();
         work.resize(ns + 2 * nc, 0.0);
@@ -139,7 +177,9 @@ impl<'a> Fast<'a> {
             old_ln_gamma,
             l_ref: f64::NAN,
             pw: [1.0; 2 * NU_SPAN + 1],
-            coef,
+            spare: (conc, ln_gamma),
+            members: &sys.fast_members,
+            member_start: &sys.fast_member_start,
             sig,
             y,
         }
@@ -151,24 +191,19 @@ impl<'a> Fast<'a> {
             Buffers {
                 work: self.work,
                 old_ln_gamma: self.old_ln_gamma,
-                coef: self.coef,
                 sig: self.sig,
                 y: self.y,
+                conc: self.spare.0,
+                ln_gamma: self.spare.1,
             },
             self.ev,
         )
     }
 
-    /// Prepares the per-species tables of the joint step.
+    /// Prepares the slopes of the joint step.
     fn prepare_joint(&mut self) {
-        let sys = self.sys;
-        self.coef.clear();
-        self.coef.extend(sys.species.iter().zip(&sys.nu_h).map(|(sp, &nu)| {
-            let z = f64::from(sp.charge);
-            [f64::from(nu), z.max(0.0), (-z).max(0.0), z * z]
-        }));
         self.sig.clear();
-        self.sig.resize(self.ns, 0.0);
+        self.sig.resize(self.members.len(), 0.0);
     }
 
     /// d ln γ/dI of every species at ionic strength `i` into `sig` (models whose γ depends on
@@ -178,11 +213,12 @@ impl<'a> Fast<'a> {
         let profile = crate::activity::GammaProfile::new(sys.model, i, &sys.dh);
         if sys.model == crate::activity::ActivityModel::Davies {
             let unit = profile.at(1, 0.0).1 * LN10;
-            for (sig, c) in self.sig.iter_mut().zip(&self.coef) {
-                *sig = unit * c[3];
+            for (sig, m) in self.sig.iter_mut().zip(self.members) {
+                *sig = unit * m.z2;
             }
         } else {
-            for (sig, sp) in self.sig.iter_mut().zip(&sys.species) {
+            for (sig, m) in self.sig.iter_mut().zip(self.members) {
+                let sp = &sys.species[m.s];
                 *sig = profile.at(sp.charge, sp.ion_size_angstrom).1 * LN10;
             }
         }
@@ -213,17 +249,16 @@ impl<'a> Fast<'a> {
         let sys = self.sys;
         let (ns, nc) = (self.ns, self.nc);
         let pw = &self.pw;
-        let coef = &self.coef[..ns];
-        let sig = &self.sig[..ns];
         let (work, tail) = self.work.split_at_mut(ns);
         let work = &*work;
-        let weight = |s: usize| work[s] * pw[(coef[s][0] as i32 + NU_SPAN as i32) as usize];
+        let members = &self.members;
+        let sig = &self.sig[..members.len()];
+        let start = &self.member_start;
         let mut j = Joint::default();
-        for &s in &sys.members[0] {
-            let v = weight(s);
-            let [nu, zp, zn, z2] = coef[s];
-            let sg = sig[s];
-            let z = zp - zn;
+        for (m, &sg) in members[start[0]..start[1]].iter().zip(&sig[start[0]..start[1]]) {
+            let v = work[m.s] * pw[m.k];
+            let (nu, z2) = (m.nu, m.z2);
+            let z = m.zp - m.zn;
             let (a, al, ai) = (z.abs() * v, z.abs() * nu * v, -z.abs() * sg * v);
             if z > 0.0 {
                 j.pos += a;
@@ -246,22 +281,22 @@ impl<'a> Fast<'a> {
             }
             // Σv, Σν·v, Σσ·v; per sign Σz·v, Σz·ν·v, Σz·σ·v; Σz²·v, Σz²·ν·v, Σz²·σ·v.
             let mut a = [0.0f64; 12];
-            for &s in &sys.members[g] {
-                let v = weight(s);
-                let [nu, zp, zn, z2] = coef[s];
-                let (nv, sv) = (nu * v, sig[s] * v);
+            let r = start[g]..start[g + 1];
+            for (m, &sg) in members[r.clone()].iter().zip(&sig[r]) {
+                let v = work[m.s] * pw[m.k];
+                let (nv, sv) = (m.nu * v, sg * v);
                 a[0] += v;
                 a[1] += nv;
                 a[2] += sv;
-                a[3] += zp * v;
-                a[4] += zp * nv;
-                a[5] += zp * sv;
-                a[6] += zn * v;
-                a[7] += zn * nv;
-                a[8] += zn * sv;
-                a[9] += z2 * v;
-                a[10] += z2 * nv;
-                a[11] += z2 * sv;
+                a[3] += m.zp * v;
+                a[4] += m.zp * nv;
+                a[5] += m.zp * sv;
+                a[6] += m.zn * v;
+                a[7] += m.zn * nv;
+                a[8] += m.zn * sv;
+                a[9] += m.z2 * v;
+                a[10] += m.z2 * nv;
+                a[11] += m.z2 * sv;
             }
             let s0 = a[0];
             ok &= s0 > 1e-250 && s0 < 1e250;
@@ -295,10 +330,12 @@ impl<'a> Fast<'a> {
         y.resize(nc, f64::NEG_INFINITY);
         y[0] = l;
         let mut ionic = 0.0;
-        for &s in &sys.members[0] {
-            let c = self.weight(s);
-            self.ev.conc[s] = c;
-            ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * c;
+        let (work, pw, members) = (&self.work[..ns], &self.pw, self.members);
+        let conc = &mut self.ev.conc;
+        for m in &members[self.member_start[0]..self.member_start[1]] {
+            let c = work[m.s] * pw[m.k];
+            conc[m.s] = c;
+            ionic += 0.5 * m.z2 * c;
         }
         for (g, yg) in y.iter_mut().enumerate().skip(1) {
             let t = sys.components[g].total_molal;
@@ -307,15 +344,16 @@ impl<'a> Fast<'a> {
             }
             let mut s0 = 0.0;
             let mut q = 0.0;
-            for &s in &sys.members[g] {
-                let v = self.weight(s);
-                self.ev.conc[s] = v;
+            let group = &members[self.member_start[g]..self.member_start[g + 1]];
+            for m in group {
+                let v = work[m.s] * pw[m.k];
+                conc[m.s] = v;
                 s0 += v;
-                q += sys.charge_f[s] * sys.charge_f[s] * v;
+                q += m.z2 * v;
             }
             let tt = t / s0;
-            for &s in &sys.members[g] {
-                self.ev.conc[s] *= tt;
+            for m in group {
+                conc[m.s] *= tt;
             }
             ionic += 0.5 * tt * q;
             // Σ_s m_s = a_g · e^{m_g} · Σv = T, so ln a_g = ln T − m_g − ln Σv.
@@ -364,11 +402,22 @@ impl<'a> Fast<'a> {
             let unit = profile.at(1, 0.0).0 * LN10; // ln γ of a singly charged ion
             let old_unit = self.davies_unit;
             let base = (old_unit - unit).exp();
+            // base^(z²), taken once per |z| (species share a few charges).
+            let mut factor = [f64::NAN; 8];
             for (s, sp) in sys.species.iter().enumerate() {
                 let z2 = sp.charge * sp.charge;
                 if z2 != 0 {
                     self.ev.ln_gamma[s] = unit * f64::from(z2);
-                    self.work[s] *= base.powi(z2);
+                    let f = match factor.get_mut(sp.charge.unsigned_abs() as usize) {
+                        Some(slot) => {
+                            if slot.is_nan() {
+                                *slot = base.powi(z2);
+                            }
+                            *slot
+                        }
+                        None => base.powi(z2),
+                    };
+                    self.work[s] *= f;
                 }
             }
             self.davies_unit = unit;
@@ -426,10 +475,12 @@ impl<'a> Fast<'a> {
         let sys = self.sys;
         let nc = sys.components.len();
         let mut b = Balance::default();
-        for &s in &sys.members[0] {
-            let v = self.weight(s);
-            let z = sys.charge_f[s];
-            let d = z * f64::from(sys.nu_h[s]) * v;
+        let (work, tail) = self.work.split_at_mut(self.ns);
+        let (work, pw, members, start) = (&*work, &self.pw, &self.members, &self.member_start);
+        for m in &members[start[0]..start[1]] {
+            let v = work[m.s] * pw[m.k];
+            let z = m.zp - m.zn;
+            let d = z * m.nu * v;
             if z > 0.0 {
                 b.pos += z * v;
                 b.dpos += d;
@@ -439,13 +490,16 @@ impl<'a> Fast<'a> {
             }
         }
         let mut ok = b.pos.is_finite() && b.neg.is_finite();
-        for g in self.active() {
+        for g in 1..nc {
+            if sys.components[g].total_molal <= 0.0 {
+                continue;
+            }
             // Σv, Σν·v, and Σz·v, Σz·ν·v over the positive and over the negative species.
             let (mut s0, mut sn, mut zp, mut znp, mut zm, mut znm) = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
-            for &s in &sys.members[g] {
-                let v = self.weight(s);
-                let (nu, zpos, zneg) = sys.fast_coef[s];
-                let nv = nu * v;
+            for m in &members[start[g]..start[g + 1]] {
+                let v = work[m.s] * pw[m.k];
+                let (zpos, zneg) = (m.zp, m.zn);
+                let nv = m.nu * v;
                 s0 += v;
                 sn += nv;
                 zp += zpos * v;
@@ -461,7 +515,7 @@ impl<'a> Fast<'a> {
             b.dpos += t * (znp - zp * nbar);
             b.neg += t * zm;
             b.dneg += t * (znm - zm * nbar);
-            self.work[self.ns + nc + g] = s0;
+            tail[nc + g] = s0;
         }
         b.ok = ok;
         b
@@ -643,16 +697,27 @@ fn no_root(l: f64, evals: usize) -> Error {
 /// (ln a(H⁺), ln I); `tol` the relative ionic-strength tolerance. Returns the point, the
 /// evaluation at it and the number of pH-equation evaluations.
 pub(crate) fn solve(sys: &System, start: Option<(f64, f64)>, tol: f64) -> Result<(Point, Evaluation, usize)> {
-    let bufs = SPARE.take().unwrap_or_default();
-    let fast = Fast::with(sys, bufs, Evaluation::without_slopes(sys));
+    let mut bufs = SPARE.take().unwrap_or_default();
+    let ev = Evaluation::without_slopes_in(sys, std::mem::take(&mut bufs.conc), std::mem::take(&mut bufs.ln_gamma));
+    let fast = Fast::with(sys, bufs, ev);
     let (result, fast) = run(fast, start, tol, true);
     let (bufs, ev) = fast.into_parts();
     SPARE.set(Some(bufs));
     result.map(|(p, n)| (p, ev, n))
 }
 
+/// Keeps an evaluation's molalities and ln γ and a point's activities, once the result has
+/// been read from them, for the next fast solve on this thread.
+pub(crate) fn recycle(conc: Vec<f64>, ln_gamma: Vec<f64>, y: Vec<f64>) {
+    let mut bufs = SPARE.take().unwrap_or_default();
+    bufs.conc = conc;
+    bufs.ln_gamma = ln_gamma;
+    bufs.y = y;
+    SPARE.set(Some(bufs));
+}
+
 /// [`solve`] in caller-owned buffers and evaluation (sized for `sys`, as
-/// [`Evaluation::without_slopes`] makes it). Gives the point and the evaluations spent.
+/// [`Evaluation::without_slopes_in`] makes it). Gives the point and the evaluations spent.
 pub(crate) fn solve_in(
     sys: &System,
     start: Option<(f64, f64)>,

@@ -214,12 +214,17 @@ impl Evaluation {
         }
     }
 
-    /// An evaluation that does not keep d ln γ/dI (the fast path does not need it).
-    pub(crate) fn without_slopes(sys: &System) -> Self {
+    /// An evaluation that does not keep d ln γ/dI (the fast path does not need it), in the
+    /// given buffers (resized and zeroed).
+    pub(crate) fn without_slopes_in(sys: &System, mut conc: Vec<f64>, mut ln_gamma: Vec<f64>) -> Self {
         let n = sys.species.len();
+        conc.clear();
+        conc.resize(n, 0.0);
+        ln_gamma.clear();
+        ln_gamma.resize(n, 0.0);
         Evaluation {
-            conc: vec![0.0; n],
-            ln_gamma: vec![0.0; n],
+            conc,
+            ln_gamma,
             dln_gamma_di: Vec::new(),
             held: Self::first_composition(sys),
             phase_amounts: Vec::new(),

@@ -68,6 +68,26 @@ impl Workspace {
         self.start = eq.unknowns().first().map(|&l| (l, eq.ln_ionic_strength()));
     }
 
+    /// The start of the next solve: (ln a(H⁺), ln I), or `None` for a cold start.
+    pub(crate) fn set_start(&mut self, start: Option<(f64, f64)>) {
+        self.start = start;
+    }
+
+    /// The last solution held: (ln a(H⁺), ln I).
+    pub(crate) fn start(&self) -> Option<(f64, f64)> {
+        self.start
+    }
+
+    /// The molality of each species at the last fast-path solution.
+    pub(crate) fn molal(&self) -> &[f64] {
+        &self.conc
+    }
+
+    /// ln a of each component at the last fast-path solution.
+    pub(crate) fn unknowns(&self) -> &[f64] {
+        self.bufs.y()
+    }
+
     /// The evaluation for `sys` in the workspace's buffers (all zero).
     fn take_evaluation(&mut self, sys: &System) -> Evaluation {
         let n = sys.species.len();
@@ -133,7 +153,7 @@ impl Solver {
             ph: eq.ph(),
             p_h_molal: eq.p_h_molal(),
             ionic_strength_molal: eq.ionic_strength_molal(),
-            max_residual: eq.residuals().max_relative(),
+            max_residual: eq.max_residual(),
             path: eq.path(),
         })
     }
@@ -144,7 +164,7 @@ impl Solver {
     /// relation (a solid allowed to form, a fixed partial pressure or pH; solids that are only
     /// reported are read after the solve), the fast path chosen, and γ that depend on the
     /// ionic strength only.
-    fn lean_applies(&self, sys: &System) -> bool {
+    pub(crate) fn lean_applies(&self, sys: &System) -> bool {
         self.path == PathChoice::Auto
             && !sys.has_phase_constraints()
             && sys.open.iter().all(|o| !o)
@@ -156,7 +176,7 @@ impl Solver {
     /// The fast path in the workspace; `None` where it gives no finite result in the solver's
     /// range (the full solve then decides). Starts from the workspace's last solution, then
     /// cold.
-    fn solve_lean(&self, sys: &System, workspace: &mut Workspace) -> Result<Option<PhSolution>> {
+    pub(crate) fn solve_lean(&self, sys: &System, workspace: &mut Workspace) -> Result<Option<PhSolution>> {
         for start in [workspace.start, None] {
             let mut ev = workspace.take_evaluation(sys);
             let r = fast::solve_in(sys, start, self.tolerance, &mut workspace.bufs, &mut ev);
