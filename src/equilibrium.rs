@@ -64,6 +64,13 @@ pub struct Residuals {
     /// (SIT): the largest change of any ln γ between the composition γ was taken at and the
     /// returned one. 0 for models whose γ depends on I only.
     pub activity_coefficients_ln: f64,
+    /// The residual of each phase relation the solve held as an equality, by relation:
+    /// `partial pressure of G` (ln of the partial pressure over the fixed one, the relative
+    /// error for small values), `pH` (ln a(H⁺) minus the fixed value's), `saturation of S` for
+    /// each solid present (ln of its saturation ratio, SI·ln 10) and, where an ion closes the
+    /// charge balance beside a fixed pH, `charge balance closed on X` (the H⁺ still taken to
+    /// hold the pH, relative to Σ |z|·m). Empty without phase constraints.
+    pub phases: Vec<(Arc<str>, f64)>,
 }
 
 impl Residuals {
@@ -79,14 +86,18 @@ impl Residuals {
     /// The largest relative residual over every equation solved: the charge balance, each
     /// mass balance, the ionic-strength equation (0 under the ideal model, where the
     /// ionic strength is reported as the species give it) and, for a model whose γ depends
-    /// on the composition (SIT), the activity-coefficient iteration. This is the number the residual
+    /// on the composition (SIT), the activity-coefficient iteration, and each phase relation
+    /// held as an equality ([`phases`](Self::phases)). This is the number the residual
     /// promise is about: at most [`RESIDUAL_PROMISE`](crate::limits::RESIDUAL_PROMISE) (or
     /// the solver's tolerance, if set looser) for every returned result, else the result
     /// carries [`Warning::ResidualAbovePromise`].
     pub fn max_relative(&self) -> f64 {
-        self.max_balance_relative()
-            .max(self.ionic_strength_relative.abs())
-            .max(self.activity_coefficients_ln.abs())
+        self.phases.iter().fold(
+            self.max_balance_relative()
+                .max(self.ionic_strength_relative.abs())
+                .max(self.activity_coefficients_ln.abs()),
+            |m, (_, v)| m.max(v.abs()),
+        )
     }
 }
 
@@ -97,12 +108,15 @@ enum Equation {
     Mass(usize),
     IonicStrength,
     ActivityCoefficients,
+    /// A phase relation held as an equality (index into the result's phase residuals).
+    Phase(usize),
 }
 
 impl Equation {
     /// The equation's name, as the residual warning gives it.
-    fn name(self, components: &[Arc<str>]) -> String {
+    fn name(self, components: &[Arc<str>], phases: &[(Arc<str>, f64)]) -> String {
         match self {
+            Equation::Phase(k) => phases[k].0.to_string(),
             Equation::Charge => "charge balance".to_string(),
             Equation::Mass(c) => format!("mass balance of {}", components[c]),
             Equation::IonicStrength => "ionic-strength equation".into(),
@@ -243,6 +257,8 @@ struct PhaseReport {
     total_alkalinity_molal: f64,
     carbonate_alkalinity_molal: f64,
     dic_molal: f64,
+    /// The residual of each phase relation held as an equality (see [`Residuals::phases`]).
+    residuals: Vec<(Arc<str>, f64)>,
 }
 
 impl Equilibrium {
@@ -447,6 +463,40 @@ impl Equilibrium {
             }
         }
         let charge_relative = if charge_scale > 0.0 { charge / charge_scale } else { 0.0 };
+        // The phase relations held as equalities: a fixed partial pressure or pH, each solid
+        // present, and the closing ion's condition (no H⁺ taken beside a fixed pH).
+        let mut phase_residuals: Vec<(Arc<str>, f64)> = Vec::new();
+        if solved {
+            let closed_on = sys
+                .phases
+                .iter()
+                .find(|r| matches!(r.kind, RowKind::Closure))
+                .map(|r| r.name.clone());
+            for (w, row) in sys.phases.iter().enumerate() {
+                let (label, r): (Arc<str>, f64) = match row.kind {
+                    RowKind::Gas { fixed: Some(lp) } => (
+                        format!("partial pressure of {}", row.name).into(),
+                        row.ln_q(&point.y) - lp,
+                    ),
+                    RowKind::Ph { ln_a_h } => {
+                        if let Some(ion) = &closed_on {
+                            let r = if charge_scale > 0.0 {
+                                amount(w) / charge_scale
+                            } else {
+                                0.0
+                            };
+                            phase_residuals.push((format!("charge balance closed on {ion}").into(), r));
+                        }
+                        ("pH".into(), point.y[0] - ln_a_h)
+                    }
+                    RowKind::Solid { allowed: true } if amount(w) > 0.0 => {
+                        (format!("saturation of {}", row.name).into(), row.ln_q(&point.y))
+                    }
+                    _ => continue,
+                };
+                phase_residuals.push((label, if r.is_nan() { f64::INFINITY } else { r }));
+            }
+        }
         let ionic_strength_relative = if ideal { 0.0 } else { (ionic - i) / i };
         let activity_coefficients_ln = ev.composition_change(sys);
         let mut warnings = sys.compile_warnings.clone();
@@ -491,9 +541,14 @@ impl Equilibrium {
         if activity_coefficients_ln.abs() > worst.1 {
             worst = (Equation::ActivityCoefficients, activity_coefficients_ln.abs());
         }
+        for (k, (_, r)) in phase_residuals.iter().enumerate() {
+            if r.abs() > worst.1 {
+                worst = (Equation::Phase(k), r.abs());
+            }
+        }
         if worst.1 > promise {
             warnings.push(Warning::ResidualAbovePromise {
-                equation: worst.0.name(&layout.component_names),
+                equation: worst.0.name(&layout.component_names, &phase_residuals),
                 residual: worst.1,
                 promise,
             });
@@ -583,6 +638,7 @@ impl Equilibrium {
                 dic_molal,
                 total_alkalinity_molal: alkalinity,
                 carbonate_alkalinity_molal: carbonate_alkalinity,
+                residuals: phase_residuals,
             },
             records: OnceLock::new(),
         })
@@ -645,6 +701,7 @@ impl Equilibrium {
                 mass_relative: pick(3),
                 ionic_strength_relative: self.ionic_strength_relative,
                 activity_coefficients_ln: self.activity_coefficients_ln,
+                phases: self.phases.residuals.clone(),
             },
         }
     }
@@ -676,6 +733,7 @@ impl Equilibrium {
             .fold(self.charge_relative.abs(), f64::max)
             .max(self.ionic_strength_relative.abs())
             .max(self.activity_coefficients_ln.abs())
+            .max(self.phases.residuals.iter().fold(0.0, |m, (_, v)| m.max(v.abs())))
     }
 
     /// pH on the molal scale under the system's [`PhConvention`] (see

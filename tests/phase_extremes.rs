@@ -369,9 +369,11 @@ fn co2_solubility_follows_weiss_1974() {
 // Known defects of the solver (src/solve, src/equilibrium.rs), found by the property test
 // above and reported to its owners; run with `cargo test --test phase_extremes -- --ignored`.
 
-/// A fixed partial pressure is an equality the result must keep (by definition).
+/// A fixed partial pressure is an equality the result must keep (by definition), and the
+/// result reports its residual with the balances' (the residual promise covers every equation
+/// solved, `limits::RESIDUAL_PROMISE`). Once held only to 2.6e-4 (relative) at pH 0, 0 °C,
+/// with 1 mol/kg of carbonate given off, while the largest residual reported was 0.
 #[test]
-#[ignore = "known defect in the solver: a fixed pCO2 held only to 2.6e-4 (relative) at pH 0, 0 °C, with 1 mol/kg of carbonate given off; the residuals do not include the phase equalities"]
 fn a_fixed_partial_pressure_is_held_where_nearly_all_carbon_leaves() {
     let cat = Catalog::builtin();
     let p = 1.2545925180528328e-12;
@@ -389,6 +391,16 @@ fn a_fixed_partial_pressure_is_held_where_nearly_all_carbon_leaves() {
         .unwrap();
     let got = eq.gas("CO2(g)").unwrap().partial_pressure.as_atm();
     assert!((got / p - 1.0).abs() < 1e-9, "{got} against {p}");
+    let res = eq.residuals();
+    let names: Vec<&str> = res.phases.iter().map(|(n, _)| &**n).collect();
+    assert_eq!(names, ["partial pressure of CO2(g)", "pH"]);
+    assert!(
+        res.phases
+            .iter()
+            .all(|(_, v)| v.abs() <= protolyte::limits::RESIDUAL_PROMISE),
+        "{res:?}"
+    );
+    assert!(res.max_relative() <= protolyte::limits::RESIDUAL_PROMISE, "{res:?}");
 }
 
 /// Water holds 55.5 mol/kg of itself: a result with 6e9 mol/kg of carbonate dissolved is not

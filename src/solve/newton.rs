@@ -761,7 +761,11 @@ fn constrained_convex(
     let mut trial = p.clone();
     ev.set_conc(sys, p);
     let mut value = objective(ev, &p.y);
-    let mut lam = vec![0.0; r];
+    // The multipliers start at the amounts the rows held last (zero for a row new to the
+    // set) and the KKT system is solved for their change: where nearly all of a component
+    // sits in a phase (a gas taking almost all the carbon), ∇G alone is of the size of that
+    // component's total, and the row's small infeasibility would be lost in its round-off.
+    let mut lam: Vec<f64> = working.iter().map(|&w| lambda[w]).collect();
     // Work space, allocated once a call.
     let mut grad = vec![0.0; n];
     let mut scale = vec![0.0; n];
@@ -812,7 +816,11 @@ fn constrained_convex(
             (false, false) => 0.0,
         });
         for k in 0..n {
-            rhs[k] = -grad[k] * d_inv[k];
+            let mut g = grad[k];
+            for (j, l) in lam.iter().enumerate() {
+                g += nmat[(j, k)] * l;
+            }
+            rhs[k] = -g * d_inv[k];
         }
         for j in 0..r {
             rhs[n + j] = e[j] * row_scale[j];
@@ -829,7 +837,7 @@ fn constrained_convex(
             d[k] = rhs[k] * d_inv[k];
         }
         for j in 0..r {
-            lam[j] = rhs[n + j] * row_scale[j];
+            lam[j] += rhs[n + j] * row_scale[j];
         }
         // Stationarity of the Lagrangian with the new multipliers: ∇G + Nᵀλ = −H·Δy.
         let mut worst = 0.0f64;
@@ -1215,9 +1223,56 @@ pub(crate) fn solve_phases(
         apply(&mut totals, cw, -delta);
         check_closure(sys, &lay, cw, &totals)?;
     }
+    // The phase relations held (fixed partial pressures and pH, solids present) are
+    // equations of the result like the balances: held to the same tolerance, once more from
+    // here if they are not, else no convergence is reported.
+    let limit = crate::limits::RESIDUAL_PROMISE.max(tol);
+    for again in [true, false] {
+        let Some((worst, w)) = worst_row(sys, &p, &working, &lambda) else {
+            break;
+        };
+        if worst <= limit {
+            break;
+        }
+        if !again {
+            return Err(Error::NoConvergence {
+                path: "general",
+                iterations: iters,
+                max_residual: worst,
+                worst_equation: format!("phase relation of {}", sys.phases[w].name),
+                last_ph: -p.y[0] / LN10,
+            });
+        }
+        iters += settle(
+            sys,
+            &mut ev,
+            &lay,
+            &mut p,
+            &mut working,
+            &allowed,
+            &mut lambda,
+            &totals,
+            tol,
+            max_iter,
+        )?;
+    }
     ev.set_conc(sys, &p);
     ev.phase_amounts = lambda;
     Ok((p, ev, iters))
+}
+
+/// The largest |ν·y − c| over the rows held as equalities (fixed partial pressures and pH,
+/// solids present), with its row; `None` when no row is held.
+fn worst_row(sys: &System, p: &Point, working: &[usize], lambda: &[f64]) -> Option<(f64, usize)> {
+    working
+        .iter()
+        .filter(|&&w| sys.phases[w].is_equality() || lambda[w] > 0.0)
+        .map(|&w| {
+            let row = &sys.phases[w];
+            let v = row.terms.iter().map(|&(c, nu)| nu * p.y[c]).sum::<f64>() - row.rhs();
+            (if v.is_nan() { f64::INFINITY } else { v.abs() }, w)
+        })
+        .max_by(|a, b| a.0.total_cmp(&b.0))
 }
 
 /// Refuses a closing ion whose total would be negative.
