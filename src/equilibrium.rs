@@ -6,7 +6,7 @@ use std::sync::{Arc, OnceLock};
 use crate::activity::sit::Interactions;
 use crate::activity::{ActivityModel, PhConvention};
 use crate::error::{Error, Result};
-use crate::limits::{MIN_TOTAL_MOLAL, RESIDUAL_PROMISE, TESTED_MAX_TOTAL_MOLAR};
+use crate::limits::{MAX_TOTAL_MOLAL, MIN_TOTAL_MOLAL, RESIDUAL_PROMISE, TESTED_MAX_TOTAL_MOLAR};
 use crate::phase::{GasState, Pressure, RowKind, SUPERSATURATION_TOLERANCE, SolidState};
 use crate::quantity::Temperature;
 use crate::solve::{Evaluation, Point, Solver, SolverPath};
@@ -432,6 +432,42 @@ impl Equilibrium {
             }
         }
         let charge = charge + charge_elsewhere;
+        // What a phase brings in is bounded like what is put in: a dissolved total above
+        // MAX_TOTAL_MOLAL (a gas or a closing ion supplying it without end), or acid or base
+        // beyond it taken to hold a fixed pH, is refused, naming the constraints.
+        if phased && solved {
+            for (ci, comp) in sys.components.iter().enumerate().skip(1) {
+                let dissolved = numbers[aqueous(ci)];
+                if dissolved > MAX_TOTAL_MOLAL {
+                    return Err(Error::AmountTooLarge {
+                        what: format!(
+                            "dissolved total of {} brought in by {}",
+                            comp.name,
+                            sources(sys, ci, &amount)
+                        ),
+                        value: dissolved,
+                        unit: "mol/kg",
+                        limit: MAX_TOTAL_MOLAL,
+                    });
+                }
+            }
+            for (w, row) in sys.phases.iter().enumerate() {
+                if let RowKind::Ph { ln_a_h } = row.kind
+                    && amount(w).abs() > MAX_TOTAL_MOLAL
+                {
+                    return Err(Error::AmountTooLarge {
+                        what: format!(
+                            "{} taken to hold the pH fixed at {}",
+                            if amount(w) > 0.0 { "base" } else { "acid" },
+                            -ln_a_h / LN10
+                        ),
+                        value: amount(w).abs(),
+                        unit: "mol/kg",
+                        limit: MAX_TOTAL_MOLAL,
+                    });
+                }
+            }
+        }
         // Saturation indices, partial pressures, the acid or base of a fixed pH.
         let mut solids = Vec::with_capacity(sys.phases.len());
         let mut gases = Vec::new();
@@ -517,7 +553,14 @@ impl Equilibrium {
                     floor_molal: MIN_TOTAL_MOLAL,
                 });
             }
-            let molar = comp.total_molal * rho;
+            // With phases the dissolved total counts too (a gas or a closing ion can bring in
+            // more than was put in).
+            let dissolved = if phased && sys.component_active(c) {
+                numbers[aqueous(c)]
+            } else {
+                0.0
+            };
+            let molar = comp.total_molal.max(dissolved) * rho;
             if molar > TESTED_MAX_TOTAL_MOLAR * (1.0 + 1e-12) {
                 warnings.push(Warning::BeyondTestedDomain {
                     component: comp.name.to_string(),
@@ -1033,4 +1076,33 @@ impl System {
     pub fn solve(&self) -> Result<Equilibrium> {
         Solver::default().solve(self)
     }
+}
+
+/// The constraints that brought component `c` into solution (the rows whose amount moved it
+/// from another phase into the solution), for messages; a fixed pH beside them is named too.
+fn sources(sys: &System, c: usize, amount: &dyn Fn(usize) -> f64) -> String {
+    let mut out: Vec<String> = Vec::new();
+    for (w, row) in sys.phases.iter().enumerate() {
+        let nu = row.terms.iter().find(|&&(k, _)| k == c).map_or(0.0, |&(_, v)| v);
+        let into_solution = amount(w) * nu < 0.0;
+        match row.kind {
+            RowKind::Gas { fixed: Some(lp) } if into_solution => out.push(format!(
+                "the partial pressure of {} fixed at {:.4e} atm",
+                row.name,
+                lp.exp() / crate::phase::BAR_PER_ATM
+            )),
+            RowKind::Closure if into_solution => out.push(format!("the charge balance closed on {}", row.name)),
+            _ => {}
+        }
+    }
+    if out.is_empty() {
+        out.push("the amounts put in".into());
+    }
+    if let Some(ph) = sys.phases.iter().find_map(|r| match r.kind {
+        RowKind::Ph { ln_a_h } => Some(-ln_a_h / LN10),
+        _ => None,
+    }) {
+        out.push(format!("the pH fixed at {ph}"));
+    }
+    out.join(" with ")
 }
