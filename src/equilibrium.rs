@@ -440,11 +440,7 @@ impl Equilibrium {
                 let dissolved = numbers[aqueous(ci)];
                 if dissolved > MAX_TOTAL_MOLAL {
                     return Err(Error::AmountTooLarge {
-                        what: format!(
-                            "dissolved total of {} brought in by {}",
-                            comp.name,
-                            sources(sys, ci, &amount)
-                        ),
+                        what: format!("dissolved {} from {}", comp.name, sources(sys, ci, &amount)),
                         value: dissolved,
                         unit: "mol/kg",
                         limit: MAX_TOTAL_MOLAL,
@@ -459,7 +455,7 @@ impl Equilibrium {
                         what: format!(
                             "{} taken to hold the pH fixed at {}",
                             if amount(w) > 0.0 { "base" } else { "acid" },
-                            -ln_a_h / LN10
+                            crate::phase::fixed_ph_text(ln_a_h)
                         ),
                         value: amount(w).abs(),
                         unit: "mol/kg",
@@ -1079,7 +1075,8 @@ impl System {
 }
 
 /// The constraints that brought component `c` into solution (the rows whose amount moved it
-/// from another phase into the solution), for messages; a fixed pH beside them is named too.
+/// from another phase into the solution), in short for messages ("CO2(g) at 4.1600e-4 atm
+/// with pH 15.74"); a fixed pH beside them is named too.
 fn sources(sys: &System, c: usize, amount: &dyn Fn(usize) -> f64) -> String {
     let mut out: Vec<String> = Vec::new();
     for (w, row) in sys.phases.iter().enumerate() {
@@ -1087,22 +1084,22 @@ fn sources(sys: &System, c: usize, amount: &dyn Fn(usize) -> f64) -> String {
         let into_solution = amount(w) * nu < 0.0;
         match row.kind {
             RowKind::Gas { fixed: Some(lp) } if into_solution => out.push(format!(
-                "the partial pressure of {} fixed at {:.4e} atm",
+                "{} at {:.4e} atm",
                 row.name,
                 lp.exp() / crate::phase::BAR_PER_ATM
             )),
-            RowKind::Closure if into_solution => out.push(format!("the charge balance closed on {}", row.name)),
+            RowKind::Closure if into_solution => out.push(format!("closing the charge balance on {}", row.name)),
             _ => {}
         }
     }
     if out.is_empty() {
-        out.push("the amounts put in".into());
+        out.push("what was put in".into());
     }
     if let Some(ph) = sys.phases.iter().find_map(|r| match r.kind {
-        RowKind::Ph { ln_a_h } => Some(-ln_a_h / LN10),
+        RowKind::Ph { ln_a_h } => Some(crate::phase::fixed_ph_text(ln_a_h)),
         _ => None,
     }) {
-        out.push(format!("the pH fixed at {ph}"));
+        out.push(format!("pH {ph}"));
     }
     out.join(" with ")
 }

@@ -1205,7 +1205,7 @@ pub(crate) fn solve_phases(
             .map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
         let uptake = lambda[pw];
         let scale = totals.iter().fold(1e-30_f64, |a, t| a.max(t.abs()));
-        if uptake.abs() <= 1e-14 * scale {
+        if uptake.abs() <= tol.max(1e-14) * scale {
             break;
         }
         if pass + 1 == passes {
@@ -1219,6 +1219,31 @@ pub(crate) fn solve_phases(
         }
         // More of the ion by uptake/z; the closure row's amount is −δ.
         let delta = uptake / z;
+        // Where the relations held fix the ion's activity (a solid of it beside a fixed pH
+        // and partial pressure), whatever is added precipitates and the charge cannot change:
+        // the constraints cannot hold together.
+        if delta > 0.0
+            && let Some(&(ci, _)) = sys.phases[cw].terms.iter().find(|&&(c, _)| c != 0)
+        {
+            let unit = [(ci, 1.0)];
+            let mut rows: Vec<&[(usize, f64)]> = working.iter().map(|&w| &sys.phases[w].terms[..]).collect();
+            rows.push(&unit);
+            if !independent(&rows, nc) {
+                let present: Vec<usize> = working
+                    .iter()
+                    .copied()
+                    .filter(|&w| lambda[w] > 0.0 || sys.phases[w].is_equality())
+                    .collect();
+                return Err(Error::ConflictingConstraints {
+                    first: format!("charge balance closed on {}", sys.phases[cw].name),
+                    second: names(sys, &present),
+                    reason: format!(
+                        "these fix the activity of {0}, so {0} added to balance the charge precipitates and the charge left ({1:.4e} mol/kg) cannot be balanced",
+                        sys.phases[cw].name, uptake
+                    ),
+                });
+            }
+        }
         lambda[cw] -= delta;
         apply(&mut totals, cw, -delta);
         check_closure(sys, &lay, cw, &totals)?;
@@ -1275,12 +1300,32 @@ fn worst_row(sys: &System, p: &Point, working: &[usize], lambda: &[f64]) -> Opti
         .max_by(|a, b| a.0.total_cmp(&b.0))
 }
 
-/// Refuses a closing ion whose total would be negative.
+/// Refuses a closing ion whose total would be negative, or above
+/// [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL) (the limit of a total put in).
 fn check_closure(sys: &System, lay: &Layout, cw: usize, totals: &[f64]) -> Result<()> {
     for &(c, _) in sys.phases[cw].terms.iter().filter(|&&(c, _)| c != 0) {
-        if let Some(k) = lay.act.iter().position(|&a| a == c)
-            && totals[k] < 0.0
-        {
+        let Some(k) = lay.act.iter().position(|&a| a == c) else {
+            continue;
+        };
+        if totals[k] > crate::limits::MAX_TOTAL_MOLAL {
+            let ph = sys.phases.iter().find_map(|r| match r.kind {
+                RowKind::Ph { ln_a_h } => {
+                    Some(format!(" with the pH fixed at {}", crate::phase::fixed_ph_text(ln_a_h)))
+                }
+                _ => None,
+            });
+            return Err(Error::AmountTooLarge {
+                what: format!(
+                    "total of {} needed to close the charge balance{}",
+                    sys.components[c].name,
+                    ph.unwrap_or_default()
+                ),
+                value: totals[k],
+                unit: "mol/kg",
+                limit: crate::limits::MAX_TOTAL_MOLAL,
+            });
+        }
+        if totals[k] < 0.0 {
             return Err(Error::InfeasiblePhases {
                 reason: format!(
                     "closing the charge balance on {} needs {:e} mol/kg of it: the other ions leave a charge of its own sign",
@@ -1332,6 +1377,8 @@ fn settle(
         }
         i = p.ln_i.exp().clamp(I_MIN, I_MAX);
     }
+    // The last iterate whose species lay beyond the accepted limits, in words, with its I.
+    let mut beyond: Option<(f64, String)> = None;
     for _ in 0..80 {
         if iters > max_iter.max(200) * 4 {
             break;
@@ -1339,6 +1386,9 @@ fn settle(
         ev.set_gamma(sys, i);
         p.ln_i = i.ln();
         iters += assemblage(sys, ev, lay, p, working, allowed, lambda, totals, tol)?;
+        if let Some(why) = beyond_limits(sys, lay, ev, lambda) {
+            beyond = Some((i, why));
+        }
         let g: f64 = lay
             .species
             .iter()
@@ -1360,6 +1410,18 @@ fn settle(
         ev.hold_composition();
         i = secant_on_ionic_strength(i, g, &mut prev);
     }
+    // Where the relations held brought in more than the library accepts at an iterate
+    // (a high fixed pH under a fixed pCO₂: the activities of carbonate and OH⁻ are set, and
+    // only γ, which the model lets grow without bound at high I, could keep the molalities
+    // in range), that is the cause to report.
+    if let Some((i, why)) = beyond {
+        return Err(Error::InfeasiblePhases {
+            reason: format!(
+                "the ionic strength does not settle: at an iterate (γ taken at I = {i:.4e} mol/kg) {} bring in {why}",
+                held_constraints(sys)
+            ),
+        });
+    }
     Err(Error::NoConvergence {
         path: "general",
         iterations: iters,
@@ -1367,6 +1429,70 @@ fn settle(
         worst_equation: "ionic-strength equation with phases".into(),
         last_ph: -p.y[0] / LN10,
     })
+}
+
+/// What lies beyond the accepted limits at the current evaluation, in words: a dissolved
+/// total or the acid or base of a fixed pH above
+/// [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL), or (under an activity model) an ionic
+/// strength above [`MAX_IONIC_STRENGTH_MOLAL`](crate::limits::MAX_IONIC_STRENGTH_MOLAL).
+fn beyond_limits(sys: &System, lay: &Layout, ev: &Evaluation, lambda: &[f64]) -> Option<String> {
+    let max = crate::limits::MAX_TOTAL_MOLAL;
+    let mut dissolved = vec![0.0; sys.components.len()];
+    let mut ionic = 0.0;
+    for (idx, &s) in lay.species.iter().enumerate() {
+        let m = ev.conc[s];
+        for &(k, v) in &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]] {
+            dissolved[lay.act[k]] += v * m;
+        }
+        ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * m;
+    }
+    for (c, comp) in sys.components.iter().enumerate().skip(1) {
+        if dissolved[c] > max {
+            return Some(format!(
+                "{:.4e} mol/kg of {} dissolved, above the accepted maximum of {max} mol/kg",
+                dissolved[c], comp.name
+            ));
+        }
+    }
+    for (w, row) in sys.phases.iter().enumerate() {
+        if matches!(row.kind, RowKind::Ph { .. }) && lambda.get(w).is_some_and(|l| l.abs() > max) {
+            return Some(format!(
+                "{:.4e} mol/kg of {}, above the accepted maximum of {max} mol/kg",
+                lambda[w].abs(),
+                if lambda[w] > 0.0 { "base" } else { "acid" }
+            ));
+        }
+    }
+    if sys.model != crate::activity::ActivityModel::Ideal && ionic > I_MAX {
+        return Some(format!(
+            "species of ionic strength {ionic:.4e} mol/kg, above the limit of {I_MAX} mol/kg"
+        ));
+    }
+    None
+}
+
+/// The constraints held as equalities (fixed pH, fixed partial pressures, the ion closing the
+/// charge balance), described for messages.
+fn held_constraints(sys: &System) -> String {
+    let out: Vec<String> = sys
+        .phases
+        .iter()
+        .filter_map(|r| match r.kind {
+            RowKind::Ph { ln_a_h } => Some(format!("the pH fixed at {}", crate::phase::fixed_ph_text(ln_a_h))),
+            RowKind::Gas { fixed: Some(lp) } => Some(format!(
+                "the partial pressure of {} fixed at {:.4e} atm",
+                r.name,
+                lp.exp() / crate::phase::BAR_PER_ATM
+            )),
+            RowKind::Closure => Some(format!("the charge balance closed on {}", r.name)),
+            _ => None,
+        })
+        .collect();
+    if out.is_empty() {
+        "the amounts put in".into()
+    } else {
+        out.join(" and ")
+    }
 }
 
 /// The joint Newton of the general path with the phase rows of `working` held as equalities:
