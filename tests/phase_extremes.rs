@@ -581,3 +581,37 @@ fn ten_molal_calcium_chloride_and_sodium_carbonate_with_every_solid_allowed() {
         );
     }
 }
+
+/// pH fixed at −1.1 at 100 °C under SIT with the charge balance closed on chloride: the
+/// chloride needed moves γ(H⁺) strongly (SIT's ε(H⁺, Cl⁻)), which the plain fixed point on
+/// its amount overshot back and forth until 'no convergence'. The result balances the charge
+/// with chloride alone: the pH row takes no H⁺ (charge balance, by definition).
+#[test]
+fn a_closing_ion_that_moves_its_own_activity_coefficients_is_found() {
+    let cat = Catalog::builtin();
+    for (t, ph) in [(100.0, -1.1), (0.0, -0.85)] {
+        let mut r = Recipe::new();
+        r.fix_ph(ph)
+            .unwrap()
+            .close_charge_balance_on(&cat.ion("chloride").unwrap())
+            .unwrap();
+        let eq = r
+            .compile(&Conditions::new(Temperature::celsius(t), ActivityModel::Sit))
+            .unwrap()
+            .solve()
+            .unwrap();
+        let (ion, added) = eq.charge_balance_ion_added_molal().unwrap();
+        assert_eq!(ion, "chloride");
+        assert!(added > 1.0, "{added}");
+        assert!(
+            eq.proton_uptake_molal().abs() <= 1e-9 * added,
+            "{}",
+            eq.proton_uptake_molal()
+        );
+        assert!(
+            eq.residuals().max_relative() <= protolyte::limits::RESIDUAL_PROMISE,
+            "{:?}",
+            eq.residuals()
+        );
+    }
+}

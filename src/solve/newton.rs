@@ -1182,6 +1182,13 @@ pub(crate) fn solve_phases(
             }
         }
     }
+    // The closing ion's amount x is a root of f(x) = (H⁺ the pH row takes)/z, decreasing in x:
+    // fixed-point steps x + f until a sign change brackets it, then regula falsi with the
+    // Illinois modification (M. Dowell and P. Jarratt, BIT 11 (1971) 168–174) inside the
+    // bracket, which the plain fixed point overshoots where γ depends strongly on the ion.
+    let mut need_more: Option<(f64, f64)> = None;
+    let mut need_less: Option<(f64, f64)> = None;
+    let mut last_side = 0i8;
     for pass in 0..passes {
         iters += settle(
             sys,
@@ -1217,12 +1224,39 @@ pub(crate) fn solve_phases(
                 last_ph: -p.y[0] / LN10,
             });
         }
-        // More of the ion by uptake/z; the closure row's amount is −δ.
-        let delta = uptake / z;
+        // More of the ion by δ; the closure row's amount is −(the ion added).
+        let x = -lambda[cw];
+        let f = uptake / z;
+        let side = if f > 0.0 { 1 } else { -1 };
+        if side > 0 {
+            need_more = Some((x, f));
+        } else {
+            need_less = Some((x, f));
+        }
+        if side == last_side {
+            // The same end moved twice: halve the other end's value (Illinois).
+            let other = if side > 0 { &mut need_less } else { &mut need_more };
+            if let Some((_, fo)) = other.as_mut() {
+                *fo *= 0.5;
+            }
+        }
+        last_side = side;
+        let next = match (need_more, need_less) {
+            (Some((xl, fl)), Some((xh, fh))) => {
+                let s = xl - fl * (xh - xl) / (fh - fl);
+                if s.is_finite() && s > xl.min(xh) && s < xl.max(xh) {
+                    s
+                } else {
+                    0.5 * (xl + xh)
+                }
+            }
+            _ => x + f,
+        };
+        let delta = next - x;
         // Where the relations held fix the ion's activity (a solid of it beside a fixed pH
         // and partial pressure), whatever is added precipitates and the charge cannot change:
         // the constraints cannot hold together.
-        if delta > 0.0
+        if f > 0.0
             && let Some(&(ci, _)) = sys.phases[cw].terms.iter().find(|&&(c, _)| c != 0)
         {
             let unit = [(ci, 1.0)];
