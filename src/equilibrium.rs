@@ -6,7 +6,7 @@ use std::sync::{Arc, OnceLock};
 use crate::activity::sit::Interactions;
 use crate::activity::{ActivityModel, PhConvention};
 use crate::error::{Error, Result};
-use crate::limits::{MIN_TOTAL_MOLAL, RESIDUAL_PROMISE, TESTED_MAX_TOTAL_MOLAR};
+use crate::limits::{MAX_TOTAL_MOLAL, MIN_TOTAL_MOLAL, RESIDUAL_PROMISE, TESTED_MAX_TOTAL_MOLAR};
 use crate::phase::{GasState, Pressure, RowKind, SUPERSATURATION_TOLERANCE, SolidState};
 use crate::quantity::Temperature;
 use crate::solve::{Evaluation, Point, Solver, SolverPath};
@@ -64,6 +64,13 @@ pub struct Residuals {
     /// (SIT): the largest change of any ln γ between the composition γ was taken at and the
     /// returned one. 0 for models whose γ depends on I only.
     pub activity_coefficients_ln: f64,
+    /// The residual of each phase relation the solve held as an equality, by relation:
+    /// `partial pressure of G` (ln of the partial pressure over the fixed one, the relative
+    /// error for small values), `pH` (ln a(H⁺) minus the fixed value's), `saturation of S` for
+    /// each solid present (ln of its saturation ratio, SI·ln 10) and, where an ion closes the
+    /// charge balance beside a fixed pH, `charge balance closed on X` (the H⁺ still taken to
+    /// hold the pH, relative to Σ |z|·m). Empty without phase constraints.
+    pub phases: Vec<(Arc<str>, f64)>,
 }
 
 impl Residuals {
@@ -79,14 +86,18 @@ impl Residuals {
     /// The largest relative residual over every equation solved: the charge balance, each
     /// mass balance, the ionic-strength equation (0 under the ideal model, where the
     /// ionic strength is reported as the species give it) and, for a model whose γ depends
-    /// on the composition (SIT), the activity-coefficient iteration. This is the number the residual
+    /// on the composition (SIT), the activity-coefficient iteration, and each phase relation
+    /// held as an equality ([`phases`](Self::phases)). This is the number the residual
     /// promise is about: at most [`RESIDUAL_PROMISE`](crate::limits::RESIDUAL_PROMISE) (or
     /// the solver's tolerance, if set looser) for every returned result, else the result
     /// carries [`Warning::ResidualAbovePromise`].
     pub fn max_relative(&self) -> f64 {
-        self.max_balance_relative()
-            .max(self.ionic_strength_relative.abs())
-            .max(self.activity_coefficients_ln.abs())
+        self.phases.iter().fold(
+            self.max_balance_relative()
+                .max(self.ionic_strength_relative.abs())
+                .max(self.activity_coefficients_ln.abs()),
+            |m, (_, v)| m.max(v.abs()),
+        )
     }
 }
 
@@ -97,12 +108,15 @@ enum Equation {
     Mass(usize),
     IonicStrength,
     ActivityCoefficients,
+    /// A phase relation held as an equality (index into the result's phase residuals).
+    Phase(usize),
 }
 
 impl Equation {
     /// The equation's name, as the residual warning gives it.
-    fn name(self, components: &[Arc<str>]) -> String {
+    fn name(self, components: &[Arc<str>], phases: &[(Arc<str>, f64)]) -> String {
         match self {
+            Equation::Phase(k) => phases[k].0.to_string(),
             Equation::Charge => "charge balance".to_string(),
             Equation::Mass(c) => format!("mass balance of {}", components[c]),
             Equation::IonicStrength => "ionic-strength equation".into(),
@@ -243,6 +257,8 @@ struct PhaseReport {
     total_alkalinity_molal: f64,
     carbonate_alkalinity_molal: f64,
     dic_molal: f64,
+    /// The residual of each phase relation held as an equality (see [`Residuals::phases`]).
+    residuals: Vec<(Arc<str>, f64)>,
 }
 
 impl Equilibrium {
@@ -416,6 +432,38 @@ impl Equilibrium {
             }
         }
         let charge = charge + charge_elsewhere;
+        // What a phase brings in is bounded like what is put in: a dissolved total above
+        // MAX_TOTAL_MOLAL (a gas or a closing ion supplying it without end), or acid or base
+        // beyond it taken to hold a fixed pH, is refused, naming the constraints.
+        if phased && solved {
+            for (ci, comp) in sys.components.iter().enumerate().skip(1) {
+                let dissolved = numbers[aqueous(ci)];
+                if dissolved > MAX_TOTAL_MOLAL {
+                    return Err(Error::AmountTooLarge {
+                        what: format!("dissolved {} from {}", comp.name, sources(sys, ci, &amount)),
+                        value: dissolved,
+                        unit: "mol/kg",
+                        limit: MAX_TOTAL_MOLAL,
+                    });
+                }
+            }
+            for (w, row) in sys.phases.iter().enumerate() {
+                if let RowKind::Ph { ln_a_h } = row.kind
+                    && amount(w).abs() > MAX_TOTAL_MOLAL
+                {
+                    return Err(Error::AmountTooLarge {
+                        what: format!(
+                            "{} taken to hold the pH fixed at {}",
+                            if amount(w) > 0.0 { "base" } else { "acid" },
+                            crate::phase::fixed_ph_text(ln_a_h)
+                        ),
+                        value: amount(w).abs(),
+                        unit: "mol/kg",
+                        limit: MAX_TOTAL_MOLAL,
+                    });
+                }
+            }
+        }
         // Saturation indices, partial pressures, the acid or base of a fixed pH.
         let mut solids = Vec::with_capacity(sys.phases.len());
         let mut gases = Vec::new();
@@ -447,6 +495,40 @@ impl Equilibrium {
             }
         }
         let charge_relative = if charge_scale > 0.0 { charge / charge_scale } else { 0.0 };
+        // The phase relations held as equalities: a fixed partial pressure or pH, each solid
+        // present, and the closing ion's condition (no H⁺ taken beside a fixed pH).
+        let mut phase_residuals: Vec<(Arc<str>, f64)> = Vec::new();
+        if solved {
+            let closed_on = sys
+                .phases
+                .iter()
+                .find(|r| matches!(r.kind, RowKind::Closure))
+                .map(|r| r.name.clone());
+            for (w, row) in sys.phases.iter().enumerate() {
+                let (label, r): (Arc<str>, f64) = match row.kind {
+                    RowKind::Gas { fixed: Some(lp) } => (
+                        format!("partial pressure of {}", row.name).into(),
+                        row.ln_q(&point.y) - lp,
+                    ),
+                    RowKind::Ph { ln_a_h } => {
+                        if let Some(ion) = &closed_on {
+                            let r = if charge_scale > 0.0 {
+                                amount(w) / charge_scale
+                            } else {
+                                0.0
+                            };
+                            phase_residuals.push((format!("charge balance closed on {ion}").into(), r));
+                        }
+                        ("pH".into(), point.y[0] - ln_a_h)
+                    }
+                    RowKind::Solid { allowed: true } if amount(w) > 0.0 => {
+                        (format!("saturation of {}", row.name).into(), row.ln_q(&point.y))
+                    }
+                    _ => continue,
+                };
+                phase_residuals.push((label, if r.is_nan() { f64::INFINITY } else { r }));
+            }
+        }
         let ionic_strength_relative = if ideal { 0.0 } else { (ionic - i) / i };
         let activity_coefficients_ln = ev.composition_change(sys);
         let mut warnings = sys.compile_warnings.clone();
@@ -467,7 +549,14 @@ impl Equilibrium {
                     floor_molal: MIN_TOTAL_MOLAL,
                 });
             }
-            let molar = comp.total_molal * rho;
+            // With phases the dissolved total counts too (a gas or a closing ion can bring in
+            // more than was put in).
+            let dissolved = if phased && sys.component_active(c) {
+                numbers[aqueous(c)]
+            } else {
+                0.0
+            };
+            let molar = comp.total_molal.max(dissolved) * rho;
             if molar > TESTED_MAX_TOTAL_MOLAR * (1.0 + 1e-12) {
                 warnings.push(Warning::BeyondTestedDomain {
                     component: comp.name.to_string(),
@@ -491,9 +580,14 @@ impl Equilibrium {
         if activity_coefficients_ln.abs() > worst.1 {
             worst = (Equation::ActivityCoefficients, activity_coefficients_ln.abs());
         }
+        for (k, (_, r)) in phase_residuals.iter().enumerate() {
+            if r.abs() > worst.1 {
+                worst = (Equation::Phase(k), r.abs());
+            }
+        }
         if worst.1 > promise {
             warnings.push(Warning::ResidualAbovePromise {
-                equation: worst.0.name(&layout.component_names),
+                equation: worst.0.name(&layout.component_names, &phase_residuals),
                 residual: worst.1,
                 promise,
             });
@@ -583,6 +677,7 @@ impl Equilibrium {
                 dic_molal,
                 total_alkalinity_molal: alkalinity,
                 carbonate_alkalinity_molal: carbonate_alkalinity,
+                residuals: phase_residuals,
             },
             records: OnceLock::new(),
         })
@@ -645,6 +740,7 @@ impl Equilibrium {
                 mass_relative: pick(3),
                 ionic_strength_relative: self.ionic_strength_relative,
                 activity_coefficients_ln: self.activity_coefficients_ln,
+                phases: self.phases.residuals.clone(),
             },
         }
     }
@@ -676,6 +772,7 @@ impl Equilibrium {
             .fold(self.charge_relative.abs(), f64::max)
             .max(self.ionic_strength_relative.abs())
             .max(self.activity_coefficients_ln.abs())
+            .max(self.phases.residuals.iter().fold(0.0, |m, (_, v)| m.max(v.abs())))
     }
 
     /// pH on the molal scale under the system's [`PhConvention`] (see
@@ -975,4 +1072,34 @@ impl System {
     pub fn solve(&self) -> Result<Equilibrium> {
         Solver::default().solve(self)
     }
+}
+
+/// The constraints that brought component `c` into solution (the rows whose amount moved it
+/// from another phase into the solution), in short for messages ("CO2(g) at 4.1600e-4 atm
+/// with pH 15.74"); a fixed pH beside them is named too.
+fn sources(sys: &System, c: usize, amount: &dyn Fn(usize) -> f64) -> String {
+    let mut out: Vec<String> = Vec::new();
+    for (w, row) in sys.phases.iter().enumerate() {
+        let nu = row.terms.iter().find(|&&(k, _)| k == c).map_or(0.0, |&(_, v)| v);
+        let into_solution = amount(w) * nu < 0.0;
+        match row.kind {
+            RowKind::Gas { fixed: Some(lp) } if into_solution => out.push(format!(
+                "{} at {:.4e} atm",
+                row.name,
+                lp.exp() / crate::phase::BAR_PER_ATM
+            )),
+            RowKind::Closure if into_solution => out.push(format!("closing the charge balance on {}", row.name)),
+            _ => {}
+        }
+    }
+    if out.is_empty() {
+        out.push("what was put in".into());
+    }
+    if let Some(ph) = sys.phases.iter().find_map(|r| match r.kind {
+        RowKind::Ph { ln_a_h } => Some(crate::phase::fixed_ph_text(ln_a_h)),
+        _ => None,
+    }) {
+        out.push(format!("pH {ph}"));
+    }
+    out.join(" with ")
 }

@@ -118,6 +118,9 @@ pub enum Error {
     },
     /// An amount or total is larger than the library accepts
     /// ([`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL)), or a sum of volumes overflows.
+    /// With phases this covers what the solution takes from them too: a total dissolved from
+    /// a fixed partial pressure or brought by an ion closing the charge balance, and the acid
+    /// or base taken to hold a fixed pH (`what` names the constraints).
     #[error("{} is {} {unit}, above the accepted maximum of {limit} {unit}", quote(what), number(*value))]
     AmountTooLarge {
         /// What the amount belongs to.
@@ -191,7 +194,9 @@ pub enum Error {
         reason: String,
     },
     /// No assemblage of the allowed solids satisfies the constraints (the request is
-    /// infeasible), or the solids found would break the phase rule.
+    /// infeasible), or the solids found would break the phase rule, or the constraints held
+    /// (a fixed pH, partial pressure, closing ion) bring in more than the library accepts
+    /// where the ionic-strength iteration has nothing to settle on.
     #[error("no equilibrium with the allowed phases: {reason}")]
     InfeasiblePhases {
         /// What failed, naming the phases or constraints involved.

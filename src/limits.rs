@@ -8,7 +8,7 @@
 //! | what | limit | past it |
 //! |---|---|---|
 //! | temperature | 0–100 °C | [`Error::OutOfDomain`](crate::Error::OutOfDomain) |
-//! | an amount in a recipe line, a component's total | ≤ [`MAX_TOTAL_MOLAL`] (mol/L or mol/kg) | [`Error::AmountTooLarge`](crate::Error::AmountTooLarge) |
+//! | an amount in a recipe line, a component's total (put in, or dissolved with phases) | ≤ [`MAX_TOTAL_MOLAL`] (mol/L or mol/kg) | [`Error::AmountTooLarge`](crate::Error::AmountTooLarge) |
 //! | a component's total | ≤ [`TESTED_MAX_TOTAL_MOLAR`] mol/L tested | [`Warning::BeyondTestedDomain`](crate::Warning::BeyondTestedDomain) |
 //! | a positive total | ≥ [`MIN_TOTAL_MOLAL`] | taken as exactly 0, [`Warning::TotalBelowFloor`](crate::Warning::TotalBelowFloor) |
 //! | ionic strength of a result (every activity model but the ideal one) | ≤ [`MAX_IONIC_STRENGTH_MOLAL`] | [`Error::IonicStrengthBeyondLimit`](crate::Error::IonicStrengthBeyondLimit) |

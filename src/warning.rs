@@ -76,11 +76,13 @@ pub enum Warning {
         floor_molal: f64,
     },
     /// A component's total lies above the tested domain
-    /// ([`TESTED_MAX_TOTAL_MOLAR`](crate::limits::TESTED_MAX_TOTAL_MOLAR)).
+    /// ([`TESTED_MAX_TOTAL_MOLAR`](crate::limits::TESTED_MAX_TOTAL_MOLAR)): the total put in
+    /// or, with phases, the total dissolved (a fixed partial pressure or an ion closing the
+    /// charge balance can bring in more than was put in), whichever is larger.
     BeyondTestedDomain {
         /// The component (family or ion name).
         component: String,
-        /// Its total, mol/L (molal × the density of water).
+        /// Its total (put in or dissolved, the larger), mol/L (molal × the density of water).
         total_molar: f64,
         /// The largest tested total, mol/L.
         tested_molar: f64,

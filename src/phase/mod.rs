@@ -90,3 +90,10 @@ impl PhaseRow {
         if v.is_nan() { f64::NEG_INFINITY } else { v }
     }
 }
+
+/// The pH a fixed-pH row holds, for messages: −ln a(H⁺)/ln 10 rounded to 9 decimals, so a
+/// pH given as 15.74 reads 15.74 again after the round trip through ln a(H⁺).
+pub(crate) fn fixed_ph_text(ln_a_h: f64) -> String {
+    let ph = -ln_a_h / std::f64::consts::LN_10;
+    format!("{}", (ph * 1e9).round() / 1e9)
+}

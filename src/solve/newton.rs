@@ -761,7 +761,11 @@ fn constrained_convex(
     let mut trial = p.clone();
     ev.set_conc(sys, p);
     let mut value = objective(ev, &p.y);
-    let mut lam = vec![0.0; r];
+    // The multipliers start at the amounts the rows held last (zero for a row new to the
+    // set) and the KKT system is solved for their change: where nearly all of a component
+    // sits in a phase (a gas taking almost all the carbon), ∇G alone is of the size of that
+    // component's total, and the row's small infeasibility would be lost in its round-off.
+    let mut lam: Vec<f64> = working.iter().map(|&w| lambda[w]).collect();
     // Work space, allocated once a call.
     let mut grad = vec![0.0; n];
     let mut scale = vec![0.0; n];
@@ -812,7 +816,11 @@ fn constrained_convex(
             (false, false) => 0.0,
         });
         for k in 0..n {
-            rhs[k] = -grad[k] * d_inv[k];
+            let mut g = grad[k];
+            for (j, l) in lam.iter().enumerate() {
+                g += nmat[(j, k)] * l;
+            }
+            rhs[k] = -g * d_inv[k];
         }
         for j in 0..r {
             rhs[n + j] = e[j] * row_scale[j];
@@ -829,7 +837,7 @@ fn constrained_convex(
             d[k] = rhs[k] * d_inv[k];
         }
         for j in 0..r {
-            lam[j] = rhs[n + j] * row_scale[j];
+            lam[j] += rhs[n + j] * row_scale[j];
         }
         // Stationarity of the Lagrangian with the new multipliers: ∇G + Nᵀλ = −H·Δy.
         let mut worst = 0.0f64;
@@ -1174,6 +1182,13 @@ pub(crate) fn solve_phases(
             }
         }
     }
+    // The closing ion's amount x is a root of f(x) = (H⁺ the pH row takes)/z, decreasing in x:
+    // fixed-point steps x + f until a sign change brackets it, then regula falsi with the
+    // Illinois modification (M. Dowell and P. Jarratt, BIT 11 (1971) 168–174) inside the
+    // bracket, which the plain fixed point overshoots where γ depends strongly on the ion.
+    let mut need_more: Option<(f64, f64)> = None;
+    let mut need_less: Option<(f64, f64)> = None;
+    let mut last_side = 0i8;
     for pass in 0..passes {
         iters += settle(
             sys,
@@ -1197,7 +1212,7 @@ pub(crate) fn solve_phases(
             .map_or(1.0, |&(c, _)| f64::from(sys.components[c].charge));
         let uptake = lambda[pw];
         let scale = totals.iter().fold(1e-30_f64, |a, t| a.max(t.abs()));
-        if uptake.abs() <= 1e-14 * scale {
+        if uptake.abs() <= tol.max(1e-14) * scale {
             break;
         }
         if pass + 1 == passes {
@@ -1209,23 +1224,142 @@ pub(crate) fn solve_phases(
                 last_ph: -p.y[0] / LN10,
             });
         }
-        // More of the ion by uptake/z; the closure row's amount is −δ.
-        let delta = uptake / z;
+        // More of the ion by δ; the closure row's amount is −(the ion added).
+        let x = -lambda[cw];
+        let f = uptake / z;
+        let side = if f > 0.0 { 1 } else { -1 };
+        if side > 0 {
+            need_more = Some((x, f));
+        } else {
+            need_less = Some((x, f));
+        }
+        if side == last_side {
+            // The same end moved twice: halve the other end's value (Illinois).
+            let other = if side > 0 { &mut need_less } else { &mut need_more };
+            if let Some((_, fo)) = other.as_mut() {
+                *fo *= 0.5;
+            }
+        }
+        last_side = side;
+        let next = match (need_more, need_less) {
+            (Some((xl, fl)), Some((xh, fh))) => {
+                let s = xl - fl * (xh - xl) / (fh - fl);
+                if s.is_finite() && s > xl.min(xh) && s < xl.max(xh) {
+                    s
+                } else {
+                    0.5 * (xl + xh)
+                }
+            }
+            _ => x + f,
+        };
+        let delta = next - x;
+        // Where the relations held fix the ion's activity (a solid of it beside a fixed pH
+        // and partial pressure), whatever is added precipitates and the charge cannot change:
+        // the constraints cannot hold together.
+        if f > 0.0
+            && let Some(&(ci, _)) = sys.phases[cw].terms.iter().find(|&&(c, _)| c != 0)
+        {
+            let unit = [(ci, 1.0)];
+            let mut rows: Vec<&[(usize, f64)]> = working.iter().map(|&w| &sys.phases[w].terms[..]).collect();
+            rows.push(&unit);
+            if !independent(&rows, nc) {
+                let present: Vec<usize> = working
+                    .iter()
+                    .copied()
+                    .filter(|&w| lambda[w] > 0.0 || sys.phases[w].is_equality())
+                    .collect();
+                return Err(Error::ConflictingConstraints {
+                    first: format!("charge balance closed on {}", sys.phases[cw].name),
+                    second: names(sys, &present),
+                    reason: format!(
+                        "these fix the activity of {0}, so {0} added to balance the charge precipitates and the charge left ({1:.4e} mol/kg) cannot be balanced",
+                        sys.phases[cw].name, uptake
+                    ),
+                });
+            }
+        }
         lambda[cw] -= delta;
         apply(&mut totals, cw, -delta);
         check_closure(sys, &lay, cw, &totals)?;
+    }
+    // The phase relations held (fixed partial pressures and pH, solids present) are
+    // equations of the result like the balances: held to the same tolerance, once more from
+    // here if they are not, else no convergence is reported.
+    let limit = crate::limits::RESIDUAL_PROMISE.max(tol);
+    for again in [true, false] {
+        let Some((worst, w)) = worst_row(sys, &p, &working, &lambda) else {
+            break;
+        };
+        if worst <= limit {
+            break;
+        }
+        if !again {
+            return Err(Error::NoConvergence {
+                path: "general",
+                iterations: iters,
+                max_residual: worst,
+                worst_equation: format!("phase relation of {}", sys.phases[w].name),
+                last_ph: -p.y[0] / LN10,
+            });
+        }
+        iters += settle(
+            sys,
+            &mut ev,
+            &lay,
+            &mut p,
+            &mut working,
+            &allowed,
+            &mut lambda,
+            &totals,
+            tol,
+            max_iter,
+        )?;
     }
     ev.set_conc(sys, &p);
     ev.phase_amounts = lambda;
     Ok((p, ev, iters))
 }
 
-/// Refuses a closing ion whose total would be negative.
+/// The largest |ν·y − c| over the rows held as equalities (fixed partial pressures and pH,
+/// solids present), with its row; `None` when no row is held.
+fn worst_row(sys: &System, p: &Point, working: &[usize], lambda: &[f64]) -> Option<(f64, usize)> {
+    working
+        .iter()
+        .filter(|&&w| sys.phases[w].is_equality() || lambda[w] > 0.0)
+        .map(|&w| {
+            let row = &sys.phases[w];
+            let v = row.terms.iter().map(|&(c, nu)| nu * p.y[c]).sum::<f64>() - row.rhs();
+            (if v.is_nan() { f64::INFINITY } else { v.abs() }, w)
+        })
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+}
+
+/// Refuses a closing ion whose total would be negative, or above
+/// [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL) (the limit of a total put in).
 fn check_closure(sys: &System, lay: &Layout, cw: usize, totals: &[f64]) -> Result<()> {
     for &(c, _) in sys.phases[cw].terms.iter().filter(|&&(c, _)| c != 0) {
-        if let Some(k) = lay.act.iter().position(|&a| a == c)
-            && totals[k] < 0.0
-        {
+        let Some(k) = lay.act.iter().position(|&a| a == c) else {
+            continue;
+        };
+        if totals[k] > crate::limits::MAX_TOTAL_MOLAL {
+            let ph = sys.phases.iter().find_map(|r| match r.kind {
+                RowKind::Ph { ln_a_h } => {
+                    Some(format!(" with the pH fixed at {}", crate::phase::fixed_ph_text(ln_a_h)))
+                }
+                _ => None,
+            });
+            return Err(Error::AmountTooLarge {
+                what: format!(
+                    "total of {} needed to close the charge balance{}",
+                    sys.components[c].name,
+                    ph.unwrap_or_default()
+                ),
+                value: totals[k],
+                unit: "mol/kg",
+                limit: crate::limits::MAX_TOTAL_MOLAL,
+            });
+        }
+        if totals[k] < 0.0 {
             return Err(Error::InfeasiblePhases {
                 reason: format!(
                     "closing the charge balance on {} needs {:e} mol/kg of it: the other ions leave a charge of its own sign",
@@ -1277,6 +1411,8 @@ fn settle(
         }
         i = p.ln_i.exp().clamp(I_MIN, I_MAX);
     }
+    // The last iterate whose species lay beyond the accepted limits, in words, with its I.
+    let mut beyond: Option<(f64, String)> = None;
     for _ in 0..80 {
         if iters > max_iter.max(200) * 4 {
             break;
@@ -1284,6 +1420,9 @@ fn settle(
         ev.set_gamma(sys, i);
         p.ln_i = i.ln();
         iters += assemblage(sys, ev, lay, p, working, allowed, lambda, totals, tol)?;
+        if let Some(why) = beyond_limits(sys, lay, ev, lambda) {
+            beyond = Some((i, why));
+        }
         let g: f64 = lay
             .species
             .iter()
@@ -1305,6 +1444,18 @@ fn settle(
         ev.hold_composition();
         i = secant_on_ionic_strength(i, g, &mut prev);
     }
+    // Where the relations held brought in more than the library accepts at an iterate
+    // (a high fixed pH under a fixed pCO₂: the activities of carbonate and OH⁻ are set, and
+    // only γ, which the model lets grow without bound at high I, could keep the molalities
+    // in range), that is the cause to report.
+    if let Some((i, why)) = beyond {
+        return Err(Error::InfeasiblePhases {
+            reason: format!(
+                "the ionic strength does not settle: at an iterate (γ taken at I = {i:.4e} mol/kg) {} bring in {why}",
+                held_constraints(sys)
+            ),
+        });
+    }
     Err(Error::NoConvergence {
         path: "general",
         iterations: iters,
@@ -1312,6 +1463,70 @@ fn settle(
         worst_equation: "ionic-strength equation with phases".into(),
         last_ph: -p.y[0] / LN10,
     })
+}
+
+/// What lies beyond the accepted limits at the current evaluation, in words: a dissolved
+/// total or the acid or base of a fixed pH above
+/// [`MAX_TOTAL_MOLAL`](crate::limits::MAX_TOTAL_MOLAL), or (under an activity model) an ionic
+/// strength above [`MAX_IONIC_STRENGTH_MOLAL`](crate::limits::MAX_IONIC_STRENGTH_MOLAL).
+fn beyond_limits(sys: &System, lay: &Layout, ev: &Evaluation, lambda: &[f64]) -> Option<String> {
+    let max = crate::limits::MAX_TOTAL_MOLAL;
+    let mut dissolved = vec![0.0; sys.components.len()];
+    let mut ionic = 0.0;
+    for (idx, &s) in lay.species.iter().enumerate() {
+        let m = ev.conc[s];
+        for &(k, v) in &lay.cols[lay.col_start[idx]..lay.col_start[idx + 1]] {
+            dissolved[lay.act[k]] += v * m;
+        }
+        ionic += 0.5 * sys.charge_f[s] * sys.charge_f[s] * m;
+    }
+    for (c, comp) in sys.components.iter().enumerate().skip(1) {
+        if dissolved[c] > max {
+            return Some(format!(
+                "{:.4e} mol/kg of {} dissolved, above the accepted maximum of {max} mol/kg",
+                dissolved[c], comp.name
+            ));
+        }
+    }
+    for (w, row) in sys.phases.iter().enumerate() {
+        if matches!(row.kind, RowKind::Ph { .. }) && lambda.get(w).is_some_and(|l| l.abs() > max) {
+            return Some(format!(
+                "{:.4e} mol/kg of {}, above the accepted maximum of {max} mol/kg",
+                lambda[w].abs(),
+                if lambda[w] > 0.0 { "base" } else { "acid" }
+            ));
+        }
+    }
+    if sys.model != crate::activity::ActivityModel::Ideal && ionic > I_MAX {
+        return Some(format!(
+            "species of ionic strength {ionic:.4e} mol/kg, above the limit of {I_MAX} mol/kg"
+        ));
+    }
+    None
+}
+
+/// The constraints held as equalities (fixed pH, fixed partial pressures, the ion closing the
+/// charge balance), described for messages.
+fn held_constraints(sys: &System) -> String {
+    let out: Vec<String> = sys
+        .phases
+        .iter()
+        .filter_map(|r| match r.kind {
+            RowKind::Ph { ln_a_h } => Some(format!("the pH fixed at {}", crate::phase::fixed_ph_text(ln_a_h))),
+            RowKind::Gas { fixed: Some(lp) } => Some(format!(
+                "the partial pressure of {} fixed at {:.4e} atm",
+                r.name,
+                lp.exp() / crate::phase::BAR_PER_ATM
+            )),
+            RowKind::Closure => Some(format!("the charge balance closed on {}", r.name)),
+            _ => None,
+        })
+        .collect();
+    if out.is_empty() {
+        "the amounts put in".into()
+    } else {
+        out.join(" and ")
+    }
 }
 
 /// The joint Newton of the general path with the phase rows of `working` held as equalities:
