@@ -56,7 +56,20 @@ class _Indexer:
         self._inner[self._key(key)] = value
 
 
-class SpeciesSeries(pd.Series):
+class _SpeciesIndexing:
+    """``.loc`` and ``.at`` that translate older spellings before the pandas indexer runs;
+    mixed into the species Series and DataFrame below."""
+
+    @property
+    def loc(self) -> Any:  # type: ignore[override]
+        return _Indexer(self, super().loc)  # type: ignore[misc]
+
+    @property
+    def at(self) -> Any:  # type: ignore[override]
+        return _Indexer(self, super().at)  # type: ignore[misc]
+
+
+class SpeciesSeries(_SpeciesIndexing, pd.Series):
     """A pandas Series whose labels answer to older spellings of species names too."""
 
     @property
@@ -70,16 +83,8 @@ class SpeciesSeries(pd.Series):
     def __getitem__(self, key: Any) -> Any:
         return super().__getitem__(_labels(self.index, key))
 
-    @property
-    def loc(self) -> Any:  # type: ignore[override]
-        return _Indexer(self, super().loc)
 
-    @property
-    def at(self) -> Any:  # type: ignore[override]
-        return _Indexer(self, super().at)
-
-
-class SpeciesFrame(pd.DataFrame):
+class SpeciesFrame(_SpeciesIndexing, pd.DataFrame):
     """A pandas DataFrame whose row and column labels answer to older spellings of species
     names too (``frame.loc["CO32-"]`` finds the row ``CO3^2-``)."""
 
@@ -93,11 +98,3 @@ class SpeciesFrame(pd.DataFrame):
 
     def __getitem__(self, key: Any) -> Any:
         return super().__getitem__(_labels(self.columns, key))
-
-    @property
-    def loc(self) -> Any:  # type: ignore[override]
-        return _Indexer(self, super().loc)
-
-    @property
-    def at(self) -> Any:  # type: ignore[override]
-        return _Indexer(self, super().at)
