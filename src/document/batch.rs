@@ -87,11 +87,12 @@ pub struct BatchRecord {
     /// Ionic strength, mol/kg.
     pub ionic_strength_mol_per_kg: f64,
     /// Largest relative residual of every equation solved: the charge balance, the mass
-    /// balances and the ionic-strength equation.
+    /// balances, the ionic-strength equation and any phase relation held (a fixed pH or
+    /// partial pressure, a solid present).
     pub max_balance_residual: f64,
     /// For a water analysis (its charge balance closed on an ion): the ion-balance error of
-    /// the water as entered, 100·(Σcations − Σanions)/(Σcations + Σanions) in meq/kg, %
-    /// (see [`SolveResult::with_ion_balance`]).
+    /// the water as entered, solids that formed counted back, 100·(Σcations − Σanions)/(Σcations
+    /// + Σanions) in meq/kg, % (see [`SolveResult::with_ion_balance_of`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub ion_balance_error_percent: Option<f64>,
     /// Warnings, as sentences.
@@ -349,9 +350,10 @@ struct Block<'a> {
 /// A solved line: the full result, or (for a record without it, where the full result would
 /// carry no warning) the numbers the record gives, from a solve in the template's workspace.
 enum Solved {
-    /// The equilibrium, and the charge number of the ion closing the charge balance of a water
-    /// analysis (for its ion balance).
-    Full(Box<Equilibrium>, Option<i32>),
+    /// The equilibrium, and for a line read in full (definitions or phase requests) its
+    /// recipe, which the result reads back as the solve command does
+    /// ([`SolveResult::with_recipe`]: the ion balance as entered and the recipe's warnings).
+    Full(Box<Equilibrium>, Option<Box<crate::Recipe>>),
     Lean(crate::solve::PhSolution, crate::PhConvention),
 }
 
@@ -424,12 +426,7 @@ impl Block<'_> {
                 .compile(&conditions)
                 .and_then(|s| self.solver.solve(&s))
                 .map_err(|e| Failure::Solve(name.clone(), e))?;
-            let closing = full
-                .charge_balance_on
-                .as_deref()
-                .and_then(|n| self.catalog.ion(n).ok())
-                .map(|ion| ion.charge());
-            return Ok((name, None, Solved::Full(Box::new(eq), closing)));
+            return Ok((name, None, Solved::Full(Box::new(eq), Some(Box::new(recipe)))));
         }
         let idx = match self.templates.iter().position(|t| t.matches(&doc)) {
             Some(i) => i,
@@ -538,17 +535,22 @@ impl Block<'_> {
                 write_record(out, &rec);
                 false
             }
-            Ok((name, idx, Solved::Full(eq, closing))) => {
-                let warnings: Vec<String> = eq.warnings().iter().map(|w| w.to_string()).collect();
-                // A water analysis (its charge balance closed on an ion): the ion balance of
-                // the water as entered, as the solve result reports it.
-                let (result, ion_balance_error_percent) = match closing {
-                    Some(z) => {
-                        let r = SolveResult::from_equilibrium(&eq).with_ion_balance(z);
+            Ok((name, idx, Solved::Full(eq, recipe))) => {
+                // A line read in full: what its recipe adds, as the solve command reports it
+                // (the ion balance of a water analysis as entered, solids included; the
+                // recipe's own warnings).
+                let (result, warnings, ion_balance_error_percent) = match recipe {
+                    Some(recipe) => {
+                        let r = SolveResult::from_equilibrium(&eq).with_recipe(&recipe);
                         let e = r.ion_balance.as_ref().map(|b| b.error_percent);
-                        (full.then_some(r), e)
+                        let w = r.warnings.clone();
+                        (full.then_some(r), w, e)
                     }
-                    None => (full.then(|| SolveResult::from_equilibrium(&eq)), None),
+                    None => (
+                        full.then(|| SolveResult::from_equilibrium(&eq)),
+                        eq.warnings().iter().map(|w| w.to_string()).collect(),
+                        None,
+                    ),
                 };
                 let rec = BatchRecord {
                     line: line_no,
