@@ -428,3 +428,29 @@ fn an_allowed_solid_keeps_its_own_constant_beside_the_catalogues() {
     assert!(st.allowed && st.amount_molal > 0.0);
     assert_eq!(eq.solids().iter().filter(|s| &*s.name == "calcite").count(), 1);
 }
+
+/// A titration of a solution whose pH is held (a fixed pH is a pH-stat, not a sample) would
+/// draw a flat line at the fixed pH; it is refused, naming the constraint and the solution.
+#[test]
+fn a_titration_of_a_held_ph_is_refused_naming_the_constraint() {
+    let cat = Catalog::builtin();
+    let mut analyte = Recipe::new();
+    analyte
+        .add(&cat.reagent("acetic acid").unwrap(), Amount::molar(0.01))
+        .unwrap();
+    analyte.fix_ph(8.0).unwrap();
+    let mut titrant = Recipe::new();
+    titrant
+        .add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molar(0.1))
+        .unwrap();
+    let err =
+        protolyte::analysis::Titration::new(&analyte, protolyte::Volume::milliliters(25.0), &titrant, &davies(25.0))
+            .err()
+            .expect("a held pH cannot be titrated");
+    match err {
+        Error::ConflictingConstraints { first, .. } => {
+            assert!(first.contains("pH fixed at 8") && first.contains("analyte"), "{first}");
+        }
+        other => panic!("{other}"),
+    }
+}

@@ -348,7 +348,24 @@ impl<'a> LeanCursor<'a> {
 
 impl Titration {
     /// A titration of `analyte_volume` of `analyte` with `titrant`, both at `conditions`.
+    ///
+    /// A fixed pH or alkalinity in either solution would hold what the titrant moves, and is
+    /// refused ([`Error::ConflictingConstraints`]); a fixed partial pressure and allowed
+    /// solids stay in force along the curve.
     pub fn new(analyte: &Recipe, analyte_volume: Volume, titrant: &Recipe, conditions: &Conditions) -> Result<Self> {
+        for (which, recipe) in [("analyte", analyte), ("titrant", titrant)] {
+            if let Some(c) = recipe
+                .constraints()
+                .iter()
+                .find(|c| matches!(c, crate::Constraint::Ph(_) | crate::Constraint::Alkalinity(_)))
+            {
+                return Err(Error::ConflictingConstraints {
+                    first: format!("{} of the {which}", c.describe()),
+                    second: "the titrant added along the curve".into(),
+                    reason: "the constraint holds the pH (or the alkalinity) that the titration moves".into(),
+                });
+            }
+        }
         let v0 = analyte_volume.positive("analyte volume")?;
         // One system holding the components of both solutions.
         let both = Recipe::mix(&[(analyte, analyte_volume), (titrant, analyte_volume)])?;
