@@ -443,10 +443,11 @@ fn a_titration_of_a_held_ph_is_refused_naming_the_constraint() {
     titrant
         .add(&cat.reagent("sodium hydroxide").unwrap(), Amount::molar(0.1))
         .unwrap();
-    let err =
-        protolyte::analysis::Titration::new(&analyte, protolyte::Volume::milliliters(25.0), &titrant, &davies(25.0))
-            .err()
-            .expect("a held pH cannot be titrated");
+    let made =
+        protolyte::analysis::Titration::new(&analyte, protolyte::Volume::milliliters(25.0), &titrant, &davies(25.0));
+    let Err(err) = made else {
+        panic!("a held pH cannot be titrated");
+    };
     match err {
         Error::ConflictingConstraints { first, .. } => {
             assert!(first.contains("pH fixed at 8") && first.contains("analyte"), "{first}");
