@@ -135,33 +135,12 @@ impl Sensitivities {
             } else {
                 // A component with zero total: an infinitesimal amount enters as its species
                 // with one unit of it, in proportion to exp(ln K + Σ ν ln a − ln γ).
-                let mut w: Vec<(usize, f64)> = Vec::new();
-                for s in 0..ns {
-                    if sys.nu[s * nc + c] != 1.0
-                        || !(1..nc).all(|d| d == c || sys.nu[s * nc + d] == 0.0 || act.contains(&d))
-                    {
-                        continue;
+                for (s, frac) in zero_total_entry(sys, &ev, &p, c, &act, |d| act.contains(&d)) {
+                    for k in 0..m {
+                        dfdp[(k, col)] += row(s, k) * frac;
                     }
-                    let mut u = sys.ln_k[s] - ev.ln_gamma[s];
-                    for &a in &act {
-                        let v = sys.nu[s * nc + a];
-                        if v != 0.0 {
-                            u += v * p.y[a];
-                        }
-                    }
-                    w.push((s, u));
-                }
-                let umax = w.iter().map(|x| x.1).fold(f64::NEG_INFINITY, f64::max);
-                let sum: f64 = w.iter().map(|x| (x.1 - umax).exp()).sum();
-                if sum > 0.0 {
-                    for (s, u) in w {
-                        let frac = (u - umax).exp() / sum;
-                        for k in 0..m {
-                            dfdp[(k, col)] += row(s, k) * frac;
-                        }
-                        if composition.is_some() {
-                            species_part[(s, col)] += frac;
-                        }
+                    if composition.is_some() {
+                        species_part[(s, col)] += frac;
                     }
                 }
             }
@@ -385,30 +364,9 @@ impl Sensitivities {
             }
             // A component with zero total enters as its species with one unit of it, in
             // proportion to exp(ln K + Σ ν ln a − ln γ) (as for the closed system).
-            let mut wts: Vec<(usize, f64)> = Vec::new();
-            for s in 0..ns {
-                if sys.nu[s * nc + c] != 1.0
-                    || !(1..nc).all(|d| d == c || sys.nu[s * nc + d] == 0.0 || pos[d] != usize::MAX)
-                {
-                    continue;
-                }
-                let mut u = sys.ln_k[s] - ev.ln_gamma[s];
-                for &a in &act {
-                    let v = sys.nu[s * nc + a];
-                    if v != 0.0 {
-                        u += v * p.y[a];
-                    }
-                }
-                wts.push((s, u));
-            }
-            let umax = wts.iter().map(|x| x.1).fold(f64::NEG_INFINITY, f64::max);
-            let sum: f64 = wts.iter().map(|x| (x.1 - umax).exp()).sum();
-            if sum > 0.0 {
-                for (s, u) in wts {
-                    let frac = (u - umax).exp() / sum;
-                    for k in (0..n).chain(std::iter::once(m - 1)) {
-                        dfdp[(k, col)] += row(s, k) * frac;
-                    }
+            for (s, frac) in zero_total_entry(sys, &ev, &p, c, &act, |d| pos[d] != usize::MAX) {
+                for k in (0..n).chain(std::iter::once(m - 1)) {
+                    dfdp[(k, col)] += row(s, k) * frac;
                 }
             }
         }
@@ -764,6 +722,46 @@ impl Composition {
         let mut jacobian = &r * &pmn;
         jacobian[(m - 1, m - 1)] -= i;
         Some(Composition { lu, pmn, jacobian })
+    }
+}
+
+/// How an infinitesimal amount of component `c`, whose total is zero, enters the solution:
+/// as its species with one unit of it and no other component that is not `active`, each in
+/// proportion to exp(ln K + Σ ν ln a − ln γ) at the point `p` (the log-sum-exp weights,
+/// summing to 1; none when no species qualifies). `act` lists the components whose ln a is
+/// among the unknowns.
+fn zero_total_entry(
+    sys: &System,
+    ev: &Evaluation,
+    p: &Point,
+    c: usize,
+    act: &[usize],
+    active: impl Fn(usize) -> bool,
+) -> Vec<(usize, f64)> {
+    let (ns, nc) = (sys.species.len(), sys.components.len());
+    let mut w: Vec<(usize, f64)> = Vec::new();
+    for s in 0..ns {
+        if sys.nu[s * nc + c] != 1.0 || !(1..nc).all(|d| d == c || sys.nu[s * nc + d] == 0.0 || active(d)) {
+            continue;
+        }
+        let mut u = sys.ln_k[s] - ev.ln_gamma[s];
+        for &a in act {
+            let v = sys.nu[s * nc + a];
+            if v != 0.0 {
+                u += v * p.y[a];
+            }
+        }
+        w.push((s, u));
+    }
+    let umax = w.iter().map(|x| x.1).fold(f64::NEG_INFINITY, f64::max);
+    let sum: f64 = w.iter().map(|x| (x.1 - umax).exp()).sum();
+    if sum > 0.0 {
+        for x in &mut w {
+            x.1 = (x.1 - umax).exp() / sum;
+        }
+        w
+    } else {
+        Vec::new()
     }
 }
 
