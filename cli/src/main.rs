@@ -1394,15 +1394,7 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
             if !e.parts.is_empty() {
                 writeln!(out, "          parts: {}", e.parts.join(", "))?;
             }
-            if !e.synonyms.is_empty() {
-                writeln!(out, "          also: {}", e.synonyms.join(", "))?;
-            }
-            let memo = if e.from_memory {
-                " (entered from memory of the source)"
-            } else {
-                ""
-            };
-            writeln!(out, "          source: {}{memo}", e.source)?;
+            write_synonyms_and_source(out, &e.synonyms, e.from_memory, &e.source)?;
         }
         for p in &phases {
             let e = p.entry;
@@ -1423,15 +1415,7 @@ fn data(query: Option<&str>, json: bool, out: &mut impl Write) -> Result<u8, Fai
             if let Some(q) = p.equation {
                 writeln!(out, "          {}", equation_text(q))?;
             }
-            if !e.synonyms.is_empty() {
-                writeln!(out, "          also: {}", e.synonyms.join(", "))?;
-            }
-            let memo = if e.from_memory {
-                " (entered from memory of the source)"
-            } else {
-                ""
-            };
-            writeln!(out, "          source: {}{memo}", e.source)?;
+            write_synonyms_and_source(out, &e.synonyms, e.from_memory, &e.source)?;
         }
         writeln!(out, "{} entries", entries.len() + phases.len())?;
         // Nothing contains the query: name the closest entry, as a misspelt name elsewhere does.
@@ -1457,6 +1441,26 @@ fn equation_json(q: Option<protolyte::vant_hoff::LogKEquation>) -> serde_json::V
         }),
         None => serde_json::Value::Null,
     }
+}
+
+/// The `data` listing's last two lines of an entry: its synonyms, if any, and its source
+/// (with a note when its numbers were entered from memory of that source).
+fn write_synonyms_and_source<S: AsRef<str>>(
+    out: &mut dyn Write,
+    synonyms: &[S],
+    from_memory: bool,
+    source: &str,
+) -> io::Result<()> {
+    if !synonyms.is_empty() {
+        let also: Vec<&str> = synonyms.iter().map(AsRef::as_ref).collect();
+        writeln!(out, "          also: {}", also.join(", "))?;
+    }
+    let memo = if from_memory {
+        " (entered from memory of the source)"
+    } else {
+        ""
+    };
+    writeln!(out, "          source: {}{memo}", source)
 }
 
 /// "log K(T) = log K(25 °C) + f(T) − f(298.15 K), f(T) = a + b·T + c/T + d·log T + e/T²
