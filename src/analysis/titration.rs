@@ -308,8 +308,8 @@ impl<'a> LeanCursor<'a> {
         let sys = &self.c.sys;
         if solver.lean_applies(sys) {
             self.ws.set_start(self.start(v_l));
-            if let Some(s) = solver.solve_lean(sys, &mut self.ws)?
-                && let Some((dl, du)) = tangent_uncoupled(sys, self.ws.molal(), s.ionic_strength_molal, &self.c.dt)
+            if let Some(s) = solver.solve_lean(sys, &mut self.ws, false)?
+                && let Some((dl, du)) = tangent_checked(sys, self.ws.molal(), s.ionic_strength_molal, &self.c.dt)
                 && dl.is_finite()
             {
                 let d = -dl / LN10;
@@ -508,7 +508,11 @@ impl Titration {
     pub fn ph_curve(&self, volumes: &[Volume]) -> Result<Vec<CurveSample>> {
         crate::error::check_points("titration curve", volumes.len())?;
         let mut c = LeanCursor::new(self);
-        volumes.iter().map(|v| c.sample(v.liters_value())).collect()
+        let mut out = Vec::with_capacity(volumes.len());
+        for v in volumes {
+            out.push(c.sample(v.liters_value())?);
+        }
+        Ok(out)
     }
 
     /// The curve at `points` evenly spaced volumes from 0 to `end` (both included; fewer
@@ -691,6 +695,12 @@ fn tangent_uncoupled(sys: &System, molal: &[f64], i: f64, dt: &[f64]) -> Option<
     if !sys.uncoupled() || sys.has_phase_constraints() {
         return None;
     }
+    tangent_checked(sys, molal, i, dt)
+}
+
+/// [`tangent_uncoupled`] for a system known to be uncoupled and without phase rows (a lean
+/// curve's point, which [`Solver::lean_applies`] admitted).
+fn tangent_checked(sys: &System, molal: &[f64], i: f64, dt: &[f64]) -> Option<(f64, f64)> {
     let nc = sys.components.len();
     if dt.len() != nc || molal.len() != sys.species.len() {
         return None;
