@@ -152,8 +152,6 @@ impl Equation {
 #[derive(Clone)]
 pub struct Equilibrium {
     ph: f64,
-    p_h_molal: f64,
-    poh: f64,
     ionic_strength_molal: f64,
     temperature: Temperature,
     model: ActivityModel,
@@ -178,6 +176,9 @@ pub struct Equilibrium {
     ln_i: f64,
     /// What the result says about the other phases and the measured quantities.
     phases: PhaseReport,
+    /// Whether the system held phase constraints (then the saturation and gas states are in
+    /// `phases`, else in the records).
+    phased: bool,
     /// The records assembled from the numbers on first access.
     records: OnceLock<Box<Records>>,
 }
@@ -208,6 +209,9 @@ pub(crate) struct ResultLayout {
     carbonate_alkalinity: Vec<(usize, f64)>,
     /// The component of the carbonate family, if present.
     carbonate: Option<usize>,
+    /// The system's phase rows (for the saturation and gas states of a system that only
+    /// reports them, assembled on first access).
+    phase_rows: Vec<crate::phase::PhaseRow>,
 }
 
 impl ResultLayout {
@@ -221,6 +225,7 @@ impl ResultLayout {
         (term_start, terms): (&[usize], &[(usize, f64)]),
         alkalinity_reference: &[f64],
         carbonate: Option<usize>,
+        phase_rows: &[crate::phase::PhaseRow],
     ) -> Self {
         let mut family_start = Vec::with_capacity(families.len() + 1);
         let mut at = 0;
@@ -262,6 +267,7 @@ impl ResultLayout {
             alkalinity,
             carbonate_alkalinity,
             carbonate,
+            phase_rows: phase_rows.to_vec(),
         }
     }
 
@@ -307,6 +313,10 @@ struct Records {
     total_alkalinity_molal: f64,
     carbonate_alkalinity_molal: f64,
     dic_molal: f64,
+    /// The saturation and gas states of a system without phase constraints (with them they
+    /// are made in `build`, in [`PhaseReport`]).
+    solids: Vec<SolidState>,
+    gases: Vec<GasState>,
 }
 
 /// The phase part of a result.
@@ -318,6 +328,49 @@ struct PhaseReport {
     charge_balance_ion: Option<(Arc<str>, f64)>,
     /// The residual of each phase relation held as an equality (see [`Residuals::phases`]).
     residuals: Vec<(Arc<str>, f64)>,
+}
+
+/// The records of a system's phase rows at a solution: saturation states, gas states, the H⁺
+/// taken up to hold a fixed pH or alkalinity and the ion closing the charge balance.
+#[derive(Default)]
+struct PhaseStates {
+    solids: Vec<SolidState>,
+    gases: Vec<GasState>,
+    proton_uptake_molal: f64,
+    charge_balance_ion: Option<(Arc<str>, f64)>,
+}
+
+impl PhaseStates {
+    /// The records of `rows` at the component log activities `y`, with `amount(w)` in row w.
+    fn of(rows: &[crate::phase::PhaseRow], y: &[f64], amount: &dyn Fn(usize) -> f64) -> Self {
+        let mut out = PhaseStates::default();
+        for (w, row) in rows.iter().enumerate() {
+            let lambda = amount(w);
+            let ln_q = row.ln_q(y);
+            if !ln_q.is_finite() && !row.is_amount() {
+                continue;
+            }
+            match row.kind {
+                RowKind::Solid { allowed } => out.solids.push(SolidState {
+                    name: row.name.clone(),
+                    saturation_index: ln_q / LN10,
+                    log10_iap: (ln_q + row.ln_k) / LN10,
+                    log10_k: row.ln_k / LN10,
+                    allowed,
+                    amount_molal: lambda,
+                }),
+                RowKind::Gas { fixed } => out.gases.push(GasState {
+                    name: row.name.clone(),
+                    partial_pressure: Pressure::bar_value(ln_q.exp()),
+                    fixed: fixed.is_some(),
+                    taken_up_molal: -lambda,
+                }),
+                RowKind::Ph { .. } | RowKind::Alkalinity { .. } => out.proton_uptake_molal = -lambda,
+                RowKind::Closure => out.charge_balance_ion = Some((row.name.clone(), -lambda)),
+            }
+        }
+        out
+    }
 }
 
 impl Equilibrium {
@@ -513,36 +566,35 @@ impl Equilibrium {
                 }
             }
         }
-        // Saturation indices, partial pressures, the acid or base of a fixed pH.
-        let mut solids = Vec::with_capacity(sys.phases.len());
-        let mut gases = Vec::new();
-        let mut proton_uptake_molal = 0.0;
-        let mut charge_balance_ion = None;
-        for (w, row) in sys.phases.iter().enumerate() {
-            let lambda = amount(w);
-            let ln_q = row.ln_q(&point.y);
-            if !ln_q.is_finite() && !row.is_amount() {
-                continue;
-            }
-            match row.kind {
-                RowKind::Solid { allowed } => solids.push(SolidState {
-                    name: row.name.clone(),
-                    saturation_index: ln_q / LN10,
-                    log10_iap: (ln_q + row.ln_k) / LN10,
-                    log10_k: row.ln_k / LN10,
-                    allowed,
-                    amount_molal: lambda,
-                }),
-                RowKind::Gas { fixed } => gases.push(GasState {
-                    name: row.name.clone(),
-                    partial_pressure: Pressure::bar_value(ln_q.exp()),
-                    fixed: fixed.is_some(),
-                    taken_up_molal: -lambda,
-                }),
-                RowKind::Ph { .. } | RowKind::Alkalinity { .. } => proton_uptake_molal = -lambda,
-                RowKind::Closure => charge_balance_ion = Some((row.name.clone(), -lambda)),
+        // Saturation indices, partial pressures, the acid or base of a fixed pH; a solid
+        // beyond the supersaturation tolerance warns (in the order of the rows). Without
+        // phase constraints the rows are only reported (no amounts): their records are
+        // assembled on first access, and only the warning is decided here.
+        let mut warnings = sys.compile_warnings.clone();
+        let report = if phased {
+            PhaseStates::of(&sys.phases, &point.y, &amount)
+        } else {
+            PhaseStates::default()
+        };
+        for row in &sys.phases {
+            if let RowKind::Solid { .. } = row.kind {
+                let ln_q = row.ln_q(&point.y);
+                let saturation_index = ln_q / LN10;
+                if ln_q.is_finite() && saturation_index > SUPERSATURATION_TOLERANCE {
+                    warnings.push(Warning::Supersaturated {
+                        solid: row.name.to_string(),
+                        saturation_index,
+                        tolerance: SUPERSATURATION_TOLERANCE,
+                    });
+                }
             }
         }
+        let PhaseStates {
+            solids,
+            gases,
+            proton_uptake_molal,
+            charge_balance_ion,
+        } = report;
         let charge_relative = if charge_scale > 0.0 { charge / charge_scale } else { 0.0 };
         // The phase relations held as equalities: a fixed partial pressure or pH, each solid
         // present, and the closing ion's condition (no H⁺ taken beside a fixed pH).
@@ -580,16 +632,6 @@ impl Equilibrium {
         }
         let ionic_strength_relative = if ideal { 0.0 } else { (ionic - i) / i };
         let activity_coefficients_ln = ev.composition_change(sys);
-        let mut warnings = sys.compile_warnings.clone();
-        for st in &solids {
-            if st.supersaturated() {
-                warnings.push(Warning::Supersaturated {
-                    solid: st.name.to_string(),
-                    saturation_index: st.saturation_index,
-                    tolerance: SUPERSATURATION_TOLERANCE,
-                });
-            }
-        }
         for (c, comp) in sys.components.iter().enumerate().skip(1) {
             if let Some(given) = sys.below_floor[c] {
                 warnings.push(Warning::TotalBelowFloor {
@@ -673,8 +715,11 @@ impl Equilibrium {
         // A NaN or infinity anywhere a caller would read it refuses the result: the species'
         // molality, γ and activity (checked in the first pass), the families' numbers and the
         // residuals.
-        let (p_h_molal, poh) = (-h.log10(), -oh.log10());
-        let finite = [ph, p_h_molal, poh, i].iter().all(|v| v.is_finite())
+        // p[H] and pOH (computed on access from the molalities and γ kept) are finite
+        // exactly where m(H⁺) and a(OH⁻), finite by the check of the species, are positive.
+        let finite = [ph, i].iter().all(|v| v.is_finite())
+            && h > 0.0
+            && oh > 0.0
             && species_finite
             && families_finite
             && charge_relative.is_finite()
@@ -694,8 +739,6 @@ impl Equilibrium {
         crate::solve::fast::recycle(conc, ln_gamma, point.y);
         Ok(Equilibrium {
             ph,
-            p_h_molal,
-            poh,
             ionic_strength_molal: i,
             temperature: sys.temperature,
             model: sys.model,
@@ -711,6 +754,7 @@ impl Equilibrium {
             path,
             warnings,
             ln_i: point.ln_i,
+            phased,
             phases: PhaseReport {
                 solids,
                 gases,
@@ -730,6 +774,12 @@ impl Equilibrium {
     fn assemble(&self) -> Records {
         let lay = &*self.layout;
         let rho = self.water_density;
+        // Reported rows only (no amounts, no relation held): their states at this solution.
+        let PhaseStates { solids, gases, .. } = if self.phased {
+            PhaseStates::default()
+        } else {
+            PhaseStates::of(&lay.phase_rows, self.unknowns(), &|_| 0.0)
+        };
         let species = (self.molal().iter().zip(self.ln_gamma()))
             .enumerate()
             .map(|(s, (&m, &lg))| {
@@ -810,6 +860,8 @@ impl Equilibrium {
             total_alkalinity_molal,
             carbonate_alkalinity_molal,
             dic_molal: lay.carbonate.map_or(0.0, |c| numbers[comp_at + 4 * c + 1]),
+            solids,
+            gases,
         }
     }
 
@@ -858,12 +910,12 @@ impl Equilibrium {
 
     /// p\[H\] = −log₁₀ of the H⁺ molality (mol/kg): the pH of concentration, without γ.
     pub fn p_h_molal(&self) -> f64 {
-        self.p_h_molal
+        -self.molal()[0].log10()
     }
 
     /// pOH = −log₁₀ a(OH⁻).
     pub fn poh(&self) -> f64 {
-        self.poh
+        -(self.ln_gamma()[1].exp() * self.molal()[1]).log10()
     }
 
     /// Ionic strength, mol/kg (solved self-consistently with the activity coefficients).
@@ -946,12 +998,16 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn solids(&self) -> &[SolidState] {
-        &self.phases.solids
+        if self.phased {
+            &self.phases.solids
+        } else {
+            &self.records().solids
+        }
     }
 
     /// The saturation state of the solid named `name`.
     pub fn solid(&self, name: &str) -> Option<&SolidState> {
-        self.phases.solids.iter().find(|s| &*s.name == name)
+        self.solids().iter().find(|s| &*s.name == name)
     }
 
     /// The saturation index of the solid named `name`.
@@ -973,12 +1029,16 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn gases(&self) -> &[GasState] {
-        &self.phases.gases
+        if self.phased {
+            &self.phases.gases
+        } else {
+            &self.records().gases
+        }
     }
 
     /// The state of the gas named `name`.
     pub fn gas(&self, name: &str) -> Option<&GasState> {
-        self.phases.gases.iter().find(|g| &*g.name == name)
+        self.gases().iter().find(|g| &*g.name == name)
     }
 
     /// H⁺ taken up into the solution to hold a fixed pH, mol/kg (negative: the base that was
@@ -1067,8 +1127,8 @@ impl std::fmt::Debug for Equilibrium {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("Equilibrium")
             .field("ph", &self.ph)
-            .field("p_h_molal", &self.p_h_molal)
-            .field("poh", &self.poh)
+            .field("p_h_molal", &self.p_h_molal())
+            .field("poh", &self.poh())
             .field("ionic_strength_molal", &self.ionic_strength_molal)
             .field("temperature", &self.temperature)
             .field("model", &self.model)
@@ -1080,8 +1140,8 @@ impl std::fmt::Debug for Equilibrium {
             .field("iterations", &self.iterations)
             .field("path", &self.path)
             .field("warnings", &self.warnings)
-            .field("solids", &self.phases.solids)
-            .field("gases", &self.phases.gases)
+            .field("solids", &self.solids())
+            .field("gases", &self.gases())
             .field("dissolved_totals", &self.dissolved_totals())
             .finish_non_exhaustive()
     }
@@ -1092,8 +1152,8 @@ impl std::fmt::Debug for Equilibrium {
 impl PartialEq for Equilibrium {
     fn eq(&self, other: &Self) -> bool {
         self.ph == other.ph
-            && self.p_h_molal == other.p_h_molal
-            && self.poh == other.poh
+            && self.p_h_molal() == other.p_h_molal()
+            && self.poh() == other.poh()
             && self.ionic_strength_molal == other.ionic_strength_molal
             && self.temperature == other.temperature
             && self.model == other.model
@@ -1228,6 +1288,13 @@ mod tests {
             let mut hard = recipe(&[("calcium chloride", 3.0), ("sodium carbonate", 3.0)]);
             hard.allow_solid(&cat.solid("calcite").unwrap());
             systems.push(hard.compile(&cond).unwrap());
+            // Calcite and CO₂(g) only reported (no phase constraint): their states are
+            // assembled on first access, the supersaturation warning decided in `build`.
+            systems.push(
+                recipe(&[("calcium chloride", 5.0), ("sodium carbonate", 5.0)])
+                    .compile(&cond)
+                    .unwrap(),
+            );
             let mut open = recipe(&[("sodium bicarbonate", 2.0)]);
             open.fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(4.2e-4))
                 .unwrap();
@@ -1267,6 +1334,26 @@ mod tests {
             assert_eq!(late, eq, "system {k}");
             assert_eq!(late.total_alkalinity_molal(), alkalinity, "system {k}");
             let phased = sys.has_phase_constraints();
+            // Each supersaturation warning names a solid whose record gives the same index,
+            // and every supersaturated solid warns.
+            let warned: Vec<(&str, f64)> = (eq.warnings().iter())
+                .filter_map(|w| match w {
+                    Warning::Supersaturated {
+                        solid,
+                        saturation_index,
+                        ..
+                    } => Some((solid.as_str(), *saturation_index)),
+                    _ => None,
+                })
+                .collect();
+            let supersaturated: Vec<(&str, f64)> = (eq.solids().iter())
+                .filter(|st| st.supersaturated())
+                .map(|st| (&*st.name, st.saturation_index))
+                .collect();
+            assert_eq!(warned, supersaturated, "system {k}");
+            // The reported calcite of 5 mM CaCl2 + 5 mM Na2CO3 is supersaturated (SI > 1, as
+            // the example of `Equilibrium::solids` shows).
+            assert!(k % 7 != 5 || warned.iter().any(|(n, _)| *n == "calcite"), "system {k}");
             for (c, (name, v)) in eq.dissolved_totals().iter().enumerate() {
                 let ci = sys.component_index(name).unwrap();
                 assert!(c < nc);

@@ -497,6 +497,7 @@ impl System {
             (&term_start, &terms),
             &alkalinity_reference,
             carbonate,
+            &phases,
         ));
         let coupled_species = (0..species.len()).filter(|&s| coupling[s]).collect();
         Ok(System {

@@ -257,10 +257,12 @@ impl Solver {
 /// molality is positive, which is checked either way.
 fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64, p_h: bool) -> Option<PhSolution> {
     let (mut charge, mut scale, mut ionic) = (0.0, 0.0, 0.0);
+    let mut conc_finite = true;
     for (&m, &z) in ev.conc.iter().zip(&sys.charge_f) {
         charge += z * m;
         scale += z.abs() * m;
         ionic += 0.5 * z * z * m;
+        conc_finite &= m.is_finite();
     }
     let ideal = sys.model == ActivityModel::Ideal;
     let i = if ideal { ionic } else { ln_i.exp() };
@@ -293,7 +295,7 @@ fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64, p_h: bool) -> Option<P
     let finite = [s.ph, s.p_h_molal, s.ionic_strength_molal, s.max_residual]
         .iter()
         .all(|v| v.is_finite())
-        && ev.conc.iter().all(|m| m.is_finite())
+        && conc_finite
         && ev.conc[0] > 0.0;
     finite.then_some(s)
 }
