@@ -181,6 +181,9 @@ pub struct Equilibrium {
     phased: bool,
     /// The records assembled from the numbers on first access.
     records: OnceLock<Box<Records>>,
+    /// The saturation and gas states of a system without phase constraints (its rows are
+    /// only reported), made on first access (with phase constraints they are in `phases`).
+    reported: OnceLock<Box<PhaseStates>>,
 }
 
 /// The names a result shares with its system: made once when the system is compiled, and
@@ -313,10 +316,6 @@ struct Records {
     total_alkalinity_molal: f64,
     carbonate_alkalinity_molal: f64,
     dic_molal: f64,
-    /// The saturation and gas states of a system without phase constraints (with them they
-    /// are made in `build`, in [`PhaseReport`]).
-    solids: Vec<SolidState>,
-    gases: Vec<GasState>,
 }
 
 /// The phase part of a result.
@@ -332,7 +331,7 @@ struct PhaseReport {
 
 /// The records of a system's phase rows at a solution: saturation states, gas states, the H⁺
 /// taken up to hold a fixed pH or alkalinity and the ion closing the charge balance.
-#[derive(Default)]
+#[derive(Debug, Clone, PartialEq, Default)]
 struct PhaseStates {
     solids: Vec<SolidState>,
     gases: Vec<GasState>,
@@ -763,7 +762,15 @@ impl Equilibrium {
                 residuals: phase_residuals,
             },
             records: OnceLock::new(),
+            reported: OnceLock::new(),
         })
+    }
+
+    /// The saturation and gas states of the rows a system without phase constraints reports
+    /// (no amounts), made on first access.
+    fn reported(&self) -> &PhaseStates {
+        self.reported
+            .get_or_init(|| Box::new(PhaseStates::of(&self.layout.phase_rows, self.unknowns(), &|_| 0.0)))
     }
 
     /// The per-species and per-family records, assembled on first access.
@@ -774,12 +781,7 @@ impl Equilibrium {
     fn assemble(&self) -> Records {
         let lay = &*self.layout;
         let rho = self.water_density;
-        // Reported rows only (no amounts, no relation held): their states at this solution.
-        let PhaseStates { solids, gases, .. } = if self.phased {
-            PhaseStates::default()
-        } else {
-            PhaseStates::of(&lay.phase_rows, self.unknowns(), &|_| 0.0)
-        };
+
         let species = (self.molal().iter().zip(self.ln_gamma()))
             .enumerate()
             .map(|(s, (&m, &lg))| {
@@ -860,8 +862,6 @@ impl Equilibrium {
             total_alkalinity_molal,
             carbonate_alkalinity_molal,
             dic_molal: lay.carbonate.map_or(0.0, |c| numbers[comp_at + 4 * c + 1]),
-            solids,
-            gases,
         }
     }
 
@@ -1001,7 +1001,7 @@ impl Equilibrium {
         if self.phased {
             &self.phases.solids
         } else {
-            &self.records().solids
+            &self.reported().solids
         }
     }
 
@@ -1032,7 +1032,7 @@ impl Equilibrium {
         if self.phased {
             &self.phases.gases
         } else {
-            &self.records().gases
+            &self.reported().gases
         }
     }
 
@@ -1164,6 +1164,8 @@ impl PartialEq for Equilibrium {
             && self.unknowns() == other.unknowns()
             && self.ln_i == other.ln_i
             && self.phases == other.phases
+            && self.solids() == other.solids()
+            && self.gases() == other.gases()
             && self.records() == other.records()
     }
 }
