@@ -152,8 +152,6 @@ impl Equation {
 #[derive(Clone)]
 pub struct Equilibrium {
     ph: f64,
-    p_h_molal: f64,
-    poh: f64,
     ionic_strength_molal: f64,
     temperature: Temperature,
     model: ActivityModel,
@@ -178,8 +176,14 @@ pub struct Equilibrium {
     ln_i: f64,
     /// What the result says about the other phases and the measured quantities.
     phases: PhaseReport,
+    /// Whether the system held phase constraints (then the saturation and gas states are in
+    /// `phases`, else in the records).
+    phased: bool,
     /// The records assembled from the numbers on first access.
     records: OnceLock<Box<Records>>,
+    /// The saturation and gas states of a system without phase constraints (its rows are
+    /// only reported), made on first access (with phase constraints they are in `phases`).
+    reported: OnceLock<Box<PhaseStates>>,
 }
 
 /// The names a result shares with its system: made once when the system is compiled, and
@@ -193,13 +197,38 @@ pub(crate) struct ResultLayout {
     /// are families: the last is the total count of forms).
     pub(crate) family_start: Vec<usize>,
     pub(crate) component_names: Vec<Arc<str>>,
+    /// The species of each family's forms (by bound protons), family after family as
+    /// `family_start`.
+    family_forms: Vec<usize>,
+    /// The sparse stoichiometry of the system (`terms[term_start[s]..term_start[s + 1]]`),
+    /// for the dissolved totals a result assembles on first access.
+    term_start: Vec<usize>,
+    terms: Vec<(usize, f64)>,
+    /// Per species: the coefficient of its molality in total alkalinity (the protons its
+    /// families' parts lack against their zero level, less ν(H⁺)).
+    alkalinity: Vec<f64>,
+    /// The species that hold carbonate, in species order, with the coefficient of their
+    /// molality in carbonate alkalinity (2ν(carbonate) − ν(H⁺)).
+    carbonate_alkalinity: Vec<(usize, f64)>,
+    /// The component of the carbonate family, if present.
+    carbonate: Option<usize>,
+    /// The system's phase rows (for the saturation and gas states of a system that only
+    /// reports them, assembled on first access).
+    phase_rows: Vec<crate::phase::PhaseRow>,
 }
 
 impl ResultLayout {
+    /// The layout of a system's results: its species, families and components, its sparse
+    /// stoichiometry (`term_start`, `terms`), each component's zero level of protons for
+    /// total alkalinity and the carbonate component.
     pub(crate) fn new(
         species: &[crate::system::Species],
         families: &[crate::system::Family],
         components: &[crate::system::Component],
+        (term_start, terms): (&[usize], &[(usize, f64)]),
+        alkalinity_reference: &[f64],
+        carbonate: Option<usize>,
+        phase_rows: &[crate::phase::PhaseRow],
     ) -> Self {
         let mut family_start = Vec::with_capacity(families.len() + 1);
         let mut at = 0;
@@ -208,12 +237,51 @@ impl ResultLayout {
             at += f.forms.len();
             family_start.push(at);
         }
+        // Each species' coefficients in total and carbonate alkalinity, summed over its terms
+        // in the order a result's pass over the species took them.
+        let mut alkalinity = Vec::with_capacity(species.len());
+        let mut carbonate_alkalinity = Vec::new();
+        for s in 0..species.len() {
+            let (mut level, mut nu_h, mut nu_carb) = (0.0, 0.0, 0.0);
+            for &(c, v) in &terms[term_start[s]..term_start[s + 1]] {
+                if c == 0 {
+                    nu_h = v;
+                } else {
+                    level += v * alkalinity_reference[c];
+                    if Some(c) == carbonate {
+                        nu_carb = v;
+                    }
+                }
+            }
+            alkalinity.push(level - nu_h);
+            if nu_carb > 0.0 {
+                carbonate_alkalinity.push((s, 2.0 * nu_carb - nu_h));
+            }
+        }
         ResultLayout {
             species_names: species.iter().map(|s| s.name.clone()).collect(),
             species_charges: species.iter().map(|s| s.charge).collect(),
             family_names: families.iter().map(|f| Arc::from(f.protolyte.name())).collect(),
             family_start,
             component_names: components.iter().map(|c| c.name.clone()).collect(),
+            family_forms: families.iter().flat_map(|f| f.forms.iter().copied()).collect(),
+            term_start: term_start.to_vec(),
+            terms: terms.to_vec(),
+            alkalinity,
+            carbonate_alkalinity,
+            carbonate,
+            phase_rows: phase_rows.to_vec(),
+        }
+    }
+
+    /// Adds the dissolved total Σ ν·m of every component (over every species, in species
+    /// order) into its slot of a result's derived numbers.
+    fn add_dissolved_totals(&self, molal: &[f64], numbers: &mut [f64]) {
+        let comp_at = self.component_numbers();
+        for (s, &m) in molal.iter().enumerate() {
+            for &(c, v) in &self.terms[self.term_start[s]..self.term_start[s + 1]] {
+                numbers[comp_at + 4 * c + 1] += v * m;
+            }
         }
     }
 
@@ -245,6 +313,9 @@ struct Records {
     free_molal: Vec<(Arc<str>, f64)>,
     dissolved_totals: Vec<(Arc<str>, f64)>,
     residuals: Residuals,
+    total_alkalinity_molal: f64,
+    carbonate_alkalinity_molal: f64,
+    dic_molal: f64,
 }
 
 /// The phase part of a result.
@@ -254,11 +325,51 @@ struct PhaseReport {
     gases: Vec<GasState>,
     proton_uptake_molal: f64,
     charge_balance_ion: Option<(Arc<str>, f64)>,
-    total_alkalinity_molal: f64,
-    carbonate_alkalinity_molal: f64,
-    dic_molal: f64,
     /// The residual of each phase relation held as an equality (see [`Residuals::phases`]).
     residuals: Vec<(Arc<str>, f64)>,
+}
+
+/// The records of a system's phase rows at a solution: saturation states, gas states, the H⁺
+/// taken up to hold a fixed pH or alkalinity and the ion closing the charge balance.
+#[derive(Debug, Clone, PartialEq, Default)]
+struct PhaseStates {
+    solids: Vec<SolidState>,
+    gases: Vec<GasState>,
+    proton_uptake_molal: f64,
+    charge_balance_ion: Option<(Arc<str>, f64)>,
+}
+
+impl PhaseStates {
+    /// The records of `rows` at the component log activities `y`, with `amount(w)` in row w.
+    fn of(rows: &[crate::phase::PhaseRow], y: &[f64], amount: &dyn Fn(usize) -> f64) -> Self {
+        let mut out = PhaseStates::default();
+        for (w, row) in rows.iter().enumerate() {
+            let lambda = amount(w);
+            let ln_q = row.ln_q(y);
+            if !ln_q.is_finite() && !row.is_amount() {
+                continue;
+            }
+            match row.kind {
+                RowKind::Solid { allowed } => out.solids.push(SolidState {
+                    name: row.name.clone(),
+                    saturation_index: ln_q / LN10,
+                    log10_iap: (ln_q + row.ln_k) / LN10,
+                    log10_k: row.ln_k / LN10,
+                    allowed,
+                    amount_molal: lambda,
+                }),
+                RowKind::Gas { fixed } => out.gases.push(GasState {
+                    name: row.name.clone(),
+                    partial_pressure: Pressure::bar_value(ln_q.exp()),
+                    fixed: fixed.is_some(),
+                    taken_up_molal: -lambda,
+                }),
+                RowKind::Ph { .. } | RowKind::Alkalinity { .. } => out.proton_uptake_molal = -lambda,
+                RowKind::Closure => out.charge_balance_ion = Some((row.name.clone(), -lambda)),
+            }
+        }
+        out
+    }
 }
 
 impl Equilibrium {
@@ -270,13 +381,19 @@ impl Equilibrium {
         path: SolverPath,
         tolerance: f64,
     ) -> Result<Self> {
-        // Charge balance, its scale and the ionic strength, over every species.
+        // Charge balance, its scale and the ionic strength, over every species; in the same
+        // pass, whether each species' molality, γ and activity are finite (γ only computed
+        // where it might overflow).
         let (mut charge, mut charge_scale, mut ionic) = (0.0, 0.0, 0.0);
-        for (s, &m) in ev.conc.iter().enumerate() {
-            let z = sys.charge_f[s];
+        let mut species_finite = true;
+        for ((&m, &lg), &z) in ev.conc.iter().zip(&ev.ln_gamma).zip(&sys.charge_f) {
             charge += z * m;
             charge_scale += z.abs() * m;
             ionic += 0.5 * z * z * m;
+            species_finite &= (m.is_finite() && m.abs() <= 1e150 && lg.abs() <= 300.0) || {
+                let g = lg.exp();
+                m.is_finite() && g.is_finite() && (g * m).is_finite()
+            };
         }
         // Under the ideal model I is a by-product: reported as the species give it.
         let ideal = sys.model == ActivityModel::Ideal;
@@ -317,37 +434,26 @@ impl Equilibrium {
         data.extend_from_slice(&ev.ln_gamma);
         data.resize(2 * ns + layout.numbers_len(), 0.0);
         let numbers = &mut data[2 * ns..];
-        // One pass over the species: the aqueous total of every component (into the
-        // per-component numbers), total alkalinity (proton condition at the reference level
-        // of each family) and carbonate alkalinity.
+        // What a result must decide here is decided here (the refusal of a bad solution, the
+        // residuals of every equation, the warnings); the numbers only read from it (dissolved
+        // totals without phases, alkalinities, the fractions of families with a positive
+        // total) are derived on first access (`Equilibrium::assemble`), each in one pass over
+        // the species.
         let aqueous = |c: usize| comp_at + 4 * c + 1;
-        let (mut alkalinity, mut carbonate_alkalinity) = (0.0, 0.0);
+        let phased = sys.has_phase_constraints();
+        // With phases the dissolved totals are outputs that the checks below bound.
+        if phased {
+            layout.add_dissolved_totals(&ev.conc, numbers);
+        }
         // Σ ν·m over the complexes (coupling species) of each component, summed in species
         // order, for the mass balances below.
-        let mut coupled = vec![0.0; if sys.coupling.contains(&true) { nc } else { 0 }];
-        for (s, &m) in ev.conc.iter().enumerate() {
-            let (mut level, mut nu_h, mut nu_carb) = (0.0, 0.0, 0.0);
-            let coupling = sys.coupling[s];
+        let mut coupled = vec![0.0; if sys.coupled_species.is_empty() { 0 } else { nc }];
+        for &s in &sys.coupled_species {
+            let m = ev.conc[s];
             for &(c, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
-                numbers[aqueous(c)] += v * m;
-                if coupling {
-                    coupled[c] += v * m;
-                }
-                if c == 0 {
-                    nu_h = v;
-                } else {
-                    level += v * sys.alkalinity_reference[c];
-                    if Some(c) == sys.carbonate {
-                        nu_carb = v;
-                    }
-                }
-            }
-            alkalinity += (level - nu_h) * m;
-            if nu_carb > 0.0 {
-                carbonate_alkalinity += (2.0 * nu_carb - nu_h) * m;
+                coupled[c] += v * m;
             }
         }
-        let phased = sys.has_phase_constraints();
         // The amount in each phase row (none solved for: all zero).
         let solved = ev.phase_amounts.len() == sys.phases.len();
         let amount = |w: usize| if solved { ev.phase_amounts[w] } else { 0.0 };
@@ -359,35 +465,30 @@ impl Equilibrium {
             } else {
                 sys.components[fam.component].total_molal
             };
+            numbers[fam_at + 3 * fi] = total;
+            // A positive total: the fractions m/total, the complexed fraction and the mean
+            // bound protons are derived on first access; they are finite where the molalities
+            // and the family's mass balance are (each form's fraction is at most 1 plus the
+            // relative residual), which the refusal below checks.
+            if total > 0.0 {
+                continue;
+            }
+            // The distribution this family would have: weights exp(ln K + j L − ln γ).
             let fr = &mut numbers[layout.family_start[fi]..layout.family_start[fi + 1]];
-            let (complexed, mean) = if total > 0.0 {
-                let mut free = 0.0;
-                let mut bound = 0.0;
-                for (j, (&s, f)) in fam.forms.iter().zip(fr.iter_mut()).enumerate() {
-                    free += ev.conc[s];
-                    bound += j as f64 * ev.conc[s];
-                    *f = ev.conc[s] / total;
-                }
-                let complexed = (1.0 - free / total).max(0.0);
-                (complexed, if free > 0.0 { bound / free } else { 0.0 })
-            } else {
-                // The distribution this family would have: weights exp(ln K + j L − ln γ).
-                for (&s, f) in fam.forms.iter().zip(fr.iter_mut()) {
-                    *f = sys.ln_k[s] + sys.nu[s * nc] * point.y[0] - ev.ln_gamma[s];
-                }
-                let umax = fr.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
-                for f in fr.iter_mut() {
-                    *f = (*f - umax).exp();
-                }
-                let sum: f64 = fr.iter().sum();
-                for f in fr.iter_mut() {
-                    *f /= sum;
-                }
-                let mean = fr.iter().enumerate().map(|(j, a)| j as f64 * a).sum();
-                (0.0, mean)
-            };
+            for (&s, f) in fam.forms.iter().zip(fr.iter_mut()) {
+                *f = sys.ln_k[s] + sys.nu[s * nc] * point.y[0] - ev.ln_gamma[s];
+            }
+            let umax = fr.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+            for f in fr.iter_mut() {
+                *f = (*f - umax).exp();
+            }
+            let sum: f64 = fr.iter().sum();
+            for f in fr.iter_mut() {
+                *f /= sum;
+            }
+            let mean = fr.iter().enumerate().map(|(j, a)| j as f64 * a).sum();
             families_finite &= fr.iter().all(|v| v.is_finite()) && f64::is_finite(mean);
-            numbers[fam_at + 3 * fi..fam_at + 3 * fi + 3].copy_from_slice(&[total, complexed, mean]);
+            numbers[fam_at + 3 * fi + 1..fam_at + 3 * fi + 3].copy_from_slice(&[0.0, mean]);
         }
         // Mass in the other phases (solids formed, gas exchanged, acid or base of a fixed pH).
         let kept = if solved && !sys.phases.is_empty() { nc } else { 0 };
@@ -464,36 +565,35 @@ impl Equilibrium {
                 }
             }
         }
-        // Saturation indices, partial pressures, the acid or base of a fixed pH.
-        let mut solids = Vec::with_capacity(sys.phases.len());
-        let mut gases = Vec::new();
-        let mut proton_uptake_molal = 0.0;
-        let mut charge_balance_ion = None;
-        for (w, row) in sys.phases.iter().enumerate() {
-            let lambda = amount(w);
-            let ln_q = row.ln_q(&point.y);
-            if !ln_q.is_finite() && !row.is_amount() {
-                continue;
-            }
-            match row.kind {
-                RowKind::Solid { allowed } => solids.push(SolidState {
-                    name: row.name.clone(),
-                    saturation_index: ln_q / LN10,
-                    log10_iap: (ln_q + row.ln_k) / LN10,
-                    log10_k: row.ln_k / LN10,
-                    allowed,
-                    amount_molal: lambda,
-                }),
-                RowKind::Gas { fixed } => gases.push(GasState {
-                    name: row.name.clone(),
-                    partial_pressure: Pressure::bar_value(ln_q.exp()),
-                    fixed: fixed.is_some(),
-                    taken_up_molal: -lambda,
-                }),
-                RowKind::Ph { .. } | RowKind::Alkalinity { .. } => proton_uptake_molal = -lambda,
-                RowKind::Closure => charge_balance_ion = Some((row.name.clone(), -lambda)),
+        // Saturation indices, partial pressures, the acid or base of a fixed pH; a solid
+        // beyond the supersaturation tolerance warns (in the order of the rows). Without
+        // phase constraints the rows are only reported (no amounts): their records are
+        // assembled on first access, and only the warning is decided here.
+        let mut warnings = sys.compile_warnings.clone();
+        let report = if phased {
+            PhaseStates::of(&sys.phases, &point.y, &amount)
+        } else {
+            PhaseStates::default()
+        };
+        for row in &sys.phases {
+            if let RowKind::Solid { .. } = row.kind {
+                let ln_q = row.ln_q(&point.y);
+                let saturation_index = ln_q / LN10;
+                if ln_q.is_finite() && saturation_index > SUPERSATURATION_TOLERANCE {
+                    warnings.push(Warning::Supersaturated {
+                        solid: row.name.to_string(),
+                        saturation_index,
+                        tolerance: SUPERSATURATION_TOLERANCE,
+                    });
+                }
             }
         }
+        let PhaseStates {
+            solids,
+            gases,
+            proton_uptake_molal,
+            charge_balance_ion,
+        } = report;
         let charge_relative = if charge_scale > 0.0 { charge / charge_scale } else { 0.0 };
         // The phase relations held as equalities: a fixed partial pressure or pH, each solid
         // present, and the closing ion's condition (no H⁺ taken beside a fixed pH).
@@ -531,16 +631,6 @@ impl Equilibrium {
         }
         let ionic_strength_relative = if ideal { 0.0 } else { (ionic - i) / i };
         let activity_coefficients_ln = ev.composition_change(sys);
-        let mut warnings = sys.compile_warnings.clone();
-        for st in &solids {
-            if st.supersaturated() {
-                warnings.push(Warning::Supersaturated {
-                    solid: st.name.to_string(),
-                    saturation_index: st.saturation_index,
-                    tolerance: SUPERSATURATION_TOLERANCE,
-                });
-            }
-        }
         for (c, comp) in sys.components.iter().enumerate().skip(1) {
             if let Some(given) = sys.below_floor[c] {
                 warnings.push(Warning::TotalBelowFloor {
@@ -622,16 +712,13 @@ impl Equilibrium {
             }
         }
         // A NaN or infinity anywhere a caller would read it refuses the result: the species'
-        // molality, γ and activity (γ only computed where it might overflow), the families'
-        // numbers and the residuals.
-        let species_finite = ev.conc.iter().zip(&ev.ln_gamma).all(|(&m, &lg)| {
-            (m.is_finite() && m.abs() <= 1e150 && lg.abs() <= 300.0) || {
-                let g = lg.exp();
-                m.is_finite() && g.is_finite() && (g * m).is_finite()
-            }
-        });
-        let (p_h_molal, poh) = (-h.log10(), -oh.log10());
-        let finite = [ph, p_h_molal, poh, i].iter().all(|v| v.is_finite())
+        // molality, γ and activity (checked in the first pass), the families' numbers and the
+        // residuals.
+        // p[H] and pOH (computed on access from the molalities and γ kept) are finite
+        // exactly where m(H⁺) and a(OH⁻), finite by the check of the species, are positive.
+        let finite = [ph, i].iter().all(|v| v.is_finite())
+            && h > 0.0
+            && oh > 0.0
             && species_finite
             && families_finite
             && charge_relative.is_finite()
@@ -646,14 +733,11 @@ impl Equilibrium {
                 last_ph: if ph.is_finite() { ph } else { 0.0 },
             });
         }
-        let dic_molal = sys.carbonate.map_or(0.0, |c| numbers[aqueous(c)]);
         data.extend_from_slice(&point.y);
         let Evaluation { conc, ln_gamma, .. } = ev;
         crate::solve::fast::recycle(conc, ln_gamma, point.y);
         Ok(Equilibrium {
             ph,
-            p_h_molal,
-            poh,
             ionic_strength_molal: i,
             temperature: sys.temperature,
             model: sys.model,
@@ -669,18 +753,24 @@ impl Equilibrium {
             path,
             warnings,
             ln_i: point.ln_i,
+            phased,
             phases: PhaseReport {
                 solids,
                 gases,
                 proton_uptake_molal,
                 charge_balance_ion,
-                dic_molal,
-                total_alkalinity_molal: alkalinity,
-                carbonate_alkalinity_molal: carbonate_alkalinity,
                 residuals: phase_residuals,
             },
             records: OnceLock::new(),
+            reported: OnceLock::new(),
         })
+    }
+
+    /// The saturation and gas states of the rows a system without phase constraints reports
+    /// (no amounts), made on first access.
+    fn reported(&self) -> &PhaseStates {
+        self.reported
+            .get_or_init(|| Box::new(PhaseStates::of(&self.layout.phase_rows, self.unknowns(), &|_| 0.0)))
     }
 
     /// The per-species and per-family records, assembled on first access.
@@ -691,6 +781,7 @@ impl Equilibrium {
     fn assemble(&self) -> Records {
         let lay = &*self.layout;
         let rho = self.water_density;
+
         let species = (self.molal().iter().zip(self.ln_gamma()))
             .enumerate()
             .map(|(s, (&m, &lg))| {
@@ -705,22 +796,48 @@ impl Equilibrium {
                 }
             })
             .collect();
-        let fam_at = lay.family_numbers();
+        // The numbers `build` left to first access: the dissolved totals (recomputed with
+        // phases, to the same values), the alkalinities and the fractions of the families
+        // with a positive total.
+        let molal = self.molal();
+        let mut numbers = self.numbers().to_vec();
+        let (fam_at, comp_at) = (lay.family_numbers(), lay.component_numbers());
+        for n in numbers[comp_at..].chunks_exact_mut(4) {
+            n[1] = 0.0;
+        }
+        lay.add_dissolved_totals(molal, &mut numbers);
+        let total_alkalinity_molal = (lay.alkalinity.iter().zip(molal)).fold(0.0, |a, (&k, &m)| a + k * m);
+        let carbonate_alkalinity_molal = (lay.carbonate_alkalinity.iter()).fold(0.0, |a, &(s, k)| a + k * molal[s]);
+        for f in 0..lay.families() {
+            let total = numbers[fam_at + 3 * f];
+            if total > 0.0 {
+                let (mut free, mut bound) = (0.0, 0.0);
+                let (from, to) = (lay.family_start[f], lay.family_start[f + 1]);
+                for (j, (&s, fr)) in (lay.family_forms[from..to].iter().zip(&mut numbers[from..to])).enumerate() {
+                    free += molal[s];
+                    bound += j as f64 * molal[s];
+                    *fr = molal[s] / total;
+                }
+                let complexed = (1.0 - free / total).max(0.0);
+                let mean = if free > 0.0 { bound / free } else { 0.0 };
+                numbers[fam_at + 3 * f + 1..fam_at + 3 * f + 3].copy_from_slice(&[complexed, mean]);
+            }
+        }
+        let numbers = &numbers[..];
         let families = (0..lay.families())
             .map(|f| {
-                let n = &self.numbers()[fam_at + 3 * f..fam_at + 3 * f + 3];
+                let n = &numbers[fam_at + 3 * f..fam_at + 3 * f + 3];
                 FamilyState {
                     name: lay.family_names[f].clone(),
                     total_molal: n[0],
-                    fractions: self.numbers()[lay.family_start[f]..lay.family_start[f + 1]].to_vec(),
+                    fractions: numbers[lay.family_start[f]..lay.family_start[f + 1]].to_vec(),
                     complexed_fraction: n[1],
                     mean_bound_protons: n[2],
                 }
             })
             .collect();
-        let comp_at = lay.component_numbers();
         let active: Vec<(usize, &[f64])> = (1..lay.component_names.len())
-            .map(|c| (c, &self.numbers()[comp_at + 4 * c..comp_at + 4 * c + 4]))
+            .map(|c| (c, &numbers[comp_at + 4 * c..comp_at + 4 * c + 4]))
             .filter(|(_, n)| n[0] != 0.0)
             .collect();
         let pick = |k: usize| -> Vec<(Arc<str>, f64)> {
@@ -742,6 +859,9 @@ impl Equilibrium {
                 activity_coefficients_ln: self.activity_coefficients_ln,
                 phases: self.phases.residuals.clone(),
             },
+            total_alkalinity_molal,
+            carbonate_alkalinity_molal,
+            dic_molal: lay.carbonate.map_or(0.0, |c| numbers[comp_at + 4 * c + 1]),
         }
     }
 
@@ -790,12 +910,12 @@ impl Equilibrium {
 
     /// p\[H\] = −log₁₀ of the H⁺ molality (mol/kg): the pH of concentration, without γ.
     pub fn p_h_molal(&self) -> f64 {
-        self.p_h_molal
+        -self.molal()[0].log10()
     }
 
     /// pOH = −log₁₀ a(OH⁻).
     pub fn poh(&self) -> f64 {
-        self.poh
+        -(self.ln_gamma()[1].exp() * self.molal()[1]).log10()
     }
 
     /// Ionic strength, mol/kg (solved self-consistently with the activity coefficients).
@@ -878,12 +998,16 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn solids(&self) -> &[SolidState] {
-        &self.phases.solids
+        if self.phased {
+            &self.phases.solids
+        } else {
+            &self.reported().solids
+        }
     }
 
     /// The saturation state of the solid named `name`.
     pub fn solid(&self, name: &str) -> Option<&SolidState> {
-        self.phases.solids.iter().find(|s| &*s.name == name)
+        self.solids().iter().find(|s| &*s.name == name)
     }
 
     /// The saturation index of the solid named `name`.
@@ -905,12 +1029,16 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn gases(&self) -> &[GasState] {
-        &self.phases.gases
+        if self.phased {
+            &self.phases.gases
+        } else {
+            &self.reported().gases
+        }
     }
 
     /// The state of the gas named `name`.
     pub fn gas(&self, name: &str) -> Option<&GasState> {
-        self.phases.gases.iter().find(|g| &*g.name == name)
+        self.gases().iter().find(|g| &*g.name == name)
     }
 
     /// H⁺ taken up into the solution to hold a fixed pH, mol/kg (negative: the base that was
@@ -943,7 +1071,7 @@ impl Equilibrium {
     /// Dissolved inorganic carbon, mol/kg: the dissolved total of the carbonate family (0
     /// without it).
     pub fn dic_molal(&self) -> f64 {
-        self.phases.dic_molal
+        self.records().dic_molal
     }
 
     /// Total alkalinity, mol/kg: the excess of proton acceptors over proton donors relative
@@ -966,13 +1094,13 @@ impl Equilibrium {
     /// # Ok::<(), protolyte::Error>(())
     /// ```
     pub fn total_alkalinity_molal(&self) -> f64 {
-        self.phases.total_alkalinity_molal
+        self.records().total_alkalinity_molal
     }
 
     /// Carbonate alkalinity, mol/kg: m(HCO₃⁻) + 2m(CO₃²⁻), with carbonate ion pairs counted by
     /// the protons their carbonate lacks relative to H₂CO₃.
     pub fn carbonate_alkalinity_molal(&self) -> f64 {
-        self.phases.carbonate_alkalinity_molal
+        self.records().carbonate_alkalinity_molal
     }
 
     /// ln a of each component (−∞ for components with zero total), H⁺ first.
@@ -999,8 +1127,8 @@ impl std::fmt::Debug for Equilibrium {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("Equilibrium")
             .field("ph", &self.ph)
-            .field("p_h_molal", &self.p_h_molal)
-            .field("poh", &self.poh)
+            .field("p_h_molal", &self.p_h_molal())
+            .field("poh", &self.poh())
             .field("ionic_strength_molal", &self.ionic_strength_molal)
             .field("temperature", &self.temperature)
             .field("model", &self.model)
@@ -1012,8 +1140,8 @@ impl std::fmt::Debug for Equilibrium {
             .field("iterations", &self.iterations)
             .field("path", &self.path)
             .field("warnings", &self.warnings)
-            .field("solids", &self.phases.solids)
-            .field("gases", &self.phases.gases)
+            .field("solids", &self.solids())
+            .field("gases", &self.gases())
             .field("dissolved_totals", &self.dissolved_totals())
             .finish_non_exhaustive()
     }
@@ -1024,8 +1152,8 @@ impl std::fmt::Debug for Equilibrium {
 impl PartialEq for Equilibrium {
     fn eq(&self, other: &Self) -> bool {
         self.ph == other.ph
-            && self.p_h_molal == other.p_h_molal
-            && self.poh == other.poh
+            && self.p_h_molal() == other.p_h_molal()
+            && self.poh() == other.poh()
             && self.ionic_strength_molal == other.ionic_strength_molal
             && self.temperature == other.temperature
             && self.model == other.model
@@ -1036,6 +1164,8 @@ impl PartialEq for Equilibrium {
             && self.unknowns() == other.unknowns()
             && self.ln_i == other.ln_i
             && self.phases == other.phases
+            && self.solids() == other.solids()
+            && self.gases() == other.gases()
             && self.records() == other.records()
     }
 }
@@ -1102,4 +1232,160 @@ fn sources(sys: &System, c: usize, amount: &dyn Fn(usize) -> f64) -> String {
         out.push(format!("pH {ph}"));
     }
     out.join(" with ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::{Amount, Catalog, Conditions, Recipe};
+
+    /// The numbers a result derives on first access (dissolved totals, alkalinities, DIC,
+    /// family fractions, complexed fractions and mean bound protons) equal those of one eager
+    /// pass over the species as `build` made them before they were deferred (the reference
+    /// below is that pass, written against the system's own tables), bit for bit, whatever
+    /// is read first. The scenarios are demo recipes of our own: one and several families
+    /// (fast path), a complex (general path), a family with zero total, a solid allowed to
+    /// form and an open CO₂ system (phases).
+    #[test]
+    fn deferred_records_equal_the_eager_pass() {
+        let cat = Catalog::builtin();
+        let recipe = |items: &[(&str, f64)]| {
+            let mut r = Recipe::new();
+            for &(name, mm) in items {
+                r.add(&cat.reagent(name).unwrap(), Amount::millimolar(mm)).unwrap();
+            }
+            r
+        };
+        let mut systems = Vec::new();
+        for model in [
+            ActivityModel::Davies,
+            ActivityModel::Ideal,
+            ActivityModel::ExtendedDebyeHuckel,
+        ] {
+            let cond = Conditions::new(Temperature::celsius(25.0), model);
+            systems.push(recipe(&[("acetic acid", 10.0)]).compile(&cond).unwrap());
+            systems.push(
+                recipe(&[
+                    ("acetic acid", 5.0),
+                    ("sodium dihydrogen phosphate", 3.0),
+                    ("ammonium chloride", 2.0),
+                    ("sodium hydroxide", 4.0),
+                    ("sodium bicarbonate", 2.0),
+                ])
+                .compile(&cond)
+                .unwrap(),
+            );
+            systems.push(
+                recipe(&[("disodium edta dihydrate", 10.0), ("calcium chloride", 5.0)])
+                    .compile(&cond)
+                    .unwrap(),
+            );
+            // A family with zero total beside one with a positive total.
+            let mut zero = recipe(&[("acetic acid", 10.0), ("sodium hydroxide", 5.0)])
+                .compile(&cond)
+                .unwrap();
+            let acetate = zero.component_index("acetate").unwrap();
+            zero.set_total_molal(acetate, 0.0).unwrap();
+            systems.push(zero);
+            let mut hard = recipe(&[("calcium chloride", 3.0), ("sodium carbonate", 3.0)]);
+            hard.allow_solid(&cat.solid("calcite").unwrap());
+            systems.push(hard.compile(&cond).unwrap());
+            // Calcite and CO₂(g) only reported (no phase constraint): their states are
+            // assembled on first access, the supersaturation warning decided in `build`.
+            systems.push(
+                recipe(&[("calcium chloride", 5.0), ("sodium carbonate", 5.0)])
+                    .compile(&cond)
+                    .unwrap(),
+            );
+            let mut open = recipe(&[("sodium bicarbonate", 2.0)]);
+            open.fix_partial_pressure(&cat.gas("CO2(g)").unwrap(), Pressure::atm(4.2e-4))
+                .unwrap();
+            systems.push(open.compile(&cond).unwrap());
+        }
+        for (k, sys) in systems.iter().enumerate() {
+            let eq = sys.solve().unwrap();
+            let m = eq.molal().to_vec();
+            let nc = sys.components.len();
+            // The eager pass: dissolved totals and alkalinities over every species.
+            let mut aqueous = vec![0.0; nc];
+            let (mut alkalinity, mut carbonate_alkalinity) = (0.0, 0.0);
+            for (s, &ms) in m.iter().enumerate() {
+                let (mut level, mut nu_h, mut nu_carb) = (0.0, 0.0, 0.0);
+                for &(c, v) in &sys.terms[sys.term_start[s]..sys.term_start[s + 1]] {
+                    aqueous[c] += v * ms;
+                    if c == 0 {
+                        nu_h = v;
+                    } else {
+                        level += v * sys.alkalinity_reference[c];
+                        if Some(c) == sys.carbonate {
+                            nu_carb = v;
+                        }
+                    }
+                }
+                alkalinity += (level - nu_h) * ms;
+                if nu_carb > 0.0 {
+                    carbonate_alkalinity += (2.0 * nu_carb - nu_h) * ms;
+                }
+            }
+            // Read in two orders: the alkalinity first, and the species first.
+            let late = eq.clone();
+            assert_eq!(eq.total_alkalinity_molal(), alkalinity, "system {k}");
+            assert_eq!(eq.carbonate_alkalinity_molal(), carbonate_alkalinity, "system {k}");
+            assert_eq!(eq.dic_molal(), sys.carbonate.map_or(0.0, |c| aqueous[c]), "system {k}");
+            assert!(!late.species().is_empty());
+            assert_eq!(late, eq, "system {k}");
+            assert_eq!(late.total_alkalinity_molal(), alkalinity, "system {k}");
+            let phased = sys.has_phase_constraints();
+            // Each supersaturation warning names a solid whose record gives the same index,
+            // and every supersaturated solid warns.
+            let warned: Vec<(&str, f64)> = (eq.warnings().iter())
+                .filter_map(|w| match w {
+                    Warning::Supersaturated {
+                        solid,
+                        saturation_index,
+                        ..
+                    } => Some((solid.as_str(), *saturation_index)),
+                    _ => None,
+                })
+                .collect();
+            let supersaturated: Vec<(&str, f64)> = (eq.solids().iter())
+                .filter(|st| st.supersaturated())
+                .map(|st| (&*st.name, st.saturation_index))
+                .collect();
+            assert_eq!(warned, supersaturated, "system {k}");
+            // The reported calcite of 5 mM CaCl2 + 5 mM Na2CO3 is supersaturated (SI > 1, as
+            // the example of `Equilibrium::solids` shows).
+            assert!(k % 7 != 5 || warned.iter().any(|(n, _)| *n == "calcite"), "system {k}");
+            for (c, (name, v)) in eq.dissolved_totals().iter().enumerate() {
+                let ci = sys.component_index(name).unwrap();
+                assert!(c < nc);
+                assert_eq!(*v, aqueous[ci], "system {k}: {name}");
+            }
+            for (fi, fam) in sys.families.iter().enumerate() {
+                let st = &eq.families()[fi];
+                let total = if phased {
+                    aqueous[fam.component]
+                } else {
+                    sys.components[fam.component].total_molal
+                };
+                assert_eq!(st.total_molal, total, "system {k}");
+                if total > 0.0 {
+                    let (mut free, mut bound) = (0.0, 0.0);
+                    for (j, &s) in fam.forms.iter().enumerate() {
+                        free += m[s];
+                        bound += j as f64 * m[s];
+                        assert_eq!(st.fractions[j], m[s] / total, "system {k}");
+                    }
+                    assert_eq!(st.complexed_fraction, (1.0 - free / total).max(0.0), "system {k}");
+                    let mean = if free > 0.0 { bound / free } else { 0.0 };
+                    assert_eq!(st.mean_bound_protons, mean, "system {k}");
+                } else {
+                    // The distribution at this pH: weights exp(ln K + j L − ln γ), summing to 1.
+                    assert_eq!(st.complexed_fraction, 0.0, "system {k}");
+                    assert!((st.fractions.iter().sum::<f64>() - 1.0).abs() < 1e-12, "system {k}");
+                    assert!(st.fractions.iter().all(|f| f.is_finite() && *f >= 0.0), "system {k}");
+                }
+            }
+        }
+    }
 }

@@ -182,6 +182,9 @@ pub struct System {
     pub(crate) nu: Vec<f64>,
     /// Species that couple two or more non-H components, or hold one twice.
     pub(crate) coupling: Vec<bool>,
+    /// The indices of the coupling species, in order (made at compile: the checks and
+    /// balances that concern only them need not scan every species).
+    pub(crate) coupled_species: Vec<usize>,
     /// ln K of each species (log₁₀ K × ln 10).
     pub(crate) ln_k: Vec<f64>,
     /// Sparse stoichiometry: the non-zero (component, ν) of species s are
@@ -473,7 +476,7 @@ impl System {
         );
         let charge_f = species.iter().map(|s| f64::from(s.charge)).collect();
         let (phases, open) = b.phase_rows(recipe, &species, t, tc, &mut warnings)?;
-        let alkalinity_reference = b
+        let alkalinity_reference: Vec<f64> = b
             .components
             .iter()
             .map(|c| match c.kind {
@@ -491,7 +494,12 @@ impl System {
             &species,
             &b.families,
             &b.components,
+            (&term_start, &terms),
+            &alkalinity_reference,
+            carbonate,
+            &phases,
         ));
+        let coupled_species = (0..species.len()).filter(|&s| coupling[s]).collect();
         Ok(System {
             temperature: t,
             model: conditions.activity,
@@ -505,6 +513,7 @@ impl System {
             families: b.families,
             nu,
             coupling,
+            coupled_species,
             ln_k,
             term_start,
             terms,
@@ -742,7 +751,7 @@ impl System {
     /// True when no active species couples two components (the fast path applies).
     pub(crate) fn uncoupled(&self) -> bool {
         let nc = self.components.len();
-        (0..self.species.len()).all(|s| !self.coupling[s] || !self.species_active(s, nc))
+        self.coupled_species.iter().all(|&s| !self.species_active(s, nc))
     }
 
     /// A species is active when every non-H component it needs has a positive total.

@@ -91,12 +91,17 @@ impl Workspace {
     /// The evaluation for `sys` in the workspace's buffers (all zero).
     fn take_evaluation(&mut self, sys: &System) -> Evaluation {
         let n = sys.species.len();
-        let mut conc = std::mem::take(&mut self.conc);
-        conc.clear();
-        conc.resize(n, 0.0);
-        let mut ln_gamma = std::mem::take(&mut self.ln_gamma);
-        ln_gamma.clear();
-        ln_gamma.resize(n, 0.0);
+        let zeroed = |mut v: Vec<f64>| {
+            if v.len() == n {
+                v.fill(0.0);
+            } else {
+                v.clear();
+                v.resize(n, 0.0);
+            }
+            v
+        };
+        let conc = zeroed(std::mem::take(&mut self.conc));
+        let ln_gamma = zeroed(std::mem::take(&mut self.ln_gamma));
         Evaluation {
             conc,
             ln_gamma,
@@ -141,7 +146,7 @@ impl Solver {
     pub fn solve_ph(&self, system: &System, workspace: &mut Workspace) -> Result<PhSolution> {
         let sys = system;
         if self.lean_applies(sys)
-            && let Some(s) = self.solve_lean(sys, workspace)?
+            && let Some(s) = self.solve_lean(sys, workspace, true)?
         {
             return Ok(s);
         }
@@ -175,14 +180,15 @@ impl Solver {
 
     /// The fast path in the workspace; `None` where it gives no finite result in the solver's
     /// range (the full solve then decides). Starts from the workspace's last solution, then
-    /// cold.
-    pub(crate) fn solve_lean(&self, sys: &System, workspace: &mut Workspace) -> Result<Option<PhSolution>> {
+    /// cold. Without `p_h` the solution's p\[H\] is left 0 (a caller that does not read it
+    /// saves its logarithm; whether it is finite is decided all the same).
+    pub(crate) fn solve_lean(&self, sys: &System, workspace: &mut Workspace, p_h: bool) -> Result<Option<PhSolution>> {
         for start in [workspace.start, None] {
             let mut ev = workspace.take_evaluation(sys);
             let r = fast::solve_in(sys, start, self.tolerance, &mut workspace.bufs, &mut ev);
             let out = match r {
                 Ok((point, _)) => {
-                    let s = read(sys, &ev, point.y[0], point.ln_i);
+                    let s = read(sys, &ev, point.y[0], point.ln_i, p_h);
                     let at = (point.y[0], point.ln_i);
                     workspace.bufs.keep_y(point.y);
                     s.map(|s| (s, at))
@@ -226,7 +232,7 @@ impl Solver {
         if !quiet_system || !self.lean_applies(sys) {
             return Ok(None);
         }
-        let Some(s) = self.solve_lean(sys, workspace)? else {
+        let Some(s) = self.solve_lean(sys, workspace, true)? else {
             return Ok(None);
         };
         let i = s.ionic_strength_molal;
@@ -247,13 +253,16 @@ impl Solver {
 
 /// The numbers of a fast-path solution, computed as the full result computes them; `None`
 /// where any is not finite or the pH is outside the solver's range (the full solve then
-/// gives the error).
-fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64) -> Option<PhSolution> {
+/// gives the error). p\[H\] only with `p_h` (else 0); it is finite exactly where the H⁺
+/// molality is positive, which is checked either way.
+fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64, p_h: bool) -> Option<PhSolution> {
     let (mut charge, mut scale, mut ionic) = (0.0, 0.0, 0.0);
+    let mut conc_finite = true;
     for (&m, &z) in ev.conc.iter().zip(&sys.charge_f) {
         charge += z * m;
         scale += z.abs() * m;
         ionic += 0.5 * z * z * m;
+        conc_finite &= m.is_finite();
     }
     let ideal = sys.model == ActivityModel::Ideal;
     let i = if ideal { ionic } else { ln_i.exp() };
@@ -267,7 +276,7 @@ fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64) -> Option<PhSolution> 
     for (ci, c) in sys.components.iter().enumerate().skip(1) {
         if c.total_molal > 0.0 {
             let mut held: f64 = sys.members[ci].iter().map(|&s| ev.conc[s]).sum();
-            for (s, _) in sys.coupling.iter().enumerate().filter(|(_, c)| **c) {
+            for &s in &sys.coupled_species {
                 held += sys.nu[s * nc + ci] * ev.conc[s];
             }
             worst = worst.max(((held - c.total_molal) / c.total_molal).abs());
@@ -278,7 +287,7 @@ fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64) -> Option<PhSolution> 
     }
     let s = PhSolution {
         ph,
-        p_h_molal: -ev.conc[0].log10(),
+        p_h_molal: if p_h { -ev.conc[0].log10() } else { 0.0 },
         ionic_strength_molal: i,
         max_residual: worst,
         path: SolverPath::Fast,
@@ -286,6 +295,7 @@ fn read(sys: &System, ev: &Evaluation, l: f64, ln_i: f64) -> Option<PhSolution> 
     let finite = [s.ph, s.p_h_molal, s.ionic_strength_molal, s.max_residual]
         .iter()
         .all(|v| v.is_finite())
-        && ev.conc.iter().all(|m| m.is_finite());
+        && conc_finite
+        && ev.conc[0] > 0.0;
     finite.then_some(s)
 }
