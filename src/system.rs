@@ -208,6 +208,9 @@ pub struct System {
     pub(crate) fast_member_start: Vec<usize>,
     /// Largest ν(H⁺) and largest −ν(H⁺) over the uncoupled species (both ≥ 0).
     pub(crate) nu_h_span: (usize, usize),
+    /// Largest |z| over the uncoupled species (the fast path's table of activity factors by
+    /// charge serves systems with |z| below `fast::CHARGE_TABLE`).
+    pub(crate) fast_zmax: usize,
     pub(crate) compile_warnings: Vec<Warning>,
     /// Per component: the positive total given below the floor, taken as zero.
     pub(crate) below_floor: Vec<Option<f64>>,
@@ -469,6 +472,7 @@ impl System {
             );
         }
         fast_member_start.push(fast_members.len());
+        let fast_zmax = crate::solve::fast::largest_charge(&fast_members);
         let unc = || (0..species_len).filter(|&s| !coupling[s]);
         let nu_h_span = (
             unc().map(|s| nu_h[s].max(0).unsigned_abs() as usize).max().unwrap_or(0),
@@ -523,6 +527,7 @@ impl System {
             nu_h_span,
             fast_members,
             fast_member_start,
+            fast_zmax,
             nu_h,
             charge_f,
             compile_warnings: warnings,
