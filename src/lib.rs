@@ -80,11 +80,13 @@
 pub mod activity;
 pub mod analysis;
 mod complex;
+mod conditions;
 pub mod data;
 #[cfg(feature = "serde")]
 pub mod document;
 mod equilibrium;
 mod error;
+mod formula;
 mod ion;
 pub mod limits;
 pub mod phase;

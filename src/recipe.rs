@@ -353,7 +353,7 @@ impl Recipe {
         &mut self,
         reagent: &Reagent,
         amount: Amount,
-        conditions: &crate::system::Conditions,
+        conditions: &crate::conditions::Conditions,
     ) -> Result<&mut Self> {
         use crate::reagent::Constituent;
         amount.validate(reagent.name())?;

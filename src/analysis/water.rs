@@ -35,12 +35,12 @@
 //! how fast. Dosing chemicals into drinking or pool water is regulated: local codes govern.
 
 use crate::activity::{ActivityModel, DebyeHuckelConstants};
+use crate::conditions::Conditions;
 use crate::data::{Catalog, molar_mass_from_formula};
 use crate::error::{Error, Result, check_parameter};
 use crate::quantity::{Amount, Temperature};
 use crate::reagent::Reagent;
 use crate::recipe::Recipe;
-use crate::system::Conditions;
 use crate::water;
 
 /// Molar mass of CaCO₃ in g/mol (IUPAC 2021 standard atomic weights), the basis of

@@ -7,11 +7,11 @@
 //! same format add entries or replace built-in ones ([`Catalog::with_file`]).
 
 mod format;
-mod formula;
+use crate::formula;
 mod located;
 mod phases;
 
-pub use formula::molar_mass_from_formula;
+pub use crate::formula::molar_mass_from_formula;
 
 use std::collections::{BTreeMap, HashMap};
 use std::path::Path;

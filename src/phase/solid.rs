@@ -198,7 +198,7 @@ impl Solid {
     pub fn molar_mass_g_per_mol(&self) -> Option<f64> {
         self.formula
             .as_deref()
-            .and_then(|f| crate::data::molar_mass_from_formula(f, 0).ok())
+            .and_then(|f| crate::formula::molar_mass_from_formula(f, 0).ok())
     }
 
     /// The dissolution parts and their counts.

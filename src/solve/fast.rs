@@ -22,6 +22,7 @@
 use super::{Evaluation, I_MAX, I_MIN, LN_AH_MAX, LN_AH_MIN, Point};
 use crate::error::{Error, Result};
 use crate::system::System;
+use crate::system::packed::{CHARGE_MASK, CHARGE_TABLE, Member, NU_SPAN, POWER_MASK, POWER_SLOTS};
 
 const LN10: f64 = std::f64::consts::LN_10;
 /// How far (ln units) L may move from the reference before the coefficients are retaken.
@@ -36,23 +37,6 @@ struct Balance {
     neg: f64,
     dneg: f64,
     ok: bool,
-}
-
-/// Largest |ν(H⁺)| of any species: families have at most 12 protons and complexes gain or
-/// lose at most 12 (both checked where they are defined).
-const NU_SPAN: usize = 12;
-/// Length of the power table (x^k for k = −12..=12 at k + 12), a power of two so that an
-/// index masked by `POWER_MASK` needs no bounds check.
-const POWER_SLOTS: usize = 32;
-const POWER_MASK: usize = POWER_SLOTS - 1;
-/// Length of the table of activity factors by |z|: systems whose uncoupled species all have
-/// |z| below it use the table (others retake the coefficients species by species).
-pub(crate) const CHARGE_TABLE: usize = 16;
-const CHARGE_MASK: usize = CHARGE_TABLE - 1;
-
-/// The largest |z| of `members` (see [`CHARGE_TABLE`]).
-pub(crate) fn largest_charge(members: &[Member]) -> usize {
-    members.iter().map(|m| m.z2.sqrt().round() as usize).max().unwrap_or(0)
 }
 
 /// What the coefficients kept in [`Buffers`] were taken for: the ln K, the packed members and
@@ -164,36 +148,6 @@ pub(crate) struct Fast<'a> {
     /// d ln γ/dI of each entry of `members` at the current I (filled for the joint step
     /// without the table only).
     sig: Vec<f64>,
-}
-
-/// One uncoupled species as the fast path's passes read it: its index, its position in the
-/// power table, its |z| (position in the table of activity factors), ν(H⁺),
-/// z⁺ = max(z, 0), z⁻ = max(−z, 0) and z².
-#[derive(Debug, Default, Clone, Copy, PartialEq)]
-pub(crate) struct Member {
-    s: usize,
-    k: usize,
-    zk: usize,
-    nu: f64,
-    zp: f64,
-    zn: f64,
-    z2: f64,
-}
-
-impl Member {
-    /// Species `s` with ν(H⁺) = `nu` (within ±[`NU_SPAN`], checked when the system is
-    /// compiled) and charge `z`.
-    pub(crate) fn new(s: usize, nu: i32, z: f64) -> Self {
-        Member {
-            s,
-            k: (nu + NU_SPAN as i32) as usize,
-            zk: (z.abs().min(CHARGE_MASK as f64)) as usize,
-            nu: f64::from(nu),
-            zp: z.max(0.0),
-            zn: (-z).max(0.0),
-            z2: z * z,
-        }
-    }
 }
 
 /// Everything one Newton step on (L, ln I) needs, from one pass over the species at fixed

@@ -9,6 +9,11 @@
 
 use std::sync::Arc;
 
+pub(crate) mod layout;
+pub(crate) mod packed;
+
+pub use crate::conditions::Conditions;
+
 use crate::activity::sit::Interactions;
 use crate::activity::{ActivityModel, DEFAULT_ION_SIZE_ANGSTROM, DebyeHuckelConstants, PhConvention};
 use crate::complex::{Complex, ComplexPart};
@@ -25,53 +30,6 @@ use crate::water;
 /// Ion size of H⁺ and OH⁻ (Kielland, *J. Am. Chem. Soc.* 59 (1937) 1675; from memory).
 const ION_SIZE_H: f64 = 9.0;
 const ION_SIZE_OH: f64 = 3.5;
-
-/// The temperature, activity model and pH convention a recipe is compiled for.
-///
-/// # Example
-///
-/// ```
-/// use protolyte::{ActivityModel, Conditions, PhConvention, Temperature};
-///
-/// let c = Conditions::new(Temperature::celsius(37.0), ActivityModel::ExtendedDebyeHuckel)
-///     .with_ph_convention(PhConvention::BatesGuggenheim);
-/// assert_eq!(c.temperature.as_celsius(), 37.0);
-/// assert_eq!(Conditions::default().activity, ActivityModel::Davies);
-/// assert_eq!(Conditions::default().ph_convention, PhConvention::Model);
-/// ```
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Conditions {
-    /// Temperature (0–100 °C).
-    pub temperature: Temperature,
-    /// Activity-coefficient model.
-    pub activity: ActivityModel,
-    /// How the reported pH is tied to a single-ion activity (default: the model's own γ(H⁺)).
-    pub ph_convention: PhConvention,
-}
-
-impl Conditions {
-    /// Conditions at `temperature` with `activity`, pH from the model's own γ(H⁺).
-    pub fn new(temperature: Temperature, activity: ActivityModel) -> Self {
-        Conditions {
-            temperature,
-            activity,
-            ph_convention: PhConvention::Model,
-        }
-    }
-
-    /// The same conditions with pH reported under `convention`.
-    pub fn with_ph_convention(mut self, convention: PhConvention) -> Self {
-        self.ph_convention = convention;
-        self
-    }
-}
-
-impl Default for Conditions {
-    /// 25 °C, Davies.
-    fn default() -> Self {
-        Conditions::new(Temperature::STANDARD, ActivityModel::Davies)
-    }
-}
 
 /// What a component stands for.
 #[derive(Debug, Clone, PartialEq)]
@@ -197,14 +155,14 @@ pub struct System {
     pub(crate) free_species: Vec<Option<usize>>,
     /// The names and shapes every result of this system shares (species, families,
     /// components).
-    pub(crate) layout: Arc<crate::equilibrium::ResultLayout>,
+    pub(crate) layout: Arc<layout::ResultLayout>,
     /// ν(H⁺) of each species as an integer, and each species' charge as a float.
     pub(crate) nu_h: Vec<i32>,
     pub(crate) charge_f: Vec<f64>,
     /// The uncoupled species by component, packed for the fast path's passes over them:
     /// component g's are `fast_members[fast_member_start[g]..fast_member_start[g + 1]]`, in
     /// the order of `members[g]`.
-    pub(crate) fast_members: Vec<crate::solve::fast::Member>,
+    pub(crate) fast_members: Vec<packed::Member>,
     pub(crate) fast_member_start: Vec<usize>,
     /// Largest ν(H⁺) and largest −ν(H⁺) over the uncoupled species (both ≥ 0).
     pub(crate) nu_h_span: (usize, usize),
@@ -468,11 +426,11 @@ impl System {
             fast_member_start.push(fast_members.len());
             fast_members.extend(
                 list.iter()
-                    .map(|&s| crate::solve::fast::Member::new(s, nu_h[s], f64::from(species[s].charge))),
+                    .map(|&s| packed::Member::new(s, nu_h[s], f64::from(species[s].charge))),
             );
         }
         fast_member_start.push(fast_members.len());
-        let fast_zmax = crate::solve::fast::largest_charge(&fast_members);
+        let fast_zmax = packed::largest_charge(&fast_members);
         let unc = || (0..species_len).filter(|&s| !coupling[s]);
         let nu_h_span = (
             unc().map(|s| nu_h[s].max(0).unsigned_abs() as usize).max().unwrap_or(0),
@@ -494,7 +452,7 @@ impl System {
         } else {
             Interactions::default()
         };
-        let layout = Arc::new(crate::equilibrium::ResultLayout::new(
+        let layout = Arc::new(layout::ResultLayout::new(
             &species,
             &b.families,
             &b.components,
