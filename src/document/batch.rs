@@ -23,7 +23,6 @@ use std::borrow::Cow;
 use std::io::{self, BufRead, Write};
 use std::sync::Mutex;
 
-use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use super::AmountLine;
@@ -1190,6 +1189,13 @@ struct RawLine {
 /// and a newline to `out` and returns true when the record is an error record. Whatever a
 /// worker does (a panic, a malformed record), every non-blank line gets exactly one record:
 /// a panic becomes an `"internal"` error record and the block's worker is made afresh.
+///
+/// A reader thread reads the input block by block (`sizes.block` lines, fewer where the
+/// block's bytes reach their bound) and hands each block to the rayon pool as soon as it is
+/// read; the calling thread writes each block's records as soon as the blocks before it are
+/// written. There is no barrier between groups of blocks: the workers only wait at the end of
+/// the input. At most `sizes.chunk_lines` lines (in whole blocks, at least two) are read and
+/// not yet written, so memory stays bounded whatever the input and however slow one block is.
 fn run_with<R, W, M, F>(
     mut input: R,
     mut output: W,
@@ -1203,77 +1209,119 @@ where
     M: Fn() -> F + Sync,
     F: FnMut(usize, &str, &mut Vec<u8>) -> bool,
 {
-    let chunk = sizes.chunk_lines.max(sizes.block).max(1);
-    let mut summary = BatchSummary::default();
-    let mut first_line = 0usize;
-    let mut bytes = 0u64;
-    let mut current: Vec<RawLine> = Vec::with_capacity(chunk);
-    let mut next: Vec<RawLine> = Vec::with_capacity(chunk);
-    // The first chunk is read before anything else can run: a short one (two blocks) gets
-    // the workers going sooner. Each next chunk is four times the last (up to `chunk`), so
-    // that it is read in the time the workers take over the last one, and the chunks (where
-    // a worker may wait for the other's last block) are few. Every size is a whole number of
-    // blocks, so the blocks start at the same line numbers whatever the sizes.
-    let mut size = (2 * sizes.block.max(1)).min(chunk);
-    let (mut n, mut got, mut eof) = read_chunk(&mut input, &mut current, size)?;
-    bytes += got;
-    // The records of the chunk solved last, written while the next one is solved.
-    let mut pending: Vec<(Vec<u8>, usize, usize)> = Vec::new();
-    while n > 0 {
-        // Solve this chunk and read the next one on the workers (a helper thread waits for
-        // them) while this thread writes the records of the previous chunk.
-        size = (4 * size).min(chunk);
-        let (solved, written) = std::thread::scope(|scope| {
-            let work = scope.spawn(|| {
-                rayon::join(
-                    || {
-                        if eof {
-                            Ok((0, 0, true))
-                        } else {
-                            read_chunk(&mut input, &mut next, size)
-                        }
-                    },
-                    || solve_chunk(&current[..n], first_line, sizes, make),
-                )
-            });
-            let written = write_results(&mut output, &pending, &mut summary);
-            let solved = work.join().unwrap_or_else(|payload| std::panic::resume_unwind(payload));
-            (solved, written)
-        });
-        written?;
-        let (read, results) = solved;
-        pending = results;
-        first_line += n;
-        progress(bytes, first_line);
-        (n, got, eof) = read?;
-        bytes += got;
-        std::mem::swap(&mut current, &mut next);
+    let block = sizes.block.max(1);
+    let in_flight = (sizes.chunk_lines.max(block) / block).max(2);
+    let block_bytes = (CHUNK_BYTES / in_flight as u64).max(1);
+    // Buffers (input lines, output records) of a block go round: reader, worker, writer and
+    // back to the reader; there are `in_flight` of them, which bounds the read-ahead.
+    let (free_tx, free_rx) = std::sync::mpsc::channel::<(Vec<RawLine>, Vec<u8>)>();
+    for _ in 0..in_flight {
+        // The receiver is alive: this cannot fail.
+        let _ = free_tx.send((Vec::new(), Vec::new()));
     }
-    write_results(&mut output, &pending, &mut summary)?;
+    let (done_tx, done_rx) = std::sync::mpsc::channel::<SolvedBlock>();
+    let mut summary = BatchSummary::default();
+    std::thread::scope(|threads| {
+        let reader = threads.spawn(move || -> io::Result<()> {
+            let done_tx = done_tx;
+            let (mut first_line, mut bytes, mut index) = (0usize, 0u64, 0usize);
+            rayon::in_place_scope_fifo(|scope| {
+                // The writer stopped (a write error) when no buffer comes back.
+                while let Ok((mut lines, mut out)) = free_rx.recv() {
+                    let (n, got, eof) = read_chunk(&mut input, &mut lines, block, block_bytes)?;
+                    bytes += got;
+                    if n == 0 {
+                        break;
+                    }
+                    let done = done_tx.clone();
+                    let (first, read_bytes) = (first_line, bytes);
+                    scope.spawn_fifo(move |_| {
+                        let (records, failed) = solve_block(&lines[..n], first, sizes, make, &mut out);
+                        // A closed channel: the writer stopped on an error.
+                        let _ = done.send(SolvedBlock {
+                            index,
+                            lines,
+                            out,
+                            records,
+                            failed,
+                            bytes: read_bytes,
+                            lines_read: first + n,
+                        });
+                    });
+                    first_line += n;
+                    index += 1;
+                    if eof {
+                        break;
+                    }
+                }
+                Ok(())
+            })
+        });
+        // This thread writes the blocks in order as they come.
+        let written = (|| -> io::Result<()> {
+            let mut next = 0usize;
+            let mut waiting: std::collections::VecDeque<Option<SolvedBlock>> = std::collections::VecDeque::new();
+            for done in done_rx.iter() {
+                let slot = done.index.saturating_sub(next);
+                if waiting.len() <= slot {
+                    waiting.resize_with(slot + 1, || None);
+                }
+                waiting[slot] = Some(done);
+                while let Some(Some(_)) = waiting.front() {
+                    let Some(Some(mut done)) = waiting.pop_front() else {
+                        break;
+                    };
+                    output.write_all(&done.out)?;
+                    summary.records += done.records;
+                    summary.failed += done.failed;
+                    progress(done.bytes, done.lines_read);
+                    next += 1;
+                    done.out.clear();
+                    // A closed channel: the reader is done.
+                    let _ = free_tx.send((done.lines, done.out));
+                }
+            }
+            Ok(())
+        })();
+        // On a write error the reader sees no buffer come back and stops; its blocks in
+        // flight are solved and dropped.
+        drop(done_rx);
+        drop(free_tx);
+        let read = reader
+            .join()
+            .unwrap_or_else(|payload| std::panic::resume_unwind(payload));
+        written?;
+        read
+    })?;
     output.flush()?;
     Ok(summary)
 }
 
-/// Writes the records of solved blocks in order and counts them.
-fn write_results<W: Write>(
-    output: &mut W,
-    results: &[(Vec<u8>, usize, usize)],
-    summary: &mut BatchSummary,
-) -> io::Result<()> {
-    for (out, records, failed) in results {
-        output.write_all(out)?;
-        summary.records += records;
-        summary.failed += failed;
-    }
-    Ok(())
+/// A solved block on its way to the writer, with its buffers.
+struct SolvedBlock {
+    /// The block's place in the input (0 for the first).
+    index: usize,
+    lines: Vec<RawLine>,
+    /// Its records as JSON Lines.
+    out: Vec<u8>,
+    records: usize,
+    failed: usize,
+    /// Bytes and lines read when the block was read (for the progress report).
+    bytes: u64,
+    lines_read: usize,
 }
 
-/// Reads up to `chunk` lines (and about [`CHUNK_BYTES`]) into `lines`, buffers re-used:
-/// (lines read, bytes, end of input).
-fn read_chunk<R: BufRead>(input: &mut R, lines: &mut Vec<RawLine>, chunk: usize) -> io::Result<(usize, u64, bool)> {
+/// Reads up to `chunk` lines (and about `max_bytes`) into `lines`, buffers re-used: (lines
+/// read, bytes, end of input).
+fn read_chunk<R: BufRead>(
+    input: &mut R,
+    lines: &mut Vec<RawLine>,
+    chunk: usize,
+    max_bytes: u64,
+) -> io::Result<(usize, u64, bool)> {
     let mut n = 0;
     let mut bytes = 0u64;
-    while n < chunk && bytes < CHUNK_BYTES {
+    while n < chunk && bytes < max_bytes {
         if lines.len() <= n {
             lines.push(RawLine::default());
         }
@@ -1406,88 +1454,88 @@ fn internal_error_line(out: &mut Vec<u8>, mark: usize, line: usize, error: Strin
     error_line(out, line, "internal", error);
 }
 
-/// Solves a chunk in parallel blocks: per block, (records as JSON Lines, records, failures).
-fn solve_chunk<M, F>(lines: &[RawLine], first_line: usize, sizes: Sizes, make: &M) -> Vec<(Vec<u8>, usize, usize)>
+/// Solves one block (its first line is line `first_line + 1`): appends its records as JSON
+/// Lines to `out` and returns (records, failures).
+fn solve_block<M, F>(
+    block_lines: &[RawLine],
+    first_line: usize,
+    sizes: Sizes,
+    make: &M,
+    out: &mut Vec<u8>,
+) -> (usize, usize)
 where
     M: Fn() -> F + Sync,
     F: FnMut(usize, &str, &mut Vec<u8>) -> bool,
 {
-    let block = sizes.block.max(1);
-    lines
-        .par_chunks(block)
-        .enumerate()
-        .map(|(k, block_lines)| {
-            let mut worker = make();
-            let mut out = Vec::with_capacity(block_lines.len() * sizes.record_bytes);
-            let (mut records, mut failed) = (0, 0);
-            for (j, raw) in block_lines.iter().enumerate() {
-                let line_no = first_line + k * block + j + 1;
-                if let Some(len) = raw.overlong {
-                    records += 1;
-                    failed += 1;
-                    error_line(
-                        &mut out,
-                        line_no,
-                        "input",
-                        format!(
-                            "the line is {len} bytes long; a batch line may hold at most {} bytes (1 MiB)",
-                            super::limits::MAX_LINE_BYTES
-                        ),
-                    );
-                    continue;
-                }
-                let text = match std::str::from_utf8(&raw.bytes) {
-                    // A byte-order mark (at the start of a file written by some editors) is
-                    // not part of the document.
-                    Ok(t) => t.trim().trim_start_matches('\u{feff}').trim_start(),
-                    Err(e) => {
-                        records += 1;
-                        failed += 1;
-                        error_line(&mut out, line_no, "syntax", format!("not UTF-8 text: {e}"));
-                        continue;
-                    }
-                };
-                if text.is_empty() {
-                    continue;
-                }
+    let mut worker = make();
+    out.reserve(block_lines.len() * sizes.record_bytes);
+    let (mut records, mut failed) = (0, 0);
+    for (j, raw) in block_lines.iter().enumerate() {
+        let line_no = first_line + j + 1;
+        if let Some(len) = raw.overlong {
+            records += 1;
+            failed += 1;
+            error_line(
+                out,
+                line_no,
+                "input",
+                format!(
+                    "the line is {len} bytes long; a batch line may hold at most {} bytes (1 MiB)",
+                    super::limits::MAX_LINE_BYTES
+                ),
+            );
+            continue;
+        }
+        let text = match std::str::from_utf8(&raw.bytes) {
+            // A byte-order mark (at the start of a file written by some editors) is
+            // not part of the document.
+            Ok(t) => t.trim().trim_start_matches('\u{feff}').trim_start(),
+            Err(e) => {
                 records += 1;
-                let mark = out.len();
-                let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| worker(line_no, text, &mut out)));
-                match outcome {
-                    Ok(f) => {
-                        // Exactly one record, ended by a newline (records hold no raw newline).
-                        let newlines = out[mark..].iter().filter(|&&b| b == b'\n').count();
-                        if newlines == 1 && out.last() == Some(&b'\n') {
-                            failed += usize::from(f);
-                        } else {
-                            failed += 1;
-                            internal_error_line(
-                                &mut out,
-                                mark,
-                                line_no,
-                                "internal error (a bug in protolyte; please report it): the record could not be written".into(),
-                            );
-                        }
-                    }
-                    Err(payload) => {
-                        failed += 1;
-                        internal_error_line(
-                            &mut out,
-                            mark,
-                            line_no,
-                            format!(
-                                "internal error (a bug in protolyte; please report it with this line): {}",
-                                panic_message(payload.as_ref())
-                            ),
-                        );
-                        // The worker's state may be half-updated: start a fresh one.
-                        worker = make();
-                    }
+                failed += 1;
+                error_line(out, line_no, "syntax", format!("not UTF-8 text: {e}"));
+                continue;
+            }
+        };
+        if text.is_empty() {
+            continue;
+        }
+        records += 1;
+        let mark = out.len();
+        let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| worker(line_no, text, &mut *out)));
+        match outcome {
+            Ok(f) => {
+                // Exactly one record, ended by a newline (records hold no raw newline).
+                let newlines = out[mark..].iter().filter(|&&b| b == b'\n').count();
+                if newlines == 1 && out.last() == Some(&b'\n') {
+                    failed += usize::from(f);
+                } else {
+                    failed += 1;
+                    internal_error_line(
+                        out,
+                        mark,
+                        line_no,
+                        "internal error (a bug in protolyte; please report it): the record could not be written".into(),
+                    );
                 }
             }
-            (out, records, failed)
-        })
-        .collect()
+            Err(payload) => {
+                failed += 1;
+                internal_error_line(
+                    out,
+                    mark,
+                    line_no,
+                    format!(
+                        "internal error (a bug in protolyte; please report it with this line): {}",
+                        panic_message(payload.as_ref())
+                    ),
+                );
+                // The worker's state may be half-updated: start a fresh one.
+                worker = make();
+            }
+        }
+    }
+    (records, failed)
 }
 
 #[cfg(test)]
