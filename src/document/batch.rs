@@ -1,8 +1,9 @@
 //! Batch runs (feature `batch`): JSON Lines of recipe documents in, JSON Lines of results out.
 //!
-//! The input is read in chunks of lines (constant memory whatever its length); each chunk is
-//! cut into blocks solved in parallel (rayon) and written back in input order. The next chunk
-//! is read, and the records of the previous one written, while a chunk is solved. Within a
+//! The input is read in blocks of lines by a reader thread, each block solved on the rayon
+//! pool as soon as it is read and its records written by the calling thread, in input order,
+//! as soon as the blocks before it are written (constant memory whatever the input's length:
+//! at most [`BatchOptions::chunk_lines`] lines are read and not yet written). Within a
 //! block, recipes with the same reagent names, complexes and conditions share one compiled
 //! [`System`] (as a template): only the totals are reset from the amounts
 //! ([`System::set_total_molal`]), and each solve starts from
@@ -46,8 +47,8 @@ const MAX_TEMPLATES: usize = 64;
 pub struct BatchOptions {
     /// Write the full result (every species and family) in each record.
     pub full: bool,
-    /// Lines read per chunk at most (at least one block); the first chunks are shorter (two
-    /// blocks, then four times the last), so that the workers start early.
+    /// Lines read ahead of the writing at most (in whole blocks, at least two): bounds the
+    /// memory a run holds, whatever the length of the input or the time one block takes.
     pub chunk_lines: usize,
 }
 
@@ -1069,7 +1070,7 @@ fn write_record<T: Serialize>(out: &mut Vec<u8>, rec: &T) {
 }
 
 /// Runs a batch: reads JSON Lines of recipe documents from `input`, writes one JSON line per
-/// non-blank input line to `output`, in input order. `progress` is called after each chunk
+/// non-blank input line to `output`, in input order. `progress` is called after each block is written
 /// with the bytes and lines read so far. Only I/O errors stop the run; a bad line gives an
 /// error record, and so does a line longer than [`MAX_LINE_BYTES`](super::limits::MAX_LINE_BYTES)
 /// (it is skipped without being held in memory) or a line on which the program fails
@@ -1162,19 +1163,20 @@ fn read_failure(e: io::Error) -> io::Error {
     io::Error::new(e.kind(), ReadFailure(e))
 }
 
-/// Block and chunk sizes of a run (small ones in the tests).
+/// Block and read-ahead sizes of a run (small ones in the tests).
 #[derive(Debug, Clone, Copy)]
 struct Sizes {
     /// Lines per block (one task, one worker).
     block: usize,
-    /// Lines per chunk (read while the previous chunk is solved).
+    /// Lines read and not yet written at most (in whole blocks, at least two).
     chunk_lines: usize,
     /// Expected bytes per record (output buffer reservation).
     record_bytes: usize,
 }
 
-/// Bytes read per chunk at most (with lines near the line limit, fewer lines are read per
-/// chunk, so that memory stays bounded whatever the input).
+/// Bytes read and not yet written at most, about (each block holds at most its share: with
+/// lines near the line limit, a block holds fewer lines, so that memory stays bounded
+/// whatever the input).
 const CHUNK_BYTES: u64 = 64 << 20;
 
 /// One input line as read: its bytes, or its length when it was over the limit (and skipped).
