@@ -1,5 +1,6 @@
 //! The general path: damped Newton–Raphson on (ln a(H⁺), ln a(c) for every component with a
-//! positive total, ln I), with the analytic Jacobian and an LU step from nalgebra.
+//! positive total, ln I), with the analytic Jacobian and an LU step of its own on reused
+//! buffers (nalgebra's for the phase rows).
 //!
 //! Start: the fast path on the uncoupled part of the system (complexes ignored), then
 //! positive-continued-fraction sweeps on the component activities (J. Carrayrou, R. Mosé and
@@ -288,6 +289,13 @@ fn lu_solve_in_place(a: &mut [f64], n: usize, b: &mut [f64]) -> bool {
 /// The threshold of [`lu_solve_in_place`]'s pivoting (Duff, Erisman and Reid's u; 0.1 is
 /// their usual choice): element growth is at most 1 + 1/u a step.
 const PIVOT_THRESHOLD: f64 = 0.1;
+
+/// Copies `src` into `dst` in `dst`'s buffer (the derived `Clone::clone_from` of a
+/// point allocates anew).
+fn copy_point(dst: &mut Point, src: &Point) {
+    dst.y.clone_from(&src.y);
+    dst.ln_i = src.ln_i;
+}
 
 /// The largest |entry|; NaN when an entry is NaN.
 fn amax(v: &[f64]) -> f64 {
@@ -654,7 +662,7 @@ impl Scratch {
         }
         self.h.clear();
         self.h.resize(n * n, 0.0);
-        self.trial.clone_from(p);
+        copy_point(&mut self.trial, p);
     }
 
     fn size_newton(&mut self, m: usize) {
@@ -777,7 +785,7 @@ fn joint_newton(
         let round_off = 4.0 * f64::EPSILON * y_size.max(1.0);
         let mut alpha = 1.0;
         let mut accepted = false;
-        trial.clone_from(p);
+        copy_point(trial, p);
         for _ in 0..40 {
             if alpha * big < round_off || (probe && alpha < 0.25) {
                 break;
@@ -794,7 +802,7 @@ fn joint_newton(
                 last_step = alpha * big;
                 // Repeated heavy damping means the merit function is badly scaled here.
                 short_steps = if alpha < 1e-2 { short_steps + 1 } else { 0 };
-                p.clone_from(trial);
+                copy_point(p, trial);
                 std::mem::swap(f, tf);
                 std::mem::swap(scale, ts);
                 phi = tphi;
@@ -893,8 +901,8 @@ fn solve_laid_out(
 ) -> Result<(Point, Evaluation, usize)> {
     let act = &lay.act;
     let nc = sys.components.len();
-    let mut ev = Evaluation::new(sys);
     let mut iters = 0;
+    let mut fast_ev = None;
     let mut p = match start {
         Some((y, li)) if y.len() == nc && li.is_finite() && y[0].is_finite() => {
             let mut y = y.to_vec();
@@ -911,7 +919,10 @@ fn solve_laid_out(
         }
         _ => {
             let (p, n) = match fast::solve(sys, None, 1e-2) {
-                Ok((p, _, n)) => (p, n),
+                Ok((p, fev, n)) => {
+                    fast_ev = Some(fev);
+                    (p, n)
+                }
                 Err(_) => {
                     let mut y = vec![f64::NEG_INFINITY; nc];
                     y[0] = -7.0 * LN10;
@@ -930,6 +941,18 @@ fn solve_laid_out(
             iters += n;
             p
         }
+    };
+    // The fast path's molalities and ln γ buffers become this evaluation's (every entry is
+    // written before it is read) where γ does not depend on the composition.
+    let mut ev = match fast_ev {
+        Some(fev) if sys.interactions.known.is_empty() => Evaluation {
+            conc: fev.conc,
+            ln_gamma: fev.ln_gamma,
+            dln_gamma_di: vec![0.0; sys.species.len()],
+            held: Vec::new(),
+            phase_amounts: Vec::new(),
+        },
+        _ => Evaluation::new(sys),
     };
     let ideal = sys.model == crate::activity::ActivityModel::Ideal;
     // The ionic strength of the species at `p` (under γ = 1 I is a by-product; the joint
@@ -956,7 +979,7 @@ fn solve_laid_out(
     // back to this point and takes the convex phase first, as when the start is far. (Not
     // under composition-dependent γ, whose held composition the joint Newton moves.)
     if direct && ev.held.is_empty() && worst_residual(sys, &ev, lay, &p, sc) <= DIRECT_START {
-        sc.start.clone_from(&p);
+        copy_point(&mut sc.start, &p);
         let mut probe_iters = iters;
         let joint_end = (iters + DIRECT_ITERATIONS).min(max_iter);
         consistent_i(&ev, &mut p);
@@ -967,7 +990,7 @@ fn solve_laid_out(
             return Ok((p, ev, probe_iters));
         }
         iters = probe_iters;
-        p.clone_from(&sc.start);
+        copy_point(&mut p, &sc.start);
         ev.set_gamma(sys, p.ln_i.exp());
     }
     iters += convex_phase(sys, &mut ev, lay, &mut p, 1e-3, 100, sc);
