@@ -465,22 +465,21 @@ fn convex_phase(
         for k in 0..n {
             d_inv[k] = 1.0 / (h[k * n + k] * (1.0 + 1e-14) + 1e-300_f64).sqrt();
         }
-        for a in 0..n {
-            for b in 0..n {
-                h[b * n + a] *= d_inv[a] * d_inv[b];
+        for (b, col) in h.chunks_exact_mut(n).enumerate() {
+            let db = d_inv[b];
+            for (x, da) in col.iter_mut().zip(d_inv.iter()) {
+                *x *= da * db;
             }
-            h[a * n + a] += 1e-14;
+            col[b] += 1e-14;
         }
-        for k in 0..n {
-            let i = lay.slot[k];
-            g1[i] = -grad[k] * d_inv[i];
+        for (&i, g) in lay.slot.iter().zip(grad.iter()) {
+            g1[i] = -g * d_inv[i];
         }
         if !lu_solve_in_place(h, n, g1) {
             break;
         }
-        for k in 0..n {
-            let i = lay.slot[k];
-            d[k] = g1[i] * d_inv[i];
+        for (&i, dk) in lay.slot.iter().zip(d.iter_mut()) {
+            *dk = g1[i] * d_inv[i];
         }
         let mut big = amax(d);
         if !big.is_finite() {
