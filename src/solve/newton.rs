@@ -57,7 +57,22 @@ pub(crate) struct Layout {
 
 impl Layout {
     pub(crate) fn new(sys: &System) -> Self {
-        let mut layout = Layout::default();
+        // Sized for the system at once, so that filling it does not grow the vectors.
+        let (ns, nt, nc) = (sys.species.len(), sys.terms.len(), sys.components.len());
+        let mut layout = Layout {
+            act: Vec::with_capacity(nc),
+            species: Vec::with_capacity(ns),
+            col_start: Vec::with_capacity(ns + 1),
+            cols: Vec::with_capacity(nt),
+            row_start: Vec::with_capacity(ns + 1),
+            rows: Vec::with_capacity(nt + 2 * ns),
+            incidence: (0..nc)
+                .map(|c| Vec::with_capacity(sys.members.get(c).map_or(0, Vec::len) + 4))
+                .collect(),
+            slot: Vec::with_capacity(nc + 1),
+            cols_slot: Vec::with_capacity(nt),
+            rows_slot: Vec::with_capacity(nt + 2 * ns),
+        };
         layout.fill(sys);
         layout
     }
