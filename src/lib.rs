@@ -99,6 +99,8 @@ mod recipe;
 mod sensitivity;
 pub mod solve;
 mod system;
+#[cfg(test)]
+mod testing;
 pub mod vant_hoff;
 mod warning;
 pub mod water;

@@ -791,7 +791,7 @@ impl Block<'_> {
             None => self.solver.solve(&t.sys),
         }
         .map_err(|e| Failure::Solve(name(), e))?;
-        t.ws.start_from(&eq);
+        t.ws.set_start(eq.unknowns().first().map(|&l| (l, eq.ln_ionic_strength())));
         Ok((Some(idx), Solved::Full(Box::new(eq), None)))
     }
 

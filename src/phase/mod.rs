@@ -19,6 +19,7 @@ pub use saturation::{ALKALINITY_REFERENCE_PKA, GasState, SUPERSATURATION_TOLERAN
 pub use solid::Solid;
 
 pub(crate) use saturation::reference_protons;
+#[cfg(feature = "serde")]
 pub(crate) use solid::part_charge;
 
 use std::sync::Arc;

@@ -1120,14 +1120,7 @@ mod tests {
             ActivityModel::Sit,
             ActivityModel::Ideal,
         ];
-        // A fixed linear congruential sequence (Knuth, TAOCP vol. 2, MMIX constants).
-        let mut state: u64 = 0x2545_f491_4f6c_dd1d;
-        let mut next = move || {
-            state = state
-                .wrapping_mul(6_364_136_223_846_793_005)
-                .wrapping_add(1_442_695_040_888_963_407);
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut next = crate::testing::lcg(0x2545_f491_4f6c_dd1d);
         let (mut compared, mut ill, mut worst_ph) = (0, 0, 0.0f64);
         for case in 0..600 {
             let mut r = Recipe::new();

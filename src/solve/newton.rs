@@ -2177,14 +2177,7 @@ mod tests {
             ActivityModel::ExtendedDebyeHuckel,
             ActivityModel::Ideal,
         ];
-        // A fixed linear congruential sequence (Knuth, TAOCP vol. 2, MMIX constants).
-        let mut state: u64 = 0x5851_f42d_4c95_7f2d;
-        let mut next = move || {
-            state = state
-                .wrapping_mul(6_364_136_223_846_793_005)
-                .wrapping_add(1_442_695_040_888_963_407);
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut next = crate::testing::lcg(0x5851_f42d_4c95_7f2d);
         let (mut compared, mut coupled, mut direct_taken) = (0, 0, 0);
         for case in 0..300 {
             let mut r = Recipe::new();

@@ -63,11 +63,6 @@ impl Workspace {
         self.start = None;
     }
 
-    /// Starts the next solve from `eq`.
-    pub(crate) fn start_from(&mut self, eq: &crate::Equilibrium) {
-        self.start = eq.unknowns().first().map(|&l| (l, eq.ln_ionic_strength()));
-    }
-
     /// The start of the next solve: (ln a(H⁺), ln I), or `None` for a cold start.
     pub(crate) fn set_start(&mut self, start: Option<(f64, f64)>) {
         self.start = start;
@@ -219,6 +214,7 @@ impl Solver {
     /// the floor or beyond the tested domain, a residual above the promise, an ionic strength
     /// beyond the model's or the pH convention's range, an SIT pair without a coefficient, a
     /// supersaturated solid (systems with other phases always go to the full solve).
+    #[cfg(feature = "batch")]
     pub(crate) fn solve_ph_unwarned(&self, sys: &System, workspace: &mut Workspace) -> Result<Option<PhSolution>> {
         let rho = sys.water_density;
         let quiet_system = sys.compile_warnings.is_empty()
