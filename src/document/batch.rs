@@ -276,72 +276,45 @@ fn fast_line(text: &str) -> Option<FastLine<'_>> {
         fixed_dic_mmol_per_kg: None,
         charge_balance_on: None,
     };
-    let mut seen = 0u8;
-    s.eat(b'{')?;
-    if s.peek()? == b'}' {
-        s.i += 1;
-    } else {
-        loop {
-            let key = s.string()?;
-            s.eat(b':')?;
-            let bit = match key {
-                "format" => {
-                    line.format = Some(Cow::Borrowed(s.string()?));
-                    1
-                }
-                "name" => {
-                    line.name = Some(Cow::Borrowed(s.string()?));
-                    2
-                }
-                "temperature_celsius" => {
-                    line.temperature_celsius = Some(s.number()?);
-                    4
-                }
-                "activity" => {
-                    line.activity = Some(match s.string()? {
-                        "ideal" => super::ActivityDoc::Ideal,
-                        "davies" => super::ActivityDoc::Davies,
-                        "extended-debye-huckel" => super::ActivityDoc::ExtendedDebyeHuckel,
-                        "sit" => super::ActivityDoc::Sit,
-                        _ => return None,
-                    });
-                    8
-                }
-                "ph_convention" => {
-                    line.ph_convention = Some(match s.string()? {
-                        "model" => super::PhConventionDoc::Model,
-                        "bates-guggenheim" => super::PhConventionDoc::BatesGuggenheim,
-                        _ => return None,
-                    });
-                    16
-                }
-                "reagents" => {
-                    s.reagents(&mut line.reagents)?;
-                    32
-                }
-                "complexes" => {
-                    // Only an empty list (a list of names is read by serde).
-                    s.eat(b'[')?;
-                    s.eat(b']')?;
-                    64
-                }
-                "include_catalog_complexes" => {
-                    line.include_catalog_complexes = s.boolean()?;
-                    128
-                }
-                _ => return None,
-            };
-            if seen & bit != 0 {
-                return None;
+    s.object(|s, key| {
+        Some(match key {
+            "format" => {
+                line.format = Some(Cow::Borrowed(s.string()?));
+                1
             }
-            seen |= bit;
-            match s.next_byte()? {
-                b',' => continue,
-                b'}' => break,
-                _ => return None,
+            "name" => {
+                line.name = Some(Cow::Borrowed(s.string()?));
+                2
             }
-        }
-    }
+            "temperature_celsius" => {
+                line.temperature_celsius = Some(s.number()?);
+                4
+            }
+            "activity" => {
+                line.activity = Some(named(s.string()?)?);
+                8
+            }
+            "ph_convention" => {
+                line.ph_convention = Some(named(s.string()?)?);
+                16
+            }
+            "reagents" => {
+                s.reagents(&mut line.reagents)?;
+                32
+            }
+            "complexes" => {
+                // Only an empty list (a list of names is read by serde).
+                s.eat(b'[')?;
+                s.eat(b']')?;
+                64
+            }
+            "include_catalog_complexes" => {
+                line.include_catalog_complexes = s.boolean()?;
+                128
+            }
+            _ => return None,
+        })
+    })?;
     s.ws();
     (s.i == s.b.len()).then_some(line)
 }
@@ -406,6 +379,37 @@ impl<'a> Scan<'a> {
         let c = self.peek()?;
         self.i += 1;
         Some(c)
+    }
+
+    /// A JSON object: `{`, then its entries as [`Scan::object_entries`] reads them.
+    fn object(&mut self, entry: impl FnMut(&mut Self, &'a str) -> Option<u8>) -> Option<u8> {
+        self.eat(b'{')?;
+        if self.peek()? == b'}' {
+            self.i += 1;
+            return Some(0);
+        }
+        self.object_entries(entry)
+    }
+
+    /// The entries of a JSON object after its `{`, up to and with its `}`: `entry` reads each
+    /// value after its key and gives the key's bit. A key not read here (`None` from
+    /// `entry`) or one given twice leaves the line to serde. Gives the bits of the keys seen.
+    fn object_entries(&mut self, mut entry: impl FnMut(&mut Self, &'a str) -> Option<u8>) -> Option<u8> {
+        let mut seen = 0u8;
+        loop {
+            let key = self.string()?;
+            self.eat(b':')?;
+            let bit = entry(self, key)?;
+            if seen & bit != 0 {
+                return None;
+            }
+            seen |= bit;
+            match self.next_byte()? {
+                b',' => continue,
+                b'}' => return Some(seen),
+                _ => return None,
+            }
+        }
     }
 
     fn eat(&mut self, c: u8) -> Option<()> {
@@ -554,17 +558,14 @@ impl<'a> Scan<'a> {
             aliquot_ml: None,
             final_volume_ml: None,
         };
-        let mut seen = 0u8;
         if self.peek()? == b'}' {
             // No `reagent`: serde's message.
             return None;
         }
-        loop {
-            let key = self.string()?;
-            self.eat(b':')?;
+        let seen = self.object_entries(|s, key| {
             let (slot, bit) = match key {
                 "reagent" => {
-                    a.reagent = Cow::Borrowed(self.string()?);
+                    a.reagent = Cow::Borrowed(s.string()?);
                     (None, 1)
                 }
                 "molar" => (Some(&mut a.molar), 2),
@@ -577,20 +578,18 @@ impl<'a> Scan<'a> {
                 _ => return None,
             };
             if let Some(slot) = slot {
-                *slot = Some(self.number()?);
+                *slot = Some(s.number()?);
             }
-            if seen & bit != 0 {
-                return None;
-            }
-            seen |= bit;
-            match self.next_byte()? {
-                b',' => continue,
-                b'}' => break,
-                _ => return None,
-            }
-        }
+            Some(bit)
+        })?;
         (seen & 1 != 0).then_some(a)
     }
+}
+
+/// A document enum (activity model, pH convention) from its name, by the names its serde
+/// derive gives it, so that the fast reader and serde accept the same names.
+fn named<'de, T: serde::Deserialize<'de>>(name: &'de str) -> Option<T> {
+    T::deserialize(serde::de::value::BorrowedStrDeserializer::<serde::de::value::Error>::new(name)).ok()
 }
 
 /// A compiled system re-used for recipes with the same names and conditions.
